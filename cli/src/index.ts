@@ -1,0 +1,2 @@
+export { main } from './main';
+export { Runtime } from './runtime';

@@ -1,0 +1,34 @@
+import { check, doublePrecision, integer, jsonb, pgTable, primaryKey, text, timestamp, unique, uuid } from 'drizzle-orm/pg-core';
+import { sql } from 'drizzle-orm';
+import { batches } from './batches';
+import { regions } from './regions';
+
+/** Forest area of a region × forest type (strata.csv), for stratified means and totals. */
+export const strata = pgTable(
+  'strata',
+  {
+    regionId: integer('region_id')
+      .notNull()
+      .references(() => regions.id),
+    forestType: text('forest_type').notNull(),
+    forestAreaHa: doublePrecision('forest_area_ha').notNull(),
+    batchId: uuid('batch_id').references(() => batches.id, { onDelete: 'set null' }),
+  },
+  (t) => [primaryKey({ name: 'strata_pk', columns: [t.regionId, t.forestType] }), check('strata_area_chk', sql`${t.forestAreaHa} > 0`)],
+);
+
+/** A region's summary as assembled after a recompute; the API serves the latest or any earlier version. */
+export const regionSummaries = pgTable(
+  'region_summaries',
+  {
+    id: integer('id').primaryKey().generatedAlwaysAsIdentity(),
+    regionId: integer('region_id')
+      .notNull()
+      .references(() => regions.id),
+    version: integer('version').notNull(),
+    etag: text('etag').notNull(),
+    payload: jsonb('payload').notNull(),
+    createdAt: timestamp('created_at', { withTimezone: true }).notNull().defaultNow(),
+  },
+  (t) => [unique('region_summaries_version_uq').on(t.regionId, t.version)],
+);

@@ -1,0 +1,142 @@
+import path from 'node:path';
+import { z } from 'zod';
+import { ConfigError } from './errors';
+
+// The only module that reads process.env. Every setting, its default and its meaning; the README's
+// configuration table is written from this list.
+const intIn = (min: number, max: number) => z.coerce.number().int().min(min).max(max);
+const num = () => z.coerce.number().refine(Number.isFinite, 'must be a number');
+
+const envSchema = z.object({
+  DATABASE_URL: z
+    .string()
+    .regex(/^postgres(ql)?:\/\//, 'must be a postgres:// or postgresql:// URL')
+    .optional(),
+  REDIS_URL: z
+    .string()
+    .regex(/^rediss?:\/\//, 'must be a redis:// or rediss:// URL')
+    .optional(),
+  STEMWISE_DATA_DIR: z.string().min(1).default('.stemwise'),
+  STEMWISE_STORAGE_DIR: z.string().min(1).optional(),
+  STEMWISE_LOG_LEVEL: z.enum(['fatal', 'error', 'warn', 'info', 'debug', 'trace', 'silent']).default('info'),
+  STEMWISE_QUEUE_PREFIX: z.string().regex(/^[A-Za-z0-9_.-]+$/, 'letters, digits, _ . - only').default('stemwise'),
+  STEMWISE_FOREST_TYPES: z
+    .string()
+    .regex(/^[A-Za-z0-9_.-]+:(dry|moist|wet)(,[A-Za-z0-9_.-]+:(dry|moist|wet))*$/, 'a list like wet:wet,moist:moist,dry:dry (code:climate)')
+    .default('wet:wet,moist:moist,dry:dry'),
+  STEMWISE_COMPUTE_CONCURRENCY: intIn(1, 64).default(2),
+  STEMWISE_INGEST_CONCURRENCY: intIn(1, 16).default(1),
+  STEMWISE_CHUNK_PLOTS: intIn(1, 100_000).default(500),
+  STEMWISE_JOB_ATTEMPTS: intIn(1, 50).default(5),
+  STEMWISE_NIGHTLY_CRON: z.string().min(9).default('0 2 * * *'),
+  STEMWISE_TIMEZONE: z.string().min(1).default('UTC'),
+  STEMWISE_RECONCILE_MINUTES: intIn(1, 1440).default(5),
+  STEMWISE_HOST: z.string().min(1).default('127.0.0.1'),
+  STEMWISE_PORT: intIn(0, 65535).default(8080),
+  STEMWISE_DEFAULT_WOOD_DENSITY: num().pipe(z.number().min(0.1).max(1.5)).default(0.58),
+  STEMWISE_MIN_HEIGHTS: intIn(3, 100_000).default(30),
+  STEMWISE_SAMPLING_ERROR_T: z.enum(['t', '1.96', '2']).default('t'),
+  STEMWISE_FIT_METRIC: z.string().min(1).default('fisher_alpha'),
+  STEMWISE_FIT_AXIS: z.string().min(1).default('disturbance_index'),
+  STEMWISE_BOOTSTRAP: intIn(0, 100_000).default(1000),
+  STEMWISE_SEED: intIn(0, 2 ** 31 - 1).default(20261201),
+});
+
+export type Climate = 'dry' | 'moist' | 'wet';
+
+export interface Config {
+  databaseUrl: string | undefined;
+  redisUrl: string | undefined;
+  dataDir: string;
+  storageDir: string;
+  logLevel: string;
+  queuePrefix: string;
+  forestTypes: ReadonlyArray<{ code: string; climate: Climate }>;
+  computeConcurrency: number;
+  ingestConcurrency: number;
+  chunkPlots: number;
+  jobAttempts: number;
+  nightlyCron: string;
+  timezone: string;
+  reconcileMinutes: number;
+  host: string;
+  port: number;
+  defaultWoodDensity: number;
+  minHeights: number;
+  samplingErrorT: 't' | '1.96' | '2';
+  fitMetric: string;
+  fitAxis: string;
+  bootstrap: number;
+  seed: number;
+}
+
+/** Settings with their defaults and meaning, for the README and `--help`. */
+export const SETTINGS: ReadonlyArray<{ name: string; default: string; meaning: string }> = [
+  { name: 'DATABASE_URL', default: '(unset: embedded PGlite)', meaning: 'PostgreSQL server, e.g. postgres://user@host:5432/stemwise' },
+  { name: 'REDIS_URL', default: '(unset: jobs run in-process)', meaning: 'Redis for BullMQ queues, e.g. redis://127.0.0.1:6379' },
+  { name: 'STEMWISE_DATA_DIR', default: '.stemwise', meaning: 'folder of the embedded database and, by default, stored uploads' },
+  { name: 'STEMWISE_STORAGE_DIR', default: '<data dir>/uploads', meaning: 'where uploaded files are kept; must be shared by all ingest workers' },
+  { name: 'STEMWISE_LOG_LEVEL', default: 'info', meaning: 'pino log level (logs go to stderr as JSON lines)' },
+  { name: 'STEMWISE_QUEUE_PREFIX', default: 'stemwise', meaning: 'Redis key prefix of the queues' },
+  { name: 'STEMWISE_FOREST_TYPES', default: 'wet:wet,moist:moist,dry:dry', meaning: 'known forest type codes and the climate class of their no-height biomass model' },
+  { name: 'STEMWISE_COMPUTE_CONCURRENCY', default: '2', meaning: 'jobs a compute worker runs at once' },
+  { name: 'STEMWISE_INGEST_CONCURRENCY', default: '1', meaning: 'batches an ingest worker loads at once' },
+  { name: 'STEMWISE_CHUNK_PLOTS', default: '500', meaning: 'plot visits per metrics job' },
+  { name: 'STEMWISE_JOB_ATTEMPTS', default: '5', meaning: 'tries of a job before it is failed (exponential backoff)' },
+  { name: 'STEMWISE_NIGHTLY_CRON', default: '0 2 * * *', meaning: 'when the nightly recompute runs (cron)' },
+  { name: 'STEMWISE_TIMEZONE', default: 'UTC', meaning: 'time zone of the nightly schedule' },
+  { name: 'STEMWISE_RECONCILE_MINUTES', default: '5', meaning: 'how often workers look for due work no queued job covers' },
+  { name: 'STEMWISE_HOST', default: '127.0.0.1', meaning: 'address the report service listens on' },
+  { name: 'STEMWISE_PORT', default: '8080', meaning: 'port of the report service' },
+  { name: 'STEMWISE_DEFAULT_WOOD_DENSITY', default: '0.58', meaning: 'regional default wood density (g/cm³) when nothing better is known' },
+  { name: 'STEMWISE_MIN_HEIGHTS', default: '30', meaning: 'measured heights a forest type needs before a height–diameter model is fitted' },
+  { name: 'STEMWISE_SAMPLING_ERROR_T', default: 't', meaning: 'multiplier of the sampling error %: Student t, 1.96 or 2' },
+  { name: 'STEMWISE_FIT_METRIC', default: 'fisher_alpha', meaning: 'diversity column of the nightly curve fits' },
+  { name: 'STEMWISE_FIT_AXIS', default: 'disturbance_index', meaning: 'disturbance column of the nightly curve fits' },
+  { name: 'STEMWISE_BOOTSTRAP', default: '1000', meaning: 'bootstrap resamples for the vertex interval' },
+  { name: 'STEMWISE_SEED', default: '20261201', meaning: 'seed of the bootstrap, so reruns give the same intervals' },
+];
+
+/** Parses the environment once into a typed configuration; a bad value throws a ConfigError naming it. */
+export function loadConfig(env: Readonly<Record<string, string | undefined>> = process.env): Config {
+  const cleaned: Record<string, string> = {};
+  for (const key of Object.keys(envSchema.shape)) {
+    const value = env[key];
+    if (value !== undefined && value.trim() !== '') cleaned[key] = value.trim();
+  }
+  const parsed = envSchema.safeParse(cleaned);
+  if (!parsed.success) {
+    const issue = parsed.error.issues[0];
+    throw new ConfigError(String(issue.path[0] ?? 'environment'), issue.message);
+  }
+  const e = parsed.data;
+  const dataDir = path.resolve(e.STEMWISE_DATA_DIR);
+  return {
+    databaseUrl: e.DATABASE_URL,
+    redisUrl: e.REDIS_URL,
+    dataDir,
+    storageDir: path.resolve(e.STEMWISE_STORAGE_DIR ?? path.join(dataDir, 'uploads')),
+    logLevel: e.STEMWISE_LOG_LEVEL,
+    queuePrefix: e.STEMWISE_QUEUE_PREFIX,
+    forestTypes: e.STEMWISE_FOREST_TYPES.split(',').map((pair) => {
+      const [code, climate] = pair.split(':');
+      return { code, climate: climate as Climate };
+    }),
+    computeConcurrency: e.STEMWISE_COMPUTE_CONCURRENCY,
+    ingestConcurrency: e.STEMWISE_INGEST_CONCURRENCY,
+    chunkPlots: e.STEMWISE_CHUNK_PLOTS,
+    jobAttempts: e.STEMWISE_JOB_ATTEMPTS,
+    nightlyCron: e.STEMWISE_NIGHTLY_CRON,
+    timezone: e.STEMWISE_TIMEZONE,
+    reconcileMinutes: e.STEMWISE_RECONCILE_MINUTES,
+    host: e.STEMWISE_HOST,
+    port: e.STEMWISE_PORT,
+    defaultWoodDensity: e.STEMWISE_DEFAULT_WOOD_DENSITY,
+    minHeights: e.STEMWISE_MIN_HEIGHTS,
+    samplingErrorT: e.STEMWISE_SAMPLING_ERROR_T,
+    fitMetric: e.STEMWISE_FIT_METRIC,
+    fitAxis: e.STEMWISE_FIT_AXIS,
+    bootstrap: e.STEMWISE_BOOTSTRAP,
+    seed: e.STEMWISE_SEED,
+  };
+}

@@ -1,0 +1,4 @@
+export * from './config';
+export * from './errors';
+export * from './logger';
+export * from './queue/index';

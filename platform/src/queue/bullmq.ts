@@ -1,0 +1,184 @@
+import { FlowProducer, Queue, UnrecoverableError, Worker, type FlowJob, type JobsOptions } from 'bullmq';
+import { Redis } from 'ioredis';
+import type { Logger } from '../logger';
+import { PermanentError, ServiceUnavailableError, oneLine } from '../errors';
+import { assertProcessors } from './check';
+import { QUEUE_NAMES, queueOf, type JobName, type QueueName } from './jobs';
+import type { JobQueue, JobSpec, JobState, ProcessorMap, QueueCounts, WorkOptions } from './types';
+
+export interface BullOptions {
+  url: string;
+  prefix: string;
+  attempts: number;
+  log: Logger;
+}
+
+/** Opens a Redis connection and checks it answers; an unreachable Redis is one clear line naming REDIS_URL. */
+export async function connectRedis(url: string, timeoutMs = 4000): Promise<Redis> {
+  const redis = new Redis(url, { maxRetriesPerRequest: null, lazyConnect: true, connectTimeout: timeoutMs, enableOfflineQueue: true });
+  redis.on('error', () => {}); // reported through the ping below and by the workers' own listeners
+  try {
+    await Promise.race([
+      redis.connect().then(() => redis.ping()),
+      new Promise((_, reject) => setTimeout(() => reject(new Error(`no answer within ${timeoutMs} ms`)), timeoutMs)),
+    ]);
+  } catch (err) {
+    redis.disconnect();
+    throw new ServiceUnavailableError('REDIS_URL', `cannot reach Redis at ${redactUrl(url)} (${oneLine(err)})`, { cause: err });
+  }
+  return redis;
+}
+
+export function redactUrl(url: string): string {
+  return url.replace(/\/\/([^:@/]*):([^@/]*)@/, '//$1:***@');
+}
+
+/** BullMQ on Redis: durable, retried with exponential backoff, distributed across worker processes. */
+export class BullQueue implements JobQueue {
+  readonly kind = 'bullmq' as const;
+  private readonly queues = new Map<QueueName, Queue>();
+  private readonly workers: Worker[] = [];
+  private flows: FlowProducer | null = null;
+  private readonly defaults: JobsOptions;
+
+  private constructor(
+    private readonly redis: Redis,
+    private readonly options: BullOptions,
+  ) {
+    this.defaults = {
+      attempts: options.attempts,
+      backoff: { type: 'exponential', delay: 1000 },
+      removeOnComplete: { age: 7 * 24 * 3600, count: 10_000 },
+      removeOnFail: { age: 30 * 24 * 3600 },
+    };
+  }
+
+  static async open(options: BullOptions): Promise<BullQueue> {
+    const redis = await connectRedis(options.url);
+    return new BullQueue(redis, options);
+  }
+
+  private queue(name: QueueName): Queue {
+    let q = this.queues.get(name);
+    if (!q) {
+      q = new Queue(name, { connection: this.redis, prefix: this.options.prefix, defaultJobOptions: this.defaults });
+      q.on('error', (err) => this.options.log.error({ err, queue: name }, 'queue error'));
+      this.queues.set(name, q);
+    }
+    return q;
+  }
+
+  private toFlow(spec: JobSpec): FlowJob {
+    return {
+      name: spec.name,
+      queueName: queueOf(spec.name),
+      data: spec.data,
+      opts: { ...this.defaults, jobId: spec.jobId, failParentOnFailure: true },
+      children: spec.children?.map((c) => this.toFlow(c)),
+    };
+  }
+
+  async add(spec: JobSpec): Promise<void> {
+    if (spec.children?.length) {
+      this.flows ??= new FlowProducer({ connection: this.redis, prefix: this.options.prefix });
+      await this.flows.add(this.toFlow(spec));
+    } else {
+      await this.queue(queueOf(spec.name)).add(spec.name, spec.data, { jobId: spec.jobId });
+    }
+  }
+
+  async work(processors: ProcessorMap, options: WorkOptions): Promise<void> {
+    assertProcessors(processors, options.queues);
+    for (const queueName of options.queues) {
+      const worker = new Worker(
+        queueName,
+        async (job) => {
+          const name = job.name as JobName;
+          const log = this.options.log.child({ queue: queueName, jobId: job.id, jobName: name });
+          const processor = processors[name];
+          if (!processor) throw new UnrecoverableError(`no processor for ${name}`);
+          try {
+            return await processor(job.data, {
+              jobId: job.id ?? '',
+              name,
+              attempt: job.attemptsMade + 1,
+              log,
+              queue: this,
+              progress: (value) => job.updateProgress(value),
+            });
+          } catch (err) {
+            log.warn({ err, attempt: job.attemptsMade + 1 }, 'job attempt failed');
+            if (err instanceof PermanentError) throw new UnrecoverableError(err.message);
+            throw err;
+          }
+        },
+        {
+          connection: this.redis.duplicate(),
+          prefix: this.options.prefix,
+          concurrency: options.concurrency?.[queueName] ?? 1,
+          autorun: true,
+        },
+      );
+      worker.on('error', (err) => this.options.log.error({ err, queue: queueName }, 'worker error'));
+      worker.on('failed', (job, err) =>
+        this.options.log.error({ queue: queueName, jobId: job?.id, jobName: job?.name, reason: err.message }, 'job failed'),
+      );
+      this.workers.push(worker);
+    }
+  }
+
+  async drain(timeoutMs = 10 * 60_000): Promise<ReadonlyArray<{ jobId: string; name: JobName; error: string }>> {
+    const deadline = Date.now() + timeoutMs;
+    for (;;) {
+      let busy = 0;
+      for (const name of QUEUE_NAMES) {
+        const c = await this.queue(name).getJobCounts('waiting', 'active', 'delayed', 'waiting-children', 'prioritized');
+        busy += Object.values(c).reduce((a, b) => a + b, 0);
+      }
+      if (busy === 0) return [];
+      if (Date.now() > deadline) throw new Error(`queues still busy after ${timeoutMs} ms`);
+      await new Promise((r) => setTimeout(r, 100));
+    }
+  }
+
+  async state(jobId: string, name: JobName): Promise<JobState> {
+    const s = await this.queue(queueOf(name)).getJobState(jobId);
+    return (['waiting', 'active', 'delayed', 'completed', 'failed', 'waiting-children'] as const).includes(s as never)
+      ? (s as JobState)
+      : s === 'prioritized' || s === 'waiting-children'
+        ? 'waiting'
+        : 'unknown';
+  }
+
+  /** The failure reason of a job, or null. */
+  async failedReason(jobId: string, name: JobName): Promise<string | null> {
+    const job = await this.queue(queueOf(name)).getJob(jobId);
+    return job?.failedReason ?? null;
+  }
+
+  async counts(): Promise<Record<QueueName, QueueCounts>> {
+    const out = {} as Record<QueueName, QueueCounts>;
+    for (const name of QUEUE_NAMES) {
+      const c = await this.queue(name).getJobCounts('waiting', 'active', 'delayed', 'completed', 'failed', 'waiting-children', 'prioritized');
+      out[name] = {
+        waiting: (c.waiting ?? 0) + (c['waiting-children'] ?? 0) + (c.prioritized ?? 0),
+        active: c.active ?? 0,
+        delayed: c.delayed ?? 0,
+        completed: c.completed ?? 0,
+        failed: c.failed ?? 0,
+      };
+    }
+    return out;
+  }
+
+  async schedule(schedulerId: string, cron: string, timezone: string, spec: Omit<JobSpec, 'jobId' | 'children'>): Promise<void> {
+    await this.queue(queueOf(spec.name)).upsertJobScheduler(schedulerId, { pattern: cron, tz: timezone }, { name: spec.name, data: spec.data });
+  }
+
+  async close(): Promise<void> {
+    await Promise.all(this.workers.map((w) => w.close()));
+    await Promise.all([...this.queues.values()].map((q) => q.close()));
+    await this.flows?.close();
+    await this.redis.quit().catch(() => this.redis.disconnect());
+  }
+}

@@ -1,0 +1,107 @@
+import type { Logger } from '../logger';
+import { oneLine } from '../errors';
+import { assertProcessors } from './check';
+import { queueOf, QUEUE_NAMES, type JobName, type QueueName } from './jobs';
+import type { JobQueue, JobSpec, JobState, ProcessorMap, QueueCounts, WorkOptions } from './types';
+
+interface Pending {
+  spec: JobSpec;
+  /** Ids of children that must complete first. */
+  after: string[];
+}
+
+/**
+ * Runs jobs by calling the same processors directly, one at a time, in the order they were added
+ * (a flow's children before their parent). For the single-machine demo and the CLI without Redis:
+ * nothing survives the process, and there are no retries.
+ */
+export class InProcessQueue implements JobQueue {
+  readonly kind = 'in-process' as const;
+  private processors: ProcessorMap = {};
+  private readonly pending: Pending[] = [];
+  private readonly states = new Map<string, JobState>();
+  private readonly failures: Array<{ jobId: string; name: JobName; error: string }> = [];
+  private running: Promise<void> | null = null;
+
+  constructor(private readonly log: Logger) {}
+
+  async add(spec: JobSpec): Promise<void> {
+    this.enqueue(spec);
+  }
+
+  private enqueue(spec: JobSpec): void {
+    if (this.states.has(spec.jobId)) return;
+    const after: string[] = [];
+    for (const child of spec.children ?? []) {
+      this.enqueue(child);
+      after.push(child.jobId);
+    }
+    this.states.set(spec.jobId, after.length ? 'waiting-children' : 'waiting');
+    this.pending.push({ spec, after });
+  }
+
+  async work(processors: ProcessorMap, options: WorkOptions): Promise<void> {
+    assertProcessors(processors, options.queues);
+    this.processors = { ...this.processors, ...processors };
+  }
+
+  async drain(): Promise<ReadonlyArray<{ jobId: string; name: JobName; error: string }>> {
+    const seen = this.failures.length;
+    while (this.pending.length) {
+      if (!this.running) this.running = this.runAll().finally(() => (this.running = null));
+      await this.running;
+    }
+    return this.failures.slice(seen);
+  }
+
+  private async runAll(): Promise<void> {
+    while (this.pending.length) {
+      const { spec, after } = this.pending.shift()!;
+      const { jobId, name } = spec;
+      const blocked = after.find((id) => this.states.get(id) !== 'completed');
+      if (blocked) {
+        this.fail(jobId, name, `a child job failed (${blocked})`);
+        continue;
+      }
+      const processor = this.processors[name];
+      if (!processor) {
+        this.fail(jobId, name, `no processor for ${name} in this process`);
+        continue;
+      }
+      this.states.set(jobId, 'active');
+      const log = this.log.child({ queue: queueOf(name), jobId, jobName: name });
+      try {
+        await processor(spec.data, { jobId, name, attempt: 1, log, queue: this, progress: async () => {} });
+        this.states.set(jobId, 'completed');
+      } catch (err) {
+        log.error({ err }, 'job failed');
+        this.fail(jobId, name, oneLine(err));
+      }
+    }
+  }
+
+  private fail(jobId: string, name: JobName, error: string): void {
+    this.states.set(jobId, 'failed');
+    this.failures.push({ jobId, name, error });
+  }
+
+  async state(jobId: string): Promise<JobState> {
+    return this.states.get(jobId) ?? 'unknown';
+  }
+
+  async counts(): Promise<Record<QueueName, QueueCounts>> {
+    const out = Object.fromEntries(
+      QUEUE_NAMES.map((q) => [q, { waiting: 0, active: 0, delayed: 0, completed: 0, failed: 0 }]),
+    ) as Record<QueueName, QueueCounts>;
+    for (const p of this.pending) out[queueOf(p.spec.name)].waiting++;
+    return out;
+  }
+
+  async schedule(): Promise<void> {
+    throw new Error('schedules need Redis (REDIS_URL): the in-process runner has no clock of its own');
+  }
+
+  async close(): Promise<void> {
+    this.pending.length = 0;
+  }
+}
