@@ -6,24 +6,15 @@ type Command = { summary: string; run(args: string[], rt: Runtime): Promise<numb
 // One module per command; a command whose issue has not landed yet says so plainly.
 const COMMANDS: Record<string, () => Promise<Command>> = {
   migrate: () => import('./commands/migrate'),
-  species: () => notYet('species import', 'loads a species reference list'),
-  upload: () => notYet('upload', 'submits a batch'),
-  batch: () => notYet('batch show', 'shows a batch'),
-  recompute: () => notYet('recompute', 'recomputes stale results'),
-  export: () => notYet('export', 'writes plots, fits or regions'),
-  serve: () => notYet('serve', 'runs services and workers'),
-  token: () => notYet('token create', 'creates an access token'),
-  demo: () => notYet('demo', 'runs the whole pipeline on the demo inventory'),
+  species: () => import('./commands/species'),
+  upload: () => import('./commands/upload'),
+  batch: () => import('./commands/batch'),
+  recompute: () => import('./commands/recompute'),
+  export: () => import('./commands/export'),
+  serve: () => import('./commands/serve'),
+  token: () => import('./commands/token'),
+  demo: () => import('./commands/demo'),
 };
-
-async function notYet(name: string, summary: string): Promise<Command> {
-  return {
-    summary,
-    async run() {
-      throw new StemwiseError('not_yet', `'stemwise ${name}' is not available yet in this version`);
-    },
-  };
-}
 
 async function usage(): Promise<string> {
   const lines = ['usage: stemwise <command> [options]', '', 'commands:'];

@@ -1,0 +1,76 @@
+import crypto from 'node:crypto';
+import type { Db, Queryable } from '../connection';
+
+// Stale state lives in PostgreSQL: plot_visits.stale for metrics, stale_work for the fits of a forest
+// type and the summary of a region. Each stage clears its marks and marks the next, in one transaction
+// with its results, so a crash between stages leaves the work visibly due (the reconciler re-queues it).
+
+export type StaleKind = 'fits' | 'summary';
+
+/** Marks visits' metrics as due (at load, or for a new species reference version). */
+export async function markVisitsStale(db: Queryable, visitIds: readonly number[] | 'all'): Promise<number> {
+  const rows =
+    visitIds === 'all'
+      ? await db.query<{ n: number }>(`with u as (update plot_visits set stale = true returning 1) select count(*)::int n from u`)
+      : await db.query<{ n: number }>(`with u as (update plot_visits set stale = true where id = any($1::bigint[]) returning 1) select count(*)::int n from u`, [visitIds]);
+  return rows[0].n;
+}
+
+/** Stale visit ids in a stable order (plot, date), for chunking into jobs. */
+export async function listStaleVisits(db: Queryable): Promise<number[]> {
+  const rows = await db.query<{ id: string | number }>(`select id from plot_visits where stale order by id`);
+  return rows.map((r) => Number(r.id));
+}
+
+export async function markStale(db: Queryable, kind: StaleKind, keys: readonly string[]): Promise<void> {
+  if (!keys.length) return;
+  await db.query(
+    `insert into stale_work (kind, key) select $1, k from unnest($2::text[]) k on conflict (kind, key) do nothing`,
+    [kind, keys],
+  );
+}
+
+export async function listStale(db: Queryable, kind: StaleKind): Promise<string[]> {
+  return (await db.query<{ key: string }>(`select key from stale_work where kind = $1 order by key`, [kind])).map((r) => r.key);
+}
+
+/** Clears marks set no later than `before` (a mark set again meanwhile by newer work stays). */
+export async function clearStale(db: Queryable, kind: StaleKind, keys: readonly string[], before: Date): Promise<void> {
+  if (!keys.length) return;
+  await db.query(`delete from stale_work where kind = $1 and key = any($2::text[]) and since <= $3`, [kind, keys, before]);
+}
+
+export interface RecomputeRun {
+  id: string;
+  trigger: string;
+  visits: number;
+}
+
+/** Records a recompute run covering what is stale now; null when nothing is stale (nothing runs). */
+export async function startRecomputeRun(db: Db, trigger: 'nightly' | 'manual' | 'batch' | 'reconcile', all = false): Promise<RecomputeRun | null> {
+  return db.transaction(async (tx) => {
+    if (all) await markVisitsStale(tx, 'all');
+    const [{ visits, other }] = await tx.query<{ visits: number; other: number }>(
+      `select (select count(*)::int from plot_visits where stale) visits, (select count(*)::int from stale_work) other`,
+    );
+    if (visits === 0 && other === 0) return null;
+    const id = `${new Date().toISOString().replace(/[-:.TZ]/g, '').slice(0, 14)}-${crypto.randomBytes(4).toString('hex')}`;
+    await tx.query(`insert into recompute_runs (id, trigger, state, visits) values ($1, $2, 'running', $3)`, [id, trigger, visits]);
+    return { id, trigger, visits };
+  });
+}
+
+/** Ends a run: marks it done and every loaded batch with no stale visit left as computed. */
+export async function finishRecomputeRun(db: Db, runId: string): Promise<void> {
+  await db.transaction(async (tx) => {
+    await tx.query(`update recompute_runs set state = 'done', finished_at = now() where id = $1`, [runId]);
+    await tx.query(
+      `update batches b set state = 'computed', updated_at = now()
+        where b.state = 'loaded' and not exists (select 1 from plot_visits v where v.batch_id = b.id and v.stale)`,
+    );
+  });
+}
+
+export async function failRecomputeRun(db: Queryable, runId: string, reason: string): Promise<void> {
+  await db.query(`update recompute_runs set state = 'failed', finished_at = now(), details = details || jsonb_build_object('reason', $2::text) where id = $1`, [runId, reason]);
+}
