@@ -1,0 +1,98 @@
+import type { SamplingErrorT } from '../estimators/stratified';
+import type { DisturbanceClass } from './types';
+import { WHOLE_REGION } from './types';
+
+/** One plot's figures, as in `export plots` (numeric columns; null where not computable). */
+export interface PlotMetrics {
+  readonly plotId: string;
+  readonly forestType: string;
+  /** A key that is absent counts as null. */
+  readonly values: Readonly<Record<string, number | null | undefined>>;
+  /** Accepted names of the identified stems, for species counts (duplicates allowed). */
+  readonly speciesNames?: readonly string[];
+}
+
+export interface RegionSummaryOptions {
+  /** Confidence level of all intervals. Default 0.95. */
+  readonly confidence?: number;
+  /** Multiplier in sampling_error_pct: 't' (Student t at the df used, default), 1.96 or 2. */
+  readonly samplingErrorT?: SamplingErrorT;
+  /** df of the whole-region interval: 'satterthwaite' (default) or a fixed number. */
+  readonly df?: 'satterthwaite' | number;
+  /** Plot area in ha. Given (and areas known): the finite population correction is applied with
+   * N_h = forest area / plot area. Default: not applied. */
+  readonly plotAreaHa?: number;
+  /** Classes on disturbance_index. Default DEFAULT_DISTURBANCE_CLASSES. */
+  readonly disturbanceClasses?: readonly DisturbanceClass[];
+}
+
+export interface RegionSummaryInput {
+  readonly region: string;
+  /** One visit per plot. */
+  readonly plots: readonly PlotMetrics[];
+  /** Forest area in ha per forest type; may be empty or partial. */
+  readonly forestAreas?: Readonly<Record<string, number>>;
+  /** Variables to estimate, in row order. Default DEFAULT_REGION_VARIABLES. */
+  readonly variables?: readonly string[];
+  readonly options?: RegionSummaryOptions;
+}
+
+export type RegionSummaryErrorCode = 'BAD_REGION' | 'BAD_PLOT' | 'DUPLICATE_PLOT' | 'BAD_VALUE' | 'BAD_AREA' | 'BAD_VARIABLES' | 'BAD_OPTION';
+
+/** The summary's input was rejected; nothing was computed and nothing is changed. */
+export class RegionSummaryInputError extends Error {
+  readonly code: RegionSummaryErrorCode;
+
+  constructor(code: RegionSummaryErrorCode, detail: string) {
+    super(`summariseRegion: ${detail}`);
+    this.name = 'RegionSummaryInputError';
+    this.code = code;
+  }
+}
+
+const isName = (s: unknown): s is string => typeof s === 'string' && s.trim() !== '';
+
+/** Throws RegionSummaryInputError on the first fault, naming the plot, variable or area concerned. */
+export function validateInput(input: RegionSummaryInput, variables: readonly string[], checked: readonly string[]): void {
+  if (!isName(input.region)) throw new RegionSummaryInputError('BAD_REGION', 'region must be a non-empty string');
+  if (!Array.isArray(input.plots)) throw new RegionSummaryInputError('BAD_PLOT', 'plots must be an array');
+  if (variables.length === 0) throw new RegionSummaryInputError('BAD_VARIABLES', 'at least one variable is needed');
+  if (new Set(variables).size !== variables.length) throw new RegionSummaryInputError('BAD_VARIABLES', 'a variable is listed twice');
+  for (const v of variables) if (!isName(v)) throw new RegionSummaryInputError('BAD_VARIABLES', `variable ${JSON.stringify(v)} is not a name`);
+
+  const seen = new Set<string>();
+  const present = new Set<string>();
+  for (const [i, p] of input.plots.entries()) {
+    if (!isName(p.plotId)) throw new RegionSummaryInputError('BAD_PLOT', `plot ${i} has no plotId`);
+    if (seen.has(p.plotId)) throw new RegionSummaryInputError('DUPLICATE_PLOT', `plot '${p.plotId}' appears twice; pass one visit per plot`);
+    seen.add(p.plotId);
+    if (!isName(p.forestType)) throw new RegionSummaryInputError('BAD_PLOT', `plot '${p.plotId}' has no forest type`);
+    if (p.forestType === WHOLE_REGION) throw new RegionSummaryInputError('BAD_PLOT', `plot '${p.plotId}': forest type '${WHOLE_REGION}' is reserved for the whole region`);
+    if (typeof p.values !== 'object' || p.values === null) throw new RegionSummaryInputError('BAD_PLOT', `plot '${p.plotId}' has no values object`);
+    for (const v of checked) {
+      const x = p.values[v];
+      if (x === undefined) continue;
+      present.add(v);
+      if (x !== null && (typeof x !== 'number' || !Number.isFinite(x))) {
+        throw new RegionSummaryInputError('BAD_VALUE', `plot '${p.plotId}' ${v} is ${String(x)}; expected a finite number or null`);
+      }
+    }
+    if (p.speciesNames !== undefined && (!Array.isArray(p.speciesNames) || (p.speciesNames as readonly unknown[]).some((s) => typeof s !== 'string'))) {
+      throw new RegionSummaryInputError('BAD_PLOT', `plot '${p.plotId}' speciesNames must be an array of strings`);
+    }
+  }
+  if (input.plots.length > 0) {
+    const unknown = variables.filter((v) => !present.has(v));
+    if (unknown.length > 0) throw new RegionSummaryInputError('BAD_VARIABLES', `no plot has a value key for ${unknown.join(', ')} (misspelt?)`);
+  }
+
+  for (const [type, area] of Object.entries(input.forestAreas ?? {})) {
+    if (typeof area !== 'number' || !Number.isFinite(area) || area < 0) {
+      throw new RegionSummaryInputError('BAD_AREA', `forest area of '${type}' is ${String(area)}; expected a finite number ≥ 0 (ha)`);
+    }
+  }
+  const plotArea = input.options?.plotAreaHa;
+  if (plotArea !== undefined && (!(plotArea > 0) || !Number.isFinite(plotArea))) {
+    throw new RegionSummaryInputError('BAD_OPTION', `plotAreaHa must be a finite positive number, got ${String(plotArea)}`);
+  }
+}
