@@ -22,11 +22,15 @@ export class InProcessQueue implements JobQueue {
   private readonly states = new Map<string, JobState>();
   private readonly failures: Array<{ jobId: string; name: JobName; error: string }> = [];
   private running: Promise<void> | null = null;
+  private serving = false;
+  private reported = 0;
 
   constructor(private readonly log: Logger) {}
 
   async add(spec: JobSpec): Promise<void> {
     this.enqueue(spec);
+    // Once a process serves jobs (`work` was called), what is added runs in the background, as a worker would.
+    if (this.serving && !this.running) void this.drain();
   }
 
   private enqueue(spec: JobSpec): void {
@@ -43,15 +47,18 @@ export class InProcessQueue implements JobQueue {
   async work(processors: ProcessorMap, options: WorkOptions): Promise<void> {
     assertProcessors(processors, options.queues);
     this.processors = { ...this.processors, ...processors };
+    this.serving = true;
   }
 
   async drain(): Promise<ReadonlyArray<{ jobId: string; name: JobName; error: string }>> {
-    const seen = this.failures.length;
-    while (this.pending.length) {
+    while (this.pending.length || this.running) {
       if (!this.running) this.running = this.runAll().finally(() => (this.running = null));
       await this.running;
     }
-    return this.failures.slice(seen);
+    // Failures not yet reported by an earlier drain (background runs report here too).
+    const fresh = this.failures.slice(this.reported);
+    this.reported = this.failures.length;
+    return fresh;
   }
 
   private async runAll(): Promise<void> {
