@@ -30,7 +30,7 @@ export class InProcessQueue implements JobQueue {
   async add(spec: JobSpec): Promise<void> {
     this.enqueue(spec);
     // Once a process serves jobs (`work` was called), what is added runs in the background, as a worker would.
-    if (this.serving && !this.running) void this.drain();
+    if (this.serving) void this.kick();
   }
 
   private enqueue(spec: JobSpec): void {
@@ -51,14 +51,16 @@ export class InProcessQueue implements JobQueue {
   }
 
   async drain(): Promise<ReadonlyArray<{ jobId: string; name: JobName; error: string }>> {
-    while (this.pending.length || this.running) {
-      if (!this.running) this.running = this.runAll().finally(() => (this.running = null));
-      await this.running;
-    }
+    while (this.pending.length || this.running) await this.kick();
     // Failures not yet reported by an earlier drain (background runs report here too).
     const fresh = this.failures.slice(this.reported);
     this.reported = this.failures.length;
     return fresh;
+  }
+
+  private kick(): Promise<void> {
+    this.running ??= this.runAll().finally(() => (this.running = null));
+    return this.running;
   }
 
   private async runAll(): Promise<void> {
