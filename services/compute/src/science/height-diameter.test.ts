@@ -1,0 +1,132 @@
+import { describe, expect, it } from 'vitest';
+import {
+  DEFAULT_MIN_HEIGHTS,
+  fitHeightDiameter,
+  hasEnoughHeights,
+  type HeightDiameterModel,
+  MAX_PREDICTED_HEIGHT_M,
+  predictHeight,
+} from './height-diameter';
+
+const rel = (got: number, want: number): number => Math.abs(got - want) / Math.abs(want);
+
+// Chave et al. 2014 eq. 6a at E = 0 (memory, corroborated in public code; shared/reference/sources.md).
+const A = 0.893;
+const B = 0.76;
+const C = -0.034;
+const eq6a = (d: number): number => Math.exp(A + B * Math.log(d) + C * Math.log(d) ** 2);
+
+function diameters(count: number): number[] {
+  const out: number[] = [];
+  for (let i = 0; i < count; i += 1) out.push(10 + (140 * i) / (count - 1)); // 10 … 150 cm
+  return out;
+}
+
+describe('fitHeightDiameter on heights generated exactly from eq. 6a (E = 0)', () => {
+  const d = diameters(40);
+  const model = fitHeightDiameter(d, d.map(eq6a));
+
+  it('recovers a = 0.893, b = 0.760, c = −0.0340 (abs 1e-10)', () => {
+    expect(Math.abs(model.a - A)).toBeLessThan(1e-10);
+    expect(Math.abs(model.b - B)).toBeLessThan(1e-10);
+    expect(Math.abs(model.c - C)).toBeLessThan(1e-10);
+  });
+  it('reports n, the dbh range, RSE ≈ 0 and R² ≈ 1', () => {
+    expect(model.n).toBe(40);
+    expect(model.dbhMinCm).toBe(10);
+    expect(model.dbhMaxCm).toBe(150);
+    expect(model.rse).toBeLessThan(1e-12);
+    expect(Math.abs((model.r2 as number) - 1)).toBeLessThan(1e-12);
+  });
+  it('predicts H(30) = 21.858571 m (sources.md, computed from eq. 6a; rel 1e-7)', () => {
+    expect(rel(predictHeight(model, 30), 21.858571)).toBeLessThan(1e-7);
+  });
+});
+
+describe('fit statistics and the Baskerville correction (computed by hand)', () => {
+  // Two stems per diameter with ln H = eq. 6a ± δ: the residuals ±δ are orthogonal to 1, ln D and
+  // (ln D)², so OLS returns eq. 6a exactly, SSE = n δ² and RSE = δ sqrt(n / (n − 3)).
+  const delta = 0.2;
+  const d: number[] = [];
+  const h: number[] = [];
+  for (const di of diameters(20)) {
+    d.push(di, di);
+    h.push(eq6a(di) * Math.exp(delta), eq6a(di) * Math.exp(-delta));
+  }
+  const model = fitHeightDiameter(d, h);
+  const rse = delta * Math.sqrt(40 / 37);
+
+  it('keeps the coefficients of eq. 6a (abs 1e-10)', () => {
+    expect(Math.abs(model.a - A)).toBeLessThan(1e-10);
+    expect(Math.abs(model.b - B)).toBeLessThan(1e-10);
+    expect(Math.abs(model.c - C)).toBeLessThan(1e-10);
+  });
+  it('RSE = δ sqrt(40/37) and R² = 1 − SSE/SST (rel 1e-12)', () => {
+    expect(rel(model.rse, rse)).toBeLessThan(1e-12);
+    const lnH = h.map(Math.log);
+    const mean = lnH.reduce((s, v) => s + v, 0) / lnH.length;
+    const sst = lnH.reduce((s, v) => s + (v - mean) ** 2, 0);
+    expect(rel(model.r2 as number, 1 - (40 * delta * delta) / sst)).toBeLessThan(1e-12);
+  });
+  it('multiplies predictions by exp(RSE²/2) (Baskerville 1972): H(30) = 21.858571 · exp(RSE²/2)', () => {
+    expect(rel(model.biasCorrection, Math.exp((rse * rse) / 2))).toBeLessThan(1e-12);
+    expect(rel(predictHeight(model, 30), 21.858571 * Math.exp((rse * rse) / 2))).toBeLessThan(1e-7);
+  });
+});
+
+describe('least squares on noisy data', () => {
+  it('leaves residuals orthogonal to 1, ln D and (ln D)² (normal equations; abs 1e-10)', () => {
+    // deterministic scatter of ±25 % around eq. 6a
+    const d = diameters(60);
+    const h = d.map((di, i) => eq6a(di) * (1 + 0.25 * Math.sin(i * 1.7)));
+    const m = fitHeightDiameter(d, h);
+    let s0 = 0;
+    let s1 = 0;
+    let s2 = 0;
+    for (let i = 0; i < d.length; i += 1) {
+      const l = Math.log(d[i]);
+      const e = Math.log(h[i]) - (m.a + m.b * l + m.c * l * l);
+      s0 += e;
+      s1 += e * l;
+      s2 += e * l * l;
+    }
+    expect(Math.abs(s0)).toBeLessThan(1e-10);
+    expect(Math.abs(s1)).toBeLessThan(1e-10);
+    expect(Math.abs(s2)).toBeLessThan(1e-10);
+    expect(m.rse).toBeGreaterThan(0.05);
+  });
+});
+
+describe('minHeights, extrapolation and the 100 m cap', () => {
+  it('needs DEFAULT_MIN_HEIGHTS = 30 measured heights by default (common practice)', () => {
+    expect(DEFAULT_MIN_HEIGHTS).toBe(30);
+    expect(hasEnoughHeights(29)).toBe(false);
+    expect(hasEnoughHeights(30)).toBe(true);
+    expect(hasEnoughHeights(5, 5)).toBe(true);
+    expect(() => hasEnoughHeights(5, 3)).toThrow(/hasEnoughHeights/);
+  });
+  it('refuses to fit below minHeights, telling the caller to use the no-height models', () => {
+    const d = diameters(10);
+    expect(() => fitHeightDiameter(d, d.map(eq6a))).toThrow(/fitHeightDiameter: 10 measured heights.*Chave et al\. 2005/);
+    expect(fitHeightDiameter(d, d.map(eq6a), { minHeights: 10 }).n).toBe(10);
+  });
+  it('refuses fewer than 3 distinct diameters and non-positive values', () => {
+    const d = Array.from({ length: 30 }, (_, i) => (i % 2 === 0 ? 20 : 40));
+    expect(() => fitHeightDiameter(d, d.map(eq6a))).toThrow(/fewer than 3 distinct diameters/);
+    const same = Array.from({ length: 30 }, () => 25);
+    expect(() => fitHeightDiameter(same, same.map(eq6a))).toThrow(/all diameters are equal/);
+    const good = diameters(30);
+    const bad = good.map(eq6a);
+    bad[3] = 0;
+    expect(() => fitHeightDiameter(good, bad)).toThrow(/fitHeightDiameter: dbh and height must be/);
+  });
+  it('predicts outside the fitted range without clamping D, but caps H at 100 m', () => {
+    const model: HeightDiameterModel = {
+      a: A, b: B, c: C, n: 40, rse: 0, r2: 1, dbhMinCm: 10, dbhMaxCm: 150, biasCorrection: 1,
+    };
+    expect(rel(predictHeight(model, 5), eq6a(5))).toBeLessThan(1e-14);
+    expect(rel(predictHeight(model, 300), eq6a(300))).toBeLessThan(1e-14);
+    const tall: HeightDiameterModel = { ...model, a: 3, b: 0.5, c: 0 }; // exp(3) · 400^0.5 ≈ 402 m
+    expect(predictHeight(tall, 400)).toBe(MAX_PREDICTED_HEIGHT_M);
+  });
+});

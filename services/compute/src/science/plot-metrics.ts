@@ -1,0 +1,381 @@
+// Every numeric column of `export plots` for one plot visit, from its stems: one pure function.
+// Rules (shared/spec/outputs.md, inventory-format.md):
+//  - structure, biomass and carbon: all live stems, identified or not, main plot and subplot, each
+//    expanded by its own area; live stems below their plot's or subplot's dbh minimum are left out
+//    (they were not sampled on that area) and counted in the diagnostics;
+//  - diversity: live main-plot stems identified to species (exact, synonym or normalised match;
+//    synonyms count as their accepted species; genus-only and unresolved names are not identified);
+//  - guild shares: of live basal area (expanded), with unassigned = unidentified or not a listed species;
+//  - disturbance: logged stumps against live basal area on the main plot only; stem fire damage
+//    weighted by expanded live basal area (main plot and subplot);
+//  - heights: measured, else the local height–diameter model, else the Chave et al. 2005 no-height model.
+// AGB and carbon are model estimates with their own uncertainty (see allometry.ts).
+
+import { agbChave2005, agbChave2014, carbonFromBiomass, type Climate, IPCC_2006_CARBON_FRACTION } from './allometry';
+import {
+  basalAreaWeightedFireDamage,
+  type DisturbanceOptions,
+  disturbanceIndex,
+  fireScore,
+  loggingRemovedBaFraction,
+  loggingScore,
+} from './disturbance';
+import {
+  chao1,
+  fisherAlpha,
+  inverseSimpson,
+  pielou,
+  rarefiedRichness,
+  richness,
+  shannon,
+  simpson,
+} from './diversity';
+import { type HeightDiameterModel, predictHeight } from './height-diameter';
+import type { SpeciesIndex, SpeciesReference } from './species-names';
+import { basalAreaM2, basalAreaPerHa, expansionFactor, quadraticMeanDiameter, stemsPerHa } from './structure';
+import {
+  DEFAULT_WOOD_DENSITY,
+  stemWoodDensities,
+  type WoodDensityHit,
+  type WoodDensityLevel,
+  WoodDensityTable,
+} from './wood-density';
+
+export interface PlotVisitInput {
+  readonly areaHa: number;
+  readonly dbhMinCm: number;
+  /** 0 when the plot has no subplot. */
+  readonly subplotAreaHa: number;
+  readonly subplotDbhMinCm: number;
+  readonly loggingClass: number;
+  readonly fireClass: number;
+  readonly climate: Climate;
+}
+
+export interface StemInput {
+  readonly species: string | null;
+  readonly dbhCm: number;
+  readonly heightM: number | null;
+  readonly status: 'live' | 'dead' | 'stump';
+  readonly stumpCause: 'logged' | 'natural' | 'unknown' | null;
+  readonly fireDamage: number;
+  readonly inSubplot: boolean;
+}
+
+export interface PlotMetricOptions {
+  /** Local height–diameter model for the plot's forest type; null or absent: no-height models. */
+  readonly heightModel?: HeightDiameterModel | null;
+  /**
+   * Fewest identified live main-plot stems for diversity columns (default 2, stemwise's choice: one
+   * stem tells nothing about diversity). Below it every diversity column is null, not 0.
+   */
+  readonly minStemsForDiversity?: number;
+  /** Regional default wood density, g/cm³ (default DEFAULT_WOOD_DENSITY = 0.58, memory; a setting). */
+  readonly defaultWoodDensity?: number;
+  /** Carbon fraction of biomass (default 0.47, IPCC 2006 Vol. 4 Table 4.3). */
+  readonly carbonFraction?: number;
+  readonly disturbance?: DisturbanceOptions;
+  /** Built from the index (and cached per index) when absent. */
+  readonly woodDensityTable?: WoodDensityTable;
+}
+
+export const DEFAULT_MIN_STEMS_FOR_DIVERSITY = 2;
+/** Sample size of the `rarefied_50` column. */
+export const RAREFACTION_SIZE = 50;
+
+/** The numeric columns of `export plots`, camelCase; null where a value cannot be computed. */
+export interface PlotMetrics {
+  stemsHa: number;
+  basalAreaM2Ha: number;
+  qmdCm: number | null;
+  agbMgHa: number;
+  carbonMgHa: number;
+  nIdentified: number;
+  richness: number | null;
+  shannon: number | null;
+  simpson: number | null;
+  invSimpson: number | null;
+  pielou: number | null;
+  fisherAlpha: number | null;
+  rarefied50: number | null;
+  chao1: number | null;
+  pioneerBaShare: number | null;
+  lightDemanderBaShare: number | null;
+  shadeTolerantBaShare: number | null;
+  unassignedBaShare: number | null;
+  loggingRemovedBaFrac: number | null;
+  loggingScore: number;
+  fireScore: number;
+  disturbanceIndex: number;
+}
+
+/** Mapping of PlotMetrics keys to the snake_case column names of `export plots`, in column order. */
+export const PLOT_METRIC_COLUMNS = [
+  { column: 'stems_ha', key: 'stemsHa' },
+  { column: 'basal_area_m2_ha', key: 'basalAreaM2Ha' },
+  { column: 'qmd_cm', key: 'qmdCm' },
+  { column: 'agb_mg_ha', key: 'agbMgHa' },
+  { column: 'carbon_mg_ha', key: 'carbonMgHa' },
+  { column: 'n_identified', key: 'nIdentified' },
+  { column: 'richness', key: 'richness' },
+  { column: 'shannon', key: 'shannon' },
+  { column: 'simpson', key: 'simpson' },
+  { column: 'inv_simpson', key: 'invSimpson' },
+  { column: 'pielou', key: 'pielou' },
+  { column: 'fisher_alpha', key: 'fisherAlpha' },
+  { column: 'rarefied_50', key: 'rarefied50' },
+  { column: 'chao1', key: 'chao1' },
+  { column: 'pioneer_ba_share', key: 'pioneerBaShare' },
+  { column: 'light_demander_ba_share', key: 'lightDemanderBaShare' },
+  { column: 'shade_tolerant_ba_share', key: 'shadeTolerantBaShare' },
+  { column: 'unassigned_ba_share', key: 'unassignedBaShare' },
+  { column: 'logging_removed_ba_frac', key: 'loggingRemovedBaFrac' },
+  { column: 'logging_score', key: 'loggingScore' },
+  { column: 'fire_score', key: 'fireScore' },
+  { column: 'disturbance_index', key: 'disturbanceIndex' },
+] as const satisfies readonly { column: string; key: keyof PlotMetrics }[];
+
+export interface PlotDiagnostics {
+  /** Share of live basal area by the level that gave the stem its wood density; null without live basal area. */
+  woodDensityBaShare: Record<WoodDensityLevel, number> | null;
+  /** Share of included live stems (by count) by height source; null without live stems. */
+  heightSourceShare: { measured: number; modelled: number; noHeightModel: number } | null;
+  /** Live stems whose height came from the local model at a dbh outside the model's fitted range. */
+  modelledOutsideFitRange: number;
+  /** Live stems below the dbh minimum of the area they were recorded on (left out of every column). */
+  liveStemsBelowDbhMin: number;
+  /** Recorded names of included live stems not matched to a listed species (genus-only or unknown genus). */
+  unresolvedNames: { name: string; level: 'genus' | 'unresolved'; stems: number }[];
+}
+
+export interface PlotMetricsResult {
+  metrics: PlotMetrics;
+  diagnostics: PlotDiagnostics;
+}
+
+const tables = new WeakMap<SpeciesIndex, WoodDensityTable>();
+function tableFor(index: SpeciesIndex): WoodDensityTable {
+  let t = tables.get(index);
+  if (t === undefined) {
+    t = new WoodDensityTable(index);
+    tables.set(index, t);
+  }
+  return t;
+}
+
+const CLIMATES = new Set<string>(['dry', 'moist', 'wet']);
+const STUMP_CAUSES = new Set<string>(['logged', 'natural', 'unknown']);
+const HEIGHT_MEASURED = 0;
+const HEIGHT_MODELLED = 1;
+const HEIGHT_NONE = 2;
+
+function fail(message: string): never {
+  throw new RangeError(`computePlotMetrics: ${message}`);
+}
+
+function checkVisit(v: PlotVisitInput): void {
+  if (!(v.areaHa > 0) || !Number.isFinite(v.areaHa)) fail(`area_ha must be > 0 (got ${v.areaHa})`);
+  if (!(v.subplotAreaHa >= 0 && v.subplotAreaHa < v.areaHa)) {
+    fail(`subplot_area_ha must be >= 0 and below area_ha (got ${v.subplotAreaHa})`);
+  }
+  if (!(v.dbhMinCm >= 0) || !(v.subplotDbhMinCm >= 0)) {
+    fail(`dbh minima must be >= 0 (got ${v.dbhMinCm}, ${v.subplotDbhMinCm})`);
+  }
+  if (!CLIMATES.has(v.climate)) fail(`climate must be dry, moist or wet (got ${String(v.climate)})`);
+}
+
+function checkStem(i: number, s: StemInput): void {
+  if (!(s.dbhCm > 0) || !Number.isFinite(s.dbhCm)) fail(`stem ${i}: dbh must be a finite number > 0 cm (got ${s.dbhCm})`);
+  if (s.status !== 'live' && s.status !== 'dead' && s.status !== 'stump') {
+    fail(`stem ${i}: status must be live, dead or stump (got ${String(s.status)})`);
+  }
+  if (s.status === 'stump' ? !STUMP_CAUSES.has(s.stumpCause as string) : s.stumpCause !== null) {
+    fail(`stem ${i}: stump_cause is required for stumps (logged, natural or unknown) and empty otherwise (got ${String(s.stumpCause)})`);
+  }
+  if (s.heightM !== null && (!(s.heightM > 0) || !Number.isFinite(s.heightM))) {
+    fail(`stem ${i}: height must be null or a finite number > 0 m (got ${s.heightM})`);
+  }
+  if (!Number.isInteger(s.fireDamage) || s.fireDamage < 0 || s.fireDamage > 3) {
+    fail(`stem ${i}: fire_damage must be an integer 0..3 (got ${s.fireDamage})`);
+  }
+  if (s.inSubplot !== true && s.inSubplot !== false) fail(`stem ${i}: in_subplot must be a boolean`);
+}
+
+// Per-plot metrics of `export plots` from the stems of one visit (rules above; formulas in the modules they call)
+export function computePlotMetrics(
+  visit: PlotVisitInput,
+  stems: readonly StemInput[],
+  index: SpeciesIndex,
+  options: PlotMetricOptions = {},
+): PlotMetricsResult {
+  checkVisit(visit);
+  const heightModel = options.heightModel ?? null;
+  const minStemsForDiversity = options.minStemsForDiversity ?? DEFAULT_MIN_STEMS_FOR_DIVERSITY;
+  if (!Number.isInteger(minStemsForDiversity) || minStemsForDiversity < 1) {
+    fail(`minStemsForDiversity must be an integer >= 1 (got ${minStemsForDiversity})`);
+  }
+  const carbonFraction = options.carbonFraction ?? IPCC_2006_CARBON_FRACTION;
+  const table = options.woodDensityTable ?? tableFor(index);
+
+  // Included live stems, one entry per stem in each array.
+  const dbh: number[] = [];
+  const weight: number[] = [];
+  const baHa: number[] = []; // basal area × expansion, m²/ha
+  const height: (number | null)[] = [];
+  const hits: (WoodDensityHit | null)[] = [];
+  const guildOf: (SpeciesReference | null)[] = [];
+  const fire: number[] = [];
+  let mainLiveBa = 0;
+  let loggedStumpBa = 0;
+  let belowMin = 0;
+  const speciesCounts = new Map<SpeciesReference, number>();
+  const unresolved = new Map<string, { level: 'genus' | 'unresolved'; stems: number }>();
+
+  const mainWeight = expansionFactor(false, visit.areaHa, visit.subplotAreaHa);
+  const subplotWeight = visit.subplotAreaHa > 0 ? expansionFactor(true, visit.areaHa, visit.subplotAreaHa) : null;
+
+  for (let i = 0; i < stems.length; i += 1) {
+    const s = stems[i];
+    checkStem(i, s);
+    if (s.status === 'stump') {
+      if (s.stumpCause === 'logged' && !s.inSubplot) loggedStumpBa += basalAreaM2(s.dbhCm);
+      continue;
+    }
+    if (s.status !== 'live') continue;
+    if (s.inSubplot && subplotWeight === null) {
+      fail(`stem ${i}: a subplot stem on a plot without a subplot (subplot_area_ha = ${visit.subplotAreaHa})`);
+    }
+    if (s.dbhCm < (s.inSubplot ? visit.subplotDbhMinCm : visit.dbhMinCm)) {
+      belowMin += 1;
+      continue;
+    }
+    const w = s.inSubplot ? (subplotWeight as number) : mainWeight;
+    const g = basalAreaM2(s.dbhCm);
+    const r = index.resolve(s.species);
+    dbh.push(s.dbhCm);
+    weight.push(w);
+    baHa.push(g * w);
+    height.push(s.heightM);
+    hits.push(table.lookup(r));
+    guildOf.push(r.species);
+    fire.push(s.fireDamage);
+    if (!s.inSubplot) {
+      mainLiveBa += g;
+      if (r.species !== null) speciesCounts.set(r.species, (speciesCounts.get(r.species) ?? 0) + 1);
+    }
+    if (r.level === 'genus' || r.level === 'unresolved') {
+      const key = (s.species as string).trim();
+      const u = unresolved.get(key);
+      if (u === undefined) unresolved.set(key, { level: r.level, stems: 1 });
+      else u.stems += 1;
+    }
+  }
+
+  const nLive = dbh.length;
+  const totalBaHa = basalAreaPerHa(dbh, weight);
+
+  // Wood density and biomass
+  const wd = stemWoodDensities(hits, baHa, options.defaultWoodDensity ?? DEFAULT_WOOD_DENSITY);
+  const wdBa: Record<WoodDensityLevel, number> = { species: 0, genus: 0, family: 0, plot: 0, default: 0 };
+  const heightCount = [0, 0, 0];
+  let outsideRange = 0;
+  let agbKgHa = 0;
+  for (let i = 0; i < nLive; i += 1) {
+    const d = dbh[i];
+    const rho = wd.values[i];
+    wdBa[wd.levels[i]] += baHa[i];
+    const measured = height[i];
+    let agb: number;
+    if (measured !== null) {
+      heightCount[HEIGHT_MEASURED] += 1;
+      agb = agbChave2014(rho, d, measured);
+    } else if (heightModel !== null) {
+      heightCount[HEIGHT_MODELLED] += 1;
+      if (d < heightModel.dbhMinCm || d > heightModel.dbhMaxCm) outsideRange += 1;
+      agb = agbChave2014(rho, d, predictHeight(heightModel, d));
+    } else {
+      heightCount[HEIGHT_NONE] += 1;
+      agb = agbChave2005(rho, d, visit.climate);
+    }
+    agbKgHa += weight[i] * agb;
+  }
+  const agbMgHa = agbKgHa / 1000;
+
+  // Guild shares of live basal area
+  let pioneer = 0;
+  let light = 0;
+  let shade = 0;
+  let unassigned = 0;
+  for (let i = 0; i < nLive; i += 1) {
+    const sp = guildOf[i];
+    if (sp === null) unassigned += baHa[i];
+    else if (sp.guild === 'pioneer') pioneer += baHa[i];
+    else if (sp.guild === 'light_demander') light += baHa[i];
+    else shade += baHa[i];
+  }
+  const share = (x: number): number | null => (totalBaHa > 0 ? x / totalBaHa : null);
+
+  // Diversity on identified live main-plot stems
+  const counts = [...speciesCounts.values()];
+  let nIdentified = 0;
+  for (const c of counts) nIdentified += c;
+  const enough = nIdentified >= minStemsForDiversity;
+
+  // Disturbance
+  const removed = loggingRemovedBaFraction(mainLiveBa, loggedStumpBa);
+  const logging = loggingScore(removed, visit.loggingClass, options.disturbance);
+  const fireValue = fireScore(basalAreaWeightedFireDamage(fire, baHa), visit.fireClass, options.disturbance);
+
+  const metrics: PlotMetrics = {
+    stemsHa: stemsPerHa(weight),
+    basalAreaM2Ha: totalBaHa,
+    qmdCm: quadraticMeanDiameter(dbh, weight),
+    agbMgHa,
+    carbonMgHa: carbonFromBiomass(agbMgHa, carbonFraction),
+    nIdentified,
+    richness: enough ? richness(counts) : null,
+    shannon: enough ? shannon(counts) : null,
+    simpson: enough ? simpson(counts) : null,
+    invSimpson: enough ? inverseSimpson(counts) : null,
+    pielou: enough ? pielou(counts) : null,
+    fisherAlpha: enough ? fisherAlpha(counts) : null,
+    rarefied50: enough ? rarefiedRichness(counts, RAREFACTION_SIZE) : null,
+    chao1: enough ? chao1(counts) : null,
+    pioneerBaShare: share(pioneer),
+    lightDemanderBaShare: share(light),
+    shadeTolerantBaShare: share(shade),
+    unassignedBaShare: share(unassigned),
+    loggingRemovedBaFrac: removed,
+    loggingScore: logging,
+    fireScore: fireValue,
+    disturbanceIndex: disturbanceIndex(logging, fireValue),
+  };
+
+  const unresolvedNames = [...unresolved.entries()]
+    .map(([name, u]) => ({ name, level: u.level, stems: u.stems }))
+    .sort((a, b) => b.stems - a.stems || (a.name < b.name ? -1 : a.name > b.name ? 1 : 0));
+  const diagnostics: PlotDiagnostics = {
+    woodDensityBaShare:
+      totalBaHa > 0
+        ? {
+            species: wdBa.species / totalBaHa,
+            genus: wdBa.genus / totalBaHa,
+            family: wdBa.family / totalBaHa,
+            plot: wdBa.plot / totalBaHa,
+            default: wdBa.default / totalBaHa,
+          }
+        : null,
+    heightSourceShare:
+      nLive > 0
+        ? {
+            measured: heightCount[HEIGHT_MEASURED] / nLive,
+            modelled: heightCount[HEIGHT_MODELLED] / nLive,
+            noHeightModel: heightCount[HEIGHT_NONE] / nLive,
+          }
+        : null,
+    modelledOutsideFitRange: outsideRange,
+    liveStemsBelowDbhMin: belowMin,
+    unresolvedNames,
+  };
+  return { metrics, diagnostics };
+}
