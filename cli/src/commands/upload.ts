@@ -1,8 +1,173 @@
-import { StemwiseError } from '@stemwise/platform';
+import fs from 'node:fs';
+import path from 'node:path';
+import { parseArgs } from 'node:util';
+import { getBatch, type ServiceDeps } from '@stemwise/db';
+import { StemwiseError, type ProcessorMap, type QueueName } from '@stemwise/platform';
+import {
+  batchReport,
+  filesInDir,
+  formatBatchReport,
+  ingestEvents,
+  progressBars,
+  progressLine,
+  submitBatch,
+  SubmissionError,
+  type IngestProgress,
+  type SubmittedFile,
+} from '@stemwise/ingest';
+import { processorsFor, type ServiceName } from '../processors';
 import type { Runtime } from '../runtime';
 
-export const summary = 'not yet available';
+export const summary = 'submits a batch: upload DIR | --plots F --trees F [--strata F] [--species F] [--wait]';
 
-export async function run(_args: string[], _rt: Runtime): Promise<number> {
-  throw new StemwiseError('not_yet', "'stemwise upload' is not available yet in this version");
+const HELP = `usage: stemwise upload DIR [options]
+       stemwise upload --plots FILE --trees FILE [--strata FILE] [--species FILE] [options]
+
+DIR holds plots.csv and trees.csv, optionally strata.csv and species.csv (each may be .csv.gz).
+Prints the batch id once the upload is stored.
+
+options:
+  --skip-invalid     load the valid rows and record the rest (default: any error rejects the batch)
+  --replace          replace a visit already stored for the same plot and survey_date (audited)
+  --delimiter ';'    values are separated by semicolons
+  --decimal-comma    numbers are written with a decimal comma (needs --delimiter ';')
+  --wait             wait until the batch is loaded and computed; exit 1 if it is rejected or fails
+`;
+
+function fileArg(value: string | undefined, kind: SubmittedFile['kind']): SubmittedFile | null {
+  if (value === undefined) return null;
+  if (!fs.existsSync(value) || !fs.statSync(value).isFile()) throw new StemwiseError('usage', `--${kind}: ${value} is not a file`);
+  return { kind, name: path.basename(value), source: value };
+}
+
+/** Registers every service's processors that this build has on the in-process queue (ingest at least). */
+async function workInProcess(deps: ServiceDeps, services: readonly ServiceName[]): Promise<void> {
+  const processors: ProcessorMap = {};
+  const queues: QueueName[] = [];
+  for (const service of services) {
+    try {
+      const found = await processorsFor(deps, [service]);
+      Object.assign(processors, found.processors);
+      queues.push(...found.queues);
+    } catch (err) {
+      if (service === 'ingest') throw err;
+      deps.log.warn({ service, err: String(err) }, 'service not available in this build; its jobs stay queued');
+    }
+  }
+  await deps.queue.work(processors, { queues });
+}
+
+/** Shows progress: bars redrawn in place on a terminal, a plain line every few seconds otherwise. */
+function progressPrinter(): { show(p: Omit<IngestProgress, 'batchId' | 'phase'>): void; end(): void } {
+  const tty = process.stderr.isTTY === true;
+  let drawn = 0;
+  let lastPlain = 0;
+  return {
+    show(p) {
+      if (tty) {
+        const lines = progressBars(p);
+        process.stderr.write(`${drawn ? `\x1b[${drawn}A` : ''}${lines.map((l) => `\x1b[2K${l}`).join('\n')}\n`);
+        drawn = lines.length;
+      } else if (Date.now() - lastPlain >= 2000) {
+        lastPlain = Date.now();
+        process.stderr.write(`${progressLine(p)}\n`);
+      }
+    },
+    end() {
+      drawn = 0;
+    },
+  };
+}
+
+export async function run(args: string[], rt: Runtime): Promise<number> {
+  const { values, positionals } = parseArgs({
+    args,
+    allowPositionals: true,
+    options: {
+      plots: { type: 'string' },
+      trees: { type: 'string' },
+      strata: { type: 'string' },
+      species: { type: 'string' },
+      'skip-invalid': { type: 'boolean', default: false },
+      replace: { type: 'boolean', default: false },
+      delimiter: { type: 'string' },
+      'decimal-comma': { type: 'boolean', default: false },
+      wait: { type: 'boolean', default: false },
+      help: { type: 'boolean', short: 'h', default: false },
+    },
+  });
+  if (values.help) {
+    process.stdout.write(HELP);
+    return 0;
+  }
+  let files: SubmittedFile[];
+  if (positionals.length) {
+    if (positionals.length > 1 || values.plots || values.trees) throw new StemwiseError('usage', 'give either one folder or --plots and --trees');
+    const dir = positionals[0];
+    if (!fs.existsSync(dir) || !fs.statSync(dir).isDirectory()) throw new StemwiseError('usage', `${dir} is not a folder`);
+    try {
+      files = filesInDir(dir);
+    } catch (err) {
+      throw new StemwiseError('usage', (err as Error).message);
+    }
+    for (const need of ['plots', 'trees']) if (!files.some((f) => f.kind === need)) throw new StemwiseError('usage', `${dir} has no ${need}.csv (or ${need}.csv.gz)`);
+  } else {
+    if (!values.plots || !values.trees) throw new StemwiseError('usage', `give an upload folder, or --plots FILE and --trees FILE\n${HELP}`);
+    files = (['plots', 'trees', 'strata', 'species'] as const).map((k) => fileArg(values[k], k)).filter((f): f is SubmittedFile => f !== null);
+  }
+  const delimiter = values.delimiter;
+  if (delimiter !== undefined && delimiter !== ',' && delimiter !== ';') throw new StemwiseError('usage', `--delimiter takes ',' or ';', not ${JSON.stringify(delimiter)}`);
+
+  const deps: ServiceDeps = { config: rt.config, db: await rt.db(), log: rt.log, queue: await rt.queue() };
+  const inProcess = deps.queue.kind === 'in-process';
+  // Without Redis nothing outlives this process: the ingest job runs here, and with --wait the compute and report jobs too.
+  if (inProcess) await workInProcess(deps, values.wait ? ['ingest', 'compute', 'report'] : ['ingest']);
+
+  let result;
+  try {
+    result = await submitBatch(
+      deps,
+      files,
+      { skipInvalid: values['skip-invalid'], replace: values.replace, delimiter: delimiter as ',' | ';' | undefined, decimalComma: values['decimal-comma'] },
+      'cli',
+    );
+  } catch (err) {
+    if (err instanceof SubmissionError) throw new StemwiseError('usage', err.message);
+    throw err;
+  }
+  process.stdout.write(result.duplicate ? `already received as ${result.batchId}\n` : `${result.batchId}\n`);
+  if (!result.duplicate && !result.queued) process.stderr.write('stemwise: the batch is stored but could not be queued now; a running worker will pick it up\n');
+
+  const printer = progressPrinter();
+  if (inProcess) {
+    const onProgress = (p: IngestProgress) => p.batchId === result.batchId && printer.show(p);
+    ingestEvents.on('progress', onProgress);
+    try {
+      await deps.queue.drain(24 * 3600_000);
+    } finally {
+      ingestEvents.off('progress', onProgress);
+    }
+  } else if (values.wait) {
+    for (;;) {
+      const b = await getBatch(deps.db, result.batchId);
+      if (!b) throw new StemwiseError('batch_missing', `batch ${result.batchId} disappeared`);
+      if (['computed', 'rejected', 'failed'].includes(b.state)) break;
+      printer.show({ bytesTotal: Number(b.bytesTotal), bytesRead: Number(b.bytesRead), rowsChecked: b.rowsChecked, rowsLoaded: b.rowsLoaded });
+      await new Promise((r) => setTimeout(r, 500));
+    }
+  } else {
+    return 0;
+  }
+  printer.end();
+  const report = await batchReport(deps.db, result.batchId);
+  if (!report) throw new StemwiseError('batch_missing', `batch ${result.batchId} disappeared`);
+  if (report.state === 'rejected' || report.state === 'failed') {
+    process.stderr.write(formatBatchReport(report));
+    return 1;
+  }
+  process.stderr.write(
+    `batch ${report.id}: ${report.state}; ${report.counts.plotsLoaded.toLocaleString('en-US')} plots and ${report.counts.stemsLoaded.toLocaleString('en-US')} stems loaded; ` +
+      `${report.counts.warnings.toLocaleString('en-US')} warnings${report.counts.warnings ? ` (stemwise batch show ${report.id})` : ''}\n`,
+  );
+  return 0;
 }

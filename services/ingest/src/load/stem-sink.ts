@@ -1,0 +1,96 @@
+import { copyStems, insertStems, type StemColumns, type Tx } from '@stemwise/db';
+import { Channel } from './channel';
+
+/** Where validated stems go inside the load transaction. */
+export interface StemSink {
+  /** Adds a stem; a returned promise must be awaited (backpressure). */
+  add(visitId: number, treeId: string, species: string | null, dbhCm: number, heightM: number | null, status: string, stumpCause: string | null, fireDamage: number, inSubplot: boolean): Promise<void> | undefined;
+  /** Stops loading (the batch will be rejected); later adds are dropped. */
+  stop(): void;
+  /** Writes what is left and waits until the database has it. */
+  finish(): Promise<void>;
+  readonly stopped: boolean;
+}
+
+// COPY text format: backslash, tab, line feed and carriage return are escaped; \N is NULL.
+function copyText(s: string): string {
+  return /[\\\t\n\r]/.test(s) ? s.replace(/\\/g, '\\\\').replace(/\t/g, '\\t').replace(/\n/g, '\\n').replace(/\r/g, '\\r') : s;
+}
+
+const CHUNK_CHARS = 256 * 1024;
+
+/** PostgreSQL: one COPY … FROM STDIN fed while validation runs (the server inserts on its own core). */
+export function copySink(tx: Tx): StemSink {
+  const channel = new Channel<string>(8);
+  let buf = '';
+  let stopped = false;
+  const copying = copyStems(tx, channel).catch((err) => {
+    channel.fail(err);
+    throw err;
+  });
+  copying.catch(() => {}); // observed in finish(); never an unhandled rejection
+  return {
+    get stopped() {
+      return stopped;
+    },
+    add(visitId, treeId, species, dbhCm, heightM, status, stumpCause, fireDamage, inSubplot) {
+      if (stopped) return undefined;
+      buf += `${visitId}\t${copyText(treeId)}\t${species === null ? '\\N' : copyText(species)}\t${dbhCm}\t${heightM === null ? '\\N' : heightM}\t${status}\t${stumpCause ?? '\\N'}\t${fireDamage}\t${inSubplot ? 't' : 'f'}\n`;
+      if (buf.length < CHUNK_CHARS) return undefined;
+      const chunk = buf;
+      buf = '';
+      return channel.push(chunk);
+    },
+    stop() {
+      stopped = true;
+      buf = '';
+    },
+    async finish() {
+      if (buf.length) await channel.push(buf);
+      buf = '';
+      channel.close();
+      await copying;
+    },
+  };
+}
+
+const UNNEST_ROWS = 20_000;
+
+function emptyColumns(): StemColumns {
+  return { visitIds: [], treeIds: [], species: [], dbhCm: [], heightM: [], status: [], stumpCause: [], fireDamage: [], inSubplot: [] };
+}
+
+/** PGlite (or any engine): batched INSERT … SELECT FROM unnest, 20,000 stems a statement. */
+export function unnestSink(tx: Tx): StemSink {
+  let cols = emptyColumns();
+  let stopped = false;
+  return {
+    get stopped() {
+      return stopped;
+    },
+    add(visitId, treeId, species, dbhCm, heightM, status, stumpCause, fireDamage, inSubplot) {
+      if (stopped) return undefined;
+      cols.visitIds.push(visitId);
+      cols.treeIds.push(treeId);
+      cols.species.push(species);
+      cols.dbhCm.push(dbhCm);
+      cols.heightM.push(heightM);
+      cols.status.push(status);
+      cols.stumpCause.push(stumpCause);
+      cols.fireDamage.push(fireDamage);
+      cols.inSubplot.push(inSubplot);
+      if (cols.visitIds.length < UNNEST_ROWS) return undefined;
+      const full = cols;
+      cols = emptyColumns();
+      return insertStems(tx, full);
+    },
+    stop() {
+      stopped = true;
+      cols = emptyColumns();
+    },
+    async finish() {
+      if (cols.visitIds.length) await insertStems(tx, cols);
+      cols = emptyColumns();
+    },
+  };
+}

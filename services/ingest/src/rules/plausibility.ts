@@ -1,0 +1,57 @@
+import { defineRule } from './rule';
+
+// Plausibility: values that are allowed but unlikely. Warnings only: they never block a batch.
+
+export const PLAUSIBILITY = {
+  dbhLooksMm: defineRule('plausibility', 'plausibility_dbh_looks_mm', 'warning', 'The median diameter of a plot is far above tropical norms: diameters may be in millimetres.'),
+  dbhLarge: defineRule('plausibility', 'plausibility_dbh_large', 'warning', 'A diameter is over 250 cm.'),
+  heightForDiameter: defineRule('plausibility', 'plausibility_height_for_diameter', 'warning', 'A live stem\'s height/diameter ratio (both in m) is below 20 or above 120.'),
+  heightTall: defineRule('plausibility', 'plausibility_height_tall', 'warning', 'A height is above 80 m, which is rare even in tall tropical forest.'),
+  speciesUnknown: defineRule('plausibility', 'plausibility_species_unknown', 'warning', 'A species name is not in the reference list (not even its genus).'),
+  speciesGenusOnly: defineRule('plausibility', 'plausibility_species_genus_only', 'warning', 'A species name resolves only to a genus of the reference list.'),
+  speciesNoReference: defineRule('plausibility', 'plausibility_species_no_reference', 'warning', 'No species reference list is loaded, so names were not checked.'),
+  sameCoordinates: defineRule('plausibility', 'plausibility_same_coordinates', 'warning', 'Two different plots have exactly the same coordinates.'),
+  surveyDateEarly: defineRule('plausibility', 'plausibility_survey_date_early', 'warning', 'A survey date lies before 1950.'),
+} as const;
+
+/**
+ * Bounds of the plausibility warnings. None comes from a measured standard: they are common practice,
+ * recalled from memory (see the reference notes of the project), so they are options, not constants.
+ */
+export interface PlausibilityOptions {
+  /** A plot whose median diameter exceeds this (cm) probably recorded millimetres. Common practice: tropical
+   *  plots of stems ≥ 10 cm have median diameters of about 15–30 cm; 100 cm is far above any such plot. */
+  mmMedianCm: number;
+  /** Diameters above this (cm) are flagged (memory: giants exist, but are rare enough to check). */
+  largeDbhCm: number;
+  /** Height/diameter ratio, both in metres: below ~20 or above ~100–120 is implausible (memory, common practice). */
+  hdRatioMin: number;
+  hdRatioMax: number;
+  /** Heights above this (m) are suspect in tropical forest (memory: about 70–90 m). */
+  tallHeightM: number;
+  /** Survey dates before this year are flagged. */
+  earlyYear: number;
+}
+
+export const PLAUSIBILITY_DEFAULTS: PlausibilityOptions = Object.freeze({
+  mmMedianCm: 100,
+  largeDbhCm: 250,
+  hdRatioMin: 20,
+  hdRatioMax: 120,
+  tallHeightM: 80,
+  earlyYear: 1950,
+});
+
+export const plausibilityMessages = {
+  dbhLooksMm: (plot: string, over: number, n: number, bound: number) =>
+    `plot ${plot}: ${over} of ${n} stems have dbh_cm above ${bound}, so the median diameter is above ${bound} cm; were diameters written in millimetres?`,
+  dbhLarge: (dbh: number, bound: number) => `dbh_cm is ${dbh}, above ${bound} cm; please check it`,
+  heightForDiameter: (h: number, dbh: number, ratio: number, lo: number, hi: number) =>
+    `height ${h} m for a diameter of ${dbh} cm gives a height/diameter ratio of ${Math.round(ratio)}; usual trees lie between ${lo} and ${hi} (common practice)`,
+  heightTall: (h: number, bound: number) => `height_m is ${h}, above ${bound} m; please check it`,
+  speciesUnknown: (name: string) => `species ${JSON.stringify(name)} is not in the reference list; stems keep the name but count as unassigned`,
+  speciesGenusOnly: (name: string, genus: string) => `species ${JSON.stringify(name)} is identified only to the genus ${genus}`,
+  speciesNoReference: () => 'no species reference list is loaded; names were not checked (import one with stemwise species import FILE)',
+  sameCoordinates: (plot: string, other: string) => `plot ${plot} has exactly the same coordinates as plot ${other}`,
+  surveyDateEarly: (date: string, year: number) => `survey_date ${date} is before ${year}; please check it`,
+};

@@ -1,0 +1,22 @@
+import type { BatchOptions } from '@stemwise/db';
+import type { IssueLog } from '../issues';
+import type { PlausibilityOptions } from '../rules/plausibility';
+
+/** What every file validator shares while one batch is checked. */
+export interface ValidationContext {
+  log: IssueLog;
+  options: BatchOptions;
+  forestTypes: readonly string[];
+  /** Dates after this (YYYY-MM-DD) are in the future. */
+  today: string;
+  plausibility: PlausibilityOptions;
+  /** Counters read by the progress reporter. */
+  progress: { bytesRead: number; rowsChecked: number; rowsLoaded: number };
+  /** Called after each chunk of rows (the progress reporter writes every ~0.5 s). */
+  tick(): void;
+}
+
+/** Today's date plus one day, YYYY-MM-DD: a crew east of UTC may already be a day ahead. */
+export function latestAllowedDate(now = new Date()): string {
+  return new Date(now.getTime() + 86_400_000).toISOString().slice(0, 10);
+}

@@ -1,0 +1,50 @@
+import { STRATA_COLUMNS } from '../rules/columns';
+import { CROSS, crossMessages } from '../rules/cross';
+import { readTable, type TableSource, type TableStats } from '../read/table';
+import type { ValidationContext } from './context';
+
+export interface StratumEntry {
+  region: string;
+  forestType: string;
+  forestAreaHa: number;
+  line: number;
+}
+
+/** Reads strata.csv: field rules and duplicate region/forest type pairs. Returns the loadable rows. */
+export async function validateStrata(ctx: ValidationContext, src: TableSource): Promise<{ strata: StratumEntry[]; stats: TableStats }> {
+  const stats: TableStats = { rows: 0, badRows: 0, fatal: false };
+  const strata: StratumEntry[] = [];
+  const seen = new Map<string, number>();
+  const rows = readTable(
+    src,
+    {
+      log: ctx.log,
+      columns: STRATA_COLUMNS,
+      delimiter: ctx.options.delimiter,
+      decimalComma: ctx.options.decimal_comma,
+      forestTypes: ctx.forestTypes,
+      today: ctx.today,
+      requireRows: false,
+      onBytes: (n) => (ctx.progress.bytesRead += n),
+    },
+    stats,
+  );
+  for await (const batch of rows) {
+    for (const { values, line, ok } of batch) {
+      ctx.progress.rowsChecked++;
+      const [region, forestType, forestAreaHa] = values;
+      if (typeof region !== 'string' || typeof forestType !== 'string') continue;
+      const key = `${region}\u0000${forestType}`;
+      const first = seen.get(key);
+      if (first !== undefined) {
+        ctx.log.add(CROSS.duplicateStratum, src.file, line, 'region', region, crossMessages.duplicateStratum(region, forestType, first));
+        if (ok) stats.badRows++;
+        continue;
+      }
+      seen.set(key, line);
+      if (ok) strata.push({ region, forestType, forestAreaHa: forestAreaHa as number, line });
+    }
+    ctx.tick();
+  }
+  return { strata, stats };
+}
