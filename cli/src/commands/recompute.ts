@@ -1,8 +1,111 @@
-import { StemwiseError } from '@stemwise/platform';
+import { parseArgs } from 'node:util';
+import { getRecomputeRun, type ServiceDeps } from '@stemwise/db';
+import { StemwiseError, type JobName } from '@stemwise/platform';
+import { availableProcessors } from '../processors';
 import type { Runtime } from '../runtime';
 
-export const summary = 'not yet available';
+export const summary = 'recomputes what new plots made stale: recompute [--now] [--all]';
 
-export async function run(_args: string[], _rt: Runtime): Promise<number> {
-  throw new StemwiseError('not_yet', "'stemwise recompute' is not available yet in this version");
+/** How long `--now` waits for queued work before giving up (the jobs stay queued). */
+const WAIT_LIMIT_MS = 60 * 60_000;
+
+// Without REDIS_URL the run happens here, to completion. With REDIS_URL, `recompute` queues the
+// planner job (a compute worker plans and runs it); `recompute --now` plans here and waits until the
+// workers have finished the run's flow, then prints what ran.
+export async function run(args: string[], rt: Runtime): Promise<number> {
+  let values;
+  try {
+    ({ values } = parseArgs({ args, options: { now: { type: 'boolean', default: false }, all: { type: 'boolean', default: false } } }));
+  } catch (err) {
+    throw new StemwiseError('usage', `recompute: ${(err as Error).message} (usage: stemwise recompute [--now] [--all])`);
+  }
+  const all = values.all === true;
+  const deps: ServiceDeps = { config: rt.config, db: await rt.db(), log: rt.log, queue: await rt.queue() };
+  const { planRecompute } = await import('@stemwise/compute');
+
+  if (deps.queue.kind === 'in-process') {
+    const { processors, queues, missing } = await availableProcessors(deps);
+    await deps.queue.work(processors, { queues });
+    const plan = await planRecompute(deps, 'manual', all);
+    if (!plan) return nothingStale();
+    const failures = await deps.queue.drain();
+    await printRun(deps, plan.runId);
+    const noSummaries = failures.filter((f) => f.name === 'report.summaries' && /no processor/.test(f.error));
+    if (noSummaries.length && missing.includes('report')) process.stdout.write('summaries: not available in this build (no report service yet)\n');
+    const real = failures.filter((f) => !noSummaries.includes(f));
+    for (const f of real) process.stderr.write(`stemwise: job ${f.jobId} failed: ${f.error}\n`);
+    // A job that failed before this process started waiting is not in `failures`: the root's state tells.
+    const root = await deps.queue.state(plan.rootJobId, 'report.summaries');
+    if (!real.length && !noSummaries.length && root !== 'completed') {
+      process.stderr.write(`stemwise: run ${plan.runId} did not complete (its last stage is ${root}); see the log above\n`);
+      return 1;
+    }
+    return real.length ? 1 : 0;
+  }
+
+  if (!values.now) {
+    const jobId = `recompute.manual.${new Date().toISOString().replace(/\D/g, '').slice(0, 17)}`;
+    await deps.queue.add({ name: 'maintenance.recompute', data: { trigger: 'manual', all }, jobId });
+    process.stdout.write(`queued ${jobId} (a compute worker plans and runs it; 'stemwise recompute --now' waits for the result)\n`);
+    return 0;
+  }
+
+  const plan = await planRecompute(deps, 'manual', all);
+  if (!plan) return nothingStale();
+  process.stderr.write(`stemwise: run ${plan.runId} queued (${plan.visits} plot visits in ${plan.chunks} chunks); waiting for the workers\n`);
+  const stages: Array<[string, JobName, string]> = [
+    [`plots.${plan.runId}`, 'compute.plots', 'plot metrics'],
+    [`fits.${plan.runId}`, 'compute.fits', 'fits'],
+    [plan.rootJobId, 'report.summaries', 'summaries'],
+  ];
+  const started = Date.now();
+  let done = 0;
+  let hinted = false;
+  for (;;) {
+    const [jobId, name, label] = stages[done];
+    const state = await deps.queue.state(jobId, name);
+    if (state === 'failed') {
+      await printRun(deps, plan.runId);
+      throw new StemwiseError('job_failed', `${label} of run ${plan.runId} failed (job ${jobId}); see the worker log`);
+    }
+    if (state === 'completed') {
+      process.stderr.write(`stemwise: ${label} done\n`);
+      if (++done === stages.length) break;
+      continue;
+    }
+    if (!hinted && Date.now() - started > 15_000 && done === 0) {
+      process.stderr.write("stemwise: still waiting — is a compute worker running ('stemwise serve compute')?\n");
+      hinted = true;
+    }
+    if (Date.now() - started > WAIT_LIMIT_MS) throw new StemwiseError('timeout', `run ${plan.runId} still not finished after an hour; its jobs stay queued`);
+    await new Promise((r) => setTimeout(r, 250));
+  }
+  await printRun(deps, plan.runId);
+  return 0;
+}
+
+function nothingStale(): number {
+  process.stdout.write('nothing stale\n');
+  return 0;
+}
+
+/** What a run did, from its record in PostgreSQL. */
+async function printRun(deps: ServiceDeps, runId: string): Promise<void> {
+  const run = await getRecomputeRun(deps.db, runId);
+  if (!run) return;
+  const d = run.details as {
+    plan?: { visits: number; chunks: number; outdatedSpecies: number; heightModels: Array<{ forestType: string; heights: number; outcome: string }> };
+    metrics?: { visits: number; stems: number; chunks: number };
+    fits?: Array<{ forestType: string; n: number; verdict: string; regions: number }>;
+  };
+  const lines = [`run ${run.id} (${run.trigger}): ${run.state}`];
+  if (d.metrics) lines.push(`plot metrics: ${d.metrics.visits} plot visits, ${d.metrics.stems} stems, ${d.metrics.chunks} chunk${d.metrics.chunks === 1 ? '' : 's'}`);
+  else if (d.plan) lines.push(`plot metrics: ${d.plan.visits} plot visits planned in ${d.plan.chunks} chunks`);
+  if (d.plan?.outdatedSpecies) lines.push(`species reference changed: ${d.plan.outdatedSpecies} visits recomputed`);
+  for (const h of d.plan?.heightModels ?? []) {
+    const what = h.outcome === 'fitted' ? 'refitted' : h.outcome === 'none' ? 'none (too few heights; Chave et al. 2005 without height)' : 'unchanged';
+    lines.push(`height model ${h.forestType}: ${what}, ${h.heights} measured heights`);
+  }
+  for (const f of d.fits ?? []) lines.push(`fits ${f.forestType}: ${f.verdict} (n = ${f.n}${f.regions ? `, ${f.regions} region fits` : ''})`);
+  process.stdout.write(lines.join('\n') + '\n');
 }

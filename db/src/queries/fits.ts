@@ -1,0 +1,134 @@
+import type { Queryable } from '../connection';
+import { PLOT_METRIC_DB_COLUMNS, type PlotMetricDbColumn } from './metrics';
+
+// Diversity–disturbance fits: the points they are fitted on, and the stored rows (curve_fits).
+
+const METRIC_SELECT = PLOT_METRIC_DB_COLUMNS.map(([c]) => `m.${c}`).join(', ');
+
+export interface LatestPlotMetrics {
+  plotKey: string;
+  region: string;
+  metrics: Record<PlotMetricDbColumn, number | null>;
+}
+
+/**
+ * The metrics of the latest computed visit of every plot of a forest type, in plot_id byte order (the
+ * order is part of the result: the bootstrap resamples by position).
+ */
+export async function listLatestPlotMetrics(db: Queryable, forestType: string): Promise<LatestPlotMetrics[]> {
+  const rows = await db.query<Record<string, unknown>>(
+    `select * from (
+       select distinct on (v.plot_id) p.plot_key, r.name region, ${METRIC_SELECT}
+         from plot_visits v
+         join plots p on p.id = v.plot_id
+         join regions r on r.id = p.region_id
+         join plot_metrics m on m.visit_id = v.id
+        where p.forest_type = $1
+        order by v.plot_id, v.survey_date desc) latest
+      order by plot_key collate "C"`,
+    [forestType],
+  );
+  return rows.map((r) => {
+    const metrics = {} as Record<PlotMetricDbColumn, number | null>;
+    for (const [c] of PLOT_METRIC_DB_COLUMNS) metrics[c] = r[c] === null || r[c] === undefined ? null : Number(r[c]);
+    return { plotKey: r.plot_key as string, region: r.region as string, metrics };
+  });
+}
+
+export interface CurveFitRow {
+  scope: string;
+  forestType: string;
+  metric: string;
+  axis: string;
+  model: 'linear' | 'quadratic';
+  n: number;
+  b0: number | null;
+  b1: number | null;
+  b2: number | null;
+  seB0: number | null;
+  seB1: number | null;
+  seB2: number | null;
+  pB1: number | null;
+  pB2: number | null;
+  r2: number | null;
+  adjR2: number | null;
+  aicc: number | null;
+  peakX: number | null;
+  peakCiLow: number | null;
+  peakCiHigh: number | null;
+  verdict: string;
+  details: Record<string, unknown>;
+}
+
+const FIT_FIELDS = [
+  ['b0', 'b0'],
+  ['b1', 'b1'],
+  ['b2', 'b2'],
+  ['seB0', 'se_b0'],
+  ['seB1', 'se_b1'],
+  ['seB2', 'se_b2'],
+  ['pB1', 'p_b1'],
+  ['pB2', 'p_b2'],
+  ['r2', 'r2'],
+  ['adjR2', 'adj_r2'],
+  ['aicc', 'aicc'],
+  ['peakX', 'peak_x'],
+  ['peakCiLow', 'peak_ci_low'],
+  ['peakCiHigh', 'peak_ci_high'],
+] as const;
+
+const UPSERT_FITS_SQL = `insert into curve_fits (scope, forest_type, metric, axis, model, n, ${FIT_FIELDS.map(([, c]) => c).join(', ')}, verdict, details, computed_at)
+  select t.*, now() from unnest($1::text[], $2::text[], $3::text[], $4::text[], $5::text[], $6::int[],
+    ${FIT_FIELDS.map((_, i) => `$${i + 7}::float8[]`).join(', ')}, $${FIT_FIELDS.length + 7}::text[], $${FIT_FIELDS.length + 8}::jsonb[]) t
+  on conflict (scope, forest_type, metric, axis, model) do update set n = excluded.n,
+    ${FIT_FIELDS.map(([, c]) => `${c} = excluded.${c}`).join(', ')}, verdict = excluded.verdict, details = excluded.details, computed_at = excluded.computed_at`;
+
+/** Writes fit rows in one statement (a rerun overwrites them). */
+export async function upsertCurveFits(tx: Queryable, rows: readonly CurveFitRow[]): Promise<void> {
+  if (!rows.length) return;
+  const params: unknown[] = [
+    rows.map((r) => r.scope),
+    rows.map((r) => r.forestType),
+    rows.map((r) => r.metric),
+    rows.map((r) => r.axis),
+    rows.map((r) => r.model),
+    rows.map((r) => r.n),
+  ];
+  for (const [key] of FIT_FIELDS) params.push(rows.map((r) => r[key]));
+  params.push(rows.map((r) => r.verdict));
+  params.push(rows.map((r) => JSON.stringify(r.details)));
+  await tx.query(UPSERT_FITS_SQL, params);
+}
+
+/** Removes the fits of a forest type × metric × axis whose scope is not in `keepScopes` (a region fell below the minimum). */
+export async function deleteCurveFitsExcept(tx: Queryable, forestType: string, metric: string, axis: string, keepScopes: readonly string[]): Promise<void> {
+  await tx.query(
+    `delete from curve_fits where forest_type = $1 and metric = $2 and axis = $3 and not (scope = any($4::text[]))`,
+    [forestType, metric, axis, keepScopes],
+  );
+}
+
+/** Stored fits of a scope, metric and axis, by forest type then model (linear first). */
+export async function listCurveFits(db: Queryable, filter: { scope: string; metric: string; axis: string; forestTypes?: readonly string[] }): Promise<CurveFitRow[]> {
+  const rows = await db.query<Record<string, unknown>>(
+    `select scope, forest_type, metric, axis, model, n, ${FIT_FIELDS.map(([, c]) => c).join(', ')}, verdict, details
+       from curve_fits
+      where scope = $1 and metric = $2 and axis = $3 and ($4::text[] is null or forest_type = any($4::text[]))
+      order by forest_type collate "C", model`,
+    [filter.scope, filter.metric, filter.axis, filter.forestTypes ?? null],
+  );
+  return rows.map((r) => {
+    const out = {
+      scope: r.scope as string,
+      forestType: r.forest_type as string,
+      metric: r.metric as string,
+      axis: r.axis as string,
+      model: r.model as CurveFitRow['model'],
+      n: Number(r.n),
+      verdict: r.verdict as string,
+      details: r.details as Record<string, unknown>,
+    } as CurveFitRow;
+    for (const [key, c] of FIT_FIELDS) (out as unknown as Record<string, number | null>)[key] = r[c] === null ? null : Number(r[c]);
+    return out;
+  });
+}

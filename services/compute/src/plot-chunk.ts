@@ -1,0 +1,116 @@
+import {
+  PLOT_METRIC_DB_COLUMNS,
+  listHeightModels,
+  loadStemsForVisits,
+  lockVisitsForCompute,
+  markStale,
+  markVisitsComputed,
+  recordChunkInRun,
+  applyUnresolvedNameCounts,
+  upsertPlotMetrics,
+  type ComputeStemRow,
+  type ComputeVisitRow,
+  type PlotMetricsWrite,
+  type UnresolvedNameCount,
+  type ServiceDeps,
+} from '@stemwise/db';
+import { PermanentError } from '@stemwise/platform';
+import { heightModelFromRow } from './height-models';
+import { computePlotMetrics, PLOT_METRIC_COLUMNS, type PlotDiagnostics, type PlotMetrics } from './science/plot-metrics';
+import type { HeightDiameterModel } from './science/height-diameter';
+import { currentSpecies } from './species-cache';
+
+// The science's column list and the stored one must be the same columns in the same order.
+const METRIC_KEYS: ReadonlyArray<keyof PlotMetrics> = PLOT_METRIC_COLUMNS.map((c, i) => {
+  if (PLOT_METRIC_DB_COLUMNS[i]?.[0] !== c.column) throw new Error(`plot-chunk: metric column ${i} is ${c.column} in the science but ${PLOT_METRIC_DB_COLUMNS[i]?.[0]} in the database`);
+  return c.key;
+});
+if (PLOT_METRIC_DB_COLUMNS.length !== METRIC_KEYS.length) throw new Error('plot-chunk: the science and the database list different metric columns');
+
+export interface ChunkCounts {
+  visits: number;
+  stems: number;
+  /** Requested visits that no longer exist (deleted since the chunk was planned). */
+  missing: number;
+  ms: number;
+}
+
+/**
+ * Metrics of a chunk of plot visits, in ONE transaction: lock the visits, read them and their stems
+ * (two set-based queries), compute every visit, upsert every metrics row in one statement, clear the
+ * visits' stale marks, mark the fits of their forest types and the summaries of their regions stale,
+ * and bring the unresolved-name counts of their batches up to date. Idempotent: a rerun writes the
+ * same rows and counts.
+ */
+export async function computePlotChunk(deps: Pick<ServiceDeps, 'db' | 'config'>, runId: string, visitIds: readonly number[], jobId: string): Promise<ChunkCounts> {
+  const started = performance.now();
+  const { db, config } = deps;
+  const species = await currentSpecies(db);
+  return db.transaction(async (tx) => {
+    const visits = await lockVisitsForCompute(tx, visitIds);
+    const stemsOf = visits.length ? await loadStemsForVisits(tx, visits.map((v) => v.visitId)) : new Map<number, ComputeStemRow[]>();
+    const forestTypes = [...new Set(visits.map((v) => v.forestType))].sort();
+    // Read after the visits are locked, so a concurrent refit (which marks these visits stale) is either seen or waits.
+    const models = new Map<string, HeightDiameterModel>((await listHeightModels(tx, forestTypes)).map((m) => [m.forestType, heightModelFromRow(m)]));
+
+    const writes: PlotMetricsWrite[] = [];
+    const unresolved: UnresolvedNameCount[] = [];
+    let nStems = 0;
+    for (const visit of visits) {
+      const stems = stemsOf.get(visit.visitId) ?? [];
+      nStems += stems.length;
+      const write = computeVisit(visit, stems, species.index, models.get(visit.forestType) ?? null, config.defaultWoodDensity, species.versionId);
+      for (const u of write.diagnostics.unresolvedNames) unresolved.push({ batchId: visit.batchId, name: u.name, level: u.level, stems: u.stems });
+      writes.push(write);
+    }
+
+    const ids = visits.map((v) => v.visitId);
+    await applyUnresolvedNameCounts(tx, ids, unresolved); // before the upsert: it reads the old diagnostics
+    await upsertPlotMetrics(tx, writes);
+    await markVisitsComputed(tx, ids);
+    await markStale(tx, 'fits', forestTypes);
+    await markStale(tx, 'summary', [...new Set(visits.map((v) => v.region))].sort());
+    const counts: ChunkCounts = { visits: visits.length, stems: nStems, missing: visitIds.length - visits.length, ms: Math.round(performance.now() - started) };
+    await recordChunkInRun(tx, runId, jobId, { ...counts });
+    return counts;
+  });
+}
+
+function computeVisit(
+  visit: ComputeVisitRow,
+  stems: readonly ComputeStemRow[],
+  index: Parameters<typeof computePlotMetrics>[2],
+  heightModel: HeightDiameterModel | null,
+  defaultWoodDensity: number,
+  speciesVersionId: number | null,
+): PlotMetricsWrite & { diagnostics: PlotDiagnostics & { heightModelHeights: number | null } } {
+  let result;
+  try {
+    result = computePlotMetrics(
+      {
+        areaHa: visit.areaHa,
+        dbhMinCm: visit.dbhMinCm,
+        subplotAreaHa: visit.subplotAreaHa,
+        subplotDbhMinCm: visit.subplotDbhMinCm,
+        loggingClass: visit.loggingClass,
+        fireClass: visit.fireClass,
+        climate: visit.climate,
+      },
+      stems,
+      index,
+      { heightModel, defaultWoodDensity },
+    );
+  } catch (err) {
+    if (err instanceof RangeError) {
+      throw new PermanentError('plot_invalid', `plot ${visit.plotKey} (visit ${visit.visitId}): ${err.message}`, { cause: err });
+    }
+    throw err;
+  }
+  const m = result.metrics as unknown as Record<string, number | null>;
+  return {
+    visitId: visit.visitId,
+    speciesVersionId,
+    values: METRIC_KEYS.map((k) => m[k]),
+    diagnostics: { ...result.diagnostics, heightModelHeights: heightModel?.n ?? null },
+  };
+}

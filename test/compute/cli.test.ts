@@ -1,0 +1,131 @@
+import { execFile } from 'node:child_process';
+import fs from 'node:fs';
+import os from 'node:os';
+import path from 'node:path';
+import { promisify } from 'node:util';
+import { afterAll, beforeAll, describe, expect, it, vi } from 'vitest';
+import { main } from '../../cli/src/main';
+import type { ServiceDeps } from '@stemwise/db';
+import { BullQueue } from '@stemwise/platform';
+import { createProcessors } from '@stemwise/compute';
+import { fixtureSpecies, generateInventory, loadInventory, loadSpecies } from './fixtures';
+import { standInSummaries } from './support';
+import { envFor, testLogger, useServices, type TestServices } from '../support/services';
+
+const run = promisify(execFile);
+const BIN = path.resolve(__dirname, '../../bin/stemwise.mjs');
+
+async function stemwise(args: string[], env: Record<string, string | undefined>) {
+  try {
+    const r = await run(process.execPath, [BIN, ...args], { env: env as NodeJS.ProcessEnv, timeout: 90_000 });
+    return { code: 0, stdout: r.stdout, stderr: r.stderr };
+  } catch (err) {
+    const e = err as { code: number; stdout: string; stderr: string };
+    return { code: e.code, stdout: e.stdout, stderr: e.stderr };
+  }
+}
+
+// `stemwise recompute` and `stemwise export` as a user runs them: real processes on PostgreSQL, with
+// and without Redis.
+describe('stemwise recompute and export', () => {
+  let s: TestServices;
+  const out = fs.mkdtempSync(path.join(os.tmpdir(), 'stemwise-export-'));
+  const noRedis = () => ({ ...envFor(s), REDIS_URL: undefined, STEMWISE_BOOTSTRAP: '50' });
+  // main() in this process (what bin/stemwise.mjs runs), its stdout and stderr captured: quicker than a process.
+  const inProcess = async (args: string[]) => {
+    let stdout = '';
+    let stderr = '';
+    const out = vi.spyOn(process.stdout, 'write').mockImplementation((chunk: string | Uint8Array) => ((stdout += String(chunk)), true));
+    const err = vi.spyOn(process.stderr, 'write').mockImplementation((chunk: string | Uint8Array) => ((stderr += String(chunk)), true));
+    try {
+      return { code: await main(args, noRedis()), stdout, stderr };
+    } finally {
+      out.mockRestore();
+      err.mockRestore();
+    }
+  };
+
+  beforeAll(async () => {
+    s = await useServices();
+    await loadSpecies(s.db, fixtureSpecies());
+  });
+  afterAll(async () => {
+    await s?.cleanup();
+    fs.rmSync(out, { recursive: true, force: true });
+  });
+
+  it('says "nothing stale" when there is nothing to do', async () => {
+    const r = await inProcess(['recompute']);
+    expect(r.stderr).toBe('');
+    expect(r.code).toBe(0);
+    expect(r.stdout).toBe('nothing stale\n');
+  });
+
+  it('recomputes in-process without REDIS_URL and prints what ran', async () => {
+    await loadInventory(s.db, generateInventory({ seed: 2, plotsPerCell: 2, stemsPerPlot: 30 }));
+    const r = await stemwise(['recompute'], noRedis());
+    expect(r.code, r.stderr).toBe(0);
+    expect(r.stdout).toMatch(/^run \S+ \(manual\): (done|running)\n/);
+    expect(r.stdout).toMatch(/plot metrics: \d+ plot visits, \d+ stems, 1 chunk/);
+    expect(r.stdout).toMatch(/fits wet: (hump|increasing|decreasing|u_shape|none) \(n = \d+/);
+    const [{ stale }] = await s.db.query<{ stale: number }>(`select count(*)::int stale from plot_visits where stale`);
+    expect(stale).toBe(0);
+  });
+
+  it('writes export plots to a file, complete, and reports the row count on stderr', async () => {
+    const file = path.join(out, 'plots.csv');
+    const r = await inProcess(['export', 'plots', '--out', file]);
+    expect(r.code, r.stderr).toBe(0);
+    expect(r.stdout).toBe('');
+    const lines = fs.readFileSync(file, 'utf8').trim().split('\n');
+    expect(lines[0]).toMatch(/^plot_id,survey_date,region,forest_type,stems_ha,/);
+    expect(r.stderr).toBe(`stemwise: ${lines.length - 1} rows written to ${file}\n`);
+    expect(fs.readdirSync(out)).toEqual(['plots.csv']); // no partial file left behind
+  });
+
+  it('writes export fits and GeoJSON to stdout, data only', async () => {
+    const fits = await inProcess(['export', 'fits', '--format', 'json', '--axis', 'fire_score', '--metric', 'richness']);
+    expect(fits.code, fits.stderr).toBe(0);
+    const rows = JSON.parse(fits.stdout);
+    expect(rows).toHaveLength(6);
+    expect(rows[0].axis).toBe('fire_score');
+    const gj = await inProcess(['export', 'plots', '--format', 'geojson', '--region', 'Sallowfen']);
+    expect(gj.code, gj.stderr).toBe(0);
+    expect(JSON.parse(gj.stdout).features.every((f: { properties: { region: string } }) => f.properties.region === 'Sallowfen')).toBe(true);
+  });
+
+  it('answers bad arguments with a usage error (exit 2) that says what is valid', async () => {
+    const axis = await inProcess(['export', 'fits', '--axis', 'disturbance']);
+    expect(axis.code).toBe(2);
+    expect(axis.stderr).toMatch(/^stemwise: unknown axis 'disturbance'; choose one of: stems_ha, basal_area_m2_ha, .*, disturbance_index\n$/);
+    const format = await inProcess(['export', 'plots', '--format', 'xml']);
+    expect(format.code).toBe(2);
+    expect(format.stderr).toMatch(/--format must be one of csv, json, geojson/);
+    expect((await inProcess(['export', 'trees'])).code).toBe(2);
+    expect((await inProcess(['export', 'fits', '--region', 'Sallowfen'])).code).toBe(2);
+    expect((await inProcess(['recompute', '--soon'])).code).toBe(2);
+    const region = await inProcess(['export', 'plots', '--region', 'Atlantis']);
+    expect(region.code).toBe(1);
+    expect(region.stderr).toMatch(/^stemwise: no region named 'Atlantis'/);
+  });
+
+  it('with REDIS_URL queues the planner job, or with --now plans and waits for the workers', async () => {
+    const queued = await stemwise(['recompute', '--all'], envFor(s, { STEMWISE_BOOTSTRAP: '50' }));
+    expect(queued.code, queued.stderr).toBe(0);
+    const jobId = /^queued (recompute\.manual\.\d{17}) /.exec(queued.stdout)?.[1];
+    expect(jobId).toBeDefined();
+    const queue = await BullQueue.open({ url: s.redisUrl, prefix: s.prefix, attempts: 1, log: testLogger() });
+    try {
+      expect(await queue.state(jobId!, 'maintenance.recompute')).toBe('waiting');
+      // Workers of this test (compute + a stand-in for the report service) serve the queues.
+      const deps: ServiceDeps = { config: s.config, db: s.db, log: testLogger(), queue };
+      await queue.work({ ...createProcessors(deps), ...standInSummaries(s.db) }, { queues: ['compute', 'report'] });
+      const now = await stemwise(['recompute', '--now', '--all'], envFor(s, { STEMWISE_BOOTSTRAP: '50' }));
+      expect(now.code, now.stderr).toBe(0);
+      expect(now.stderr).toMatch(/plot metrics done\n[\s\S]*fits done\n[\s\S]*summaries done\n/);
+      expect(now.stdout).toMatch(/^run \S+ \(manual\): done\n/);
+    } finally {
+      await queue.close();
+    }
+  });
+});

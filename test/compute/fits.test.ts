@@ -1,0 +1,117 @@
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { listStale, markStale } from '@stemwise/db';
+import { StemwiseError } from '@stemwise/platform';
+import { MIN_REGION_PLOTS, storeFits } from '@stemwise/compute';
+import { fitCurves } from '../../services/compute/src/science/verdict';
+import { fixtureSpecies, generateInventory, loadInventory, loadSpecies, REGIONS } from './fixtures';
+import { fitsText, plotsText, recomputeInProcess } from './support';
+import { useServices, type TestServices } from '../support/services';
+
+// The columns of `export fits` exactly as in shared/spec/outputs.md.
+const SPEC_COLUMNS =
+  'forest_type, metric, axis, n, model, b0, b1, b2, se_b0, se_b1, se_b2, p_b1, p_b2, r2, adj_r2, aicc, peak_x, peak_ci_low, peak_ci_high, verdict'.split(', ');
+const VERDICTS = ['hump', 'increasing', 'decreasing', 'u_shape', 'none'];
+
+describe('diversity–disturbance fits', () => {
+  let s: TestServices;
+  // 30 plots per region × forest type: enough for the region fits (MIN_REGION_PLOTS).
+  const inventory = generateInventory({ seed: 21, plotsPerCell: MIN_REGION_PLOTS, stemsPerPlot: 30 });
+
+  beforeAll(async () => {
+    s = await useServices({ STEMWISE_BOOTSTRAP: '100' });
+    await loadSpecies(s.db, fixtureSpecies());
+    await loadInventory(s.db, inventory);
+    const { failures } = await recomputeInProcess(s.config, s.db);
+    expect(failures).toEqual([]);
+  });
+  afterAll(async () => s?.cleanup());
+
+  it('exports every spec column, linear then quadratic, for each forest type', async () => {
+    const lines = (await fitsText(s.config, s.db)).trim().split('\n');
+    expect(lines[0]).toBe(SPEC_COLUMNS.join(','));
+    const rows = JSON.parse(await fitsText(s.config, s.db, { format: 'json' })) as Array<Record<string, string | number | null>>;
+    expect(rows.map((r) => `${r.forest_type}/${r.model}`)).toEqual(['dry/linear', 'dry/quadratic', 'moist/linear', 'moist/quadratic', 'wet/linear', 'wet/quadratic']);
+    for (const r of rows) {
+      expect(Object.keys(r)).toEqual(SPEC_COLUMNS);
+      expect(r.metric).toBe('fisher_alpha');
+      expect(r.axis).toBe('disturbance_index');
+      expect(VERDICTS).toContain(r.verdict);
+      for (const c of ['b0', 'b1', 'se_b0', 'se_b1', 'p_b1', 'r2', 'adj_r2', 'aicc']) expect(typeof r[c], `${r.forest_type} ${r.model} ${c}`).toBe('number');
+      if (r.model === 'linear') for (const c of ['b2', 'se_b2', 'p_b2', 'peak_x']) expect(r[c]).toBeNull();
+      else for (const c of ['b2', 'se_b2', 'p_b2']) expect(typeof r[c]).toBe('number');
+      if (r.verdict !== 'hump' && r.verdict !== 'u_shape') expect(r.peak_x).toBeNull();
+    }
+  });
+
+  it('fits exactly the latest visit of each plot where both values are known', async () => {
+    const plots = JSON.parse(await plotsText(s.db, 'json')) as Array<Record<string, string | number | null>>;
+    const latest = new Map<string, Record<string, string | number | null>>();
+    for (const p of plots) {
+      const have = latest.get(p.plot_id as string);
+      if (!have || (have.survey_date as string) < (p.survey_date as string)) latest.set(p.plot_id as string, p);
+    }
+    const rows = JSON.parse(await fitsText(s.config, s.db, { format: 'json' })) as Array<Record<string, number | string | null>>;
+    for (const type of ['wet', 'moist', 'dry']) {
+      const points = [...latest.values()]
+        .filter((p) => p.forest_type === type && p.fisher_alpha !== null && p.disturbance_index !== null)
+        .sort((a, b) => ((a.plot_id as string) < (b.plot_id as string) ? -1 : 1))
+        .map((p) => ({ x: p.disturbance_index as number, y: p.fisher_alpha as number }));
+      const direct = fitCurves(points, { bootstrapN: 100, seed: s.config.seed });
+      const quad = rows.find((r) => r.forest_type === type && r.model === 'quadratic')!;
+      expect(quad.n).toBe(points.length);
+      expect(quad.b2).toBe(direct.quadratic!.b2);
+      expect(quad.aicc).toBe(direct.quadratic!.aicc);
+      expect(quad.verdict).toBe(direct.verdict);
+    }
+  });
+
+  it('stores region × forest type fits where a region has enough plots, and a chart for each forest type', async () => {
+    const plots = JSON.parse(await plotsText(s.db, 'json')) as Array<Record<string, string | number | null>>;
+    const latest = new Map<string, Record<string, string | number | null>>();
+    for (const p of plots) {
+      const have = latest.get(p.plot_id as string);
+      if (!have || (have.survey_date as string) < (p.survey_date as string)) latest.set(p.plot_id as string, p);
+    }
+    const cells = new Map<string, number>();
+    for (const p of latest.values()) {
+      if (p.fisher_alpha === null || p.disturbance_index === null) continue;
+      const key = `${p.region}|${p.forest_type}`;
+      cells.set(key, (cells.get(key) ?? 0) + 1);
+    }
+    const expected = [...cells].filter(([, n]) => n >= MIN_REGION_PLOTS).map(([k]) => k).sort();
+    expect(expected.length).toBeGreaterThan(0);
+    expect(expected.length).toBeLessThan(cells.size); // some cells fall short: the rule is exercised both ways
+    const stored = await s.db.query<{ k: string }>(`select scope || '|' || forest_type k from curve_fits where scope <> 'all' and model = 'linear' order by 1`);
+    expect(stored.map((r) => r.k).sort()).toEqual(expected);
+    const charts = await s.db.query<{ scope: string; svg: string | null }>(`select scope, details->>'chart_svg' svg from curve_fits where model = 'quadratic'`);
+    expect(charts.filter((c) => c.scope === 'all')).toHaveLength(3);
+    for (const c of charts) {
+      if (c.scope === 'all') expect(c.svg).toMatch(/^<svg/);
+      else expect(c.svg).toBeNull();
+    }
+  });
+
+  it('clears the fits marks it served and marks the summaries of the forest type’s regions', async () => {
+    await markStale(s.db, 'fits', ['dry']);
+    const out = await storeFits(s, ['dry']);
+    expect(out.map((f) => f.forestType)).toEqual(['dry']);
+    expect(await listStale(s.db, 'fits')).toEqual([]);
+    expect((await listStale(s.db, 'summary')).sort()).toEqual([...REGIONS].sort());
+  });
+
+  it('fits any numeric plot column on demand without storing it', async () => {
+    const rows = JSON.parse(await fitsText(s.config, s.db, { format: 'json', axis: 'logging_score', metric: 'shannon' })) as Array<Record<string, unknown>>;
+    expect(rows).toHaveLength(6);
+    for (const r of rows) expect([r.axis, r.metric]).toEqual(['logging_score', 'shannon']);
+    const [{ n }] = await s.db.query<{ n: number }>(`select count(*)::int n from curve_fits where metric = 'shannon'`);
+    expect(n).toBe(0);
+  });
+
+  it('refuses an unknown column with a usage error listing the valid ones', async () => {
+    const err = await fitsText(s.config, s.db, { axis: 'disturbance' }).catch((e) => e);
+    expect(err).toBeInstanceOf(StemwiseError);
+    expect(err.code).toBe('usage');
+    expect(err.message).toMatch(/unknown axis 'disturbance'; choose one of: stems_ha, .*disturbance_index/);
+    await expect(fitsText(s.config, s.db, { metric: 'plot_id' })).rejects.toThrow(/unknown metric 'plot_id'/);
+  });
+});
