@@ -1,0 +1,202 @@
+// Benchmark of the region summary endpoint: 100 concurrent keep-alive connections for 10 s on
+// loopback against GET /v1/regions/:region/summary; prints requests/s and latency percentiles.
+// Target: p99 under 50 ms.
+//
+//   npx tsx scripts/bench-report.ts [--connections 100] [--seconds 10] [--plots 600]
+//
+// The server runs in a child process (so the load loop does not share its event loop) on its own
+// database: a scratch database created on the PostgreSQL server of DATABASE_URL (dropped at the end),
+// or an embedded PGlite in a temporary folder when DATABASE_URL is unset. It is seeded with an
+// invented region of `--plots` plots over three forest types and one summaries run.
+import { spawn } from 'node:child_process';
+import crypto from 'node:crypto';
+import fs from 'node:fs';
+import os from 'node:os';
+import path from 'node:path';
+import { parseArgs } from 'node:util';
+import { fileURLToPath } from 'node:url';
+import { Pool } from 'undici';
+import pg from 'pg';
+import { createLogger, InProcessQueue, loadConfig } from '@stemwise/platform';
+import { markStale, migrateDatabase, openDatabase, syncForestTypes, type ServiceDeps } from '@stemwise/db';
+import { createProcessors, startReportServer } from '@stemwise/report';
+import { jobContext, seedForestArea, seedPlots, seedRun, seedSpecies, type FixturePlot } from '../test/report/fixture';
+import { createToken } from '../test/report/tokens';
+
+const REGION = 'Northvale';
+
+/** Deterministic pseudo-random numbers (mulberry32), so every run seeds the same region. */
+function random(seed: number): () => number {
+  let a = seed >>> 0;
+  return () => {
+    a = (a + 0x6d2b79f5) >>> 0;
+    let t = a;
+    t = Math.imul(t ^ (t >>> 15), t | 1);
+    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
+    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
+  };
+}
+
+function inventedPlots(n: number): FixturePlot[] {
+  const r = random(20261201);
+  const types = ['wet', 'moist', 'dry'];
+  return Array.from({ length: n }, (_, i) => {
+    const forestType = types[i % 3];
+    const ba = 8 + 30 * r();
+    const di = r();
+    const agb = ba * (8 + 4 * r());
+    const shares = [r(), r(), r(), 0.2 * r()];
+    const sum = shares.reduce((a, b) => a + b, 0);
+    return {
+      key: `NV-${String(i + 1).padStart(5, '0')}`,
+      region: REGION,
+      forestType,
+      date: `2026-0${1 + (i % 9)}-1${i % 10}`,
+      latitude: -12 + r(),
+      longitude: 34 + r(),
+      metrics: {
+        stems_ha: 200 + 600 * r(),
+        basal_area_m2_ha: ba,
+        agb_mg_ha: agb,
+        carbon_mg_ha: 0.47 * agb,
+        fisher_alpha: 4 + 12 * di * (1 - di) * 4 + 2 * r(),
+        richness: Math.round(5 + 25 * r()),
+        disturbance_index: di,
+        pioneer_ba_share: shares[0] / sum,
+        light_demander_ba_share: shares[1] / sum,
+        shade_tolerant_ba_share: shares[2] / sum,
+        unassigned_ba_share: shares[3] / sum,
+      },
+    };
+  });
+}
+
+/** Child: seed a database, run the summaries job, serve on loopback, print the URL and a reader token. */
+async function serve(plots: number): Promise<void> {
+  const env = loadConfig();
+  const log = createLogger('warn');
+  let databaseUrl: string | undefined;
+  let dropDb = async () => {};
+  let dataDir: string | null = null;
+  if (env.databaseUrl) {
+    const name = `stemwise_bench_report_${crypto.randomBytes(4).toString('hex')}`;
+    const admin = new pg.Client({ connectionString: env.databaseUrl });
+    await admin.connect();
+    await admin.query(`create database "${name}"`);
+    await admin.end();
+    const u = new URL(env.databaseUrl);
+    u.pathname = `/${name}`;
+    databaseUrl = u.toString();
+    dropDb = async () => {
+      const a = new pg.Client({ connectionString: env.databaseUrl });
+      await a.connect();
+      await a.query(`drop database if exists "${name}" with (force)`);
+      await a.end();
+    };
+  } else {
+    dataDir = fs.mkdtempSync(path.join(os.tmpdir(), 'stemwise-bench-'));
+  }
+  const config = loadConfig({ DATABASE_URL: databaseUrl, STEMWISE_DATA_DIR: dataDir ?? env.dataDir, STEMWISE_LOG_LEVEL: 'warn' });
+  const db = await openDatabase(config);
+  await migrateDatabase(db);
+  await syncForestTypes(db, config.forestTypes);
+  await seedSpecies(db);
+  await seedPlots(db, inventedPlots(plots));
+  for (const [t, ha] of [['wet', 52_000], ['moist', 31_000], ['dry', 17_500]] as const) await seedForestArea(db, REGION, t, ha);
+  await markStale(db, 'summary', [REGION]);
+  const deps: ServiceDeps = { config, db, log, queue: new InProcessQueue(log) };
+  await createProcessors(deps)['report.summaries']!({ runId: await seedRun(db) }, jobContext(log));
+  const token = (await createToken(db, 'reader', [REGION], 'bench')).token;
+  const server = await startReportServer(deps, { host: '127.0.0.1', port: 0 });
+  process.stdout.write(JSON.stringify({ url: server.url, token }) + '\n');
+  const stop = async () => {
+    await server.close();
+    await db.close();
+    await dropDb();
+    if (dataDir) fs.rmSync(dataDir, { recursive: true, force: true });
+    process.exit(0);
+  };
+  process.once('SIGTERM', () => void stop());
+  process.once('SIGINT', () => void stop());
+}
+
+function percentile(sorted: Float64Array, p: number): number {
+  if (!sorted.length) return NaN;
+  return sorted[Math.min(sorted.length - 1, Math.ceil((p / 100) * sorted.length) - 1)];
+}
+
+/** Parent: start the child, drive the load, print the figures. */
+async function load(connections: number, seconds: number, plots: number): Promise<void> {
+  const script = fileURLToPath(import.meta.url);
+  const child = spawn(process.execPath, [...(process.argv.includes('--profile') ? ['--cpu-prof', '--cpu-prof-dir=/tmp/report-prof'] : []), '--import', 'tsx', script, '--serve', '--plots', String(plots)], { stdio: ['ignore', 'pipe', 'inherit'] });
+  const ready = await new Promise<{ url: string; token: string }>((resolve, reject) => {
+    let out = '';
+    child.stdout.on('data', (d: Buffer) => {
+      out += d.toString();
+      const line = out.split('\n').find((l) => l.startsWith('{'));
+      if (line) resolve(JSON.parse(line));
+    });
+    child.once('exit', (code) => reject(new Error(`the server process exited (${code}) before it was ready`)));
+  });
+  const pathName = process.argv.includes("--healthz") ? "/healthz" : `/v1/regions/${REGION}/summary`;
+  const headers = { authorization: `Bearer ${ready.token}` };
+  const pool = new Pool(ready.url, { connections, pipelining: 1, keepAliveTimeout: 30_000 });
+  try {
+    // warm-up: fills the cache and opens the connections
+    const first = await pool.request({ path: pathName, method: 'GET', headers });
+    const bytes = (await first.body.arrayBuffer()).byteLength;
+    if (first.statusCode !== 200) throw new Error(`warm-up answered ${first.statusCode}`);
+    await Promise.all(Array.from({ length: connections }, async () => (await pool.request({ path: pathName, method: 'GET', headers })).body.dump()));
+
+    const latencies: number[] = [];
+    let failures = 0;
+    const end = performance.now() + seconds * 1000;
+    const t0 = performance.now();
+    await Promise.all(
+      Array.from({ length: connections }, async () => {
+        while (performance.now() < end) {
+          const start = performance.now();
+          try {
+            const res = await pool.request({ path: pathName, method: 'GET', headers });
+            await res.body.dump();
+            if (res.statusCode !== 200) failures++;
+          } catch {
+            failures++;
+          }
+          latencies.push(performance.now() - start);
+        }
+      }),
+    );
+    const elapsed = (performance.now() - t0) / 1000;
+    const sorted = Float64Array.from(latencies).sort();
+    const fmt = (v: number) => `${v.toFixed(2)} ms`;
+    const p99 = percentile(sorted, 99);
+    process.stdout.write(
+      [
+        `region summary endpoint (GET ${pathName}, ${bytes} bytes JSON, ${plots} plots): ${connections} connections, ${elapsed.toFixed(1)} s on loopback`,
+        `  requests/s  ${(latencies.length / elapsed).toFixed(0)}   (${latencies.length} requests, ${failures} failed)`,
+        `  latency     p50 ${fmt(percentile(sorted, 50))}   p90 ${fmt(percentile(sorted, 90))}   p99 ${fmt(p99)}   max ${fmt(sorted[sorted.length - 1])}`,
+        `  target p99 < 50 ms: ${p99 < 50 ? 'met' : 'NOT met'}`,
+        '',
+      ].join('\n'),
+    );
+  } finally {
+    await pool.close();
+    child.kill('SIGTERM');
+    await new Promise((r) => child.once('exit', r));
+  }
+}
+
+const { values } = parseArgs({
+  options: {
+    serve: { type: 'boolean', default: false },
+    healthz: { type: 'boolean', default: false },
+    profile: { type: 'boolean', default: false },
+    connections: { type: 'string', default: '100' },
+    seconds: { type: 'string', default: '10' },
+    plots: { type: 'string', default: '600' },
+  },
+});
+const plots = Number(values.plots);
+if (values.serve) await serve(plots);
+else await load(Number(values.connections), Number(values.seconds), plots);

@@ -1,0 +1,35 @@
+import { countStaleVisits, listLatestSnapshots, listRegionNames, regionExists, type Queryable, type ServiceDeps } from '@stemwise/db';
+import { StemwiseError } from '@stemwise/platform';
+import { encodeTable, type Row } from '@stemwise/compute/export/format';
+import { writeExport, type ExportTarget } from '@stemwise/compute/export/sink';
+import type { SnapshotPayload } from './snapshot-payload';
+import { REGION_COLUMNS, type RegionRow } from './summary/types';
+
+export interface ExportRegionsOptions {
+  format: 'csv' | 'json';
+  /** Only this region (by name). */
+  region?: string | null;
+}
+
+/** The `export regions` rows of the latest summary of every region (or one), by region name. */
+export async function listRegionExportRows(db: Queryable, region?: string | null): Promise<RegionRow[]> {
+  const rows: RegionRow[] = [];
+  for (const s of await listLatestSnapshots(db, region ?? null)) rows.push(...(s.payload as SnapshotPayload).summary.rows);
+  return rows;
+}
+
+/**
+ * `stemwise export regions`: the spec columns (shared/spec/outputs.md) from the latest snapshots, as
+ * CSV (neutralised for spreadsheets) or JSON, to a file or a stream. Regions not summarised yet are
+ * absent; `staleVisits` counts plot visits whose figures a recompute has still to bring in.
+ */
+export async function exportRegions(deps: Pick<ServiceDeps, 'db'>, options: ExportRegionsOptions, target: ExportTarget): Promise<{ rows: number; staleVisits: number }> {
+  const region = options.region ?? null;
+  if (region !== null && !(await regionExists(deps.db, region))) {
+    const known = await listRegionNames(deps.db);
+    throw new StemwiseError('not_found', `no region named '${region}' (known: ${known.length ? known.join(', ') : 'none yet'})`);
+  }
+  const rows = await listRegionExportRows(deps.db, region);
+  await writeExport(encodeTable(options.format, REGION_COLUMNS, rows as unknown as Row[]), target);
+  return { rows: rows.length, staleVisits: await countStaleVisits(deps.db, region) };
+}

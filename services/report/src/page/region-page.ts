@@ -1,0 +1,206 @@
+import type { Snapshot } from '../snapshot-payload';
+import type { DisturbanceRow, RegionRow } from '../summary/types';
+import { HEADLINE_VARIABLES, totalUnit, variableLabel } from '../variables';
+import { figure, interval, isoMinute, percentOfShare, samplingError } from './figures';
+import { html, safeSvg, type Markup } from './html';
+import { pageShell } from './shell';
+
+export interface RegionPageLinks {
+  index: string;
+  summaryJson: string;
+  summaryCsv: string;
+  plotsGeoJson: string;
+  /** Page of another version; null where versions cannot be opened (the static report). */
+  versionPage: ((version: number) => string) | null;
+  signOut: string | null;
+}
+
+export interface RegionPageInput {
+  snapshot: Snapshot;
+  links: RegionPageLinks;
+  /** Every version of the region's summary, newest first. */
+  versions: ReadonlyArray<{ version: number; createdAt: Date }>;
+}
+
+const WHOLE = 'all';
+const plots = (n: number): string => `${n} ${n === 1 ? 'plot' : 'plots'}`;
+const stratumName = (t: string): string => (t === WHOLE ? 'Whole region (stratified)' : t);
+const GUILD_NAMES: Record<string, string> = { pioneer: 'Pioneer', light_demander: 'Light-demanding', shade_tolerant: 'Shade-tolerant', unassigned: 'Unassigned' };
+
+/** The cautions every region page shows, in our words. */
+export function cautions(carbonFraction: number): Markup {
+  return html`<section class="caution" aria-label="Read this first">
+  <strong>Read this first.</strong>
+  <ul>
+    <li>These are estimates from a sample of plots, not a census. Every figure is shown with its standard error, 95 % confidence interval and sampling error: read the interval, not only the mean.</li>
+    <li>Biomass and carbon follow the method stated on this page (Chave et al. 2014, or Chave et al. 2005 where heights are missing; carbon = ${carbonFraction} × biomass, IPCC 2006). The intervals cover sampling error only, not the error of the biomass models. These figures do not replace the national greenhouse-gas reporting method.</li>
+    <li>This page is no logging plan: decisions on harvesting rest with local regulations and licensed foresters.</li>
+  </ul>
+</section>`;
+}
+
+function headlineCards(s: Snapshot): Markup {
+  const { rows, totals } = s.payload.summary;
+  const cards = HEADLINE_VARIABLES.map((v) => {
+    const r = rows.find((x) => x.forest_type === WHOLE && x.variable === v);
+    if (!r) return null;
+    const label = variableLabel(v);
+    const t = totals.find((x) => x.forest_type === WHOLE && x.variable === v);
+    return html`<div class="card" data-variable="${v}">
+  <div class="label">${label.name}</div>
+  <div class="value">${figure(r.mean)} <span class="unit">${label.unit}</span></div>
+  <div class="ci">95 % CI: ${interval(r.ci_low, r.ci_high)}</div>
+  <div class="se">sampling error: ${samplingError(r.sampling_error_pct)} · SE ${figure(r.se)}</div>
+  <div class="n muted">${plots(r.n_plots)}</div>
+  ${t ? html`<div class="total">total ${figure(t.total)} ${totalUnit(v)} (95 % CI ${interval(t.ci_low, t.ci_high)}) on ${figure(t.forest_area_ha)} ha</div>` : null}
+</div>`;
+  });
+  return html`<div class="cards" id="headline">${cards}</div>`;
+}
+
+function estimatesTable(rows: readonly RegionRow[]): Markup {
+  const variables = [...new Set(rows.map((r) => r.variable))];
+  const body = variables.map((v) => {
+    const group = rows.filter((r) => r.variable === v).sort((a, b) => (a.forest_type === WHOLE ? -1 : b.forest_type === WHOLE ? 1 : a.forest_type < b.forest_type ? -1 : 1));
+    const label = variableLabel(v);
+    return group.map(
+      (r, i) => html`<tr class="${r.forest_type === WHOLE ? 'whole' : ''}">
+  ${i === 0 ? html`<td rowspan="${group.length}">${label.name}${label.unit ? html` <span class="muted">(${label.unit})</span>` : null}</td>` : null}
+  <td>${stratumName(r.forest_type)}</td><td class="num">${r.n_plots}</td><td class="num">${figure(r.mean)}</td><td class="num">${figure(r.se)}</td>
+  <td class="num">${interval(r.ci_low, r.ci_high)}</td><td class="num">${samplingError(r.sampling_error_pct)}</td>
+  <td class="num">${figure(r.forest_area_ha)}</td><td class="num">${figure(r.total)}</td>
+</tr>`,
+    );
+  });
+  return html`<table id="estimates"><thead><tr><th>Variable</th><th>Stratum</th><th class="num">Plots</th><th class="num">Mean</th><th class="num">SE</th><th class="num">95 % CI</th><th class="num">Sampling error</th><th class="num">Forest area (ha)</th><th class="num">Total</th></tr></thead><tbody>${body}</tbody></table>`;
+}
+
+function guildTable(s: Snapshot): Markup | null {
+  const rows = s.payload.summary.guild_composition;
+  if (!rows.length) return null;
+  const strata = [...new Set(rows.map((r) => r.forest_type))];
+  const guilds = [...new Set(rows.map((r) => r.guild))];
+  return html`<table id="guilds"><thead><tr><th>Stratum</th>${guilds.map((g) => html`<th class="num">${GUILD_NAMES[g] ?? g}</th>`)}</tr></thead><tbody>${strata.map(
+    (t) => html`<tr class="${t === WHOLE ? 'whole' : ''}"><td>${stratumName(t)}</td>${guilds.map((g) => {
+      const r = rows.find((x) => x.forest_type === t && x.guild === g);
+      return html`<td class="num">${percentOfShare(r?.mean_share)}${r?.se != null ? html` <span class="muted">± ${percentOfShare(r.se)}</span>` : null}</td>`;
+    })}</tr>`,
+  )}</tbody></table>`;
+}
+
+function classRange(r: DisturbanceRow): string {
+  if (r.lower === null && r.upper === null) return 'all';
+  if (r.lower === null) return `below ${r.upper}`;
+  if (r.upper === null) return `${r.lower} and above`;
+  return `${r.lower} to below ${r.upper}`;
+}
+
+function disturbanceTable(s: Snapshot): Markup | null {
+  const { rows, plots_without_index } = s.payload.summary.disturbance;
+  if (!rows.length) return null;
+  const strata = [...new Set(rows.map((r) => r.forest_type))];
+  const classes = [...new Set(rows.map((r) => r.class))];
+  const missing = plots_without_index.filter((p) => p.n_plots > 0);
+  return html`<table id="disturbance"><thead><tr><th>Class</th><th>Disturbance index</th>${strata.map((t) => html`<th class="num">${stratumName(t)}</th>`)}</tr></thead><tbody>${classes.map((c) => {
+    const first = rows.find((r) => r.class === c) as DisturbanceRow;
+    return html`<tr><td>${c.replace(/_/g, ' ')}</td><td>${classRange(first)}</td>${strata.map((t) => {
+      const r = rows.find((x) => x.forest_type === t && x.class === c);
+      return html`<td class="num">${r ? html`${plots(r.n_plots)} · ${percentOfShare(r.share)}` : '–'}</td>`;
+    })}</tr>`;
+  })}</tbody></table>
+<p class="muted">Shares per forest type are shares of its plots; the whole-region share is the stratified estimate (of forest area when areas are known).${missing.length ? ` Plots without a disturbance index: ${missing.map((m) => `${m.forest_type} ${m.n_plots}`).join(', ')}.` : ''}</p>`;
+}
+
+function speciesTable(s: Snapshot): Markup | null {
+  const rows = s.payload.summary.species;
+  if (!rows) return null;
+  return html`<table id="species"><thead><tr><th>Stratum</th><th class="num">Species recorded</th><th class="num">Plots</th></tr></thead><tbody>${rows.map(
+    (r) => html`<tr class="${r.forest_type === WHOLE ? 'whole' : ''}"><td>${stratumName(r.forest_type)}</td><td class="num">${r.n_species}</td><td class="num">${r.n_plots_with_names}</td></tr>`,
+  )}</tbody></table>
+<p class="muted">Species counted among live stems of the main plots identified to species (synonyms counted as their accepted name). Observed counts grow with the number of plots: compare strata with care.</p>`;
+}
+
+function fitsSection(s: Snapshot): Markup {
+  const { charts, fits } = s.payload;
+  const figures = charts.fits.map((c) => {
+    const svg = safeSvg(c.svg);
+    return html`<figure class="fit-chart" data-forest-type="${c.forest_type}">${svg ?? html`<p class="muted">No chart for ${c.forest_type}: ${c.missing ?? 'not available'}.</p>`}
+<figcaption>${c.forest_type}: ${c.metric} against ${c.axis} for all ${c.points} plots of this forest type in the inventory; the ${c.highlighted} plots of ${s.region} are drawn highlighted. The curve and the verdict are those of the forest type as a whole.</figcaption></figure>`;
+  });
+  const table = fits.length
+    ? html`<table id="fits"><thead><tr><th>Fitted on</th><th>Forest type</th><th>Model</th><th class="num">Plots</th><th class="num">R²</th><th class="num">AICc</th><th class="num">Peak (95 % CI)</th><th>Verdict</th></tr></thead><tbody>${fits.map(
+        (f) => html`<tr><td>${f.scope === WHOLE ? 'whole forest type' : `plots of ${f.scope}`}</td><td>${f.forest_type}</td><td>${f.model}</td><td class="num">${f.n}</td><td class="num">${figure(f.r2)}</td><td class="num">${figure(f.aicc)}</td><td class="num">${f.peak_x === null ? '–' : html`${figure(f.peak_x)} (${interval(f.peak_ci_low, f.peak_ci_high)})`}</td><td>${f.verdict.replace('_', ' ')}</td></tr>`,
+      )}</tbody></table>
+<p class="muted">A verdict summarises survey plots; it is not proof of cause (soil, altitude or history can make or hide a pattern).</p>`
+    : html`<p class="muted">No fits stored yet for these forest types.</p>`;
+  return html`${figures}${table}`;
+}
+
+function versionsList(input: RegionPageInput): Markup {
+  const { versions, links, snapshot } = input;
+  return html`<ul class="versions">${versions.map((v) => {
+    const label = `version ${v.version} · ${isoMinute(v.createdAt)}`;
+    if (v.version === snapshot.version) return html`<li><strong>${label}</strong> (shown)</li>`;
+    return html`<li>${links.versionPage ? html`<a href="${links.versionPage(v.version)}">${label}</a>` : label}</li>`;
+  })}</ul>`;
+}
+
+/** The HTML page of one region's summary snapshot. */
+export function renderRegionPage(input: RegionPageInput): string {
+  const { snapshot: s, links } = input;
+  const { summary, data, method, charts } = s.payload;
+  const latest = input.versions[0]?.version ?? s.version;
+  const means = safeSvg(charts.means);
+  const guilds = safeSvg(charts.guilds);
+  const weighting = summary.weighting === 'area' ? 'by forest area (strata.csv)' : 'by plot counts (no forest areas given)';
+  const body = html`
+<header class="top"><div>
+  <div class="where"><a href="${links.index}">stemwise · regional inventory summaries</a></div>
+  <h1>Region ${s.region}</h1>
+</div></header>
+<main>
+  <div class="facts">
+    <span><b>${data.plots}</b> ${data.plots === 1 ? 'plot' : 'plots'}</span>
+    <span>forest types: <b>${summary.forest_types.join(', ') || '–'}</b></span>
+    <span>surveyed <b>${data.first_survey ?? '–'}</b> to <b>${data.last_survey ?? '–'}</b></span>
+    <span>summary <b>version ${s.version}</b> of ${isoMinute(s.createdAt)}</span>
+    <span>strata weighted ${weighting}</span>
+  </div>
+  ${s.version !== latest ? html`<p class="caution">This is an earlier version (${s.version}); the latest is version ${latest}.</p>` : null}
+  ${cautions(method.carbon_fraction)}
+  <h2 id="headline-figures">Headline figures for the whole region</h2>
+  <p class="muted">Stratified estimates over the forest types; 95 % intervals use Student t (degrees of freedom in the notes below).</p>
+  ${headlineCards(s)}
+  <h2>Charts</h2>
+  ${means ? html`<figure id="means-chart">${means}<figcaption>Means per hectare with their 95 % confidence intervals: the whole region (dark) and each forest type. Wide intervals come from few plots.</figcaption></figure>` : null}
+  ${guilds ? html`<figure id="guild-chart">${guilds}<figcaption>Guild composition: the mean share of live basal area per plot.</figcaption></figure>` : null}
+  <h2>Diversity and disturbance by forest type</h2>
+  ${fitsSection(s)}
+  <h2>Estimates by forest type</h2>
+  ${estimatesTable(summary.rows)}
+  <h2>Guild composition</h2>
+  ${guildTable(s) ?? html`<p class="muted">No guild shares.</p>`}
+  <h2>Plots by disturbance class</h2>
+  ${disturbanceTable(s) ?? html`<p class="muted">No disturbance index.</p>`}
+  <h2>Species counts</h2>
+  ${speciesTable(s) ?? html`<p class="muted">No species names.</p>`}
+  <h2>Method and notes</h2>
+  <ul class="notes">
+    <li>${method.estimator}</li>
+    <li>${method.biomass}</li>
+    <li>${method.carbon}</li>
+    <li>${method.fits}</li>
+    ${summary.notes.filter((n) => n.code !== 'caution').map((n) => html`<li>${n.message}</li>`)}
+  </ul>
+  <h2 class="no-print">Downloads</h2>
+  <p class="downloads no-print">
+    <a href="${links.summaryCsv}" download>Summary (CSV)</a>
+    <a href="${links.summaryJson}">Summary (JSON)</a>
+    <a href="${links.plotsGeoJson}">Plots with metrics (GeoJSON)</a>
+  </p>
+  <h2>Versions of this summary</h2>
+  ${versionsList(input)}
+</main>
+<footer><div>Made by stemwise from the plots loaded up to the summary's date.${links.signOut ? html` <a class="no-print" href="${links.signOut}">Sign out</a>` : null}</div></footer>`;
+  return pageShell(`Region ${s.region} · forest inventory summary`, body);
+}

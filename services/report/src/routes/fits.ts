@@ -1,0 +1,57 @@
+import type { FastifyInstance } from 'fastify';
+import type { ZodTypeProvider } from 'fastify-type-provider-zod';
+import { listCurveFits, listRegionNames } from '@stemwise/db';
+import { toFitRow } from '@stemwise/compute/fits';
+import { csvHeader, csvLine, type Row } from '@stemwise/compute/export/format';
+import { canSeeRegion, readsRegions, type Principal } from '../access';
+import type { SnapshotFitRow } from '../snapshot-payload';
+import { denyJson, requireToken, type RouteContext } from './auth';
+import { wantsCsv } from './regions';
+import { ErrorBody, FitList, FitsQuery } from './schemas';
+
+const FIT_CSV_COLUMNS = [
+  'scope', 'forest_type', 'metric', 'axis', 'n', 'model', 'b0', 'b1', 'b2', 'se_b0', 'se_b1', 'se_b2',
+  'p_b1', 'p_b2', 'r2', 'adj_r2', 'aicc', 'peak_x', 'peak_ci_low', 'peak_ci_high', 'verdict',
+];
+
+/**
+ * Diversity–disturbance fits. Scope `all` (a forest type as a whole, across regions) is shown to every
+ * reader: it is forest-type-wide science and names no region. Region-scope fits are shown only for the
+ * regions a reader's token names.
+ */
+export function fitRoutes(app: FastifyInstance, ctx: RouteContext): void {
+  app.withTypeProvider<ZodTypeProvider>().get(
+    '/v1/fits',
+    {
+      preHandler: requireToken(ctx, { cookie: true }),
+      schema: {
+        summary: 'Diversity–disturbance fits per forest type (scope all) and per region (readers: their regions only)',
+        tags: ['fits'],
+        security: [{ bearer: [] }],
+        querystring: FitsQuery,
+        response: { 200: FitList, 401: ErrorBody, 403: ErrorBody },
+      },
+    },
+    async (request, reply) => {
+      const p = request.principal as Principal;
+      if (!readsRegions(p)) return denyJson(reply, 403, 'forbidden', 'this token may submit and follow batches only; fits need a reader or admin token');
+      const q = request.query;
+      const { config, db } = ctx.deps;
+      const regions = p.role === 'admin' ? await listRegionNames(db) : p.regions.filter((r) => canSeeRegion(p, r));
+      const visible = ['all', ...regions];
+      if (q.scope && !visible.includes(q.scope) && p.role !== 'admin') return denyJson(reply, 403, 'forbidden', `this token may not see region '${q.scope}'`);
+      const scopes = q.scope ? [q.scope] : visible;
+      const fits: SnapshotFitRow[] = [];
+      for (const scope of scopes) {
+        const rows = await listCurveFits(db, { scope, metric: q.metric ?? config.fitMetric, axis: q.axis ?? config.fitAxis, forestTypes: q.forest_type ? [q.forest_type] : undefined });
+        for (const r of rows) fits.push({ scope, ...(toFitRow(r) as Omit<SnapshotFitRow, 'scope'>) });
+      }
+      if (wantsCsv(q.format, request.headers.accept)) {
+        let out = csvHeader(FIT_CSV_COLUMNS);
+        for (const f of fits) out += csvLine(FIT_CSV_COLUMNS, f as unknown as Row);
+        return reply.type('text/csv; charset=utf-8').send(out as never);
+      }
+      return { fits };
+    },
+  );
+}

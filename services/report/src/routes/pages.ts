@@ -1,0 +1,112 @@
+import type { FastifyInstance, FastifyReply, FastifyRequest } from 'fastify';
+import type { ZodTypeProvider } from 'fastify-type-provider-zod';
+import { z } from 'zod';
+import { IPCC_2006_CARBON_FRACTION } from '@stemwise/compute/science/allometry';
+import { listRegionHeads, listSummaryVersions } from '@stemwise/db';
+import { readsRegions, type Principal } from '../access';
+import { renderIndexPage } from '../page/index-page';
+import { renderMessagePage } from '../page/message-page';
+import { renderRegionPage } from '../page/region-page';
+import { PAGE_HEADERS } from '../page/shell';
+import { requireToken, TOKEN_COOKIE, type Deny, type RouteContext } from './auth';
+import { checkRegion, regionLinks, visibleRegions } from './regions';
+
+const COOKIE_MAX_AGE_S = 30 * 24 * 3600;
+
+const HINTS: Record<number, string> = {
+  401: 'Open this address once with ?token=YOUR_TOKEN added (a token comes from `stemwise token create`); the browser then keeps it in a cookie for 30 days.',
+  403: 'Ask an administrator for a token that covers this region.',
+};
+
+/** Errors of the pages as small HTML pages. */
+export const denyHtml: Deny = (reply, status, code, message) => {
+  const titles: Record<number, string> = { 401: 'Sign-in needed', 403: 'Not for this token', 404: 'Not found' };
+  return reply
+    .code(status)
+    .headers(PAGE_HEADERS)
+    .header('x-error', code)
+    .type('text/html; charset=utf-8')
+    .send(renderMessagePage(titles[status], message, HINTS[status]));
+};
+
+function sendPage(reply: FastifyReply, body: string): FastifyReply {
+  return reply.headers(PAGE_HEADERS).type('text/html; charset=utf-8').send(body);
+}
+
+/**
+ * `?token=…` on a page URL: the token is checked, stored in an HttpOnly cookie, and the browser is sent
+ * to the same address without it (so it stays out of history, bookmarks and referrers).
+ */
+function tokenFromQuery(ctx: RouteContext) {
+  return async (request: FastifyRequest, reply: FastifyReply) => {
+    const url = new URL(request.url, 'http://local');
+    const token = url.searchParams.get('token');
+    if (token === null) return;
+    const v = await ctx.verifier.verify(token);
+    if (!v.ok) return denyHtml(reply, 401, 'unauthorized', v.reason === 'revoked' ? 'This token was revoked.' : 'This token is not valid.');
+    url.searchParams.delete('token');
+    const secure = request.protocol === 'https' ? '; Secure' : '';
+    return reply
+      .code(303)
+      .header('set-cookie', `${TOKEN_COOKIE}=${encodeURIComponent(token)}; HttpOnly; SameSite=Lax; Path=/; Max-Age=${COOKIE_MAX_AGE_S}${secure}`)
+      .header('cache-control', 'no-store')
+      .redirect(url.pathname + url.search, 303);
+  };
+}
+
+export function pageRoutes(app: FastifyInstance, ctx: RouteContext): void {
+  const r = app.withTypeProvider<ZodTypeProvider>();
+  const auth = requireToken(ctx, { cookie: true, deny: denyHtml });
+  const preHandler = [tokenFromQuery(ctx), auth];
+
+  r.get('/', { preHandler, schema: { hide: true } }, async (request, reply) => {
+    const p = request.principal as Principal;
+    if (!readsRegions(p)) return denyHtml(reply, 403, 'forbidden', 'This token may submit and follow batches only; the summaries need a reader or admin token.');
+    const heads = visibleRegions(p, await listRegionHeads(ctx.deps.db));
+    const entries = heads.map((h) => ({
+      region: h.region,
+      plots: h.plots,
+      version: h.head?.version ?? null,
+      updatedAt: h.head?.createdAt ?? null,
+      href: h.head ? regionLinks(h.region).page : null,
+    }));
+    return sendPage(reply, renderIndexPage(entries, { carbonFraction: IPCC_2006_CARBON_FRACTION, signOut: '/signout' }));
+  });
+
+  r.get(
+    '/regions/:region',
+    { preHandler, schema: { hide: true, params: z.object({ region: z.string().min(1).max(80) }), querystring: z.object({ version: z.coerce.number().int().min(1).optional() }) } },
+    async (request, reply) => {
+      const { region } = request.params;
+      if (!(await checkRegion(ctx, request, reply, region, denyHtml))) return reply;
+      const entry = await ctx.cache.get(region, request.query.version);
+      if (!entry) {
+        return denyHtml(reply, 404, 'not_found', request.query.version ? `Version ${request.query.version} of this summary does not exist.` : `No summary of ${region} yet: it is assembled by the next recompute.`);
+      }
+      const links = regionLinks(region);
+      const v = entry.snapshot.version;
+      const versions = await listSummaryVersions(ctx.deps.db, region);
+      const body = renderRegionPage({
+        snapshot: entry.snapshot,
+        versions,
+        links: {
+          index: '/',
+          summaryJson: `${links.summary}?version=${v}`,
+          summaryCsv: `${links.summary}?format=csv&version=${v}`,
+          plotsGeoJson: links.plots,
+          versionPage: (n) => `${links.page}?version=${n}`,
+          signOut: '/signout',
+        },
+      });
+      return sendPage(reply, body);
+    },
+  );
+
+  r.get('/signout', { schema: { hide: true } }, async (_request, reply) => {
+    return reply
+      .header('set-cookie', `${TOKEN_COOKIE}=; HttpOnly; SameSite=Lax; Path=/; Max-Age=0`)
+      .headers(PAGE_HEADERS)
+      .type('text/html; charset=utf-8')
+      .send(renderMessagePage('Signed out', 'The token was removed from this browser.', 'Open a page with ?token=YOUR_TOKEN to sign in again.'));
+  });
+}

@@ -1,0 +1,153 @@
+import { z } from 'zod';
+
+// Request and response schemas of the HTTP API (zod; the OpenAPI document is generated from them).
+
+const num = z.number().nullable();
+
+export const ErrorBody = z
+  .object({ error: z.string().describe('stable code, e.g. unauthorized, forbidden, not_found'), message: z.string() })
+  .describe('An error: a stable code and a sentence for people');
+
+export const RegionParams = z.object({ region: z.string().min(1).max(80).describe('region name as loaded from plots.csv') });
+
+export const RegionListItem = z.object({
+  region: z.string(),
+  plots: z.number().int(),
+  latest_version: z.number().int().nullable().describe('null until the first summary is assembled'),
+  updated_at: z.string().nullable(),
+  links: z.object({ summary: z.string(), summary_csv: z.string(), plots: z.string(), page: z.string() }),
+});
+export const RegionList = z.object({ regions: z.array(RegionListItem) });
+
+export const SummaryQuery = z.object({
+  format: z.enum(['json', 'csv']).optional().describe('json (default) or csv; `Accept: text/csv` also selects CSV'),
+  version: z.coerce.number().int().min(1).optional().describe('an earlier snapshot; default the latest'),
+});
+
+export const RegionRowSchema = z.object({
+  region: z.string(),
+  forest_type: z.string().describe('a forest type, or `all` for the stratified estimate of the whole region'),
+  variable: z.string(),
+  n_plots: z.number().int(),
+  mean: num,
+  se: num,
+  ci_low: num,
+  ci_high: num,
+  sampling_error_pct: num.describe('half-width of the 95 % interval over the mean, in percent'),
+  forest_area_ha: num,
+  total: num.describe('mean × forest area, for per-hectare variables with known areas'),
+});
+
+const TotalRowSchema = z.object({ forest_type: z.string(), variable: z.string(), forest_area_ha: z.number(), total: z.number(), se: num, ci_low: num, ci_high: num });
+const EstimateDetailSchema = z.object({
+  variable: z.string(),
+  n_plots: z.number().int(),
+  df: num.describe('degrees of freedom of the interval (Satterthwaite for the region)'),
+  df_method: z.enum(['satterthwaite', 'n_minus_strata', 'fixed']).nullable(),
+  t: num,
+  sampling_error_multiplier: num,
+  strata_used: z.array(z.string()),
+  strata_without_values: z.array(z.string()),
+  single_plot_strata: z.array(z.string()),
+});
+const GuildRowSchema = z.object({
+  forest_type: z.string(),
+  guild: z.enum(['pioneer', 'light_demander', 'shade_tolerant', 'unassigned']),
+  n_plots: z.number().int(),
+  mean_share: num,
+  se: num,
+});
+const DisturbanceSchema = z.object({
+  classes: z.array(z.object({ name: z.string(), below: num })),
+  rows: z.array(
+    z.object({ forest_type: z.string(), class: z.string(), lower: num, upper: num, n_plots: z.number().int(), share: num, share_se: num }),
+  ),
+  plots_without_index: z.array(z.object({ forest_type: z.string(), n_plots: z.number().int() })),
+});
+const NoteSchema = z.object({ code: z.string(), message: z.string(), forest_type: z.string().nullable(), variable: z.string().nullable() });
+
+export const RegionSummarySchema = z.object({
+  region: z.string(),
+  n_plots: z.number().int(),
+  forest_types: z.array(z.string()),
+  weighting: z.enum(['area', 'plot_count']).describe('W_h from forest areas, or from plot counts when areas are missing'),
+  confidence: z.number(),
+  sampling_error_t: z.union([z.literal('t'), z.number()]),
+  fpc_applied: z.boolean(),
+  rows: z.array(RegionRowSchema),
+  totals: z.array(TotalRowSchema),
+  estimate_details: z.array(EstimateDetailSchema),
+  guild_composition: z.array(GuildRowSchema),
+  disturbance: DisturbanceSchema,
+  species: z.array(z.object({ forest_type: z.string(), n_species: z.number().int(), n_plots_with_names: z.number().int() })).nullable(),
+  notes: z.array(NoteSchema),
+});
+
+export const FitRowSchema = z.object({
+  scope: z.string().describe('`all` = the forest type as a whole; otherwise a region'),
+  forest_type: z.string(),
+  metric: z.string(),
+  axis: z.string(),
+  n: z.number().int(),
+  model: z.string(),
+  b0: num,
+  b1: num,
+  b2: num,
+  se_b0: num,
+  se_b1: num,
+  se_b2: num,
+  p_b1: num,
+  p_b2: num,
+  r2: num,
+  adj_r2: num,
+  aicc: num,
+  peak_x: num,
+  peak_ci_low: num,
+  peak_ci_high: num,
+  verdict: z.enum(['hump', 'increasing', 'decreasing', 'u_shape', 'none']).or(z.string()),
+});
+
+export const SummaryResponse = z.object({
+  region: z.string(),
+  version: z.number().int(),
+  created_at: z.string(),
+  etag: z.string(),
+  data: z.object({
+    plots: z.number().int(),
+    first_survey: z.string().nullable(),
+    last_survey: z.string().nullable(),
+    species_reference_version: z.number().int().nullable(),
+  }),
+  method: z.object({ estimator: z.string(), biomass: z.string(), carbon_fraction: z.number(), carbon: z.string(), fits: z.string() }),
+  summary: RegionSummarySchema,
+  fits: z.array(FitRowSchema),
+});
+
+export const VersionList = z.object({
+  region: z.string(),
+  versions: z.array(z.object({ version: z.number().int(), etag: z.string(), created_at: z.string() })),
+});
+
+export const GeoJsonCollection = z
+  .object({
+    type: z.literal('FeatureCollection'),
+    features: z.array(
+      z.object({
+        type: z.literal('Feature'),
+        geometry: z.object({ type: z.literal('Point'), coordinates: z.array(z.number()) }),
+        properties: z.record(z.string(), z.union([z.string(), z.number(), z.null()])),
+      }),
+    ),
+  })
+  .describe('GeoJSON (RFC 7946): the latest computed visit of each plot, WGS 84 longitude/latitude');
+
+export const FitsQuery = z.object({
+  forest_type: z.string().optional(),
+  metric: z.string().optional().describe('default: the configured fit metric (fisher_alpha)'),
+  axis: z.string().optional().describe('default: the configured fit axis (disturbance_index)'),
+  scope: z.string().optional().describe('`all` or a region; default every scope the token may see'),
+  format: z.enum(['json', 'csv']).optional(),
+});
+export const FitList = z.object({ fits: z.array(FitRowSchema) });
+
+export const BatchParams = z.object({ id: z.string().uuid() });

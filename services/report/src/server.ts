@@ -1,0 +1,104 @@
+import fastifySwagger from '@fastify/swagger';
+import fastifySwaggerUi from '@fastify/swagger-ui';
+import Fastify, { LogController, type FastifyBaseLogger, type FastifyError, type FastifyInstance } from 'fastify';
+import { hasZodFastifySchemaValidationErrors, jsonSchemaTransform, serializerCompiler, validatorCompiler } from 'fastify-type-provider-zod';
+import type { ServiceDeps } from '@stemwise/db';
+import { TokenVerifier } from './access';
+import { AuditWriter } from './audit';
+import { auditTokenUse, type RouteContext } from './routes/auth';
+import { batchRoutes } from './routes/batches';
+import { fitRoutes } from './routes/fits';
+import { healthRoutes } from './routes/health';
+import { pageRoutes } from './routes/pages';
+import { regionRoutes } from './routes/regions';
+import { SummaryCache } from './summary-cache';
+
+export interface ReportServerOptions {
+  /** How long a token check is remembered (ms); a revocation takes effect within it. Default 1000. */
+  tokenCacheMs?: number;
+  /** How often the latest summary versions are re-read (ms). Default 1000. */
+  summaryCheckMs?: number;
+  /** How often buffered audit entries are written (ms). Default 250. */
+  auditFlushMs?: number;
+}
+
+const json = (code: string, message: string) => JSON.stringify({ error: code, message });
+
+/**
+ * The report service's HTTP server (fastify, zod schemas, OpenAPI at /openapi.json, docs at /docs).
+ * Not listening yet: tests call `inject`; `startReportServer` listens.
+ */
+export async function buildServer(deps: ServiceDeps, options: ReportServerOptions = {}): Promise<FastifyInstance> {
+  const app = Fastify({
+    loggerInstance: deps.log.child({ service: 'report-http' }) as unknown as FastifyBaseLogger,
+    logController: new LogController({ disableRequestLogging: true }), // page URLs may carry a token; errors are logged below
+    bodyLimit: 1024 * 1024,
+  }) as unknown as FastifyInstance;
+  app.setValidatorCompiler(validatorCompiler);
+  app.setSerializerCompiler(serializerCompiler);
+
+  const ctx: RouteContext = {
+    deps,
+    verifier: new TokenVerifier(deps.db, options.tokenCacheMs ?? 1000),
+    audit: new AuditWriter(deps.db, deps.log, options.auditFlushMs ?? 250),
+    cache: new SummaryCache(deps.db, options.summaryCheckMs ?? 1000),
+  };
+  app.addHook('onClose', async () => ctx.audit.close());
+
+  await app.register(fastifySwagger, {
+    openapi: {
+      openapi: '3.0.3',
+      info: {
+        title: 'stemwise report API',
+        version: '1',
+        description:
+          'Regional summaries of the forest inventory (stratified estimates with their uncertainty), plots, fits and batches. ' +
+          'Every /v1 route needs `Authorization: Bearer <token>` (tokens: `stemwise token create`). Readers see only the regions named on their token.',
+      },
+      components: { securitySchemes: { bearer: { type: 'http', scheme: 'bearer', description: 'a token from `stemwise token create`' } } },
+      tags: [
+        { name: 'regions', description: 'summaries and plots per region' },
+        { name: 'fits', description: 'diversity–disturbance fits' },
+        { name: 'batches', description: 'uploads' },
+        { name: 'health', description: 'liveness, readiness, metrics (no token)' },
+      ],
+    },
+    transform: jsonSchemaTransform,
+  });
+  await app.register(fastifySwaggerUi, { routePrefix: '/docs' });
+  app.get('/openapi.json', { schema: { hide: true } }, async () => app.swagger());
+
+  app.setErrorHandler((err: FastifyError, request, reply) => {
+    if (hasZodFastifySchemaValidationErrors(err)) {
+      const issue = err.validation[0];
+      const where = issue?.instancePath ? `${err.validationContext ?? 'request'}${issue.instancePath.replace(/\//g, '.')}` : (err.validationContext ?? 'request');
+      return reply.code(400).type('application/json; charset=utf-8').send(json('bad_request', `${where}: ${issue?.message ?? err.message}`));
+    }
+    const status = (err as { statusCode?: number }).statusCode;
+    if (status && status >= 400 && status < 500) return reply.code(status).type('application/json; charset=utf-8').send(json('bad_request', err.message));
+    request.log.error({ err, route: request.routeOptions.url }, 'request failed');
+    return reply.code(500).type('application/json; charset=utf-8').send(json('internal', 'the server failed to answer; the reason is in its log'));
+  });
+  app.setNotFoundHandler((request, reply) => reply.code(404).type('application/json; charset=utf-8').send(json('not_found', `no route ${request.method} ${request.url.split('?')[0]}`)));
+
+  auditTokenUse(app, ctx);
+  healthRoutes(app, ctx);
+  regionRoutes(app, ctx);
+  fitRoutes(app, ctx);
+  batchRoutes(app, ctx);
+  pageRoutes(app, ctx);
+  return app;
+}
+
+/** Builds the server and listens on STEMWISE_HOST:STEMWISE_PORT; `close()` stops it (and flushes the audit log). */
+export async function startReportServer(deps: ServiceDeps, options: ReportServerOptions & { port?: number; host?: string } = {}): Promise<{ app: FastifyInstance; url: string; close(): Promise<void> }> {
+  const app = await buildServer(deps, options);
+  const host = options.host ?? deps.config.host;
+  const port = options.port ?? deps.config.port;
+  await app.listen({ host, port });
+  const address = app.server.address();
+  const actualPort = typeof address === 'object' && address ? address.port : port;
+  const url = `http://${host.includes(':') ? `[${host}]` : host}:${actualPort}`;
+  deps.log.info({ url }, 'report service listening');
+  return { app, url, close: () => app.close() };
+}

@@ -1,0 +1,82 @@
+import type { RegionSummary } from './summary/types';
+
+// What one region_summaries.payload holds (format 1). The API serves it without `charts`; the page
+// draws the charts from it. Plain JSON; null where a value cannot be computed.
+
+export const SNAPSHOT_FORMAT = 1;
+
+/** One `export fits` row with the scope it was fitted on (`all` = the forest type as a whole, or a region). */
+export interface SnapshotFitRow {
+  readonly scope: string;
+  readonly forest_type: string;
+  readonly metric: string;
+  readonly axis: string;
+  readonly n: number;
+  readonly model: string;
+  readonly b0: number | null;
+  readonly b1: number | null;
+  readonly b2: number | null;
+  readonly se_b0: number | null;
+  readonly se_b1: number | null;
+  readonly se_b2: number | null;
+  readonly p_b1: number | null;
+  readonly p_b2: number | null;
+  readonly r2: number | null;
+  readonly adj_r2: number | null;
+  readonly aicc: number | null;
+  readonly peak_x: number | null;
+  readonly peak_ci_low: number | null;
+  readonly peak_ci_high: number | null;
+  readonly verdict: string;
+}
+
+export interface FitChart {
+  readonly forest_type: string;
+  readonly metric: string;
+  readonly axis: string;
+  /** Plots of the forest type drawn, and how many of them are this region's (highlighted). */
+  readonly points: number;
+  readonly highlighted: number;
+  readonly svg: string | null;
+  /** Why there is no chart (too few plots, rendering failed). */
+  readonly missing: string | null;
+}
+
+export interface SnapshotMethod {
+  readonly estimator: string;
+  readonly biomass: string;
+  readonly carbon_fraction: number;
+  readonly carbon: string;
+  readonly fits: string;
+}
+
+export interface SnapshotData {
+  readonly plots: number;
+  /** Survey dates of the plot visits summarised (latest visit per plot). */
+  readonly first_survey: string | null;
+  readonly last_survey: string | null;
+  readonly species_reference_version: number | null;
+}
+
+export interface SnapshotPayload {
+  readonly format: typeof SNAPSHOT_FORMAT;
+  readonly region: string;
+  readonly data: SnapshotData;
+  readonly method: SnapshotMethod;
+  readonly summary: RegionSummary;
+  readonly fits: readonly SnapshotFitRow[];
+  readonly charts: {
+    readonly means: string | null;
+    readonly guilds: string | null;
+    readonly fits: readonly FitChart[];
+  };
+}
+
+/** A stored snapshot as the API and the page use it. */
+export interface Snapshot {
+  readonly region: string;
+  readonly version: number;
+  readonly etag: string;
+  readonly createdAt: Date;
+  readonly payload: SnapshotPayload;
+}

@@ -1,0 +1,84 @@
+import crypto from 'node:crypto';
+import fs from 'node:fs';
+import path from 'node:path';
+import { listLatestSnapshots, listRegionHeads, listSummaryVersions, type ServiceDeps } from '@stemwise/db';
+import { IPCC_2006_CARBON_FRACTION } from '@stemwise/compute/science/allometry';
+import { renderIndexPage } from './page/index-page';
+import { renderRegionPage } from './page/region-page';
+import { regionPlotsGeoJson } from './plots-geojson';
+import { summaryCsv, summaryJson } from './representations';
+import type { Snapshot, SnapshotPayload } from './snapshot-payload';
+
+/** A file-name-safe, unique-enough name for a region (names may hold any character). */
+export function regionSlug(region: string): string {
+  const base = region
+    .normalize('NFKD')
+    .replace(/[\u0300-\u036f]/g, '')
+    .toLowerCase()
+    .replace(/[^a-z0-9]+/g, '-')
+    .replace(/^-+|-+$/g, '')
+    .slice(0, 60);
+  const plain = base === region.toLowerCase();
+  return plain && base ? base : `${base || 'region'}-${crypto.createHash('sha256').update(region).digest('hex').slice(0, 6)}`;
+}
+
+export interface WrittenPages {
+  index: string;
+  regions: Array<{ region: string; version: number; page: string }>;
+  files: string[];
+}
+
+/**
+ * The report as files (what `stemwise demo` leaves behind): index.html, and per region with a summary
+ * regions/<slug>.html with its summary CSV and JSON and its plots GeoJSON beside it. Links are relative,
+ * so the folder can be opened from disk or copied anywhere. Covers every region (no token applies).
+ */
+export async function writeRegionPages(deps: Pick<ServiceDeps, 'db'>, outDir: string): Promise<WrittenPages> {
+  const { db } = deps;
+  const regionsDir = path.join(outDir, 'regions');
+  fs.mkdirSync(regionsDir, { recursive: true });
+  const files: string[] = [];
+  const write = (file: string, text: string) => {
+    fs.writeFileSync(file, text);
+    files.push(file);
+  };
+  const written: WrittenPages['regions'] = [];
+  const slugs = new Map<string, string>();
+  for (const row of await listLatestSnapshots(db)) {
+    const snapshot: Snapshot = { region: row.region, version: row.version, etag: row.etag, createdAt: row.createdAt, payload: row.payload as SnapshotPayload };
+    let slug = regionSlug(row.region);
+    if ([...slugs.values()].includes(slug)) slug = `${slug}-${crypto.createHash('sha256').update(row.region).digest('hex').slice(0, 6)}`;
+    slugs.set(row.region, slug);
+    write(path.join(regionsDir, `${slug}-summary.csv`), summaryCsv(snapshot));
+    write(path.join(regionsDir, `${slug}-summary.json`), summaryJson(snapshot));
+    write(path.join(regionsDir, `${slug}-plots.geojson`), await regionPlotsGeoJson(db, row.region));
+    const versions = await listSummaryVersions(db, row.region);
+    const page = path.join(regionsDir, `${slug}.html`);
+    write(
+      page,
+      renderRegionPage({
+        snapshot,
+        versions,
+        links: {
+          index: '../index.html',
+          summaryJson: `${slug}-summary.json`,
+          summaryCsv: `${slug}-summary.csv`,
+          plotsGeoJson: `${slug}-plots.geojson`,
+          versionPage: null,
+          signOut: null,
+        },
+      }),
+    );
+    written.push({ region: row.region, version: row.version, page });
+  }
+  const entries = (await listRegionHeads(db)).map((h) => ({
+    region: h.region,
+    plots: h.plots,
+    version: h.head?.version ?? null,
+    updatedAt: h.head?.createdAt ?? null,
+    href: slugs.has(h.region) ? `regions/${slugs.get(h.region)}.html` : null,
+  }));
+  const index = path.join(outDir, 'index.html');
+  write(index, renderIndexPage(entries, { carbonFraction: IPCC_2006_CARBON_FRACTION, signOut: null }));
+  return { index, regions: written, files };
+}

@@ -1,0 +1,25 @@
+import pg from 'pg';
+import { createLogger, InProcessQueue, loadConfig } from '@stemwise/platform';
+import { markStale, migrateDatabase, openDatabase, syncForestTypes } from '@stemwise/db';
+import { createProcessors, writeRegionPages } from '@stemwise/report';
+import { jobContext, seedRun } from './fixture';
+import { seedScenario } from './seed-scenario';
+
+const name = 'stemwise_scratch_render';
+const admin = new pg.Client({ connectionString: 'postgres://postgres@127.0.0.1:5432/postgres' });
+await admin.connect();
+await admin.query(`drop database if exists ${name}`);
+await admin.query(`create database ${name}`);
+await admin.end();
+const config = loadConfig({ DATABASE_URL: `postgres://postgres@127.0.0.1:5432/${name}`, STEMWISE_LOG_LEVEL: 'warn' });
+const log = createLogger('warn');
+const db = await openDatabase(config);
+await migrateDatabase(db);
+await syncForestTypes(db, config.forestTypes);
+await seedScenario(db);
+await markStale(db, 'summary', ['Northvale', 'Southmere']);
+const deps = { config, db, log, queue: new InProcessQueue(log) };
+await createProcessors(deps)['report.summaries']!({ runId: await seedRun(db) }, jobContext(log));
+const out = await writeRegionPages(deps, '/tmp/report-out');
+console.log(out.index, out.regions, out.files.length);
+await db.close();

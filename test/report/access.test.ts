@@ -1,0 +1,170 @@
+import type { FastifyInstance } from 'fastify';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { listAuditEntries, markStale, type ServiceDeps } from '@stemwise/db';
+import { InProcessQueue } from '@stemwise/platform';
+import { buildServer, createProcessors } from '@stemwise/report';
+import { testLogger, useServices, type TestServices } from '../support/services';
+import { jobContext, seedBatch, seedRun } from './fixture';
+import { seedScenario } from './seed-scenario';
+import { createToken, revokedToken, type TestToken } from './tokens';
+
+// Every role against every endpoint (table-driven). "ok" means the request passes the access check and
+// gets the endpoint's own answer: 200, or for the batch routes 501 while the ingest service does not
+// provide them over HTTP (202/200, or 400 for the empty upload body, once it does).
+
+type Who = 'none' | 'admin' | 'uploader' | 'otherUploader' | 'readerN' | 'readerS' | 'revoked' | 'garbage';
+const WHO: Who[] = ['none', 'admin', 'uploader', 'otherUploader', 'readerN', 'readerS', 'revoked', 'garbage'];
+
+let s: TestServices;
+let app: FastifyInstance;
+let tokens: Record<Exclude<Who, 'none' | 'garbage'>, TestToken>;
+let batchId: string;
+
+function headers(who: Who): Record<string, string> {
+  if (who === 'none') return {};
+  if (who === 'garbage') return { authorization: 'Bearer swt_not-a-token' };
+  return { authorization: `Bearer ${tokens[who].token}` };
+}
+
+type Expect = 'ok' | 401 | 403 | 404;
+interface Case {
+  method: 'GET' | 'POST';
+  /** `{batch}` stands for the fixture batch's id. */
+  url: string;
+  expect: Partial<Record<Who, Expect>>;
+  /** Statuses that count as "ok" (default 200). */
+  ok?: number[];
+}
+const BATCH_OK = [200, 202, 415]; // 415: the POST of the matrix sends no files
+
+const DENIED_TOKENS = { none: 401, revoked: 401, garbage: 401 } as const;
+const PUBLIC = Object.fromEntries(WHO.map((w) => [w, 'ok'])) as Record<Who, Expect>;
+const REGION_N = { ...DENIED_TOKENS, admin: 'ok', uploader: 403, otherUploader: 403, readerN: 'ok', readerS: 403 } as const;
+const ANY_REGION_READER = { ...DENIED_TOKENS, admin: 'ok', uploader: 403, otherUploader: 403, readerN: 'ok', readerS: 'ok' } as const;
+const BATCH_OWNER = { ...DENIED_TOKENS, admin: 'ok', uploader: 'ok', otherUploader: 403, readerN: 403, readerS: 403 } as const;
+const SUBMIT = { ...DENIED_TOKENS, admin: 'ok', uploader: 'ok', otherUploader: 'ok', readerN: 403, readerS: 403 } as const;
+
+const CASES: Case[] = [
+  { method: 'GET', url: '/healthz', expect: PUBLIC },
+  { method: 'GET', url: '/readyz', expect: PUBLIC },
+  { method: 'GET', url: '/metrics', expect: PUBLIC },
+  { method: 'GET', url: '/openapi.json', expect: PUBLIC },
+  { method: 'GET', url: '/v1/regions', expect: ANY_REGION_READER },
+  { method: 'GET', url: '/v1/regions/Northvale/summary', expect: REGION_N },
+  { method: 'GET', url: '/v1/regions/Northvale/summary?format=csv', expect: REGION_N },
+  { method: 'GET', url: '/v1/regions/Northvale/summary?version=1', expect: REGION_N },
+  { method: 'GET', url: '/v1/regions/Northvale/versions', expect: REGION_N },
+  { method: 'GET', url: '/v1/regions/Northvale/plots', expect: REGION_N },
+  { method: 'GET', url: '/v1/fits', expect: ANY_REGION_READER },
+  { method: 'GET', url: '/v1/fits?scope=Northvale', expect: REGION_N },
+  { method: 'POST', url: '/v1/batches', expect: SUBMIT, ok: BATCH_OK },
+  { method: 'GET', url: '/v1/batches/{batch}', expect: BATCH_OWNER, ok: BATCH_OK },
+  { method: 'GET', url: '/v1/batches/{batch}/errors.csv', expect: BATCH_OWNER, ok: BATCH_OK },
+  { method: 'GET', url: '/', expect: ANY_REGION_READER },
+  { method: 'GET', url: '/regions/Northvale', expect: REGION_N },
+];
+
+describe('access by role', () => {
+  beforeAll(async () => {
+    s = await useServices();
+    const deps: ServiceDeps = { config: s.config, db: s.db, log: testLogger(), queue: new InProcessQueue(testLogger()) };
+    await seedScenario(s.db);
+    await markStale(s.db, 'summary', ['Northvale', 'Southmere']);
+    await createProcessors(deps)['report.summaries']!({ runId: await seedRun(s.db) }, jobContext(testLogger()));
+    tokens = {
+      admin: await createToken(s.db, 'admin'),
+      uploader: await createToken(s.db, 'uploader'),
+      otherUploader: await createToken(s.db, 'uploader'),
+      readerN: await createToken(s.db, 'reader', ['Northvale']),
+      readerS: await createToken(s.db, 'reader', ['Southmere']),
+      revoked: await revokedToken(s.db),
+    };
+    batchId = await seedBatch(s.db, tokens.uploader.id, 'loaded');
+    app = await buildServer(deps, { auditFlushMs: 50 });
+  });
+  afterAll(async () => {
+    await app?.close();
+    await s?.cleanup();
+  });
+
+  const rows = CASES.flatMap((c) => WHO.map((who) => ({ c, who, want: c.expect[who] ?? 403 })));
+  it.each(rows.map((r) => [`${r.c.method} ${r.c.url} as ${r.who} → ${r.want}`, r] as const))('%s', async (_name, r) => {
+    const res = await app.inject({ method: r.c.method, url: r.c.url.replace('{batch}', batchId), headers: headers(r.who) });
+    if (r.want === 'ok') expect(r.c.ok ?? [200], `${res.statusCode} ${res.body.slice(0, 200)}`).toContain(res.statusCode);
+    else expect(res.statusCode, res.body.slice(0, 200)).toBe(r.want);
+    if (res.statusCode === 401) expect(res.headers['www-authenticate'] ?? res.headers['content-type']).toBeTruthy();
+  });
+
+  it('shows a reader exactly its regions: lists, index page and fits never name another', async () => {
+    const h = headers('readerN');
+    const list = (await app.inject({ url: '/v1/regions', headers: h })).json() as { regions: Array<{ region: string }> };
+    expect(list.regions.map((r) => r.region)).toEqual(['Northvale']);
+    const index = await app.inject({ url: '/', headers: h });
+    expect(index.statusCode).toBe(200);
+    expect(index.body).toContain('Northvale');
+    expect(index.body).not.toContain('Southmere');
+    expect(index.body).not.toContain('Ostmark');
+    const fits = (await app.inject({ url: '/v1/fits', headers: h })).json() as { fits: Array<{ scope: string }> };
+    expect(new Set(fits.fits.map((f) => f.scope))).toEqual(new Set(['all', 'Northvale']));
+    const other = await app.inject({ url: '/v1/regions/Southmere/summary', headers: h });
+    expect(other.statusCode).toBe(403);
+    expect(other.body).not.toContain('Southmere estimate');
+    // an admin sees all three, including the one without a summary yet
+    const all = (await app.inject({ url: '/v1/regions', headers: headers('admin') })).json() as { regions: Array<{ region: string; latest_version: number | null }> };
+    expect(all.regions.map((r) => [r.region, r.latest_version])).toEqual([
+      ['Northvale', 1],
+      ['Ostmark', null],
+      ['Southmere', 1],
+    ]);
+  });
+
+  it('answers 404 to an admin and 403 to a reader for a region that does not exist', async () => {
+    expect((await app.inject({ url: '/v1/regions/Atlantis/summary', headers: headers('admin') })).statusCode).toBe(404);
+    expect((await app.inject({ url: '/v1/regions/Atlantis/summary', headers: headers('readerN') })).statusCode).toBe(403);
+    expect((await app.inject({ url: '/v1/regions/Ostmark/summary', headers: headers('admin') })).statusCode).toBe(404); // no snapshot yet
+  });
+
+  it('turns ?token= on a page into an HttpOnly cookie, accepted for reading only', async () => {
+    const first = await app.inject({ url: `/regions/Northvale?token=${tokens.readerN.token}` });
+    expect(first.statusCode).toBe(303);
+    expect(first.headers.location).toBe('/regions/Northvale');
+    const cookie = String(first.headers['set-cookie']);
+    expect(cookie).toMatch(/^stemwise_token=swt_/);
+    expect(cookie).toMatch(/HttpOnly/);
+    expect(cookie).toMatch(/SameSite=Lax/);
+    const jar = cookie.split(';')[0];
+    const page = await app.inject({ url: '/regions/Northvale', headers: { cookie: jar } });
+    expect(page.statusCode).toBe(200);
+    expect(page.headers['content-security-policy']).toContain("default-src 'none'");
+    expect((await app.inject({ url: '/v1/regions/Northvale/summary?format=csv', headers: { cookie: jar } })).statusCode).toBe(200);
+    expect((await app.inject({ url: '/regions/Southmere', headers: { cookie: jar } })).statusCode).toBe(403);
+    const admin = await app.inject({ url: `/?token=${tokens.admin.token}` });
+    const adminJar = String(admin.headers['set-cookie']).split(';')[0];
+    expect((await app.inject({ method: 'POST', url: '/v1/batches', headers: { cookie: adminJar } })).statusCode).toBe(401);
+    expect((await app.inject({ url: '/regions/Northvale?token=swt_wrong' })).statusCode).toBe(401);
+  });
+
+  it('records every token use in the audit log with the token id as actor', async () => {
+    const h = headers('readerS');
+    await app.inject({ url: '/v1/regions/Southmere/summary', headers: h });
+    await app.inject({ url: '/v1/regions/Northvale/summary', headers: h });
+    await new Promise((r) => setTimeout(r, 200));
+    const entries = await listAuditEntries(s.db, { actor: tokens.readerS.id, action: 'token.use' });
+    const targets = entries.map((e) => `${e.target} ${(e.details.params as { region?: string })?.region} ${e.details.status}`);
+    expect(targets).toContain('GET /v1/regions/:region/summary Southmere 200');
+    expect(targets).toContain('GET /v1/regions/:region/summary Northvale 403');
+    const refused = await listAuditEntries(s.db, { actor: tokens.revoked.id, action: 'token.refused' });
+    expect(refused.length).toBeGreaterThan(0);
+  });
+
+  it('stops accepting a token within a second of its revocation', async () => {
+    const t = await createToken(s.db, 'reader', ['Northvale']);
+    const h = { authorization: `Bearer ${t.token}` };
+    expect((await app.inject({ url: '/v1/regions', headers: h })).statusCode).toBe(200);
+    await s.db.query(`update access_tokens set revoked_at = now() where id = $1`, [t.id]);
+    await new Promise((r) => setTimeout(r, 1100));
+    const res = await app.inject({ url: '/v1/regions', headers: h });
+    expect(res.statusCode).toBe(401);
+    expect(res.json()).toEqual({ error: 'unauthorized', message: 'this token was revoked' });
+  });
+});

@@ -1,0 +1,174 @@
+import type { FastifyInstance } from 'fastify';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { markStale, type ServiceDeps } from '@stemwise/db';
+import { BullQueue, InProcessQueue } from '@stemwise/platform';
+import { buildServer, createProcessors } from '@stemwise/report';
+import { SummaryResponse } from '../../services/report/src/routes/schemas';
+import { testLogger, useServices, type TestServices } from '../support/services';
+import { jobContext, seedPlots, seedRun } from './fixture';
+import { seedScenario } from './seed-scenario';
+import { createToken } from './tokens';
+
+let s: TestServices;
+let deps: ServiceDeps;
+let app: FastifyInstance;
+let auth: { authorization: string };
+
+async function summaries(): Promise<void> {
+  await createProcessors(deps)['report.summaries']!({ runId: await seedRun(s.db) }, jobContext(testLogger()));
+}
+
+describe('report API', () => {
+  beforeAll(async () => {
+    s = await useServices();
+    deps = { config: s.config, db: s.db, log: testLogger(), queue: new InProcessQueue(testLogger()) };
+    await seedScenario(s.db);
+    // Region names a spreadsheet would run as formulas (names are free text in plots.csv).
+    await seedPlots(s.db, [
+      { key: 'LK-1', region: '@Lakeside', forestType: 'moist', metrics: { basal_area_m2_ha: 11, fisher_alpha: 3, disturbance_index: 0.1 } },
+      { key: 'LK-2', region: '@Lakeside', forestType: 'moist', metrics: { basal_area_m2_ha: 13, fisher_alpha: 4, disturbance_index: 0.2 } },
+      { key: 'HS-1', region: '=HYPERLINK("x")', forestType: 'dry', metrics: { basal_area_m2_ha: -0, fisher_alpha: 3, disturbance_index: 0.1 } },
+      { key: 'HS-2', region: '=HYPERLINK("x")', forestType: 'dry', metrics: { basal_area_m2_ha: 2, fisher_alpha: 4, disturbance_index: 0.2 } },
+    ]);
+    await markStale(s.db, 'summary', ['Northvale', 'Southmere', '@Lakeside', '=HYPERLINK("x")']);
+    await summaries();
+    auth = { authorization: `Bearer ${(await createToken(s.db, 'admin')).token}` };
+    app = await buildServer(deps, { summaryCheckMs: 0 });
+  });
+  afterAll(async () => {
+    await app?.close();
+    await s?.cleanup();
+  });
+
+  it('serves the summary as JSON that matches its documented schema', async () => {
+    const res = await app.inject({ url: '/v1/regions/Northvale/summary', headers: auth });
+    expect(res.statusCode).toBe(200);
+    expect(res.headers['content-type']).toBe('application/json; charset=utf-8');
+    const body = SummaryResponse.parse(res.json());
+    expect(body.version).toBe(1);
+    expect(body.summary.rows.find((r) => r.forest_type === 'all' && r.variable === 'basal_area_m2_ha')?.mean).toBe(21);
+    expect(res.body).not.toContain('<svg'); // charts are for the page
+  });
+
+  it('answers 304 to a matching If-None-Match, with separate tags for JSON and CSV', async () => {
+    const first = await app.inject({ url: '/v1/regions/Northvale/summary', headers: auth });
+    const etag = first.headers.etag as string;
+    expect(etag).toMatch(/^"[A-Za-z0-9_-]+"$/);
+    const again = await app.inject({ url: '/v1/regions/Northvale/summary', headers: { ...auth, 'if-none-match': etag } });
+    expect(again.statusCode).toBe(304);
+    expect(again.body).toBe('');
+    const csv = await app.inject({ url: '/v1/regions/Northvale/summary', headers: { ...auth, accept: 'text/csv' } });
+    expect(csv.headers['content-type']).toBe('text/csv; charset=utf-8');
+    expect(csv.headers.etag).not.toBe(etag);
+    expect((await app.inject({ url: '/v1/regions/Northvale/summary?format=csv', headers: { ...auth, 'if-none-match': etag } })).statusCode).toBe(200);
+    expect((await app.inject({ url: '/v1/regions/Northvale/summary', headers: { ...auth, 'if-none-match': `W/"x", ${etag}` } })).statusCode).toBe(304);
+  });
+
+  it('keeps earlier versions: ?version=N, the versions list, and a new ETag for the new version', async () => {
+    const v1 = await app.inject({ url: '/v1/regions/Northvale/summary', headers: auth });
+    await s.db.query(`update plot_metrics m set basal_area_m2_ha = 30 from plot_visits v join plots p on p.id = v.plot_id where m.visit_id = v.id and p.plot_key = 'NV-D1'`);
+    await markStale(s.db, 'summary', ['Northvale']);
+    await summaries();
+    const latest = await app.inject({ url: '/v1/regions/Northvale/summary', headers: { ...auth, 'if-none-match': v1.headers.etag as string } });
+    expect(latest.statusCode).toBe(200);
+    expect(latest.json().version).toBe(2);
+    expect(latest.headers['x-summary-version']).toBe('2');
+    const old = await app.inject({ url: '/v1/regions/Northvale/summary?version=1', headers: auth });
+    expect(old.json().version).toBe(1);
+    expect(old.headers.etag).toBe(v1.headers.etag);
+    expect((await app.inject({ url: '/v1/regions/Northvale/summary?version=9', headers: auth })).statusCode).toBe(404);
+    expect((await app.inject({ url: '/v1/regions/Northvale/summary?version=zero', headers: auth })).statusCode).toBe(400);
+    const versions = (await app.inject({ url: '/v1/regions/Northvale/versions', headers: auth })).json();
+    expect(versions.versions.map((v: { version: number }) => v.version)).toEqual([2, 1]);
+  });
+
+  it('writes the export regions columns in CSV with formula-like text neutralised', async () => {
+    const res = await app.inject({ url: `/v1/regions/${encodeURIComponent('@Lakeside')}/summary?format=csv`, headers: auth });
+    expect(res.statusCode).toBe(200);
+    const lines = res.body.trimEnd().split('\n');
+    expect(lines[0]).toBe('region,forest_type,variable,n_plots,mean,se,ci_low,ci_high,sampling_error_pct,forest_area_ha,total');
+    expect(lines[1].startsWith("'@Lakeside,all,")).toBe(true);
+    const hs = await app.inject({ url: `/v1/regions/${encodeURIComponent('=HYPERLINK("x")')}/summary?format=csv`, headers: auth });
+    const row = hs.body.split('\n').find((l) => l.includes(',basal_area_m2_ha,') && l.includes(',all,'))!;
+    expect(row.startsWith(`"'=HYPERLINK(""x"")",all,basal_area_m2_ha,2,1,`)).toBe(true); // mean of -0 and 2; numbers untouched
+    expect(res.headers['content-disposition']).toMatch(/^attachment; filename="summary-_Lakeside-v1\.csv"$/);
+  });
+
+  it('serves the plots as GeoJSON with longitude first and the metric columns as properties', async () => {
+    const res = await app.inject({ url: '/v1/regions/Southmere/plots', headers: auth });
+    expect(res.headers['content-type']).toBe('application/geo+json; charset=utf-8');
+    const fc = res.json();
+    expect(fc.type).toBe('FeatureCollection');
+    expect(fc.features).toHaveLength(5);
+    const f = fc.features[0];
+    // fixture: plot i of the seed list at longitude 34 + 0.01 i, latitude −12 + 0.01 i; SM-1 is the sixth (i = 5)
+    expect(f.geometry.coordinates).toEqual([expect.closeTo(34.05, 9), expect.closeTo(-11.95, 9)]);
+    expect(f.properties).toMatchObject({ plot_id: 'SM-1', region: 'Southmere', forest_type: 'moist', basal_area_m2_ha: 10 });
+  });
+
+  it('lists fits as JSON or CSV, filtered by scope', async () => {
+    const json = (await app.inject({ url: '/v1/fits?scope=all', headers: auth })).json();
+    expect(json.fits.every((f: { scope: string }) => f.scope === 'all')).toBe(true);
+    expect(json.fits.map((f: { forest_type: string; model: string }) => `${f.forest_type}/${f.model}`).sort()).toEqual(['moist/linear', 'wet/linear', 'wet/quadratic']);
+    const csv = await app.inject({ url: '/v1/fits?format=csv&scope=Southmere', headers: auth });
+    expect(csv.body.split('\n')[0]).toMatch(/^scope,forest_type,metric,axis,n,model,b0,/);
+    expect(csv.body.split('\n')[1]).toMatch(/^Southmere,moist,fisher_alpha,disturbance_index,5,linear,8,2,,1,1,,0\.2,,0\.3,0\.1,30,,,,increasing$/);
+  });
+
+  it('publishes an OpenAPI document listing every API route, and browsable docs', async () => {
+    const doc = (await app.inject({ url: '/openapi.json' })).json();
+    expect(doc.openapi).toMatch(/^3\./);
+    const paths = Object.keys(doc.paths).sort();
+    for (const p of ['/v1/regions', '/v1/regions/{region}/summary', '/v1/regions/{region}/versions', '/v1/regions/{region}/plots', '/v1/fits', '/v1/batches', '/v1/batches/{id}', '/v1/batches/{id}/errors.csv', '/healthz', '/readyz', '/metrics']) {
+      expect(paths).toContain(p);
+    }
+    expect(paths).not.toContain('/regions/{region}'); // pages are not API
+    expect(doc.paths['/v1/regions/{region}/summary'].get.parameters.map((x: { name: string }) => x.name).sort()).toEqual(['format', 'region', 'version']);
+    expect(doc.components.securitySchemes.bearer.scheme).toBe('bearer');
+    const docs = await app.inject({ url: '/docs/' });
+    expect([200, 302]).toContain(docs.statusCode);
+  });
+
+  it('exposes queue depth, job counts, batches and the last recompute in the Prometheus text format', async () => {
+    const res = await app.inject({ url: '/metrics' });
+    expect(res.statusCode).toBe(200);
+    expect(res.headers['content-type']).toMatch(/^text\/plain; version=0\.0\.4/);
+    const lines = res.body.trimEnd().split('\n');
+    for (const line of lines) expect(line).toMatch(/^(# (HELP|TYPE) stemwise_[a-z_]+ .+|stemwise_[a-z_]+(\{[a-z_]+="[^"]*"(,[a-z_]+="[^"]*")*\})? -?[0-9.e+-]+)$/);
+    for (const q of ['ingest', 'compute', 'report', 'maintenance']) expect(lines).toContain(`stemwise_queue_depth{queue="${q}"} 0`);
+    expect(lines).toContain('stemwise_queue_jobs{queue="compute",state="failed"} 0');
+    expect(lines).toContain('stemwise_batches{state="computed"} 2'); // the two fixture batches
+    expect(lines).toContain('stemwise_batches{state="rejected"} 0');
+    const last = Number(lines.find((l) => l.startsWith('stemwise_last_recompute_finished_seconds '))!.split(' ')[1]);
+    expect(Math.abs(last - Date.now() / 1000)).toBeLessThan(600);
+  });
+
+  it('is ready when PostgreSQL and Redis answer, and says which one does not', async () => {
+    const queue = await BullQueue.open({ url: s.redisUrl, prefix: s.prefix, attempts: 1, log: testLogger() });
+    const live = await buildServer({ ...deps, queue });
+    try {
+      const ok = await live.inject({ url: '/readyz' });
+      expect(ok.statusCode).toBe(200);
+      expect(ok.json()).toEqual({ status: 'ready', checks: { database: { ok: true }, redis: { ok: true } } });
+      const broken = await buildServer({ ...deps, queue, db: { ...deps.db, query: async () => Promise.reject(new Error('connection refused')) } });
+      const bad = await broken.inject({ url: '/readyz' });
+      expect(bad.statusCode).toBe(503);
+      expect(bad.json().checks.database).toEqual({ ok: false, error: 'Error: connection refused' });
+      expect(bad.json().checks.redis.ok).toBe(true);
+      expect((await broken.inject({ url: '/healthz' })).json()).toEqual({ status: 'ok' });
+      await broken.close();
+    } finally {
+      await live.close();
+      await queue.close();
+    }
+  });
+
+  it('answers unknown routes and bad parameters with JSON errors', async () => {
+    const nf = await app.inject({ url: '/v1/nothing', headers: auth });
+    expect(nf.statusCode).toBe(404);
+    expect(nf.json().error).toBe('not_found');
+    const bad = await app.inject({ url: '/v1/regions/Northvale/summary?format=xml', headers: auth });
+    expect(bad.statusCode).toBe(400);
+    expect(bad.json()).toMatchObject({ error: 'bad_request' });
+  });
+});

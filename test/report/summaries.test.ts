@@ -1,0 +1,164 @@
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import tQuantile from '@stdlib/stats-base-dists-t-quantile';
+import { getSummarySnapshot, listStale, listSummaryVersions, markStale, type ServiceDeps } from '@stemwise/db';
+import { InProcessQueue } from '@stemwise/platform';
+import { createProcessors } from '@stemwise/report';
+import type { SnapshotPayload } from '../../services/report/src/snapshot-payload';
+import type { RegionRow } from '../../services/report/src/summary/types';
+import { testLogger, useServices, type TestServices } from '../support/services';
+import { jobContext, seedRun } from './fixture';
+import { seedScenario } from './seed-scenario';
+
+// The report.summaries job end to end: plots and forest areas inserted with SQL, the job run, the
+// stored snapshot compared with estimates worked by hand (Cochran 1977, Sampling Techniques, ch. 5:
+// ȳ_st = Σ W_h ȳ_h, v(ȳ_st) = Σ W_h² s_h²/n_h, Satterthwaite df eq. 5.16).
+
+const rel = 1e-9; // hand computations are exact rationals; floating point only
+let s: TestServices;
+let deps: ServiceDeps;
+
+function row(p: SnapshotPayload, forestType: string, variable: string): RegionRow {
+  const r = p.summary.rows.find((x) => x.forest_type === forestType && x.variable === variable);
+  if (!r) throw new Error(`no row ${forestType} ${variable}`);
+  return r;
+}
+
+async function runSummaries(): Promise<{ runId: string; result: unknown }> {
+  const runId = await seedRun(s.db);
+  const result = await createProcessors(deps)['report.summaries']!({ runId }, jobContext(testLogger()));
+  return { runId, result };
+}
+
+async function latest(region: string): Promise<{ version: number; etag: string; payload: SnapshotPayload }> {
+  const snap = await getSummarySnapshot(s.db, region);
+  if (!snap) throw new Error(`no snapshot of ${region}`);
+  return { version: snap.version, etag: snap.etag, payload: snap.payload as SnapshotPayload };
+}
+
+describe('report.summaries', () => {
+  beforeAll(async () => {
+    s = await useServices();
+    deps = { config: s.config, db: s.db, log: testLogger(), queue: new InProcessQueue(testLogger()) };
+    await seedScenario(s.db);
+    await markStale(s.db, 'summary', ['Northvale', 'Southmere']);
+  });
+  afterAll(async () => s?.cleanup());
+
+  it('stores version 1 of each stale region, clears the marks and finishes the run', async () => {
+    const { runId } = await runSummaries();
+    expect((await latest('Northvale')).version).toBe(1);
+    expect((await latest('Southmere')).version).toBe(1);
+    expect(await getSummarySnapshot(s.db, 'Ostmark')).toBeNull(); // never marked stale
+    expect(await listStale(s.db, 'summary')).toEqual([]);
+    const [run] = await s.db.query<{ state: string; details: { summaries: { regions: number } } }>(`select state, details from recompute_runs where id = $1`, [runId]);
+    expect(run.state).toBe('done');
+    expect(run.details.summaries.regions).toBe(2);
+  });
+
+  it('matches the hand computation for area-weighted strata (Northvale basal area)', async () => {
+    const { payload } = await latest('Northvale');
+    expect(payload.summary.weighting).toBe('area');
+    // wet: 20, 24, 28 → ȳ = 24, s² = 16, n = 3; dry: 10, 14 → ȳ = 12, s² = 8, n = 2; W = 3000/4000, 1000/4000 (computed by hand)
+    const all = row(payload, 'all', 'basal_area_m2_ha');
+    expect(all.n_plots).toBe(5);
+    expect(all.mean).toBeCloseTo(21, 12); // 0.75·24 + 0.25·12
+    const v = 0.5625 * (16 / 3) + 0.0625 * (8 / 2); // = 3.25
+    expect(all.se!).toBeCloseTo(Math.sqrt(v), 12);
+    const df = (v * v) / ((3 * 3) / 2 + (0.25 * 0.25) / 1); // Satterthwaite: 10.5625 / 4.5625 = 2.31506849…
+    const detail = payload.summary.estimate_details.find((d) => d.variable === 'basal_area_m2_ha')!;
+    expect(detail.df!).toBeCloseTo(df, 10);
+    // t at a non-integer df: @stdlib's Student t quantile as the reference library (tolerance 1e-9 relative)
+    const t = tQuantile(0.975, df);
+    expect(Math.abs((all.ci_high! - 21) / (t * Math.sqrt(v)) - 1)).toBeLessThan(rel);
+    expect(Math.abs(all.sampling_error_pct! / ((100 * t * Math.sqrt(v)) / 21) - 1)).toBeLessThan(rel);
+    expect(all.forest_area_ha).toBe(4000);
+    expect(all.total).toBeCloseTo(84_000, 8); // 21 m²/ha × 4000 ha
+
+    // wet alone: SE = √(16/3); t₀.₉₇₅,₂ = 4.303 (NIST/SEMATECH e-Handbook 1.3.6.7.2, 3 decimals)
+    const wet = row(payload, 'wet', 'basal_area_m2_ha');
+    expect(wet.mean).toBe(24);
+    expect(wet.se!).toBeCloseTo(Math.sqrt(16 / 3), 12);
+    expect(wet.ci_high!).toBeCloseTo(24 + 4.303 * Math.sqrt(16 / 3), 2);
+    expect(wet.total).toBeCloseTo(72_000, 8);
+  });
+
+  it('matches the hand computation for carbon totals (Northvale)', async () => {
+    const { payload } = await latest('Northvale');
+    // wet 90, 110, 130 → 110, s² 400; dry 40, 56 → 48, s² 128 (by hand)
+    const all = row(payload, 'all', 'carbon_mg_ha');
+    expect(all.mean).toBeCloseTo(94.5, 12);
+    expect(all.se!).toBeCloseTo(Math.sqrt(0.5625 * (400 / 3) + 0.0625 * (128 / 2)), 12); // √79
+    const total = payload.summary.totals.find((t) => t.forest_type === 'all' && t.variable === 'carbon_mg_ha')!;
+    expect(total.total).toBeCloseTo(378_000, 6); // 94.5 Mg C/ha × 4000 ha
+    expect(total.se!).toBeCloseTo(4000 * Math.sqrt(79), 6);
+  });
+
+  it('weights by plot counts where no forest areas are known, and says so (Southmere)', async () => {
+    const { payload } = await latest('Southmere');
+    expect(payload.summary.weighting).toBe('plot_count');
+    expect(payload.summary.notes.some((n) => n.code === 'weights_plot_count')).toBe(true);
+    const all = row(payload, 'all', 'basal_area_m2_ha');
+    // 10, 12, 14, 16, 18: ȳ = 14, s² = 10, SE = √2 (by hand); one stratum: df = 4, t₀.₉₇₅,₄ = 2.776 (NIST/SEMATECH table)
+    expect(all.mean).toBe(14);
+    expect(all.se!).toBeCloseTo(Math.SQRT2, 12);
+    expect(all.ci_low!).toBeCloseTo(14 - 2.776 * Math.SQRT2, 2);
+    expect(all.total).toBeNull();
+    expect(all.forest_area_ha).toBeNull();
+  });
+
+  it('includes disturbance classes, guild composition and accepted species counts', async () => {
+    const { payload } = await latest('Northvale');
+    // intermediate (0.3 ≤ index < 0.6): wet 1 of 3, dry 1 of 2 → 0.75/3 + 0.25/2 = 0.375 (by hand)
+    const inter = payload.summary.disturbance.rows.find((r) => r.forest_type === 'all' && r.class === 'intermediate')!;
+    expect(inter.n_plots).toBe(2);
+    expect(inter.share!).toBeCloseTo(0.375, 12);
+    const shade = payload.summary.guild_composition.find((g) => g.forest_type === 'all' && g.guild === 'shade_tolerant')!;
+    expect(shade.mean_share!).toBeCloseTo(0.5, 12);
+    // Arborea splendens is a synonym of Arborea lucida; "indet" is not a species
+    const species = Object.fromEntries(payload.summary.species!.map((r) => [r.forest_type, r.n_species]));
+    expect(species).toEqual({ all: 4, dry: 1, wet: 4 });
+  });
+
+  it('carries the fits of its forest types (scope all and its own region) and a highlighted chart each', async () => {
+    const { payload } = await latest('Northvale');
+    expect(new Set(payload.fits.map((f) => `${f.scope}/${f.forest_type}`))).toEqual(new Set(['all/wet', 'Northvale/wet']));
+    const wet = payload.charts.fits.find((c) => c.forest_type === 'wet')!;
+    expect(wet.points).toBe(5); // 3 Northvale + 2 Ostmark plots of type wet
+    expect(wet.highlighted).toBe(3);
+    expect(wet.svg ?? wet.missing).toBeTruthy();
+    expect(payload.charts.means).toMatch(/^<svg/);
+    expect(payload.charts.guilds).toMatch(/^<svg/);
+    expect(payload.method.carbon_fraction).toBe(0.47);
+  });
+
+  it('is idempotent: with nothing stale it only finishes the run', async () => {
+    const { runId } = await runSummaries();
+    expect((await listSummaryVersions(s.db, 'Northvale')).map((v) => v.version)).toEqual([1]);
+    const [run] = await s.db.query<{ state: string }>(`select state from recompute_runs where id = $1`, [runId]);
+    expect(run.state).toBe('done');
+  });
+
+  it('adds no version when a stale region comes out the same, and a new version when its data changed', async () => {
+    const before = await latest('Northvale');
+    await markStale(s.db, 'summary', ['Northvale']);
+    await runSummaries();
+    expect((await latest('Northvale')).version).toBe(1);
+    expect(await listStale(s.db, 'summary')).toEqual([]);
+
+    await s.db.query(`update plot_metrics m set basal_area_m2_ha = 32 from plot_visits v join plots p on p.id = v.plot_id where m.visit_id = v.id and p.plot_key = 'NV-W3'`);
+    await markStale(s.db, 'summary', ['Northvale']);
+    await runSummaries();
+    const after = await latest('Northvale');
+    expect(after.version).toBe(2);
+    expect(after.etag).not.toBe(before.etag);
+    expect(row(after.payload, 'wet', 'basal_area_m2_ha').mean).toBeCloseTo(76 / 3, 12);
+    const v1 = await getSummarySnapshot(s.db, 'Northvale', 1);
+    expect(row(v1!.payload as SnapshotPayload, 'wet', 'basal_area_m2_ha').mean).toBe(24);
+  });
+
+  it('unmarks a region that no longer exists instead of failing', async () => {
+    await markStale(s.db, 'summary', ['Atlantis']);
+    await runSummaries();
+    expect(await listStale(s.db, 'summary')).toEqual([]);
+  });
+});
