@@ -53,6 +53,10 @@ function describeUrl(url: string): string {
 async function openPostgres(url: string, poolSize: number): Promise<Db> {
   const pool = new pg.Pool({ connectionString: url, max: poolSize, connectionTimeoutMillis: 5000 });
   pool.on('error', () => {}); // idle clients dropped by a server restart are replaced on next use
+  // A checked-out client whose connection the server cuts (a restart, say) between two queries emits
+  // 'error' too; without a listener that would end the process. Its next query fails instead (the job
+  // is retried) and the pool discards it on release.
+  pool.on('connect', (client) => client.on('error', () => {}));
   try {
     await pool.query('select 1');
   } catch (err) {

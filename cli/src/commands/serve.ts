@@ -1,8 +1,74 @@
+import { parseArgs } from 'node:util';
+import type { ServiceDeps } from '@stemwise/db';
 import { StemwiseError } from '@stemwise/platform';
+import { processorsFor, type ServiceName } from '../processors';
 import type { Runtime } from '../runtime';
 
-export const summary = 'not yet available';
+export const summary = 'runs services and workers: serve [ingest|compute|report|all]';
 
-export async function run(_args: string[], _rt: Runtime): Promise<number> {
-  throw new StemwiseError('not_yet', "'stemwise serve' is not available yet in this version");
+const CHOICES = ['ingest', 'compute', 'report', 'all'] as const;
+
+/** After a stop, how long closing connections may take before the process ends anyway. */
+const EXIT_DEADLINE_MS = 5000;
+
+export async function run(args: string[], rt: Runtime): Promise<number> {
+  const { positionals } = parseArgs({ args, allowPositionals: true, options: {} });
+  const which = (positionals[0] ?? 'all') as (typeof CHOICES)[number];
+  if (!CHOICES.includes(which)) throw new StemwiseError('usage', `serve takes one of ${CHOICES.join(', ')}, not '${which}'`);
+  const services: ServiceName[] = which === 'all' ? ['ingest', 'compute', 'report'] : [which];
+
+  // Listen for the stop signal from the start: a SIGTERM while starting up stops right after.
+  const stopRequested = new Promise<string>((resolve) => {
+    process.once('SIGTERM', () => resolve('SIGTERM'));
+    process.once('SIGINT', () => resolve('SIGINT'));
+  });
+
+  const deps: ServiceDeps = { config: rt.config, db: await rt.db(), log: rt.log, queue: await rt.queue() };
+  const { config, log, queue } = deps;
+  if (queue.kind === 'in-process') log.warn('REDIS_URL is not set: jobs run in this process only and are not durable (fine for one machine, not for production)');
+
+  const { processors, queues } = await processorsFor(deps, services);
+  await queue.work(processors, {
+    queues,
+    concurrency: { ingest: config.ingestConcurrency, compute: config.computeConcurrency, report: 1, maintenance: 1 },
+  });
+
+  let timer: NodeJS.Timeout | null = null;
+  if (services.includes('compute')) {
+    // Work that PostgreSQL says is due but no queued job covers is queued again, and the nightly schedule
+    // registered again if Redis lost it, at start and every few minutes. The timer lives in the process
+    // (not in Redis) so that it survives Redis losing its data; every compute worker runs it, which is safe.
+    const { reconcile } = await import('@stemwise/compute/maintenance/reconcile');
+    await reconcile(deps);
+    timer = setInterval(() => void reconcile(deps).catch((err) => log.error({ err }, 'reconcile failed')), config.reconcileMinutes * 60_000);
+    if (queue.kind === 'bullmq') log.info({ cron: config.nightlyCron, timezone: config.timezone }, 'nightly recompute scheduled');
+  }
+
+  let server: { close(): Promise<unknown> } | null = null;
+  if (services.includes('report')) {
+    const { startReportServer } = (await import('@stemwise/report')) as { startReportServer: (d: ServiceDeps) => Promise<{ close(): Promise<unknown> }> };
+    server = await startReportServer(deps);
+  }
+  log.info({ services, queues, queue: queue.kind }, 'serving');
+  process.stderr.write(`stemwise: serving ${services.join(', ')} (queues: ${queues.join(', ')}; ${queue.kind})\n`);
+
+  // Graceful stop: take no new jobs, let running ones finish for STEMWISE_STOP_GRACE_SECONDS, hand back
+  // (to the queue, for another worker) those still running, close. A second signal ends the process at
+  // once; BullMQ then gives its running jobs to another worker when their locks expire.
+  const signal = await stopRequested;
+  const started = Date.now();
+  log.info({ signal, graceSeconds: config.stopGraceSeconds }, 'stopping: running jobs may finish');
+  const again = () => {
+    log.warn('second stop signal: exiting now');
+    process.exit(1);
+  };
+  process.once('SIGTERM', again);
+  process.once('SIGINT', again);
+  if (timer) clearInterval(timer);
+  const [{ handedBack }] = await Promise.all([queue.stop(config.stopGraceSeconds * 1000), server?.close()]);
+  log.info({ handedBack, ms: Date.now() - started }, 'stopped');
+  process.stderr.write(`stemwise: stopped${handedBack.length ? ` (handed back ${handedBack.join(', ')})` : ''}\n`);
+  // A handed-back job's processor may still hold a database connection; ending the process rolls it back.
+  setTimeout(() => process.exit(0), handedBack.length ? 0 : EXIT_DEADLINE_MS).unref();
+  return 0;
 }

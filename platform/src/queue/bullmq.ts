@@ -1,10 +1,10 @@
-import { FlowProducer, Queue, UnrecoverableError, Worker, type FlowJob, type JobsOptions } from 'bullmq';
+import { FlowProducer, Queue, UnrecoverableError, Worker, type FlowJob, type Job, type JobsOptions } from 'bullmq';
 import { Redis } from 'ioredis';
 import type { Logger } from '../logger';
 import { PermanentError, ServiceUnavailableError, oneLine } from '../errors';
 import { assertProcessors } from './check';
 import { QUEUE_NAMES, queueOf, type JobName, type QueueName } from './jobs';
-import type { JobQueue, JobSpec, JobState, ProcessorMap, QueueCounts, WorkOptions } from './types';
+import type { JobQueue, JobSpec, JobState, ProcessorMap, QueueCounts, ScheduleInfo, StopResult, WorkOptions } from './types';
 
 export interface BullOptions {
   url: string;
@@ -40,6 +40,10 @@ export class BullQueue implements JobQueue {
   private readonly workers: Worker[] = [];
   private flows: FlowProducer | null = null;
   private readonly defaults: JobsOptions;
+  /** Jobs this process is running, with the lock token that lets it hand them back. */
+  private readonly running = new Map<string, { job: Job; token: string | undefined }>();
+  private closing: Promise<void> | null = null;
+  private readonly extra: Redis[] = [];
 
   private constructor(
     private readonly redis: Redis,
@@ -56,6 +60,13 @@ export class BullQueue implements JobQueue {
   static async open(options: BullOptions): Promise<BullQueue> {
     const redis = await connectRedis(options.url);
     return new BullQueue(redis, options);
+  }
+
+  /** A connection of a worker's own; BullMQ does not close connections it was given, so `shut` does. */
+  private connection(): Redis {
+    const c = this.redis.duplicate();
+    this.extra.push(c);
+    return c;
   }
 
   private queue(name: QueueName): Queue {
@@ -92,11 +103,13 @@ export class BullQueue implements JobQueue {
     for (const queueName of options.queues) {
       const worker = new Worker(
         queueName,
-        async (job) => {
+        async (job, token) => {
           const name = job.name as JobName;
           const log = this.options.log.child({ queue: queueName, jobId: job.id, jobName: name });
           const processor = processors[name];
           if (!processor) throw new UnrecoverableError(`no processor for ${name}`);
+          const key = `${queueName}/${job.id}`;
+          this.running.set(key, { job, token });
           try {
             return await processor(job.data, {
               jobId: job.id ?? '',
@@ -110,10 +123,12 @@ export class BullQueue implements JobQueue {
             log.warn({ err, attempt: job.attemptsMade + 1 }, 'job attempt failed');
             if (err instanceof PermanentError) throw new UnrecoverableError(err.message);
             throw err;
+          } finally {
+            this.running.delete(key);
           }
         },
         {
-          connection: this.redis.duplicate(),
+          connection: this.connection(),
           prefix: this.options.prefix,
           concurrency: options.concurrency?.[queueName] ?? 1,
           autorun: true,
@@ -150,10 +165,9 @@ export class BullQueue implements JobQueue {
         : 'unknown';
   }
 
-  /** The failure reason of a job, or null. */
   async failedReason(jobId: string, name: JobName): Promise<string | null> {
     const job = await this.queue(queueOf(name)).getJob(jobId);
-    return job?.failedReason ?? null;
+    return job?.failedReason || null;
   }
 
   async counts(): Promise<Record<QueueName, QueueCounts>> {
@@ -175,10 +189,59 @@ export class BullQueue implements JobQueue {
     await this.queue(queueOf(spec.name)).upsertJobScheduler(schedulerId, { pattern: cron, tz: timezone }, { name: spec.name, data: spec.data });
   }
 
+  async schedules(): Promise<ScheduleInfo[]> {
+    const out: ScheduleInfo[] = [];
+    for (const queue of QUEUE_NAMES) {
+      for (const s of await this.queue(queue).getJobSchedulers(0, -1, true)) {
+        out.push({
+          id: s.key,
+          queue,
+          name: s.name as JobName,
+          data: s.template?.data,
+          cron: s.pattern ?? null,
+          timezone: s.tz ?? null,
+          next: s.next ? new Date(s.next) : null,
+        });
+      }
+    }
+    return out;
+  }
+
+  /**
+   * Stops taking jobs and gives the running ones `graceMs` to finish; any still running then is handed
+   * back to the queue (waiting again, its attempt not counted) for another worker, and its processor
+   * is abandoned: the caller should end the process, which rolls back what the job had not committed.
+   */
+  async stop(graceMs: number): Promise<StopResult> {
+    await Promise.all(this.workers.map((w) => w.pause(true)));
+    const deadline = Date.now() + graceMs;
+    while (this.running.size && Date.now() < deadline) await new Promise((r) => setTimeout(r, 50));
+    const handedBack: string[] = [];
+    for (const [key, { job, token }] of this.running) {
+      try {
+        await job.moveToWait(token);
+        handedBack.push(job.id ?? key);
+        this.options.log.warn({ queue: job.queueName, jobId: job.id, jobName: job.name }, 'job handed back to the queue (the worker is stopping)');
+      } catch (err) {
+        // Its lock is gone already: BullMQ's stalled-job check gives it to another worker.
+        this.options.log.warn({ err, queue: job.queueName, jobId: job.id, jobName: job.name }, 'could not hand back a running job');
+      }
+    }
+    await this.shut(handedBack.length > 0 || this.running.size > 0);
+    return { handedBack };
+  }
+
   async close(): Promise<void> {
-    await Promise.all(this.workers.map((w) => w.close()));
-    await Promise.all([...this.queues.values()].map((q) => q.close()));
-    await this.flows?.close();
-    await this.redis.quit().catch(() => this.redis.disconnect());
+    await this.shut(false);
+  }
+
+  private shut(force: boolean): Promise<void> {
+    this.closing ??= (async () => {
+      await Promise.all(this.workers.map((w) => w.close(force)));
+      await Promise.all([...this.queues.values()].map((q) => q.close()));
+      await this.flows?.close();
+      await Promise.all([this.redis, ...this.extra].map((c) => c.quit().catch(() => c.disconnect())));
+    })();
+    return this.closing;
   }
 }

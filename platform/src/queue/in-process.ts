@@ -2,7 +2,7 @@ import type { Logger } from '../logger';
 import { oneLine } from '../errors';
 import { assertProcessors } from './check';
 import { queueOf, QUEUE_NAMES, type JobName, type QueueName } from './jobs';
-import type { JobQueue, JobSpec, JobState, ProcessorMap, QueueCounts, WorkOptions } from './types';
+import type { JobQueue, JobSpec, JobState, ProcessorMap, QueueCounts, ScheduleInfo, StopResult, WorkOptions } from './types';
 
 interface Pending {
   spec: JobSpec;
@@ -98,6 +98,10 @@ export class InProcessQueue implements JobQueue {
     return this.states.get(jobId) ?? 'unknown';
   }
 
+  async failedReason(jobId: string): Promise<string | null> {
+    return this.failures.findLast((f) => f.jobId === jobId)?.error ?? null;
+  }
+
   async counts(): Promise<Record<QueueName, QueueCounts>> {
     const out = Object.fromEntries(
       QUEUE_NAMES.map((q) => [q, { waiting: 0, active: 0, delayed: 0, completed: 0, failed: 0 }]),
@@ -108,6 +112,17 @@ export class InProcessQueue implements JobQueue {
 
   async schedule(): Promise<void> {
     throw new Error('schedules need Redis (REDIS_URL): the in-process runner has no clock of its own');
+  }
+
+  async schedules(): Promise<ScheduleInfo[]> {
+    return [];
+  }
+
+  /** Nothing here survives the process: queued jobs are dropped, the running one may finish within `graceMs`. */
+  async stop(graceMs: number): Promise<StopResult> {
+    this.pending.length = 0;
+    if (this.running) await Promise.race([this.running, new Promise((r) => setTimeout(r, graceMs).unref())]);
+    return { handedBack: [] };
   }
 
   async close(): Promise<void> {

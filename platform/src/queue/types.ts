@@ -32,6 +32,24 @@ export interface QueueCounts {
   failed: number;
 }
 
+/** A repeating job as the queue holds it. */
+export interface ScheduleInfo {
+  id: string;
+  queue: QueueName;
+  name: JobName;
+  /** The payload every run gets. */
+  data: unknown;
+  cron: string | null;
+  timezone: string | null;
+  /** When it runs next. */
+  next: Date | null;
+}
+
+export interface StopResult {
+  /** Ids of jobs that were still running when the grace time ran out, now waiting again for another worker. */
+  handedBack: string[];
+}
+
 export interface WorkOptions {
   /** Queues this process serves; every job name of them must have exactly one processor. */
   queues: readonly QueueName[];
@@ -47,9 +65,18 @@ export interface JobQueue {
   /** In-process: runs until nothing is queued and returns the failures. BullMQ: waits until the queues are idle. */
   drain(timeoutMs?: number): Promise<ReadonlyArray<{ jobId: string; name: JobName; error: string }>>;
   state(jobId: string, name: JobName): Promise<JobState>;
+  /** Why a failed job failed (its last error), or null. */
+  failedReason(jobId: string, name: JobName): Promise<string | null>;
   counts(): Promise<Record<QueueName, QueueCounts>>;
   /** A repeating job (the nightly recompute); replaces an earlier schedule of the same id. */
   schedule(schedulerId: string, cron: string, timezone: string, spec: Omit<JobSpec, 'jobId' | 'children'>): Promise<void>;
+  /** The repeating jobs registered (none in-process). */
+  schedules(): Promise<ScheduleInfo[]>;
+  /**
+   * A worker's graceful stop: takes no new jobs, gives running ones `graceMs` to finish, hands back
+   * those still running (BullMQ: waiting again for another worker), closes connections.
+   */
+  stop(graceMs: number): Promise<StopResult>;
   /** Stops taking new jobs, lets running ones finish, closes connections. */
   close(): Promise<void>;
 }
