@@ -1,0 +1,65 @@
+import fs from 'node:fs';
+import os from 'node:os';
+import path from 'node:path';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { generateInventory } from '@stemwise/demo-inventory';
+import { createLogger } from '@stemwise/platform';
+import { runDemo, type DemoResult } from '../../cli/src/demo-pipeline';
+import { demoTable } from '../../cli/src/commands/demo';
+
+// The demo pipeline end to end, exactly as `stemwise demo` runs it (embedded PGlite, in-process jobs),
+// on a freshly generated inventory with a seed other than the committed set's: the planted shapes
+// (truth.json of the generator: a hump in wet, a decline in moist, nothing in dry) must come out.
+describe('stemwise demo on a generated inventory', () => {
+  const root = fs.mkdtempSync(path.join(os.tmpdir(), 'stemwise-e2e-'));
+  const input = path.join(root, 'input');
+  const out = path.join(root, 'report');
+  let result: DemoResult;
+  let truth: { planted: { by_forest_type: Record<string, { shape: string; vertex: number | null }> }; counts: { plots: number } };
+
+  beforeAll(async () => {
+    await generateInventory({ outDir: input, seed: 11, plots: 450, gzip: true });
+    truth = JSON.parse(fs.readFileSync(path.join(input, 'truth.json'), 'utf8'));
+    result = await runDemo({ inputDir: input, outDir: out, workDir: path.join(root, 'db'), log: createLogger('warn') });
+  }, 300_000);
+  afterAll(() => fs.rmSync(root, { recursive: true, force: true }));
+
+  it('loads every plot and computes the batch', () => {
+    expect(result.state).toBe('computed');
+    expect(result.plots).toBe(truth.counts.plots);
+    expect(result.regions).toBeGreaterThan(1);
+  });
+
+  it('recovers the planted shape of every forest type, and the hump near its planted vertex', () => {
+    for (const [type, planted] of Object.entries(truth.planted.by_forest_type)) {
+      const fit = result.fits.find((f) => f.forestType === type)!;
+      expect(fit, type).toBeDefined();
+      expect(fit.verdict, type).toBe(planted.shape);
+      if (planted.shape === 'hump') {
+        // 150 plots: within 0.1 of the planted vertex, and the 95 % interval covers it.
+        expect(Math.abs(fit.peakX! - planted.vertex!)).toBeLessThan(0.1);
+        expect(fit.peakLow!).toBeLessThan(planted.vertex!);
+        expect(fit.peakHigh!).toBeGreaterThan(planted.vertex!);
+      }
+    }
+    expect(demoTable(result)).toMatch(/wet\s+\d+\s+hump/);
+  });
+
+  it('writes the report folder: pages per region, exports and charts', () => {
+    const index = fs.readFileSync(result.index, 'utf8');
+    expect(index).toContain('<html');
+    const pages = fs.readdirSync(path.join(out, 'regions')).filter((f) => f.endsWith('.html'));
+    expect(pages.length).toBe(result.regions);
+    const page = fs.readFileSync(path.join(out, 'regions', pages[0]), 'utf8');
+    expect(page).toMatch(/<svg/);
+    expect(page.toLowerCase()).toContain('licensed forester');
+    const plotsCsv = fs.readFileSync(path.join(out, 'exports', 'plots.csv'), 'utf8').split('\n');
+    expect(plotsCsv[0]).toMatch(/^plot_id,survey_date,region,forest_type,stems_ha,/);
+    expect(plotsCsv.filter((l) => l.trim()).length).toBe(truth.counts.plots + 1);
+    const geo = JSON.parse(fs.readFileSync(path.join(out, 'exports', 'plots.geojson'), 'utf8'));
+    expect(geo.type).toBe('FeatureCollection');
+    expect(geo.features[0].geometry.coordinates[0]).toBeLessThan(-100); // longitude first (the demo box is at about −118°)
+    expect(fs.readFileSync(path.join(out, 'exports', 'regions.csv'), 'utf8')).toMatch(/^region,forest_type,variable,n_plots,mean,se,ci_low,ci_high,sampling_error_pct,forest_area_ha,total/);
+    for (const t of ['wet', 'moist', 'dry']) expect(fs.readFileSync(path.join(out, 'charts', `fit-${t}.svg`), 'utf8')).toMatch(/^<svg/);
+  });
+});
