@@ -25,20 +25,20 @@ async function stemwise(args: string[], env: Record<string, string | undefined>)
   }
 }
 
-// `stemwise recompute` and `stemwise export` as a user runs them: real processes on PostgreSQL, with
-// and without Redis.
+// `stemwise recompute` and `stemwise export` as a user runs them, on PostgreSQL, with and without
+// Redis: one real process (bin/stemwise.mjs), the rest through main() in this process (quicker).
 describe('stemwise recompute and export', () => {
   let s: TestServices;
   const out = fs.mkdtempSync(path.join(os.tmpdir(), 'stemwise-export-'));
   const noRedis = () => ({ ...envFor(s), REDIS_URL: undefined, STEMWISE_BOOTSTRAP: '50' });
   // main() in this process (what bin/stemwise.mjs runs), its stdout and stderr captured: quicker than a process.
-  const inProcess = async (args: string[]) => {
+  const inProcess = async (args: string[], env: Record<string, string | undefined> = noRedis()) => {
     let stdout = '';
     let stderr = '';
     const out = vi.spyOn(process.stdout, 'write').mockImplementation((chunk: string | Uint8Array) => ((stdout += String(chunk)), true));
     const err = vi.spyOn(process.stderr, 'write').mockImplementation((chunk: string | Uint8Array) => ((stderr += String(chunk)), true));
     try {
-      return { code: await main(args, noRedis()), stdout, stderr };
+      return { code: await main(args, env), stdout, stderr };
     } finally {
       out.mockRestore();
       err.mockRestore();
@@ -81,6 +81,9 @@ describe('stemwise recompute and export', () => {
     expect(lines[0]).toMatch(/^plot_id,survey_date,region,forest_type,stems_ha,/);
     expect(r.stderr).toBe(`stemwise: ${lines.length - 1} rows written to ${file}\n`);
     expect(fs.readdirSync(out)).toEqual(['plots.csv']); // no partial file left behind
+    const nowhere = await inProcess(['export', 'plots', '--out', path.join(out, 'missing', 'plots.csv')]);
+    expect(nowhere.code).toBe(1);
+    expect(nowhere.stderr).toMatch(/^stemwise: cannot write .*plots\.csv: the folder .*missing does not exist\n$/);
   });
 
   it('writes export fits and GeoJSON to stdout, data only', async () => {
@@ -89,6 +92,9 @@ describe('stemwise recompute and export', () => {
     const rows = JSON.parse(fits.stdout);
     expect(rows).toHaveLength(6);
     expect(rows[0].axis).toBe('fire_score');
+    const regions = await inProcess(['export', 'regions']); // the report service's export, behind the same command
+    expect(regions.code, regions.stderr).toBe(0);
+    expect(regions.stdout).toMatch(/^region,forest_type,variable,n_plots,mean,se,ci_low,ci_high,sampling_error_pct,forest_area_ha,total\n/);
     const gj = await inProcess(['export', 'plots', '--format', 'geojson', '--region', 'Sallowfen']);
     expect(gj.code, gj.stderr).toBe(0);
     expect(JSON.parse(gj.stdout).features.every((f: { properties: { region: string } }) => f.properties.region === 'Sallowfen')).toBe(true);
@@ -110,7 +116,7 @@ describe('stemwise recompute and export', () => {
   });
 
   it('with REDIS_URL queues the planner job, or with --now plans and waits for the workers', async () => {
-    const queued = await stemwise(['recompute', '--all'], envFor(s, { STEMWISE_BOOTSTRAP: '50' }));
+    const queued = await inProcess(['recompute', '--all'], envFor(s, { STEMWISE_BOOTSTRAP: '50' }));
     expect(queued.code, queued.stderr).toBe(0);
     const jobId = /^queued (recompute\.manual\.\d{17}) /.exec(queued.stdout)?.[1];
     expect(jobId).toBeDefined();
@@ -120,7 +126,7 @@ describe('stemwise recompute and export', () => {
       // Workers of this test (compute + a stand-in for the report service) serve the queues.
       const deps: ServiceDeps = { config: s.config, db: s.db, log: testLogger(), queue };
       await queue.work({ ...createProcessors(deps), ...standInSummaries(s.db) }, { queues: ['compute', 'report'] });
-      const now = await stemwise(['recompute', '--now', '--all'], envFor(s, { STEMWISE_BOOTSTRAP: '50' }));
+      const now = await inProcess(['recompute', '--now', '--all'], envFor(s, { STEMWISE_BOOTSTRAP: '50' }));
       expect(now.code, now.stderr).toBe(0);
       expect(now.stderr).toMatch(/plot metrics done\n[\s\S]*fits done\n[\s\S]*summaries done\n/);
       expect(now.stdout).toMatch(/^run \S+ \(manual\): done\n/);

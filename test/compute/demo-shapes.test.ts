@@ -1,8 +1,7 @@
 import fs from 'node:fs';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { DEMO_DATA_DIR } from '@stemwise/demo-inventory';
-import { loadInventory, loadSpecies } from './fixtures';
-import { readDemoInventory } from './demo-loader';
+import { loadDemoInventory } from './demo-loader';
 import { fitsText, recomputeInProcess } from './support';
 import { useServices, type TestServices } from '../support/services';
 
@@ -15,9 +14,9 @@ describe('planted shapes of the demo inventory', () => {
 
   beforeAll(async () => {
     s = await useServices();
-    const { species, plots } = readDemoInventory(DEMO_DATA_DIR);
-    await loadSpecies(s.db, species);
-    await loadInventory(s.db, plots);
+    await loadDemoInventory(s.db, DEMO_DATA_DIR);
+    const [{ n }] = await s.db.query<{ n: number }>(`select count(*)::int n from stems`);
+    expect(n).toBe(truth.counts.stems.rows);
     const { failures } = await recomputeInProcess(s.config, s.db);
     expect(failures).toEqual([]);
   }, 120_000);

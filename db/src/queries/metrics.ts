@@ -321,14 +321,15 @@ export async function forestTypesWithPlots(db: Queryable): Promise<string[]> {
 
 /**
  * dbh and measured height of every live stem of the given forest types (one scan for all of them),
- * ordered by value, so a fit on the same data is bit-for-bit the same on every engine and every run
- * whatever order the rows were loaded in. Packed by the server into one text per forest type (exact
- * shortest round-trip floats). Call inside a transaction.
+ * ordered by value (dbh, then height), so a fit on the same data is bit-for-bit the same on every
+ * engine and every run whatever order the rows were loaded in. The server packs each forest type's
+ * pairs into one text (exact shortest round-trip floats); the sort runs here, where it is cheaper.
+ * Call inside a transaction.
  */
 export async function loadMeasuredHeights(tx: Queryable, forestTypes: readonly string[]): Promise<Map<string, { dbhCm: number[]; heightM: number[] }>> {
   await tx.query(`set local extra_float_digits = 1`);
   const rows = await tx.query<{ t: string; p: string }>(
-    `select p.forest_type t, string_agg(s.dbh_cm::text || ' ' || s.height_m::text, ',' order by s.dbh_cm, s.height_m) p
+    `select p.forest_type t, string_agg(s.dbh_cm::text || ' ' || s.height_m::text, ',') p
        from stems s join plot_visits v on v.id = s.visit_id join plots p on p.id = v.plot_id
       where p.forest_type = any($1::text[]) and s.status = 'live' and s.height_m is not null
       group by p.forest_type`,
@@ -338,14 +339,15 @@ export async function loadMeasuredHeights(tx: Queryable, forestTypes: readonly s
   for (const t of forestTypes) out.set(t, { dbhCm: [], heightM: [] });
   for (const row of rows) {
     const pairs = row.p.split(',');
-    const dbhCm = new Array<number>(pairs.length);
-    const heightM = new Array<number>(pairs.length);
+    const d = new Float64Array(pairs.length);
+    const h = new Float64Array(pairs.length);
     for (let i = 0; i < pairs.length; i++) {
       const space = pairs[i].indexOf(' ');
-      dbhCm[i] = Number(pairs[i].slice(0, space));
-      heightM[i] = Number(pairs[i].slice(space + 1));
+      d[i] = Number(pairs[i].slice(0, space));
+      h[i] = Number(pairs[i].slice(space + 1));
     }
-    out.set(row.t, { dbhCm, heightM });
+    const order = Uint32Array.from({ length: pairs.length }, (_, i) => i).sort((a, b) => d[a] - d[b] || h[a] - h[b]);
+    out.set(row.t, { dbhCm: Array.from(order, (i) => d[i]), heightM: Array.from(order, (i) => h[i]) });
   }
   return out;
 }

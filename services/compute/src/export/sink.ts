@@ -2,6 +2,7 @@ import fs from 'node:fs';
 import path from 'node:path';
 import { once } from 'node:events';
 import type { Writable } from 'node:stream';
+import { StemwiseError } from '@stemwise/platform';
 
 /** Where an export goes: a file (written to a temporary name, renamed when complete) or a stream such as stdout. */
 export type ExportTarget = { file: string } | { stream: Writable };
@@ -22,6 +23,8 @@ export async function writeExport(pieces: AsyncIterable<string>, target: ExportT
     return;
   }
   const file = path.resolve(target.file);
+  if (!fs.existsSync(path.dirname(file))) throw new StemwiseError('output_invalid', `cannot write ${target.file}: the folder ${path.dirname(file)} does not exist`);
+  if (fs.existsSync(file) && fs.statSync(file).isDirectory()) throw new StemwiseError('output_invalid', `cannot write ${target.file}: it is a folder`);
   const temp = path.join(path.dirname(file), `.${path.basename(file)}.${process.pid}.partial`);
   const stream = fs.createWriteStream(temp);
   try {

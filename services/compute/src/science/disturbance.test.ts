@@ -52,6 +52,10 @@ describe('fire', () => {
   it('weights stem fire damage by basal area: (0.1·0 + 0.3·2)/0.4 = 1.5', () => {
     expect(basalAreaWeightedFireDamage([0, 2], [0.1, 0.3])).toBeCloseTo(1.5, 15);
   });
+  it('gives exactly 3 when every stem has damage 3, whatever rounding the sums carry (computed by hand: a mean of equal values)', () => {
+    // Σ g·3 / Σ g is 3.0000000000000004 in floating point for these basal areas.
+    expect(basalAreaWeightedFireDamage([3, 3, 3, 3], [0.0017, 0.0056, 0.0621, 0.0991])).toBe(3);
+  });
   it('gives 0 without live basal area', () => {
     expect(basalAreaWeightedFireDamage([], [])).toBe(0);
   });

@@ -68,6 +68,8 @@ export function basalAreaWeightedFireDamage(fireDamage: readonly number[], basal
   }
   let sumG = 0;
   let sumGD = 0;
+  let dMin = FIELD_CLASS_MAX;
+  let dMax = 0;
   for (let i = 0; i < fireDamage.length; i += 1) {
     const d = fireDamage[i];
     const g = basalArea[i];
@@ -79,8 +81,14 @@ export function basalAreaWeightedFireDamage(fireDamage: readonly number[], basal
     }
     sumG += g;
     sumGD += g * d;
+    if (g > 0) {
+      dMin = Math.min(dMin, d);
+      dMax = Math.max(dMax, d);
+    }
   }
-  return sumG > 0 ? sumGD / sumG : 0;
+  // A weighted mean lies between the smallest and largest value; rounding in the sums may step just
+  // outside (3.0000000000000004 when every stem has damage 3), which the range checks downstream reject.
+  return sumG > 0 ? Math.min(dMax, Math.max(dMin, sumGD / sumG)) : 0;
 }
 
 // F = (1 − w) d̄/3 + w · class/3, default w = 0.5 — stemwise default, not published
