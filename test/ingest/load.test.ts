@@ -221,4 +221,14 @@ describe('ingest on PostgreSQL', () => {
     expect(report.issues).toEqual([]);
     expect(report.counts.stemsLoaded).toBe(1);
   });
+
+  it('runs two attempts at the same batch one after the other, and loads it once', async () => {
+    const plots = `${PLOTS_HEADER}\nMW-800,Lowmere,dry,-4.3,29.3,1,10,0,5,2023-02-10,0,0,`;
+    const trees = `${TREES_HEADER}\nMW-800,1,Tikka rubra,20,,live,,0,0\nMW-800,2,Tikka rubra,22,,live,,0,0`;
+    const submitted = await submitBatch(deps, uploadFiles(writeUpload({ plots, trees })), {}, 'test');
+    const results = await Promise.all([processBatch(deps, submitted.batchId), processBatch(deps, submitted.batchId)]);
+    expect(results).toEqual([{ state: 'loaded' }, { state: 'loaded' }]);
+    expect(await q(`select count(*)::int n from stems s join plot_visits v on v.id = s.visit_id join plots p on p.id = v.plot_id where p.plot_key = 'MW-800'`)).toEqual([{ n: 2 }]);
+    expect((await batchReport(s.db, submitted.batchId))!.attempts).toBe(1);
+  });
 });

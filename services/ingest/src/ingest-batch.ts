@@ -39,6 +39,14 @@ export interface IngestOutcome {
 export interface IngestOptions {
   plausibility?: Partial<PlausibilityOptions>;
   job?: JobContext;
+  /** Check duplicate tree ids in memory even while loading (always so with skip_invalid). */
+  checkDuplicates?: boolean;
+}
+
+/** The load met a duplicate (visit, tree) the in-memory checks were told to leave to the database. */
+function isDuplicateStem(err: unknown): boolean {
+  const e = err as { code?: string; constraint?: string };
+  return e?.code === '23505' && e.constraint === 'stems_visit_tree_uq';
 }
 
 /** Thrown inside the load transaction to roll it back when the batch turns out to be rejected. */
@@ -164,7 +172,9 @@ export async function ingestBatch(deps: ServiceDeps, batch: BatchRow, options: I
 
   if (blocked() || !treesSource) {
     // Rejected already: check the trees anyway (nothing is loaded), so every problem is reported at once.
-    const trees = treesSource ? await validateTrees(ctx, treesSource, { plots, lookupStored: (k) => lookupStored(db, k), sink: null, species: index, plotsReadable: !plotsResult.stats.fatal && !!plotsFile }) : null;
+    const trees = treesSource ? await validateTrees(ctx, treesSource, { plots, lookupStored: (k) => lookupStored(db, k), sink: null, species: index, plotsReadable: !plotsResult.stats.fatal && !!plotsFile, checkDuplicates: true }) : null;
+    reporter.phase = 'done';
+    reporter.tick(true);
     return reject(trees);
   }
 
@@ -177,6 +187,9 @@ export async function ingestBatch(deps: ServiceDeps, batch: BatchRow, options: I
     species: speciesOk ? species : null,
     speciesSource: `batch ${batch.id}`,
   };
+  // Duplicate tree ids: under the default policy the unique constraint finds them during COPY at no
+  // memory cost; only then is the batch checked again with the in-memory set, to name their lines.
+  const checkDuplicates = batch.options.skip_invalid || options.checkDuplicates === true;
   let trees: TreesResult | null = null;
   try {
     const result = await db.transaction(async (tx) => {
@@ -187,10 +200,11 @@ export async function ingestBatch(deps: ServiceDeps, batch: BatchRow, options: I
       // On PostgreSQL the transaction's connection is busy with COPY: look up stored plots on another one.
       const lookup = tx.kind === 'postgres' ? db : tx;
       try {
-        trees = await validateTrees(ctx, treesSource, { plots, lookupStored: (k) => lookupStored(lookup, k), sink, species: index, plotsReadable: true });
+        trees = await validateTrees(ctx, treesSource, { plots, lookupStored: (k) => lookupStored(lookup, k), sink, species: index, plotsReadable: true, checkDuplicates });
       } finally {
         await sink.finish();
       }
+      reporter.tick(true);
       if (trees.stats.fatal || blocked()) throw new Rejected();
       await finishLoad(tx, plan, regionIds, { storedPlots: trees.storedPlots, movedFrom });
       const c = counts(trees, true);
@@ -205,6 +219,10 @@ export async function ingestBatch(deps: ServiceDeps, batch: BatchRow, options: I
   } catch (err) {
     reporter.inTransaction = false;
     if (err instanceof Rejected) return reject(trees);
+    if (isDuplicateStem(err) && !checkDuplicates) {
+      deps.log.info({ batchId: batch.id }, 'duplicate tree ids met during the load; checking again to report their lines');
+      return ingestBatch(deps, batch, { ...options, checkDuplicates: true });
+    }
     throw err;
   }
 }

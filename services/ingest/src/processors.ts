@@ -19,6 +19,17 @@ async function queueRecompute(deps: ServiceDeps, batchId: string): Promise<void>
  * since the load is one transaction, nothing of the earlier attempt is in the database.
  */
 export async function processBatch(deps: ServiceDeps, batchId: string, job?: JobContext, options: Omit<IngestOptions, 'job'> = {}): Promise<{ state: string }> {
+  // One attempt at a time per batch: a job handed back by a stopping worker may be taken again while
+  // the first attempt is still rolling back; the second waits here, then sees the batch's real state.
+  return deps.db.withLock(batchLockKey(batchId), () => attempt(deps, batchId, job, options));
+}
+
+/** An advisory lock key of a batch: 48 bits of its uuid, above the small keys other locks use. */
+export function batchLockKey(batchId: string): number {
+  return 2 ** 40 + parseInt(batchId.replace(/-/g, '').slice(0, 12), 16);
+}
+
+async function attempt(deps: ServiceDeps, batchId: string, job: JobContext | undefined, options: Omit<IngestOptions, 'job'>): Promise<{ state: string }> {
   const { db } = deps;
   const batch = await getBatch(db, batchId);
   if (!batch) throw new PermanentError('ingest_unknown_batch', `there is no batch ${batchId}`);
@@ -34,8 +45,13 @@ export async function processBatch(deps: ServiceDeps, batchId: string, job?: Job
   try {
     outcome = await ingestBatch(deps, { ...batch, state: 'validating' }, { ...options, job });
   } catch (err) {
+    const now = await getBatch(db, batchId).catch(() => null);
+    if (now?.state === 'loaded') {
+      await queueRecompute(deps, batchId); // another attempt loaded it meanwhile
+      return { state: now.state };
+    }
     const permanent = err instanceof PermanentError || isIntegrityViolation(err);
-    const lastTry = deps.queue.kind === 'in-process' || (job?.attempt ?? 1) >= deps.config.jobAttempts;
+    const lastTry = deps.queue.kind === 'in-process' || (job?.attempt ?? 1) >= (job?.maxAttempts ?? deps.config.jobAttempts);
     if (permanent || lastTry) await markBatchFailed(db, batchId, oneLine(err)).catch(() => {});
     if (permanent && !(err instanceof PermanentError)) throw new PermanentError('ingest_failed', `batch ${batchId} could not be loaded: ${oneLine(err)}`, { cause: err });
     throw err;

@@ -17,11 +17,16 @@ function copyText(s: string): string {
   return /[\\\t\n\r]/.test(s) ? s.replace(/\\/g, '\\\\').replace(/\t/g, '\\t').replace(/\n/g, '\\n').replace(/\r/g, '\\r') : s;
 }
 
-const CHUNK_CHARS = 256 * 1024;
+// Below V8's large-object size (about 128 KB), so a chunk dies young instead of growing the old generation.
+const CHUNK_CHARS = 64 * 1024;
 
-/** PostgreSQL: one COPY … FROM STDIN fed while validation runs (the server inserts on its own core). */
+/**
+ * PostgreSQL: one COPY … FROM STDIN fed while validation runs (the server inserts on its own core).
+ * Each 64 KB chunk is encoded to a Buffer as soon as it is full: COPY is the slower side, so chunks
+ * queue, and queued strings would be promoted to V8's old generation and pile up there as garbage.
+ */
 export function copySink(tx: Tx): StemSink {
-  const channel = new Channel<string>(8);
+  const channel = new Channel<Buffer>(16);
   let buf = '';
   let stopped = false;
   const copying = copyStems(tx, channel).catch((err) => {
@@ -37,7 +42,7 @@ export function copySink(tx: Tx): StemSink {
       if (stopped) return undefined;
       buf += `${visitId}\t${copyText(treeId)}\t${species === null ? '\\N' : copyText(species)}\t${dbhCm}\t${heightM === null ? '\\N' : heightM}\t${status}\t${stumpCause ?? '\\N'}\t${fireDamage}\t${inSubplot ? 't' : 'f'}\n`;
       if (buf.length < CHUNK_CHARS) return undefined;
-      const chunk = buf;
+      const chunk = Buffer.from(buf, 'utf8');
       buf = '';
       return channel.push(chunk);
     },
@@ -46,7 +51,7 @@ export function copySink(tx: Tx): StemSink {
       buf = '';
     },
     async finish() {
-      if (buf.length) await channel.push(buf);
+      if (buf.length) await channel.push(Buffer.from(buf, 'utf8'));
       buf = '';
       channel.close();
       await copying;

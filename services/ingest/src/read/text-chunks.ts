@@ -14,8 +14,10 @@ export function firstInvalidUtf8(buf: Uint8Array, from = 0): number {
     }
     const need = b >= 0xc2 && b <= 0xdf ? 1 : b >= 0xe0 && b <= 0xef ? 2 : b >= 0xf0 && b <= 0xf4 ? 3 : -1;
     if (need < 0) return i;
-    if (i + need >= buf.length) return -1; // cut at the chunk end: the next chunk decides
-    for (let k = 1; k <= need; k++) if ((buf[i + k] & 0xc0) !== 0x80) return i;
+    for (let k = 1; k <= need; k++) {
+      if (i + k >= buf.length) return -1; // cut at the chunk end: the next chunk decides
+      if ((buf[i + k] & 0xc0) !== 0x80) return i;
+    }
     i += need + 1;
   }
   return -1;
@@ -33,9 +35,9 @@ function countNewlines(buf: Uint8Array, end: number): number {
  * FileProblem for a damaged gzip file or text that is not UTF-8, naming the line.
  */
 export async function* textChunks(filePath: string, gzip: boolean, onBytes: (n: number) => void): AsyncGenerator<string> {
-  const raw = fs.createReadStream(filePath, { highWaterMark: 256 * 1024 });
+  const raw = fs.createReadStream(filePath, { highWaterMark: 64 * 1024 });
   raw.on('data', (b) => onBytes(b.length));
-  const source: AsyncIterable<Buffer> = gzip ? raw.pipe(createGunzip({ chunkSize: 128 * 1024 })) : raw;
+  const source: AsyncIterable<Buffer> = gzip ? raw.pipe(createGunzip({ chunkSize: 64 * 1024 })) : raw;
   if (gzip) raw.on('error', (err) => (source as NodeJS.ReadWriteStream).emit('error', err));
   const decoder = new TextDecoder('utf-8', { fatal: true });
   let first = true;

@@ -20,6 +20,11 @@ export interface TreesInput {
   species: SpeciesIndex | null;
   /** False when plots.csv could not be read: stems are then not checked against plots at all. */
   plotsReadable: boolean;
+  /**
+   * Check duplicate tree ids here (a 12-byte hash per stem). When false, the database's unique
+   * constraint on (visit, tree) catches them during the load, and the caller checks again with this on.
+   */
+  checkDuplicates: boolean;
 }
 
 export interface NameTally {
@@ -50,7 +55,7 @@ export async function validateTrees(ctx: ValidationContext, src: TableSource, in
   const stats: TableStats = { rows: 0, badRows: 0, fatal: false };
   const { plots, sink } = input;
   const stored = new Map<string, PlotEntry | null>();
-  const seen = new KeySet(1 << 16);
+  const seen = input.checkDuplicates ? new KeySet(1 << 16) : null;
   const names = new Map<string, NameTally | null>();
   const skipInvalid = ctx.options.skip_invalid;
   let stemsLoaded = 0;
@@ -85,7 +90,7 @@ export async function validateTrees(ctx: ValidationContext, src: TableSource, in
         stemsOverMm: 0,
       });
     }
-    for (const t of found.treeIds) seen.add(`${t.plotKey}\u0000${t.treeId}`, -1);
+    if (seen) for (const t of found.treeIds) seen.add(`${t.plotKey}\u0000${t.treeId}`, -1);
   };
 
   const read = readTable(
@@ -189,7 +194,7 @@ export async function validateTrees(ctx: ValidationContext, src: TableSource, in
         }
         if (tally !== null) tally.stems++;
       }
-      if (typeof plotKey === 'string' && typeof treeId === 'string') {
+      if (seen && typeof plotKey === 'string' && typeof treeId === 'string') {
         const first = seen.add(`${plotKey}\u0000${treeId}`, line);
         if (first !== 0) {
           log.add(
