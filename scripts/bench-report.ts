@@ -1,8 +1,11 @@
 // Benchmark of the region summary endpoint: 100 concurrent keep-alive connections for 10 s on
-// loopback against GET /v1/regions/:region/summary; prints requests/s and latency percentiles.
-// Target: p99 under 50 ms.
+// loopback against GET /v1/regions/:region/summary; prints requests/s and latency percentiles as the
+// client sees them and as the server measures them. Target: p99 under 50 ms.
 //
-//   npx tsx scripts/bench-report.ts [--connections 100] [--seconds 10] [--plots 600]
+//   npx tsx scripts/bench-report.ts [--connections 100] [--seconds 10] [--plots 600] [--healthz] [--profile]
+//
+// --healthz drives /healthz instead (the floor of this machine and client); --profile writes a CPU
+// profile of the server process to /tmp/report-prof.
 //
 // The server runs in a child process (so the load loop does not share its event loop) on its own
 // database: a scratch database created on the PostgreSQL server of DATABASE_URL (dropped at the end),
@@ -19,7 +22,7 @@ import { Pool } from 'undici';
 import pg from 'pg';
 import { createLogger, InProcessQueue, loadConfig } from '@stemwise/platform';
 import { markStale, migrateDatabase, openDatabase, syncForestTypes, type ServiceDeps } from '@stemwise/db';
-import { createProcessors, startReportServer } from '@stemwise/report';
+import { buildServer, createProcessors } from '@stemwise/report';
 import { jobContext, seedForestArea, seedPlots, seedRun, seedSpecies, type FixturePlot } from '../test/report/fixture';
 import { createToken } from '../test/report/tokens';
 
@@ -107,10 +110,19 @@ async function serve(plots: number): Promise<void> {
   const deps: ServiceDeps = { config, db, log, queue: new InProcessQueue(log) };
   await createProcessors(deps)['report.summaries']!({ runId: await seedRun(db) }, jobContext(log));
   const token = (await createToken(db, 'reader', [REGION], 'bench')).token;
-  const server = await startReportServer(deps, { host: '127.0.0.1', port: 0 });
-  process.stdout.write(JSON.stringify({ url: server.url, token }) + '\n');
+  const app = await buildServer(deps);
+  // Server-side time of each answer (request received → response written), free of the client's scheduling.
+  let serverTimes: number[] = [];
+  app.addHook('onResponse', async (_request, reply) => void serverTimes.push(reply.elapsedTime));
+  await app.listen({ host: '127.0.0.1', port: 0 });
+  const { port } = app.server.address() as { port: number };
+  process.on('message', (m) => {
+    if (m === 'reset') serverTimes = [];
+    if (m === 'stats') process.send!(serverTimes);
+  });
+  process.stdout.write(JSON.stringify({ url: `http://127.0.0.1:${port}`, token }) + '\n');
   const stop = async () => {
-    await server.close();
+    await app.close();
     await db.close();
     await dropDb();
     if (dataDir) fs.rmSync(dataDir, { recursive: true, force: true });
@@ -128,10 +140,10 @@ function percentile(sorted: Float64Array, p: number): number {
 /** Parent: start the child, drive the load, print the figures. */
 async function load(connections: number, seconds: number, plots: number): Promise<void> {
   const script = fileURLToPath(import.meta.url);
-  const child = spawn(process.execPath, [...(process.argv.includes('--profile') ? ['--cpu-prof', '--cpu-prof-dir=/tmp/report-prof'] : []), '--import', 'tsx', script, '--serve', '--plots', String(plots)], { stdio: ['ignore', 'pipe', 'inherit'] });
+  const child = spawn(process.execPath, [...(process.argv.includes('--profile') ? ['--cpu-prof', '--cpu-prof-dir=/tmp/report-prof'] : []), '--import', 'tsx', script, '--serve', '--plots', String(plots)], { stdio: ['ignore', 'pipe', 'inherit', 'ipc'] });
   const ready = await new Promise<{ url: string; token: string }>((resolve, reject) => {
     let out = '';
-    child.stdout.on('data', (d: Buffer) => {
+    child.stdout!.on('data', (d: Buffer) => {
       out += d.toString();
       const line = out.split('\n').find((l) => l.startsWith('{'));
       if (line) resolve(JSON.parse(line));
@@ -148,6 +160,7 @@ async function load(connections: number, seconds: number, plots: number): Promis
     if (first.statusCode !== 200) throw new Error(`warm-up answered ${first.statusCode}`);
     await Promise.all(Array.from({ length: connections }, async () => (await pool.request({ path: pathName, method: 'GET', headers })).body.dump()));
 
+    child.send('reset');
     const latencies: number[] = [];
     let failures = 0;
     const end = performance.now() + seconds * 1000;
@@ -169,13 +182,20 @@ async function load(connections: number, seconds: number, plots: number): Promis
     );
     const elapsed = (performance.now() - t0) / 1000;
     const sorted = Float64Array.from(latencies).sort();
+    const server = await new Promise<number[]>((resolve) => {
+      child.once('message', (m) => resolve(m as number[]));
+      child.send('stats');
+    });
+    const serverSorted = Float64Array.from(server).sort();
     const fmt = (v: number) => `${v.toFixed(2)} ms`;
     const p99 = percentile(sorted, 99);
     process.stdout.write(
       [
         `region summary endpoint (GET ${pathName}, ${bytes} bytes JSON, ${plots} plots): ${connections} connections, ${elapsed.toFixed(1)} s on loopback`,
         `  requests/s  ${(latencies.length / elapsed).toFixed(0)}   (${latencies.length} requests, ${failures} failed)`,
-        `  latency     p50 ${fmt(percentile(sorted, 50))}   p90 ${fmt(percentile(sorted, 90))}   p99 ${fmt(p99)}   max ${fmt(sorted[sorted.length - 1])}`,
+        `  latency     p50 ${fmt(percentile(sorted, 50))}   p90 ${fmt(percentile(sorted, 90))}   p99 ${fmt(p99)}   max ${fmt(sorted[sorted.length - 1])}   (seen by the client)`,
+        `  in server   p50 ${fmt(percentile(serverSorted, 50))}   p90 ${fmt(percentile(serverSorted, 90))}   p99 ${fmt(percentile(serverSorted, 99))}   max ${fmt(serverSorted[serverSorted.length - 1])}   (request received → answer written)`,
+        `  load average at the end: ${os.loadavg().map((l) => l.toFixed(1)).join(' ')} on ${os.cpus().length} cores (client and server share them)`,
         `  target p99 < 50 ms: ${p99 < 50 ? 'met' : 'NOT met'}`,
         '',
       ].join('\n'),

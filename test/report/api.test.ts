@@ -163,6 +163,46 @@ describe('report API', () => {
     }
   });
 
+  it('serves regions whose names need escaping in a URL (slash, accents, spaces)', async () => {
+    const name = 'Vale/Östra Kulle';
+    await seedPlots(s.db, [
+      { key: 'VK-1', region: name, forestType: 'wet', metrics: { basal_area_m2_ha: 9, fisher_alpha: 3, disturbance_index: 0.1 } },
+      { key: 'VK-2', region: name, forestType: 'wet', metrics: { basal_area_m2_ha: 11, fisher_alpha: 4, disturbance_index: 0.2 } },
+    ]);
+    await markStale(s.db, 'summary', [name]);
+    await summaries();
+    const list = (await app.inject({ url: '/v1/regions', headers: auth })).json() as { regions: Array<{ region: string; links: { summary: string; page: string } }> };
+    const entry = list.regions.find((r) => r.region === name)!;
+    expect(entry.links.summary).toBe('/v1/regions/Vale%2F%C3%96stra%20Kulle/summary');
+    const res = await app.inject({ url: entry.links.summary, headers: auth });
+    expect(res.statusCode).toBe(200);
+    expect(res.json().summary.rows[0]).toMatchObject({ region: name, forest_type: 'all', variable: 'stems_ha' });
+    const page = await app.inject({ url: entry.links.page, headers: auth });
+    expect(page.statusCode).toBe(200);
+    expect(page.body).toContain('Region Vale/Östra Kulle');
+  });
+
+  it('keeps serving known summaries to known tokens while the database does not answer', async () => {
+    let down = false;
+    const flaky = { ...s.db, query: ((text: string, params?: readonly unknown[]) => (down ? Promise.reject(new Error('connection refused')) : s.db.query(text, params))) as typeof s.db.query };
+    const srv = await buildServer({ ...deps, db: flaky }, { tokenCacheMs: 1, summaryCheckMs: 0, auditFlushMs: 60_000 });
+    try {
+      const before = await srv.inject({ url: '/v1/regions/Southmere/summary', headers: auth });
+      expect(before.statusCode).toBe(200);
+      down = true;
+      await new Promise((r) => setTimeout(r, 5));
+      const during = await srv.inject({ url: '/v1/regions/Southmere/summary', headers: auth });
+      expect(during.statusCode).toBe(200);
+      expect(during.headers.etag).toBe(before.headers.etag);
+      expect((await srv.inject({ url: '/readyz' })).statusCode).toBe(503);
+      const stranger = await srv.inject({ url: '/v1/regions', headers: { authorization: `Bearer swt_${'x'.repeat(43)}` } });
+      expect(stranger.statusCode).toBe(500); // an unknown token cannot be checked: refused, never admitted
+    } finally {
+      down = false;
+      await srv.close();
+    }
+  });
+
   it('answers unknown routes and bad parameters with JSON errors', async () => {
     const nf = await app.inject({ url: '/v1/nothing', headers: auth });
     expect(nf.statusCode).toBe(404);

@@ -92,5 +92,5 @@ export async function seedRun(db: Queryable): Promise<string> {
 }
 
 export function jobContext(log: Logger, jobId = 'report.summaries.test'): JobContext {
-  return { jobId, name: 'report.summaries', attempt: 1, log, queue: new InProcessQueue(log), progress: async () => {} };
+  return { jobId, name: 'report.summaries', attempt: 1, maxAttempts: 1, log, queue: new InProcessQueue(log), progress: async () => {} };
 }

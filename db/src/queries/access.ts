@@ -42,6 +42,16 @@ export async function findAccessTokenByHash(db: Queryable, tokenHash: string): P
   return rows.length ? toToken(rows[0]) : null;
 }
 
+/** The tokens with these hashes (for re-checking many remembered tokens in one query). */
+export async function findAccessTokensByHashes(db: Queryable, tokenHashes: readonly string[]): Promise<Map<string, AccessTokenRow>> {
+  if (!tokenHashes.length) return new Map();
+  const rows = await db.query<RawToken & { token_hash: string }>(
+    `select token_hash, id, role, regions, label, created_at, revoked_at from access_tokens where token_hash = any($1::text[])`,
+    [tokenHashes],
+  );
+  return new Map(rows.map((r) => [r.token_hash, toToken(r)]));
+}
+
 export async function listAccessTokens(db: Queryable): Promise<AccessTokenRow[]> {
   return (await db.query<RawToken>(`select id, role, regions, label, created_at, revoked_at from access_tokens order by created_at, id`)).map(toToken);
 }

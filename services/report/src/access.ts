@@ -1,5 +1,5 @@
 import crypto from 'node:crypto';
-import { findAccessTokenByHash, type Queryable, type TokenRole } from '@stemwise/db';
+import { findAccessTokenByHash, findAccessTokensByHashes, type Queryable, type TokenRole } from '@stemwise/db';
 
 // Who may do what (documented in the README's access section):
 //  - admin:    everything: every region, every batch, submitting batches.
@@ -55,14 +55,29 @@ export function canReadBatch(p: Principal, submittedBy: string): boolean {
   return p.role === 'admin' || (p.role === 'uploader' && submittedBy === p.tokenId);
 }
 
+/** How long a token check is trusted while the database does not answer. */
+const STALE_IF_ERROR_MS = 60_000;
+
 export type Verification = { ok: true; principal: Principal } | { ok: false; reason: 'unknown' | 'revoked' | 'malformed'; tokenId?: string };
 
+type Row = Awaited<ReturnType<typeof findAccessTokenByHash>>;
+
+function verdict(row: Row): Verification {
+  if (!row) return { ok: false, reason: 'unknown' };
+  if (row.revokedAt) return { ok: false, reason: 'revoked', tokenId: row.id };
+  return { ok: true, principal: { tokenId: row.id, role: row.role, regions: row.role === 'reader' ? row.regions : [] } };
+}
+
 /**
- * Verifies tokens against the database, remembering each answer for `ttlMs` (default 1 s) so a busy
- * endpoint does not query per request; a revocation therefore takes effect within that time.
+ * Verifies tokens against the database and remembers each answer; a remembered answer is used while
+ * it is younger than `ttlMs` (default 1 s). With `start()`, a background timer re-checks every
+ * remembered token in one query every ttlMs/2, so requests do not wait on the database and a
+ * revocation still takes effect within about a second.
  */
 export class TokenVerifier {
-  private readonly cache = new Map<string, { at: number; result: Verification }>();
+  private readonly cache = new Map<string, { hash: string; at: number; result: Verification }>();
+  private timer: NodeJS.Timeout | null = null;
+  private refreshing: Promise<void> | null = null;
 
   constructor(
     private readonly db: Queryable,
@@ -70,21 +85,51 @@ export class TokenVerifier {
     private readonly maxEntries = 10_000,
   ) {}
 
+  /** Starts the background re-check (no-op when answers are not remembered). */
+  start(): this {
+    if (this.ttlMs > 0 && !this.timer) {
+      this.timer = setInterval(() => void this.refresh().catch(() => {}), Math.max(50, this.ttlMs / 2));
+      this.timer.unref();
+    }
+    return this;
+  }
+
+  stop(): void {
+    if (this.timer) clearInterval(this.timer);
+    this.timer = null;
+  }
+
+  /** Re-checks every remembered token in one query (entries stay as they were if the database fails). */
+  refresh(): Promise<void> {
+    this.refreshing ??= (async () => {
+      const entries = [...this.cache.entries()];
+      if (!entries.length) return;
+      const at = Date.now();
+      const rows = await findAccessTokensByHashes(this.db, entries.map(([, e]) => e.hash));
+      for (const [token, e] of entries) this.cache.set(token, { hash: e.hash, at, result: verdict(rows.get(e.hash) ?? null) });
+    })().finally(() => (this.refreshing = null));
+    return this.refreshing;
+  }
+
+  // Keyed by the token as presented (it is in memory for the request anyway): a hit costs no hashing.
   async verify(token: string): Promise<Verification> {
     if (!looksLikeToken(token)) return { ok: false, reason: 'malformed' };
-    const hash = hashToken(token);
     const now = Date.now();
-    const hit = this.cache.get(hash);
+    const hit = this.cache.get(token);
     if (hit && now - hit.at < this.ttlMs) return hit.result;
-    const row = await findAccessTokenByHash(this.db, hash);
-    const result: Verification = !row
-      ? { ok: false, reason: 'unknown' }
-      : row.revokedAt
-        ? { ok: false, reason: 'revoked', tokenId: row.id }
-        : { ok: true, principal: { tokenId: row.id, role: row.role, regions: row.role === 'reader' ? row.regions : [] } };
+    const hash = hit?.hash ?? hashToken(token);
+    let row: Row;
+    try {
+      row = await findAccessTokenByHash(this.db, hash);
+    } catch (err) {
+      // The database does not answer (restarting?): a recent answer stands for a while, else fail.
+      if (hit && now - hit.at < STALE_IF_ERROR_MS) return hit.result;
+      throw err;
+    }
+    const result = verdict(row);
     if (this.ttlMs > 0) {
       if (this.cache.size >= this.maxEntries) this.cache.clear();
-      this.cache.set(hash, { at: now, result });
+      this.cache.set(token, { hash, at: now, result });
     }
     return result;
   }

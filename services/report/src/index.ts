@@ -1,6 +1,6 @@
 export { createProcessors } from './processors';
 export { buildServer, startReportServer, type ReportServerOptions } from './server';
 export { writeRegionPages } from './static-pages';
-export { exportRegions, type ExportRegionsOptions } from './export-regions';
+export { exportRegions, listRegionExportRows, type ExportRegionsOptions } from './export-regions';
 export { assembleRegionSnapshot, refreshStaleSummaries } from './snapshots';
 export { newToken, hashToken, TOKEN_ROLES, type Principal } from './access';

@@ -1,5 +1,6 @@
 import { failRecomputeRun, finishRecomputeRun, mergeRunDetails, type ServiceDeps } from '@stemwise/db';
 import { parsePayload, PermanentError, type ProcessorMap } from '@stemwise/platform';
+import { queueFollowUp } from '@stemwise/compute/maintenance/follow-up';
 import { refreshStaleSummaries } from './snapshots';
 
 /** Advisory lock key: one summaries job at a time across all report workers (they write versions). */
@@ -30,6 +31,7 @@ export function createProcessors(deps: ServiceDeps): ProcessorMap {
         throw new PermanentError('summary_rejected', reason);
       }
       await finishRecomputeRun(db, runId);
+      await queueFollowUp({ ...deps, log: ctx.log }, runId); // what became stale during this run is the next run's
       ctx.log.info({ runId, ...details.summaries }, 'region summaries stored');
       return details.summaries;
     },

@@ -39,11 +39,15 @@ export async function buildServer(deps: ServiceDeps, options: ReportServerOption
 
   const ctx: RouteContext = {
     deps,
-    verifier: new TokenVerifier(deps.db, options.tokenCacheMs ?? 1000),
+    verifier: new TokenVerifier(deps.db, options.tokenCacheMs ?? 1000).start(),
     audit: new AuditWriter(deps.db, deps.log, options.auditFlushMs ?? 250),
-    cache: new SummaryCache(deps.db, options.summaryCheckMs ?? 1000),
+    cache: new SummaryCache(deps.db, options.summaryCheckMs ?? 1000).start(),
   };
-  app.addHook('onClose', async () => ctx.audit.close());
+  app.addHook('onClose', async () => {
+    ctx.verifier.stop();
+    ctx.cache.stop();
+    await ctx.audit.close();
+  });
 
   await app.register(fastifySwagger, {
     openapi: {
