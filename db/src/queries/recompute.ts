@@ -60,13 +60,32 @@ export async function startRecomputeRun(db: Db, trigger: 'nightly' | 'manual' | 
   });
 }
 
-/** Ends a run: marks it done and every loaded batch with no stale visit left as computed. */
+/**
+ * The run in progress (queued or running), or null. One run at a time: a planner that finds one leaves
+ * what is stale to the run that follows it, so no two runs compute the same visits at once.
+ */
+export async function runningRecompute(db: Queryable): Promise<string | null> {
+  const rows = await db.query<{ id: string }>(`select id from recompute_runs where state in ('queued','running') order by started_at desc limit 1`);
+  return rows[0]?.id ?? null;
+}
+
+/**
+ * Ends a run: marks it done, and as computed every loaded batch with nothing of it left to do — no
+ * stale visit, and no stale fits of its forest types or summaries of its regions.
+ */
 export async function finishRecomputeRun(db: Db, runId: string): Promise<void> {
   await db.transaction(async (tx) => {
     await tx.query(`update recompute_runs set state = 'done', finished_at = now() where id = $1`, [runId]);
     await tx.query(
       `update batches b set state = 'computed', updated_at = now()
-        where b.state = 'loaded' and not exists (select 1 from plot_visits v where v.batch_id = b.id and v.stale)`,
+        where b.state = 'loaded'
+          and not exists (select 1 from plot_visits v where v.batch_id = b.id and v.stale)
+          and not exists (
+            select 1 from plot_visits v
+              join plots p on p.id = v.plot_id
+              join regions r on r.id = p.region_id
+              join stale_work w on (w.kind = 'fits' and w.key = p.forest_type) or (w.kind = 'summary' and w.key = r.name)
+             where v.batch_id = b.id)`,
     );
   });
 }

@@ -1,4 +1,4 @@
-import { bigint, bigserial, boolean, check, date, doublePrecision, index, integer, pgTable, smallint, text, timestamp, unique, uuid } from 'drizzle-orm/pg-core';
+import { bigint, bigserial, boolean, check, date, doublePrecision, index, integer, pgTable, primaryKey, smallint, text, timestamp, unique, uuid } from 'drizzle-orm/pg-core';
 import { sql } from 'drizzle-orm';
 import { batches } from './batches';
 import { forestTypes } from './forest-types';
@@ -68,7 +68,6 @@ export const plotVisits = pgTable(
 export const stems = pgTable(
   'stems',
   {
-    id: bigserial('id', { mode: 'number' }).primaryKey(),
     visitId: bigint('visit_id', { mode: 'number' })
       .notNull()
       .references(() => plotVisits.id, { onDelete: 'cascade' }),
@@ -82,7 +81,8 @@ export const stems = pgTable(
     inSubplot: boolean('in_subplot').notNull().default(false),
   },
   (t) => [
-    unique('stems_visit_tree_uq').on(t.visitId, t.treeId),
+    // The natural key is the primary key: no surrogate id, so a bulk COPY maintains one index fewer.
+    primaryKey({ name: 'stems_pkey', columns: [t.visitId, t.treeId] }),
     check('stems_tree_id_chk', sql`char_length(${t.treeId}) between 1 and 64`),
     check('stems_dbh_chk', sql`${t.dbhCm} > 0 and ${t.dbhCm} <= 500`),
     check('stems_height_chk', sql`${t.heightM} is null or (${t.heightM} > 1.3 and ${t.heightM} <= 100)`),

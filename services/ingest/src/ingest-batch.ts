@@ -46,7 +46,7 @@ export interface IngestOptions {
 /** The load met a duplicate (visit, tree) the in-memory checks were told to leave to the database. */
 function isDuplicateStem(err: unknown): boolean {
   const e = err as { code?: string; constraint?: string };
-  return e?.code === '23505' && e.constraint === 'stems_visit_tree_uq';
+  return e?.code === '23505' && e.constraint === 'stems_pkey';
 }
 
 /** Thrown inside the load transaction to roll it back when the batch turns out to be rejected. */
