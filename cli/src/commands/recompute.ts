@@ -27,7 +27,7 @@ export async function run(args: string[], rt: Runtime): Promise<number> {
     const { processors, queues, missing } = await availableProcessors(deps);
     await deps.queue.work(processors, { queues });
     const plan = await planRecompute(deps, 'manual', all);
-    if (!plan) return nothingStale();
+    if (!plan) return nothingStale(deps);
     const failures = await deps.queue.drain();
     await printRun(deps, plan.runId);
     const noSummaries = failures.filter((f) => f.name === 'report.summaries' && /no processor/.test(f.error));
@@ -51,7 +51,7 @@ export async function run(args: string[], rt: Runtime): Promise<number> {
   }
 
   const plan = await planRecompute(deps, 'manual', all);
-  if (!plan) return nothingStale();
+  if (!plan) return nothingStale(deps);
   process.stderr.write(`stemwise: run ${plan.runId} queued (${plan.visits} plot visits in ${plan.chunks} chunks); waiting for the workers\n`);
   const stages: Array<[string, JobName, string]> = [
     [`plots.${plan.runId}`, 'compute.plots', 'plot metrics'],
@@ -84,8 +84,11 @@ export async function run(args: string[], rt: Runtime): Promise<number> {
   return 0;
 }
 
-function nothingStale(): number {
-  process.stdout.write('nothing stale\n');
+/** No run was planned: nothing is stale, or a run is in progress and the run after it takes what is stale now. */
+async function nothingStale(deps: ServiceDeps): Promise<number> {
+  const { liveRecompute } = await import('@stemwise/compute/maintenance/live-run');
+  const running = await liveRecompute(deps);
+  process.stdout.write(running ? `run ${running} is in progress; what is stale now is recomputed by the run that follows it\n` : 'nothing stale\n');
   return 0;
 }
 

@@ -1,4 +1,4 @@
-import { FlowProducer, Queue, UnrecoverableError, Worker, type FlowJob, type Job, type JobsOptions } from 'bullmq';
+import { FlowProducer, Job, Queue, UnrecoverableError, Worker, type FlowJob, type JobsOptions } from 'bullmq';
 import { Redis } from 'ioredis';
 import type { Logger } from '../logger';
 import { PermanentError, ServiceUnavailableError, oneLine } from '../errors';
@@ -115,6 +115,7 @@ export class BullQueue implements JobQueue {
               jobId: job.id ?? '',
               name,
               attempt: job.attemptsMade + 1,
+              maxAttempts: job.opts.attempts ?? 1,
               log,
               queue: this,
               progress: (value) => job.updateProgress(value),
@@ -135,9 +136,12 @@ export class BullQueue implements JobQueue {
         },
       );
       worker.on('error', (err) => this.options.log.error({ err, queue: queueName }, 'worker error'));
-      worker.on('failed', (job, err) =>
-        this.options.log.error({ queue: queueName, jobId: job?.id, jobName: job?.name, reason: err.message }, 'job failed'),
-      );
+      // BullMQ emits 'failed' for every failed attempt; a job that will be tried again is delayed, not finished.
+      worker.on('failed', (job, err) => {
+        const where = { queue: queueName, jobId: job?.id, jobName: job?.name, attempt: job?.attemptsMade, reason: err.message };
+        if (job && !job.finishedOn) this.options.log.warn({ ...where, retryInMs: job.delay }, 'job will be retried');
+        else this.options.log.error(where, 'job failed');
+      });
       this.workers.push(worker);
     }
   }
@@ -216,18 +220,29 @@ export class BullQueue implements JobQueue {
     await Promise.all(this.workers.map((w) => w.pause(true)));
     const deadline = Date.now() + graceMs;
     while (this.running.size && Date.now() < deadline) await new Promise((r) => setTimeout(r, 50));
+    if (!this.running.size) {
+      await this.shut(false);
+      return { handedBack: [] };
+    }
+    // Close the workers first (no fetch in flight could take the job again, no more lock renewal), then
+    // move each job still running back to waiting through its queue, with the lock token this worker holds.
+    const stuck = [...this.running.values()];
+    await Promise.all(this.workers.map((w) => w.close(true)));
     const handedBack: string[] = [];
-    for (const [key, { job, token }] of this.running) {
+    for (const { job, token } of stuck) {
+      const where = { queue: job.queueName, jobId: job.id, jobName: job.name };
       try {
-        await job.moveToWait(token);
-        handedBack.push(job.id ?? key);
-        this.options.log.warn({ queue: job.queueName, jobId: job.id, jobName: job.name }, 'job handed back to the queue (the worker is stopping)');
+        const fresh = await Job.fromId(this.queue(job.queueName as QueueName), job.id!);
+        if (!fresh) throw new Error('the job is gone from the queue');
+        await fresh.moveToWait(token);
+        handedBack.push(job.id!);
+        this.options.log.warn(where, 'job handed back to the queue (the worker is stopping)');
       } catch (err) {
-        // Its lock is gone already: BullMQ's stalled-job check gives it to another worker.
-        this.options.log.warn({ err, queue: job.queueName, jobId: job.id, jobName: job.name }, 'could not hand back a running job');
+        // Its lock expires instead, and BullMQ's stalled-job check gives it to another worker.
+        this.options.log.warn({ ...where, err }, 'could not hand back a running job');
       }
     }
-    await this.shut(handedBack.length > 0 || this.running.size > 0);
+    await this.shut(true);
     return { handedBack };
   }
 

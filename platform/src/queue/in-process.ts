@@ -80,7 +80,7 @@ export class InProcessQueue implements JobQueue {
       this.states.set(jobId, 'active');
       const log = this.log.child({ queue: queueOf(name), jobId, jobName: name });
       try {
-        await processor(spec.data, { jobId, name, attempt: 1, log, queue: this, progress: async () => {} });
+        await processor(spec.data, { jobId, name, attempt: 1, maxAttempts: 1, log, queue: this, progress: async () => {} });
         this.states.set(jobId, 'completed');
       } catch (err) {
         log.error({ err }, 'job failed');

@@ -14,6 +14,8 @@ export interface JobContext {
   jobId: string;
   name: JobName;
   attempt: number;
+  /** Attempts this job has in all (set by whoever queued it); `attempt >= maxAttempts` is its last try. */
+  maxAttempts?: number;
   log: Logger;
   queue: JobQueue;
   progress(value: number | Record<string, number>): Promise<void>;

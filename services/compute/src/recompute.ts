@@ -5,12 +5,14 @@ import {
   getRecomputeRun,
   listStaleVisits,
   markOutdatedSpeciesVisitsStale,
+  markVisitsStale,
   mergeRunDetails,
   startRecomputeRun,
   type ServiceDeps,
 } from '@stemwise/db';
 import type { JobSpec } from '@stemwise/platform';
 import { refitHeightModels, type HeightModelChange } from './height-models';
+import { liveRecompute } from './maintenance/live-run';
 
 export type RecomputeTrigger = 'nightly' | 'manual' | 'batch' | 'reconcile';
 
@@ -60,6 +62,15 @@ export function recomputeFlow(runId: string, visitIds: readonly number[], chunkP
 export async function planRecompute(deps: ServiceDeps, trigger: RecomputeTrigger, all = false): Promise<RecomputePlan | null> {
   const { db, config, log, queue } = deps;
   return db.withLock(PLAN_LOCK, async () => {
+    // One run at a time: while one runs, what is stale now is left to the run that follows it (queued
+    // when it ends, see maintenance/follow-up.ts), so no two runs compute the same visits at once.
+    const running = await liveRecompute(deps);
+    if (running) {
+      if (all) await markVisitsStale(db, 'all');
+      await mergeRunDetails(db, running, { deferred: trigger });
+      log.info({ trigger, runningRunId: running }, 'a recompute is running; what is stale now is computed by the run that follows it');
+      return null;
+    }
     const outdatedSpecies = await markOutdatedSpeciesVisitsStale(db, await currentSpeciesVersion(db));
     const types = all ? await forestTypesWithPlots(db) : await forestTypesWithStaleVisits(db);
     const heightModels = await refitHeightModels(db, types, config.minHeights);

@@ -1,6 +1,6 @@
-import { failRecomputeRun, hasStaleWork, listRunningRecomputes, listUnfinishedBatches, markBatchFailed, type ServiceDeps } from '@stemwise/db';
-import type { JobState } from '@stemwise/platform';
+import { failRecomputeRun, hasStaleWork, listUnfinishedBatches, markBatchFailed, type ServiceDeps } from '@stemwise/db';
 import { PLAN_LOCK } from '../recompute';
+import { LIVE_STATES as LIVE, runsInProgress } from './live-run';
 import { ensureSchedules } from './schedules';
 
 export interface ReconcileReport {
@@ -11,8 +11,6 @@ export interface ReconcileReport {
   /** Schedules registered again (Redis lost them, or their settings changed). */
   schedulesRegistered: string[];
 }
-
-const LIVE: readonly JobState[] = ['waiting', 'active', 'delayed', 'waiting-children'];
 
 /** Id of the recompute the reconciler queues: one per minute, so workers reconciling at once queue it once. */
 export function reconcileJobId(now: Date): string {
@@ -47,8 +45,7 @@ export async function reconcile(deps: ServiceDeps, now = new Date()): Promise<Re
 
   await db.withLock(PLAN_LOCK, async () => {
     let running = false;
-    for (const runId of await listRunningRecomputes(db)) {
-      const state = await queue.state(`summaries.${runId}`, 'report.summaries');
+    for (const { runId, state } of await runsInProgress(deps)) {
       if (LIVE.includes(state)) {
         running = true;
         continue;
