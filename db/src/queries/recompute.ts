@@ -61,15 +61,6 @@ export async function startRecomputeRun(db: Db, trigger: 'nightly' | 'manual' | 
 }
 
 /**
- * The run in progress (queued or running), or null. One run at a time: a planner that finds one leaves
- * what is stale to the run that follows it, so no two runs compute the same visits at once.
- */
-export async function runningRecompute(db: Queryable): Promise<string | null> {
-  const rows = await db.query<{ id: string }>(`select id from recompute_runs where state in ('queued','running') order by started_at desc limit 1`);
-  return rows[0]?.id ?? null;
-}
-
-/**
  * Ends a run: marks it done, and as computed every loaded batch with nothing of it left to do — no
  * stale visit, and no stale fits of its forest types or summaries of its regions.
  */
