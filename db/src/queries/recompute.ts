@@ -22,10 +22,15 @@ export async function listStaleVisits(db: Queryable): Promise<number[]> {
   return rows.map((r) => Number(r.id));
 }
 
+/**
+ * Marks fits or summaries as due. A mark set again moves its time forward, so a stage that started
+ * before it (and clears only marks no newer than its start) leaves it for the next run.
+ */
 export async function markStale(db: Queryable, kind: StaleKind, keys: readonly string[]): Promise<void> {
   if (!keys.length) return;
   await db.query(
-    `insert into stale_work (kind, key) select $1, k from unnest($2::text[]) k on conflict (kind, key) do nothing`,
+    `insert into stale_work (kind, key, since) select $1, k, clock_timestamp() from unnest($2::text[]) k
+     on conflict (kind, key) do update set since = greatest(stale_work.since, excluded.since)`,
     [kind, keys],
   );
 }
