@@ -44,13 +44,13 @@ export async function run(args: string[], rt: Runtime): Promise<number> {
     if (queue.kind === 'bullmq') log.info({ cron: config.nightlyCron, timezone: config.timezone }, 'nightly recompute scheduled');
   }
 
-  let server: { close(): Promise<unknown> } | null = null;
+  let server: { url: string; close(): Promise<unknown> } | null = null;
   if (services.includes('report')) {
-    const { startReportServer } = (await import('@stemwise/report')) as { startReportServer: (d: ServiceDeps) => Promise<{ close(): Promise<unknown> }> };
+    const { startReportServer } = await import('@stemwise/report');
     server = await startReportServer(deps);
   }
-  log.info({ services, queues, queue: queue.kind }, 'serving');
-  process.stderr.write(`stemwise: serving ${services.join(', ')} (queues: ${queues.join(', ')}; ${queue.kind})\n`);
+  log.info({ services, queues, queue: queue.kind, url: server?.url }, 'serving');
+  process.stderr.write(`stemwise: serving ${services.join(', ')} (queues: ${queues.join(', ')}; ${queue.kind})${server ? ` at ${server.url}` : ''}\n`);
 
   // Graceful stop: take no new jobs, let running ones finish for STEMWISE_STOP_GRACE_SECONDS, hand back
   // (to the queue, for another worker) those still running, close. A second signal ends the process at
