@@ -5,7 +5,6 @@ export { refitHeightModels, HEIGHT_MODEL_FORM, type HeightModelChange } from './
 export { storeFits, refreshStaleFits, fitForestType, MIN_REGION_PLOTS, type FitSettings } from './fits';
 export { FITTABLE_COLUMNS, checkFitColumn } from './fit-columns';
 export { currentSpecies } from './species-cache';
-export * from './export/format';
 export { writeExport, type ExportTarget } from './export/sink';
 export { exportPlots, plotExportItems, PLOT_EXPORT_COLUMNS, PLOT_EXPORT_FORMATS, type PlotExportFormat, type ExportSummary } from './export/plots';
 export { exportFits, FIT_EXPORT_FORMATS, type FitExportFormat } from './export/fits';

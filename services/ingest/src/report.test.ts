@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { csvCell } from './report';
+import { csvCell } from '@stemwise/platform';
 
 describe('csvCell', () => {
   it('keeps cells a spreadsheet would run as formulas as text (a leading apostrophe)', () => {

@@ -1,4 +1,5 @@
 import { getBatch, listBatchIssues, listUnresolvedNames, type BatchFile, type BatchOptions, type BatchState, type Queryable } from '@stemwise/db';
+import { csvCell } from '@stemwise/platform';
 import { OMITTED_MARK } from './issues';
 import { ALL_RULES, ruleByCode } from './rules/catalogue';
 
@@ -97,17 +98,6 @@ export async function batchReport(db: Queryable, id: string, perRule = 5): Promi
     issues,
     unresolvedNames: await listUnresolvedNames(db, id),
   };
-}
-
-/**
- * A CSV cell. Cells a spreadsheet would run as a formula (starting with = + - @, a tab, a carriage
- * return or another control character) get a leading apostrophe, so a crafted value stays text.
- */
-export function csvCell(value: string | number | null): string {
-  if (value === null) return '';
-  let s = String(value);
-  if (/^[=+\-@\u0000-\u001f]/.test(s)) s = `'${s}`;
-  return /[",\n\r]/.test(s) ? `"${s.replace(/"/g, '""')}"` : s;
 }
 
 export const ISSUES_CSV_COLUMNS = ['severity', 'rule', 'file', 'line', 'column', 'value', 'message'] as const;

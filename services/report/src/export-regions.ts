@@ -1,6 +1,6 @@
 import { countStaleVisits, listLatestSnapshots, listRegionNames, regionExists, type Queryable, type ServiceDeps } from '@stemwise/db';
 import { StemwiseError } from '@stemwise/platform';
-import { encodeTable, type Row } from '@stemwise/compute/export/format';
+import { encodeTable, type Row } from '@stemwise/platform';
 import { writeExport, type ExportTarget } from '@stemwise/compute/export/sink';
 import type { SnapshotPayload } from './snapshot-payload';
 import { REGION_COLUMNS, type RegionRow } from './summary/types';

@@ -1,4 +1,4 @@
-import { csvHeader, csvLine, type Row } from '@stemwise/compute/export/format';
+import { csvHeader, csvLine, type Row } from '@stemwise/platform';
 import { REGION_COLUMNS } from './summary/types';
 import type { Snapshot } from './snapshot-payload';
 

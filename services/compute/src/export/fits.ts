@@ -3,7 +3,7 @@ import type { Logger } from '@stemwise/platform';
 import { checkFitColumn } from '../fit-columns';
 import { fitForestType, storeFits, toFitRow } from '../fits';
 import { FIT_COLUMNS, fitRows, type FitRow } from '../science/verdict';
-import { encodeTable } from './format';
+import { encodeTable } from '@stemwise/platform';
 import { writeExport, type ExportTarget } from './sink';
 
 export const FIT_EXPORT_FORMATS = ['csv', 'json'] as const;

@@ -1,7 +1,7 @@
 import { countStaleVisits, listRegionNames, pagePlotExport, regionExists, type Queryable } from '@stemwise/db';
 import { StemwiseError } from '@stemwise/platform';
 import { PLOT_METRIC_COLUMNS } from '../science/plot-metrics';
-import { encodeFeatureCollection, encodeTable, type Row } from './format';
+import { encodeFeatureCollection, encodeTable, type Row } from '@stemwise/platform';
 import { writeExport, type ExportTarget } from './sink';
 
 /** The columns of `export plots`, in the order of shared/spec/outputs.md. */

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { csvCell, csvLine, encodeFeatureCollection, encodeTable, formatNumber, jsonCell, neutraliseText } from './format';
+import { csvCell, csvLine, encodeFeatureCollection, encodeTable, formatNumber, jsonCell, neutraliseText } from './table-format';
 
 async function text(pieces: AsyncIterable<string>): Promise<string> {
   let out = '';
