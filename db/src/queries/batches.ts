@@ -184,8 +184,3 @@ export async function finishBatch(db: Queryable, id: string, state: 'rejected' |
     [id, state, c.plotsRows, c.treesRows, c.plotsLoaded, c.stemsLoaded, c.rowsSkipped, c.nErrors, c.nWarnings, c.bytesRead, c.rowsChecked],
   );
 }
-
-/** An entry of the audit log (submissions, replaced visits). */
-export async function insertAudit(db: Queryable, actor: string, action: string, target: string | null, details: Record<string, unknown>): Promise<void> {
-  await db.query(`insert into audit_log (actor, action, target, details) values ($1, $2, $3, $4::jsonb)`, [actor, action, target, JSON.stringify(details)]);
-}

@@ -1,6 +1,6 @@
 import crypto from 'node:crypto';
 import fs from 'node:fs';
-import { findLiveBatchByHash, insertAudit, insertBatch, type BatchOptions, type BatchState, type ServiceDeps } from '@stemwise/db';
+import { appendAuditEntries, findLiveBatchByHash, insertBatch, type BatchOptions, type BatchState, type ServiceDeps } from '@stemwise/db';
 import { oneLine, StemwiseError } from '@stemwise/platform';
 import { batchContentHash, makeBatchDir, storeFile, syncDir, type SubmittedFile } from './storage';
 
@@ -69,7 +69,7 @@ export async function submitBatch(deps: ServiceDeps, files: readonly SubmittedFi
       const id = await insertBatch(deps.db, { id: batchId, contentHash, files: record, options: opts, submittedBy: actor, bytesTotal });
       if (id === null) continue; // a concurrent identical upload won: report it on the next round
       keep = true;
-      await insertAudit(deps.db, actor, 'batch.submit', batchId, { files: record, options: opts, contentHash }).catch((err) =>
+      await appendAuditEntries(deps.db, [{ actor, action: 'batch.submit', target: batchId, details: { files: record, options: opts, contentHash } }]).catch((err) =>
         deps.log.warn({ err, batchId }, 'audit entry not written'),
       );
       let queued = true;

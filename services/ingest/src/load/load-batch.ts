@@ -1,6 +1,6 @@
 import {
   deleteVisits,
-  insertAudit,
+  appendAuditEntries,
   insertSpeciesVersion,
   insertVisits,
   latestSpeciesVersion,
@@ -44,7 +44,7 @@ export async function loadPlotsAndVisits(tx: Tx, plan: LoadPlan): Promise<{ regi
   const movedFrom = await regionsOfPlots(tx, keys);
   if (plan.replaces.length) {
     await deleteVisits(tx, plan.replaces.map((r) => r.visitId));
-    await insertAudit(tx, plan.actor, 'visit.replace', plan.batchId, { visits: plan.replaces });
+    await appendAuditEntries(tx, [{ actor: plan.actor, action: 'visit.replace', target: plan.batchId, details: { visits: plan.replaces } }]);
   }
   const plotIds = await upsertPlots(tx, {
     keys,
