@@ -32,6 +32,7 @@ const envSchema = z.object({
   STEMWISE_TIMEZONE: z.string().min(1).default('UTC'),
   STEMWISE_RECONCILE_MINUTES: intIn(1, 1440).default(5),
   STEMWISE_STOP_GRACE_SECONDS: intIn(0, 3600).default(30),
+  STEMWISE_JOB_LOCK_SECONDS: intIn(2, 3600).default(30),
   STEMWISE_HOST: z.string().min(1).default('127.0.0.1'),
   STEMWISE_PORT: intIn(0, 65535).default(8080),
   STEMWISE_DEFAULT_WOOD_DENSITY: num().pipe(z.number().min(0.1).max(1.5)).default(0.58),
@@ -62,6 +63,7 @@ export interface Config {
   reconcileMinutes: number;
   /** Seconds a stopping worker lets its running jobs finish before handing them back to the queue. */
   stopGraceSeconds: number;
+  jobLockSeconds: number;
   host: string;
   port: number;
   defaultWoodDensity: number;
@@ -89,6 +91,7 @@ export const SETTINGS: ReadonlyArray<{ name: string; default: string; meaning: s
   { name: 'STEMWISE_NIGHTLY_CRON', default: '0 2 * * *', meaning: 'when the nightly recompute runs (cron)' },
   { name: 'STEMWISE_TIMEZONE', default: 'UTC', meaning: 'time zone of the nightly schedule' },
   { name: 'STEMWISE_RECONCILE_MINUTES', default: '5', meaning: 'how often workers look for due work no queued job covers' },
+  { name: 'STEMWISE_JOB_LOCK_SECONDS', default: '30', meaning: 'how soon a job of a worker that died is taken back by another worker' },
   { name: 'STEMWISE_STOP_GRACE_SECONDS', default: '30', meaning: 'on SIGTERM, how long a worker lets running jobs finish before handing them back to the queue' },
   { name: 'STEMWISE_HOST', default: '127.0.0.1', meaning: 'address the report service listens on' },
   { name: 'STEMWISE_PORT', default: '8080', meaning: 'port of the report service' },
@@ -134,6 +137,7 @@ export function loadConfig(env: Readonly<Record<string, string | undefined>> = p
     timezone: e.STEMWISE_TIMEZONE,
     reconcileMinutes: e.STEMWISE_RECONCILE_MINUTES,
     stopGraceSeconds: e.STEMWISE_STOP_GRACE_SECONDS,
+    jobLockSeconds: e.STEMWISE_JOB_LOCK_SECONDS,
     host: e.STEMWISE_HOST,
     port: e.STEMWISE_PORT,
     defaultWoodDensity: e.STEMWISE_DEFAULT_WOOD_DENSITY,

@@ -41,7 +41,8 @@ describe('an ingest worker killed mid-load', () => {
 
   it('leaves nothing behind, and the batch completes after a restart with exact counts', { timeout: 180_000 }, async () => {
     const storageDir = tempDir('stemwise-storage-');
-    const env = envFor(s, { STEMWISE_STORAGE_DIR: storageDir, STEMWISE_JOB_ATTEMPTS: '3' });
+    // A short job lock, so the restarted worker takes the dead worker's job back within seconds.
+    const env = envFor(s, { STEMWISE_STORAGE_DIR: storageDir, STEMWISE_JOB_ATTEMPTS: '3', STEMWISE_JOB_LOCK_SECONDS: '5' });
     const out = tempDir();
     const { truth } = await generateInventory({ outDir: out, plots: 300, seed: 5 });
     fs.rmSync(path.join(out, 'truth.json'));

@@ -11,6 +11,8 @@ export interface BullOptions {
   prefix: string;
   attempts: number;
   log: Logger;
+  /** How long a worker's hold on a job lasts without renewal, and how often stalled jobs are looked for (ms). */
+  lockMs?: number;
 }
 
 /** Opens a Redis connection and checks it answers; an unreachable Redis is one clear line naming REDIS_URL. */
@@ -133,6 +135,10 @@ export class BullQueue implements JobQueue {
           prefix: this.options.prefix,
           concurrency: options.concurrency?.[queueName] ?? 1,
           autorun: true,
+          // A worker that dies (SIGKILL, lost machine) stops renewing its lock; after lockMs another
+          // worker's stalled-job check takes the job back.
+          lockDuration: this.options.lockMs ?? 30_000,
+          stalledInterval: this.options.lockMs ?? 30_000,
         },
       );
       worker.on('error', (err) => this.options.log.error({ err, queue: queueName }, 'worker error'));

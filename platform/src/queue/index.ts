@@ -12,7 +12,7 @@ import type { JobQueue } from './types';
 /** BullMQ when REDIS_URL is set, else the in-process runner (demo only, no durability). */
 export async function openQueue(config: Config, log: Logger): Promise<JobQueue> {
   if (config.redisUrl) {
-    return BullQueue.open({ url: config.redisUrl, prefix: config.queuePrefix, attempts: config.jobAttempts, log });
+    return BullQueue.open({ url: config.redisUrl, prefix: config.queuePrefix, attempts: config.jobAttempts, log, lockMs: config.jobLockSeconds * 1000 });
   }
   return new InProcessQueue(log);
 }
