@@ -1,5 +1,6 @@
 import path from 'node:path';
 import { parseArgs } from 'node:util';
+import { createLogger } from '@stemwise/platform';
 import type { Runtime } from '../runtime';
 import { runDemo, type DemoResult } from '../demo-pipeline';
 
@@ -32,7 +33,9 @@ export async function run(args: string[], rt: Runtime): Promise<number> {
     inputDir: path.resolve(values.data ?? DEMO_DATA_DIR),
     outDir,
     workDir: path.join(rt.config.dataDir, 'demo'),
-    log: rt.log,
+    // The demo shows its own progress lines; the pipeline's info logs would drown them (set
+    // STEMWISE_LOG_LEVEL=debug to see everything).
+    log: ['debug', 'trace'].includes(rt.config.logLevel) ? rt.log : createLogger('warn'),
     base: rt.config,
     step: (m) => process.stderr.write(`${tty ? '\u2192 ' : ''}${m}\n`),
   });
