@@ -5,7 +5,7 @@
 //
 //   DATABASE_URL=postgres://postgres@127.0.0.1:5432/postgres npx tsx scripts/bench-compute.ts [--big] [--sizes 250000,1000000]
 //
-// DATABASE_URL names a server database used only to create and drop a scratch database per size.
+// DATABASE_URL (default: the local server) names a database used only to create and drop a scratch database per size.
 import crypto from 'node:crypto';
 import { parseArgs } from 'node:util';
 import { createLogger, loadConfig, type JobQueue } from '@stemwise/platform';
@@ -15,11 +15,8 @@ import { fixtureSpecies, loadSpecies, rng } from '../test/compute/fixtures';
 
 const { values } = parseArgs({ options: { big: { type: 'boolean', default: false }, sizes: { type: 'string' }, keep: { type: 'boolean', default: false } } });
 const sizes = values.sizes ? values.sizes.split(',').map(Number) : [250_000, 1_000_000, ...(values.big ? [4_000_000] : [])];
-const config = loadConfig();
-if (!config.databaseUrl) {
-  process.stderr.write('bench-compute: set DATABASE_URL to a PostgreSQL server (e.g. postgres://postgres@127.0.0.1:5432/postgres)\n');
-  process.exit(2);
-}
+// The local server when DATABASE_URL is unset, as the other benchmarks do.
+const config = { ...loadConfig(), databaseUrl: loadConfig().databaseUrl ?? 'postgres://postgres@127.0.0.1:5432/postgres' };
 const log = createLogger('warn');
 const STEMS_PER_PLOT = 125;
 const FOREST_TYPES = ['wet', 'moist', 'dry'];
