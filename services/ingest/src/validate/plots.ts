@@ -3,7 +3,7 @@ import { CROSS, crossMessages } from '../rules/cross';
 import { PLAUSIBILITY, plausibilityMessages } from '../rules/plausibility';
 import { ROW, rowMessages } from '../rules/rows';
 import { readTable, type TableSource, type TableStats } from '../read/table';
-import type { ValidationContext } from './context';
+import { tableOptions, type ValidationContext } from './context';
 
 /** A plot of the batch (one visit) or a stored plot that stems of the batch attach to. */
 export interface PlotEntry {
@@ -44,20 +44,7 @@ export async function validatePlots(ctx: ValidationContext, src: TableSource): P
   const plots = new Map<string, PlotEntry>();
   const atCoordinates = new Map<string, string>();
   const early = `${ctx.plausibility.earlyYear}-01-01`;
-  const rows = readTable(
-    src,
-    {
-      log,
-      columns: PLOT_COLUMNS,
-      delimiter: ctx.options.delimiter,
-      decimalComma: ctx.options.decimal_comma,
-      forestTypes: ctx.forestTypes,
-      today: ctx.today,
-      requireRows: true,
-      onBytes: (n) => (ctx.progress.bytesRead += n),
-    },
-    stats,
-  );
+  const rows = readTable(src, tableOptions(ctx, PLOT_COLUMNS, true), stats);
   for await (const batch of rows) {
     for (const { values: v, line, ok: fieldsOk } of batch) {
       ctx.progress.rowsChecked++;

@@ -5,7 +5,7 @@ import { SPECIES_COLUMNS } from '../rules/columns';
 import { CROSS, crossMessages } from '../rules/cross';
 import { FIELD } from '../rules/fields';
 import { readTable, type TableSource, type TableStats } from '../read/table';
-import type { ValidationContext } from './context';
+import { tableOptions, type ValidationContext } from './context';
 
 export interface SpeciesResult {
   rows: SpeciesRow[];
@@ -22,20 +22,7 @@ export async function validateSpecies(ctx: ValidationContext, src: TableSource):
   const stats: TableStats = { rows: 0, badRows: 0, fatal: false };
   const rows: Array<SpeciesRow & { line: number }> = [];
   const names = new Map<string, number>();
-  const read = readTable(
-    src,
-    {
-      log,
-      columns: SPECIES_COLUMNS,
-      delimiter: ctx.options.delimiter,
-      decimalComma: ctx.options.decimal_comma,
-      forestTypes: ctx.forestTypes,
-      today: ctx.today,
-      requireRows: false,
-      onBytes: (n) => (ctx.progress.bytesRead += n),
-    },
-    stats,
-  );
+  const read = readTable(src, tableOptions(ctx, SPECIES_COLUMNS, false), stats);
   for await (const batch of read) {
     for (const { values, line, ok: fieldsOk } of batch) {
       ctx.progress.rowsChecked++;

@@ -1,7 +1,7 @@
 import { STRATA_COLUMNS } from '../rules/columns';
 import { CROSS, crossMessages } from '../rules/cross';
 import { readTable, type TableSource, type TableStats } from '../read/table';
-import type { ValidationContext } from './context';
+import { tableOptions, type ValidationContext } from './context';
 
 export interface StratumEntry {
   region: string;
@@ -15,20 +15,7 @@ export async function validateStrata(ctx: ValidationContext, src: TableSource): 
   const stats: TableStats = { rows: 0, badRows: 0, fatal: false };
   const strata: StratumEntry[] = [];
   const seen = new Map<string, number>();
-  const rows = readTable(
-    src,
-    {
-      log: ctx.log,
-      columns: STRATA_COLUMNS,
-      delimiter: ctx.options.delimiter,
-      decimalComma: ctx.options.decimal_comma,
-      forestTypes: ctx.forestTypes,
-      today: ctx.today,
-      requireRows: false,
-      onBytes: (n) => (ctx.progress.bytesRead += n),
-    },
-    stats,
-  );
+  const rows = readTable(src, tableOptions(ctx, STRATA_COLUMNS, false), stats);
   for await (const batch of rows) {
     for (const { values, line, ok } of batch) {
       ctx.progress.rowsChecked++;

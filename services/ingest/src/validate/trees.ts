@@ -6,7 +6,7 @@ import { CROSS, crossMessages } from '../rules/cross';
 import { PLAUSIBILITY, plausibilityMessages } from '../rules/plausibility';
 import { ROW, rowMessages } from '../rules/rows';
 import { readTable, type TableSource, type TableStats } from '../read/table';
-import type { ValidationContext } from './context';
+import { tableOptions, type ValidationContext } from './context';
 import { KeySet } from './key-set';
 import type { PlotEntry } from './plots';
 
@@ -93,20 +93,7 @@ export async function validateTrees(ctx: ValidationContext, src: TableSource, in
     if (seen) for (const t of found.treeIds) seen.add(`${t.plotKey}\u0000${t.treeId}`, -1);
   };
 
-  const read = readTable(
-    src,
-    {
-      log,
-      columns: TREE_COLUMNS,
-      delimiter: ctx.options.delimiter,
-      decimalComma: ctx.options.decimal_comma,
-      forestTypes: ctx.forestTypes,
-      today: ctx.today,
-      requireRows: true,
-      onBytes: (n) => (ctx.progress.bytesRead += n),
-    },
-    stats,
-  );
+  const read = readTable(src, tableOptions(ctx, TREE_COLUMNS, true), stats);
 
   for await (const batch of read) {
     // Plots named by this chunk that are neither in the batch nor looked up yet: one query for all.
