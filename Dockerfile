@@ -11,6 +11,7 @@ COPY cli/package.json cli/
 COPY demo-inventory/package.json demo-inventory/
 RUN npm ci --no-audit --no-fund
 COPY . .
+RUN npm run build
 USER node
 ENTRYPOINT ["node", "bin/stemwise.mjs"]
 CMD ["serve", "all"]
