@@ -17,54 +17,12 @@ import pg from 'pg';
 import { createLogger, InProcessQueue, loadConfig } from '@stemwise/platform';
 import { getBatch, migrateDatabase, openDatabase, syncForestTypes } from '@stemwise/db';
 import { generateInventory } from '@stemwise/demo-inventory';
-import { processBatch, submitBatch } from '@stemwise/ingest';
+import { submitBatch } from '@stemwise/ingest';
+import { bundle, ROOT } from './build';
+import type { IngestRun } from './bench-ingest-child';
 
-const SELF = fileURLToPath(import.meta.url);
+const HERE = path.dirname(fileURLToPath(import.meta.url));
 const STEMS_PER_DEMO_PLOT = 585; // the demo generator's average, measured on seed 3
-
-interface IngestRun {
-  seconds: number;
-  maxRssMb: number;
-  /** Peaks sampled every 100 ms: the V8 heap in use, and memory outside it (buffers). */
-  peakHeapMb: number;
-  peakExternalMb: number;
-  /** maxRSS before the batch was touched (modules loaded, pool open). */
-  baselineRssMb: number;
-  state: string;
-  stemsLoaded: number;
-}
-
-/** Child: validate and load one stored batch, then report wall time and peak memory as JSON on stdout. */
-async function child(batchId: string): Promise<void> {
-  const config = loadConfig();
-  const log = createLogger('warn');
-  const db = await openDatabase(config, { poolSize: 3 });
-  await db.query('select 1');
-  const baselineRssMb = process.resourceUsage().maxRSS / 1024;
-  let peakHeap = 0;
-  let peakExternal = 0;
-  const sampler = setInterval(() => {
-    const m = process.memoryUsage();
-    peakHeap = Math.max(peakHeap, m.heapUsed);
-    peakExternal = Math.max(peakExternal, m.external + m.arrayBuffers);
-  }, 100);
-  const t0 = performance.now();
-  await processBatch({ config, db, log, queue: new InProcessQueue(log) }, batchId);
-  const seconds = (performance.now() - t0) / 1000;
-  clearInterval(sampler);
-  const b = await getBatch(db, batchId);
-  await db.close();
-  const out: IngestRun = {
-    seconds,
-    maxRssMb: process.resourceUsage().maxRSS / 1024,
-    peakHeapMb: peakHeap / 1e6,
-    peakExternalMb: peakExternal / 1e6,
-    baselineRssMb,
-    state: b!.state,
-    stemsLoaded: b!.stemsLoaded,
-  };
-  process.stdout.write(`${JSON.stringify(out)}\n`);
-}
 
 function psql(url: string, ...commands: string[]): number {
   const t0 = performance.now();
@@ -102,7 +60,10 @@ async function benchOne(adminUrl: string, stems: number): Promise<void> {
     const submitSeconds = (performance.now() - t0) / 1000;
     await db.close();
 
-    const r = spawnSync(process.execPath, ['--import', 'tsx', SELF, '--child', batchId], { env, encoding: 'utf8', maxBuffer: 1 << 20 });
+    // The child runs compiled JavaScript, as the services do after `npm run build` (see scripts/build.ts).
+    const childBundle = path.join(ROOT, 'dist', 'bench-ingest-child.mjs');
+    await bundle(path.join(HERE, 'bench-ingest-child.ts'), childBundle);
+    const r = spawnSync(process.execPath, [childBundle, batchId], { env, encoding: 'utf8', maxBuffer: 1 << 20 });
     if (r.status !== 0) throw new Error(`ingest child failed: ${r.stderr}`);
     const run = JSON.parse(r.stdout.trim().split('\n').pop()!) as IngestRun;
 
@@ -131,8 +92,7 @@ async function benchOne(adminUrl: string, stems: number): Promise<void> {
 
 /** The ingest section of `npm run bench`. */
 export async function runIngestBench(args: string[] = []): Promise<void> {
-  const { values } = parseArgs({ args, options: { stems: { type: 'string', default: '1000000' }, big: { type: 'boolean', default: false }, child: { type: 'string' } } });
-  if (values.child) return child(values.child);
+  const { values } = parseArgs({ args, options: { stems: { type: 'string', default: '1000000' }, big: { type: 'boolean', default: false } } });
   const adminUrl = loadConfig().databaseUrl ?? 'postgres://postgres@127.0.0.1:5432/postgres';
   console.log('ingest benchmark (wall times on this machine; other work running at the same time shows in them)');
   await benchOne(adminUrl, Number(values.stems));
