@@ -97,6 +97,23 @@ describe('stemwise upload, batch show and species import', () => {
     expect(no.stderr).toContain('error field_not_allowed species.csv:5  guild is "climax"');
   });
 
+  it('with Redis and no worker, says so while it waits, and goes on once a worker starts', async () => {
+    const withRedis = { ...env, REDIS_URL: s.redisUrl };
+    const dir = writeUpload({ plots: PLOTS.replace(/MW-/g, 'NW-').replace(/27\./g, '31.'), trees: TREES.replace(/MW-/g, 'NW-').replace('stump,logged', 'stump,') });
+    const waiting = stemwiseWith(withRedis, 'upload', dir, '--wait');
+    await new Promise((r) => setTimeout(r, 6_500)); // past the first worker check (5 s)
+    const worker = spawn(process.execPath, [BIN, 'serve', 'ingest'], { env: withRedis as NodeJS.ProcessEnv, stdio: 'ignore' });
+    try {
+      const up = await waiting;
+      expect(up.stderr).toContain("no ingest worker is running, so the batch is not being read yet; start one with 'stemwise serve ingest'");
+      expect(up.code).toBe(1); // the batch was then read by the worker, and rejected
+      expect(up.stderr).toContain('row_stump_cause_missing (1)');
+    } finally {
+      worker.kill('SIGTERM');
+      await new Promise((r) => worker.once('exit', r));
+    }
+  });
+
   it('with Redis, waits by watching the batch row while a separate worker validates it', async () => {
     const withRedis = { ...env, REDIS_URL: s.redisUrl };
     const worker = spawn(process.execPath, [BIN, 'serve', 'ingest'], { env: withRedis as NodeJS.ProcessEnv, stdio: 'ignore' });

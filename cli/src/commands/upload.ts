@@ -18,6 +18,9 @@ import {
 import { processorsFor, type ServiceName } from '../processors';
 import type { Runtime } from '../runtime';
 
+/** How long `--wait` lets a batch sit before it checks that a worker serves its queue. */
+const WORKER_CHECK_MS = 5_000;
+
 export const summary = 'submits a batch: upload DIR | --plots F --trees F [--strata F] [--species F] [--wait]';
 
 const HELP = `usage: stemwise upload DIR [options]
@@ -32,6 +35,7 @@ options:
   --delimiter ';'    values are separated by semicolons
   --decimal-comma    numbers are written with a decimal comma (needs --delimiter ';')
   --wait             wait until the batch is loaded and computed; exit 1 if it is rejected or fails
+                     (with Redis, says so when no worker serves the queue the batch waits in)
 `;
 
 function fileArg(value: string | undefined, kind: SubmittedFile['kind']): SubmittedFile | null {
@@ -148,11 +152,26 @@ export async function run(args: string[], rt: Runtime): Promise<number> {
       ingestEvents.off('progress', onProgress);
     }
   } else if (values.wait) {
+    const hinted = new Set<QueueName>();
+    let lastCheck = Date.now();
     for (;;) {
       const b = await getBatch(deps.db, result.batchId);
       if (!b) throw new StemwiseError('batch_missing', `batch ${result.batchId} disappeared`);
       if (['computed', 'rejected', 'failed'].includes(b.state)) break;
       printer.show({ bytesTotal: Number(b.bytesTotal), bytesRead: Number(b.bytesRead), rowsChecked: b.rowsChecked, rowsLoaded: b.rowsLoaded });
+      // Waiting on a queue nobody serves would look like a hang: say so once (the batch stays queued).
+      if (Date.now() - lastCheck >= WORKER_CHECK_MS) {
+        lastCheck = Date.now();
+        const queue: QueueName = b.state === 'loaded' ? 'compute' : 'ingest';
+        if (!hinted.has(queue) && (await deps.queue.workerCount(queue)) === 0) {
+          hinted.add(queue);
+          printer.end();
+          process.stderr.write(
+            `stemwise: no ${queue} worker is running, so the batch is ${b.state === 'loaded' ? 'loaded but not computed' : 'not being read'} yet; ` +
+              `start one with 'stemwise serve ${queue}' (still waiting; Ctrl-C stops waiting, the batch stays queued)\n`,
+          );
+        }
+      }
       await new Promise((r) => setTimeout(r, 500));
     }
   } else {

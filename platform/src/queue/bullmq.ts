@@ -195,6 +195,10 @@ export class BullQueue implements JobQueue {
     return out;
   }
 
+  async workerCount(queue: QueueName): Promise<number> {
+    return this.queue(queue).getWorkersCount();
+  }
+
   async schedule(schedulerId: string, cron: string, timezone: string, spec: Omit<JobSpec, 'jobId' | 'children'>): Promise<void> {
     await this.queue(queueOf(spec.name)).upsertJobScheduler(schedulerId, { pattern: cron, tz: timezone }, { name: spec.name, data: spec.data });
   }

@@ -23,6 +23,7 @@ export class InProcessQueue implements JobQueue {
   private readonly failures: Array<{ jobId: string; name: JobName; error: string }> = [];
   private running: Promise<void> | null = null;
   private serving = false;
+  private readonly served = new Set<QueueName>();
   private reported = 0;
 
   constructor(private readonly log: Logger) {}
@@ -47,7 +48,12 @@ export class InProcessQueue implements JobQueue {
   async work(processors: ProcessorMap, options: WorkOptions): Promise<void> {
     assertProcessors(processors, options.queues);
     this.processors = { ...this.processors, ...processors };
+    for (const q of options.queues) this.served.add(q);
     this.serving = true;
+  }
+
+  async workerCount(queue: QueueName): Promise<number> {
+    return this.served.has(queue) ? 1 : 0;
   }
 
   async drain(): Promise<ReadonlyArray<{ jobId: string; name: JobName; error: string }>> {

@@ -70,6 +70,8 @@ export interface JobQueue {
   /** Why a failed job failed (its last error), or null. */
   failedReason(jobId: string, name: JobName): Promise<string | null>;
   counts(): Promise<Record<QueueName, QueueCounts>>;
+  /** Worker processes connected to a queue now (BullMQ: named Redis clients); in-process: 1 if this process serves it, else 0. */
+  workerCount(queue: QueueName): Promise<number>;
   /** A repeating job (the nightly recompute); replaces an earlier schedule of the same id. */
   schedule(schedulerId: string, cron: string, timezone: string, spec: Omit<JobSpec, 'jobId' | 'children'>): Promise<void>;
   /** The repeating jobs registered (none in-process). */
