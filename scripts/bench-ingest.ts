@@ -1,9 +1,10 @@
 // Ingest benchmark (a script, never a timed test):
 //   npx tsx scripts/bench-ingest.ts [--stems 1000000] [--big]
 // For a generated batch of about --stems stems (and 4,000,000 more with --big): wall time of validate +
-// load on PostgreSQL in a fresh database, measured in a child process that also reports its peak
-// memory (maxRSS); then `psql \copy` of the same trees file into a plain table on the same server, and
-// of the loaded stems into the real, constrained stems table. Prints the ratios. Needs PostgreSQL
+// load on PostgreSQL in a fresh database, measured in a child process (compiled, as the services run
+// after `npm run build`) that also reports its peak memory (maxRSS); then `psql \copy` of the same trees
+// file into a plain table on the same server, and of the loaded stems into a table with only the
+// (visit, tree) primary key and into the real stems table. Prints the ratios. Needs PostgreSQL
 // (DATABASE_URL, else postgres://postgres@127.0.0.1:5432/postgres as the admin database) and psql.
 
 import { spawnSync, execFileSync } from 'node:child_process';
@@ -73,13 +74,18 @@ async function benchOne(adminUrl: string, stems: number): Promise<void> {
     const cols = 'visit_id, tree_id, species, dbh_cm, height_m, status, stump_cause, fire_damage, in_subplot';
     psql(dbUrl, `\\copy (select ${cols} from stems) to '${stemsFile}'`, 'truncate stems');
     const constrainedSeconds = psql(dbUrl, `\\copy stems (${cols}) from '${stemsFile}'`);
+    // The floor any keyed load meets: the same rows into a table with nothing but the (visit, tree) key.
+    psql(dbUrl, `create table bench_keyed (like stems including defaults, primary key (visit_id, tree_id))`);
+    const keyedSeconds = psql(dbUrl, `\\copy bench_keyed (${cols}) from '${stemsFile}'`);
 
     const n = truth.counts.stems.rows;
     console.log(`submit (durable copy + content hash): ${submitSeconds.toFixed(2)} s`);
     console.log(`ingest validate + load:               ${run.seconds.toFixed(2)} s  (${Math.round(n / run.seconds).toLocaleString('en-US')} stems/s; state ${run.state}, ${run.stemsLoaded.toLocaleString('en-US')} stems loaded${run.stemsLoaded === n ? '' : ` — EXPECTED ${n}`})`);
     console.log(`psql \\copy trees.csv -> plain table:  ${plainSeconds.toFixed(2)} s`);
-    console.log(`psql \\copy stems -> stems table:      ${constrainedSeconds.toFixed(2)} s  (primary key (visit, tree), foreign key, checks)`);
+    console.log(`psql \\copy stems -> key-only table:   ${keyedSeconds.toFixed(2)} s  (primary key (visit, tree) and nothing else)`);
+    console.log(`psql \\copy stems -> stems table:      ${constrainedSeconds.toFixed(2)} s  (primary key (visit, tree), visit check, value checks)`);
     console.log(`ratio ingest / plain \\copy:           ${(run.seconds / plainSeconds).toFixed(2)}  (target <= 1.5)`);
+    console.log(`ratio key-only \\copy / plain \\copy:   ${(keyedSeconds / plainSeconds).toFixed(2)}  (what the unique key alone costs)`);
     console.log(`ratio ingest / \\copy into stems:      ${(run.seconds / constrainedSeconds).toFixed(2)}`);
     console.log(`peak memory of the ingest process:    ${run.maxRssMb.toFixed(0)} MB (maxRSS; target < 300 MB); of it ${run.baselineRssMb.toFixed(0)} MB before the batch (modules, pool); peak V8 heap ${run.peakHeapMb.toFixed(0)} MB, buffers ${run.peakExternalMb.toFixed(0)} MB`);
     console.log(`load average now: ${os.loadavg().map((x) => x.toFixed(1)).join(' ')} on ${os.cpus().length} cores`);
