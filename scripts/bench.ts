@@ -1,4 +1,4 @@
-// `npm run bench [-- --only ingest,compute,report] [-- --big]`: runs each stage's benchmark in its own
+// `npm run bench [-- --only validate,ingest,compute,report] [-- --big]`: runs each stage's benchmark in its own
 // process (so each one's peak memory is its own) against the PostgreSQL of DATABASE_URL or 127.0.0.1,
 // and prints their figures. Speed targets are measured here, never in the test suite.
 import { spawnSync } from 'node:child_process';
@@ -8,7 +8,7 @@ import { fileURLToPath } from 'node:url';
 const here = path.dirname(fileURLToPath(import.meta.url));
 const args = process.argv.slice(2);
 const onlyAt = args.indexOf('--only');
-const only = onlyAt >= 0 ? args[onlyAt + 1].split(',') : ['ingest', 'compute', 'report'];
+const only = onlyAt >= 0 ? args[onlyAt + 1].split(',') : ['validate', 'ingest', 'compute', 'report'];
 const passThrough = args.filter((a, i) => a !== '--only' && i !== onlyAt + 1);
 
 let failed = 0;
