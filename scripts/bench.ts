@@ -9,7 +9,7 @@ const here = path.dirname(fileURLToPath(import.meta.url));
 const args = process.argv.slice(2);
 const onlyAt = args.indexOf('--only');
 const only = onlyAt >= 0 ? args[onlyAt + 1].split(',') : ['validate', 'ingest', 'compute', 'report'];
-const passThrough = args.filter((a, i) => a !== '--only' && i !== onlyAt + 1);
+const passThrough = args.filter((a, i) => a !== '--only' && !(onlyAt >= 0 && i === onlyAt + 1));
 
 let failed = 0;
 for (const stage of only) {
