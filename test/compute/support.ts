@@ -2,7 +2,7 @@ import fs from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
 import { PassThrough } from 'node:stream';
-import { clearStale, finishRecomputeRun, listStale, migrateDatabase, openDatabase, syncForestTypes, type Db, type ServiceDeps } from '@stemwise/db';
+import { clearStale, finishRecomputeRun, listStaleMarks, migrateDatabase, openDatabase, syncForestTypes, type Db, type ServiceDeps } from '@stemwise/db';
 import { InProcessQueue, loadConfig, parsePayload, type Config, type JobQueue, type ProcessorMap } from '@stemwise/platform';
 import { createProcessors, exportFits, exportPlots, planRecompute, type PlotExportFormat, type RecomputePlan } from '@stemwise/compute';
 import { testLogger } from '../support/services';
@@ -13,8 +13,7 @@ export function standInSummaries(db: Db, ran?: string[]): ProcessorMap {
     'report.summaries': async (data) => {
       const { runId } = parsePayload('report.summaries', data);
       ran?.push('report.summaries');
-      const [{ t }] = await db.query<{ t: Date }>(`select now() t`);
-      await clearStale(db, 'summary', await listStale(db, 'summary'), t);
+      await clearStale(db, 'summary', await listStaleMarks(db, 'summary'));
       await finishRecomputeRun(db, runId);
     },
   };

@@ -22,10 +22,7 @@ export async function listStaleVisits(db: Queryable): Promise<number[]> {
   return rows.map((r) => Number(r.id));
 }
 
-/**
- * Marks fits or summaries as due. A mark set again moves its time forward, so a stage that started
- * before it (and clears only marks no newer than its start) leaves it for the next run.
- */
+/** Marks fits or summaries as due (`since` records when, for people; clearing goes by version). */
 export async function markStale(db: Queryable, kind: StaleKind, keys: readonly string[]): Promise<void> {
   if (!keys.length) return;
   await db.query(
@@ -39,10 +36,32 @@ export async function listStale(db: Queryable, kind: StaleKind): Promise<string[
   return (await db.query<{ key: string }>(`select key from stale_work where kind = $1 order by key`, [kind])).map((r) => r.key);
 }
 
-/** Clears marks set no later than `before` (a mark set again meanwhile by newer work stays). */
-export async function clearStale(db: Queryable, kind: StaleKind, keys: readonly string[], before: Date): Promise<void> {
-  if (!keys.length) return;
-  await db.query(`delete from stale_work where kind = $1 and key = any($2::text[]) and since <= $3`, [kind, keys, before]);
+/** A mark as a stage saw it before its work: `version` is the row's xmin, new every time the mark is set again. */
+export interface StaleMark {
+  key: string;
+  version: string;
+}
+
+/** The marks of a kind (of the given keys only, if given) with their versions; read them before reading the inputs. */
+export async function listStaleMarks(db: Queryable, kind: StaleKind, keys?: readonly string[]): Promise<StaleMark[]> {
+  const rows = keys
+    ? await db.query<StaleMark>(`select key, xmin::text as version from stale_work where kind = $1 and key = any($2::text[]) order by key`, [kind, keys])
+    : await db.query<StaleMark>(`select key, xmin::text as version from stale_work where kind = $1 order by key`, [kind]);
+  return rows;
+}
+
+/**
+ * Clears the marks a stage read (listStaleMarks) and has now done, unless set again since: by version,
+ * not by time, so a mark set by a transaction that was still open when the stage read its inputs (and
+ * so is not in them) survives too — the delete waits for that transaction and then sees a new version.
+ */
+export async function clearStale(db: Queryable, kind: StaleKind, marks: readonly StaleMark[]): Promise<void> {
+  if (!marks.length) return;
+  await db.query(
+    `delete from stale_work w using unnest($2::text[], $3::text[]) m(key, version)
+      where w.kind = $1 and w.key = m.key and w.xmin::text = m.version`,
+    [kind, marks.map((m) => m.key), marks.map((m) => m.version)],
+  );
 }
 
 export interface RecomputeRun {

@@ -3,6 +3,7 @@ import {
   deleteCurveFitsExcept,
   listLatestPlotMetrics,
   listStale,
+  listStaleMarks,
   markStale,
   regionsOfForestTypes,
   upsertCurveFits,
@@ -165,7 +166,7 @@ export async function storeFits(deps: Pick<ServiceDeps, 'db' | 'config'> & { log
   const settings: FitSettings = { metric: config.fitMetric, axis: config.fitAxis, bootstrap: config.bootstrap, seed: config.seed };
   const out: Array<{ forestType: string; n: number; verdict: string; regions: number }> = [];
   for (const forestType of forestTypes) {
-    const [{ t: before }] = await db.query<{ t: Date }>(`select now() t`);
+    const marks = await listStaleMarks(db, 'fits', [forestType]); // before the inputs are read
     const fits = await fitForestType(db, forestType, settings, { regions: true });
     const labels = { forestType, metric: settings.metric, axis: settings.axis };
     const rows: CurveFitRow[] = [];
@@ -176,7 +177,7 @@ export async function storeFits(deps: Pick<ServiceDeps, 'db' | 'config'> & { log
     await db.transaction(async (tx) => {
       await deleteCurveFitsExcept(tx, forestType, settings.metric, settings.axis, regions.length ? ['all', ...fits.regions.map((r) => r.region)] : []);
       if (regions.length) await upsertCurveFits(tx, rows);
-      await clearStale(tx, 'fits', [forestType], before);
+      await clearStale(tx, 'fits', marks);
       await markStale(tx, 'summary', regions);
     });
     out.push({ forestType, n: fits.all.n, verdict: fits.all.verdict, regions: fits.regions.length });

@@ -7,7 +7,7 @@ import {
   listRegionForestAreas,
   listRegionLatestPlots,
   listRegionStemNames,
-  listStale,
+  listStaleMarks,
   regionExists,
   type ServiceDeps,
 } from '@stemwise/db';
@@ -166,10 +166,10 @@ export async function refreshStaleSummaries(deps: Deps): Promise<{ regions: Refr
   const curves: CurveCache = new Map();
   const regions: RefreshedRegion[] = [];
   const rejected: Array<{ region: string; reason: string }> = [];
-  for (const region of await listStale(db, 'summary')) {
-    const [{ t: before }] = await db.query<{ t: Date }>(`select now() t`);
+  for (const mark of await listStaleMarks(db, 'summary')) {
+    const region = mark.key;
     if (!(await regionExists(db, region))) {
-      await clearStale(db, 'summary', [region], before);
+      await clearStale(db, 'summary', [mark]);
       continue;
     }
     let payload: SnapshotPayload;
@@ -184,7 +184,7 @@ export async function refreshStaleSummaries(deps: Deps): Promise<{ regions: Refr
     const etag = payloadEtag(payload);
     const stored = await db.transaction(async (tx) => {
       const r = await insertSummarySnapshot(tx, region, etag, payload);
-      await clearStale(tx, 'summary', [region], before);
+      await clearStale(tx, 'summary', [mark]);
       return r;
     });
     regions.push({ region, ...stored });
