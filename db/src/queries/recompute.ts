@@ -44,10 +44,9 @@ export interface StaleMark {
 
 /** The marks of a kind (of the given keys only, if given) with their versions; read them before reading the inputs. */
 export async function listStaleMarks(db: Queryable, kind: StaleKind, keys?: readonly string[]): Promise<StaleMark[]> {
-  const rows = keys
-    ? await db.query<StaleMark>(`select key, xmin::text as version from stale_work where kind = $1 and key = any($2::text[]) order by key`, [kind, keys])
-    : await db.query<StaleMark>(`select key, xmin::text as version from stale_work where kind = $1 order by key`, [kind]);
-  return rows;
+  return keys
+    ? db.query<StaleMark>(`select key, xmin::text as version from stale_work where kind = $1 and key = any($2::text[]) order by key`, [kind, keys])
+    : db.query<StaleMark>(`select key, xmin::text as version from stale_work where kind = $1 order by key`, [kind]);
 }
 
 /**
