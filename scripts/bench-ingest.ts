@@ -1,5 +1,5 @@
 // Ingest benchmark (a script, never a timed test):
-//   npx tsx scripts/bench-ingest.ts [--stems 1000000] [--big]
+//   npx tsx scripts/bench-ingest.ts [--stems 1000000] [--big] [--gzip]
 // For a generated batch of about --stems stems (and 4,000,000 more with --big): wall time of validate +
 // load on PostgreSQL in a fresh database, measured in a child process (compiled, as the services run
 // after `npm run build`) that also reports its peak memory (maxRSS); then `psql \copy` of the same trees
@@ -31,7 +31,7 @@ function psql(url: string, ...commands: string[]): number {
   return (performance.now() - t0) / 1000;
 }
 
-async function benchOne(adminUrl: string, stems: number): Promise<void> {
+async function benchOne(adminUrl: string, stems: number, gzip: boolean): Promise<void> {
   const work = fs.mkdtempSync(path.join(os.tmpdir(), 'stemwise-bench-ingest-'));
   const dbName = `stemwise_bench_${crypto.randomBytes(4).toString('hex')}`;
   const admin = new pg.Client({ connectionString: adminUrl });
@@ -42,11 +42,11 @@ async function benchOne(adminUrl: string, stems: number): Promise<void> {
   try {
     const plots = Math.max(1, Math.round(stems / STEMS_PER_DEMO_PLOT));
     let t0 = performance.now();
-    const { truth } = await generateInventory({ outDir: path.join(work, 'batch'), plots, seed: 1 });
+    const { truth } = await generateInventory({ outDir: path.join(work, 'batch'), plots, seed: 1, gzip });
     fs.rmSync(path.join(work, 'batch', 'truth.json'));
-    const treesFile = path.join(work, 'batch', 'trees.csv');
+    const treesFile = path.join(work, 'batch', gzip ? 'trees.csv.gz' : 'trees.csv');
     const mb = fs.statSync(treesFile).size / 1e6;
-    console.log(`\n== ${truth.counts.stems.rows.toLocaleString('en-US')} stems in ${plots.toLocaleString('en-US')} plots (trees.csv ${mb.toFixed(1)} MB), generated in ${((performance.now() - t0) / 1000).toFixed(1)} s`);
+    console.log(`\n== ${truth.counts.stems.rows.toLocaleString('en-US')} stems in ${plots.toLocaleString('en-US')} plots (${path.basename(treesFile)} ${mb.toFixed(1)} MB), generated in ${((performance.now() - t0) / 1000).toFixed(1)} s`);
 
     await admin.query(`create database "${dbName}"`);
     const env = { ...process.env, DATABASE_URL: dbUrl, STEMWISE_STORAGE_DIR: path.join(work, 'storage'), STEMWISE_LOG_LEVEL: 'warn' };
@@ -69,7 +69,7 @@ async function benchOne(adminUrl: string, stems: number): Promise<void> {
     const run = JSON.parse(r.stdout.trim().split('\n').pop()!) as IngestRun;
 
     psql(dbUrl, `create table bench_plain (plot_id text, tree_id text, species text, dbh_cm float8, height_m float8, status text, stump_cause text, fire_damage smallint, in_subplot smallint)`);
-    const plainSeconds = psql(dbUrl, `\\copy bench_plain from '${treesFile}' csv header`);
+    const plainSeconds = psql(dbUrl, gzip ? `\\copy bench_plain from program 'gzip -dc ${treesFile}' csv header` : `\\copy bench_plain from '${treesFile}' csv header`);
     const stemsFile = path.join(work, 'stems.tsv');
     const cols = 'visit_id, tree_id, species, dbh_cm, height_m, status, stump_cause, fire_damage, in_subplot';
     psql(dbUrl, `\\copy (select ${cols} from stems) to '${stemsFile}'`, 'truncate stems');
@@ -81,7 +81,7 @@ async function benchOne(adminUrl: string, stems: number): Promise<void> {
     const n = truth.counts.stems.rows;
     console.log(`submit (durable copy + content hash): ${submitSeconds.toFixed(2)} s`);
     console.log(`ingest validate + load:               ${run.seconds.toFixed(2)} s  (${Math.round(n / run.seconds).toLocaleString('en-US')} stems/s; state ${run.state}, ${run.stemsLoaded.toLocaleString('en-US')} stems loaded${run.stemsLoaded === n ? '' : ` — EXPECTED ${n}`})`);
-    console.log(`psql \\copy trees.csv -> plain table:  ${plainSeconds.toFixed(2)} s`);
+    console.log(`psql \\copy trees.csv -> plain table:  ${plainSeconds.toFixed(2)} s${gzip ? '  (from gzip -dc)' : ''}`);
     console.log(`psql \\copy stems -> key-only table:   ${keyedSeconds.toFixed(2)} s  (primary key (visit, tree) and nothing else)`);
     console.log(`psql \\copy stems -> stems table:      ${constrainedSeconds.toFixed(2)} s  (primary key (visit, tree), visit check, value checks)`);
     console.log(`ratio ingest / plain \\copy:           ${(run.seconds / plainSeconds).toFixed(2)}  (target <= 1.5)`);
@@ -98,11 +98,11 @@ async function benchOne(adminUrl: string, stems: number): Promise<void> {
 
 /** The ingest section of `npm run bench`. */
 export async function runIngestBench(args: string[] = []): Promise<void> {
-  const { values } = parseArgs({ args, options: { stems: { type: 'string', default: '1000000' }, big: { type: 'boolean', default: false } } });
+  const { values } = parseArgs({ args, options: { stems: { type: 'string', default: '1000000' }, big: { type: 'boolean', default: false }, gzip: { type: 'boolean', default: false } } });
   const adminUrl = loadConfig().databaseUrl ?? 'postgres://postgres@127.0.0.1:5432/postgres';
   console.log('ingest benchmark (wall times on this machine; other work running at the same time shows in them)');
-  await benchOne(adminUrl, Number(values.stems));
-  if (values.big) await benchOne(adminUrl, 4_000_000);
+  await benchOne(adminUrl, Number(values.stems), values.gzip!);
+  if (values.big) await benchOne(adminUrl, 4_000_000, values.gzip!);
 }
 
 if (process.argv[1] && pathToFileURL(process.argv[1]).href === import.meta.url) {
