@@ -1,5 +1,5 @@
 import crypto from 'node:crypto';
-import type { Db, Queryable } from '@stemwise/db';
+import type { ComputeStemRow, Db, Queryable } from '@stemwise/db';
 
 // A small invented inventory (the made-up country of the demo: invented regions and species) and
 // helpers that load it straight into the tables with SQL, without the ingest service. Deterministic:
@@ -13,16 +13,8 @@ export interface FixtureSpecies {
   synonyms: string[];
 }
 
-export interface FixtureStem {
-  treeId: string;
-  species: string | null;
-  dbhCm: number;
-  heightM: number | null;
-  status: 'live' | 'dead' | 'stump';
-  stumpCause: 'logged' | 'natural' | 'unknown' | null;
-  fireDamage: number;
-  inSubplot: boolean;
-}
+/** A stem as the fixture writes it: what compute reads back, with its tree id instead of its visit. */
+export type FixtureStem = Omit<ComputeStemRow, 'visitId'> & { treeId: string };
 
 export interface FixtureVisit {
   surveyDate: string;

@@ -21,23 +21,14 @@ export interface BatchOptions {
   decimal_comma: boolean;
 }
 
-export interface BatchRow {
+export interface BatchRow extends BatchCounts {
   id: string;
   state: BatchState;
   contentHash: string;
   files: BatchFile[];
   options: BatchOptions;
   submittedBy: string;
-  plotsRows: number;
-  treesRows: number;
-  plotsLoaded: number;
-  stemsLoaded: number;
-  rowsSkipped: number;
-  nErrors: number;
-  nWarnings: number;
   bytesTotal: number;
-  bytesRead: number;
-  rowsChecked: number;
   rowsLoaded: number;
   attempts: number;
   failureReason: string | null;
