@@ -25,6 +25,11 @@ export interface TreesInput {
    * constraint on (visit, tree) catches them during the load, and the caller checks again with this on.
    */
   checkDuplicates: boolean;
+  /**
+   * Stop reading once the batch is sure to be rejected (under the default policy, the first error):
+   * the caller then checks the whole batch again without loading, duplicates included.
+   */
+  stopWhenRejected?: boolean;
 }
 
 export interface NameTally {
@@ -205,6 +210,7 @@ export async function validateTrees(ctx: ValidationContext, src: TableSource, in
     }
     if (sink && !sink.stopped && !skipInvalid && log.errors > 0) sink.stop();
     ctx.tick();
+    if (sink?.stopped && input.stopWhenRejected) break;
   }
   if (sink && !sink.stopped && (stats.fatal || (!skipInvalid && log.errors > 0))) sink.stop();
 
