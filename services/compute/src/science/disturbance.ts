@@ -38,7 +38,7 @@ function assertFieldClass(fn: string, name: string, value: number): void {
   }
 }
 
-// f = G_logged stumps / (G_live + G_logged stumps), main plot only — output spec (stemwise definition); null if both 0
+// f = G_logged stumps / (G_live + G_logged stumps), main plot only — docs/methods.md#removed-basal-area-fraction (stemwise definition); null if both 0
 export function loggingRemovedBaFraction(liveBaM2: number, loggedStumpBaM2: number): number | null {
   if (!(liveBaM2 >= 0) || !(loggedStumpBaM2 >= 0) || !Number.isFinite(liveBaM2 + loggedStumpBaM2)) {
     throw new RangeError(

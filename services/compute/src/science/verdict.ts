@@ -316,7 +316,7 @@ export function fitCurves(points: readonly CurvePoint[], options: CurveOptions =
   });
 }
 
-/** The columns of `export fits`, in order (shared/spec/outputs.md). */
+/** The columns of `export fits`, in order (docs/exports.md, "export fits"). */
 export const FIT_COLUMNS = [
   'forest_type',
   'metric',
