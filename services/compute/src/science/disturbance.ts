@@ -1,4 +1,5 @@
 // Disturbance scores of a plot visit from logged stumps, stem fire damage and the field classes.
+// Formulas and check values: docs/methods.md#disturbance-scores.
 // These are stemwise's own documented defaults, NOT published constants or a published index: the
 // 0.5 saturation of the removed basal-area fraction and the equal weights of stem evidence and field
 // class are choices of this tool, all configurable through DisturbanceOptions. Scores lie in [0, 1].

@@ -1,4 +1,5 @@
 // Species diversity of one sample, from per-species counts of individuals (abundances).
+// Formulas, sources and check values: docs/methods.md#diversity.
 // Every function takes `readonly number[]` of non-negative integer counts; zeros are allowed and
 // ignored (a species listed but absent), so S counts only species with at least one individual.
 // Functions that are undefined for a sample return null rather than 0 or NaN.

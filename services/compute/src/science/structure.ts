@@ -1,6 +1,7 @@
 // Stand structure per hectare from stem diameters and per-stem expansion factors.
 // Each stem carries its own expansion factor w (stems per hectare it stands for): 1/area_ha on the
 // main plot, 1/subplot_area_ha on the nested subplot (docs/methods.md#expansion-factors).
+// Formulas and check values: docs/methods.md#stand-structure.
 
 // g = π (D/200)² m², D = dbh in cm — basal area of a stem (docs/methods.md#basal-area; forest mensuration)
 export function basalAreaM2(dbhCm: number): number {
