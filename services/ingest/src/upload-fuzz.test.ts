@@ -133,7 +133,7 @@ describe('the upload parser under random input (fast-check)', () => {
           if ('fields' in e) expect(e.lines).toBeGreaterThanOrEqual(1);
         }
       }),
-      { seed: SEED, numRuns: 1500 },
+      { seed: SEED, numRuns: 1000 },
     );
   });
 
@@ -153,7 +153,7 @@ describe('the upload parser under random input (fast-check)', () => {
           expect([STRUCTURE.encoding.code, STRUCTURE.gzipCorrupt.code]).toContain((err as FileProblem).rule.code);
         }
       }),
-      { seed: SEED, numRuns: 300 },
+      { seed: SEED, numRuns: 200 },
     );
   });
 
@@ -182,7 +182,7 @@ describe('the upload parser under random input (fast-check)', () => {
           if (column.kind === 'text' && v !== null) expect((v as string).length).toBeLessThanOrEqual(column.maxLength);
         }
       }),
-      { seed: SEED, numRuns: 2000 },
+      { seed: SEED, numRuns: 1500 },
     );
   });
 });
@@ -222,7 +222,7 @@ describe('the validator on mutated batches (fast-check)', () => {
           expectRejectedRowsNamed(r.rows, 'plots.csv', r.plots.stats.badRows);
         },
       ),
-      { seed: SEED, numRuns: 250 },
+      { seed: SEED, numRuns: 200 },
     );
   });
 
@@ -251,7 +251,7 @@ describe('the validator on mutated batches (fast-check)', () => {
         expect([...r.plots.plots.keys()]).toEqual(['FZ-01', 'FZ-02']);
         expect(r.log.errors).toBe(0);
       }),
-      { seed: SEED, numRuns: 200 },
+      { seed: SEED, numRuns: 150 },
     );
   });
 });
