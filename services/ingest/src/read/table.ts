@@ -21,6 +21,8 @@ export interface TableOptions extends Omit<FieldCheckOptions, 'file'> {
   onBytes(n: number): void;
   /** Longest line accepted (characters); longer stops the file. */
   maxLineChars?: number;
+  /** Largest decompressed size of a gzip file (bytes); larger stops the file. Default: no cap. */
+  maxUnpackedBytes?: number;
 }
 
 export interface TableRow {
@@ -124,7 +126,7 @@ export async function* readTable(src: TableSource, o: TableOptions, stats: Table
   };
 
   try {
-    for await (const text of textChunks(src.path, src.gzip, o.onBytes)) {
+    for await (const text of textChunks(src.path, src.gzip, o.onBytes, o.maxUnpackedBytes)) {
       if (!sawText && text.trim() !== '') sawText = true;
       splitter.push(text, events);
       const rows = rowsOf();
