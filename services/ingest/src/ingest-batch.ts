@@ -96,6 +96,7 @@ export async function ingestBatch(deps: ServiceDeps, batch: BatchRow, options: I
     log,
     options: batch.options,
     forestTypes: config.forestTypes.map((t) => t.code),
+    maxUnpackedBytes: config.maxUnpackedBytes,
     today: latestAllowedDate(),
     plausibility: { ...PLAUSIBILITY_DEFAULTS, ...options.plausibility },
     progress: reporter.counters,

@@ -22,6 +22,8 @@ export interface TableOptions extends Omit<FieldCheckOptions, 'file'> {
   onBytes(n: number): void;
   /** Longest line accepted (characters); longer stops the file. */
   maxLineChars?: number;
+  /** Largest decompressed size of a gzip file (bytes); larger stops the file. Default: no cap. */
+  maxUnpackedBytes?: number;
 }
 
 export interface TableRow {
@@ -142,7 +144,7 @@ export async function* readTable(src: TableSource, o: TableOptions, stats: Table
   };
 
   try {
-    for await (const text of textChunks(src.path, src.gzip, o.onBytes)) {
+    for await (const text of textChunks(src.path, src.gzip, o.onBytes, o.maxUnpackedBytes)) {
       if (!sawText && text.trim() !== '') sawText = true;
       if (!nulSeen && text.includes('\0')) nulSeen = true;
       splitter.push(text, events);
