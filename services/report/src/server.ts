@@ -9,6 +9,7 @@ import { auditTokenUse, type RouteContext } from './routes/auth';
 import { batchRoutes } from './routes/batches';
 import { fitRoutes } from './routes/fits';
 import { healthRoutes } from './routes/health';
+import { nationalRoutes } from './routes/national';
 import { pageRoutes } from './routes/pages';
 import { regionRoutes } from './routes/regions';
 import { SummaryCache } from './summary-cache';
@@ -88,6 +89,7 @@ export async function buildServer(deps: ServiceDeps, options: ReportServerOption
   auditTokenUse(app, ctx);
   healthRoutes(app, ctx);
   regionRoutes(app, ctx);
+  nationalRoutes(app, ctx);
   fitRoutes(app, ctx);
   batchRoutes(app, ctx);
   pageRoutes(app, ctx);
