@@ -65,6 +65,8 @@ export const CORPUS: CorpusCase[] = [
   { name: 'latitude 95', files: { ...base, plots: withPlot(0, 'MW-001,Upper Tarn,wet,95,27.4410,1,10,0.04,5,2023-05-14,0,1,420') }, expect: { rule: 'field_out_of_range', file: 'plots.csv', line: 2 } },
   { name: 'a plot area of 0', files: { ...base, plots: withPlot(2, 'MW-003,Lowmere,dry,-3.3003,27.6011,0,10,0,5,2023-06-02,1,0,180') }, expect: { rule: 'field_out_of_range', file: 'plots.csv', line: 4 } },
   { name: 'a plot id with a space', files: { ...base, plots: withPlot(2, 'MW 003,Lowmere,dry,-3.3003,27.6011,0.5,10,0,5,2023-06-02,1,0,180') }, expect: { rule: 'field_bad_characters', file: 'plots.csv', line: 4 } },
+  { name: 'a region named national (the name of the national rows)', files: { ...base, plots: withPlot(1, 'MW-002,national,wet,-3.1302,27.4522,1,10,0,5,2023-05-15,2,0,') }, expect: { rule: 'field_reserved_region', file: 'plots.csv', line: 3 } },
+  { name: 'a stratum of a region named National', files: { ...base, strata: `${STRATA}\n National ,dry,46000` }, expect: { rule: 'field_reserved_region', file: 'strata.csv', line: 5 } },
   { name: 'an unknown forest type', files: { ...base, plots: withPlot(1, 'MW-002,Upper Tarn,swamp,-3.1302,27.4522,1,10,0,5,2023-05-15,2,0,') }, expect: { rule: 'field_unknown_forest_type', file: 'plots.csv', line: 3 } },
   { name: 'logging class missing', files: { ...base, plots: withPlot(1, 'MW-002,Upper Tarn,moist,-3.1302,27.4522,1,10,0,5,2023-05-15,,0,') }, expect: { rule: 'field_required', file: 'plots.csv', line: 3 } },
   // A NUL byte passes the UTF-8 check, but PostgreSQL text cannot hold it: a field error, never a load failure.

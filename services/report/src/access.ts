@@ -8,7 +8,9 @@ import { findAccessTokenByHash, findAccessTokensByHashes, type Queryable, type T
 //              should read summaries.
 //  - reader:   the regions named on the token only: their summaries, plots, pages and region-scope
 //              fits, plus the forest-type-wide fits (scope `all`, national science that names no
-//              region). Another region answers 403 and never appears in a list.
+//              region). Another region answers 403 and never appears in a list. The national
+//              figures (all regions together) answer 403 and are not listed: they mix regions
+//              the reader may not read.
 // A token is `swt_` + 32 random bytes (base64url); only its SHA-256 hash is stored.
 
 export const TOKEN_ROLES = ['admin', 'uploader', 'reader'] as const satisfies readonly TokenRole[];
@@ -35,6 +37,14 @@ export function hashToken(token: string): string {
 /** Shape check before any lookup: a malformed credential is rejected without touching the database. */
 export function looksLikeToken(token: string): boolean {
   return TOKEN_PATTERN.test(token);
+}
+
+/**
+ * The national figures mix every region, so only a token that may read every region sees them: an
+ * admin. Readers are always limited to named regions (a reader token needs --region) and never do.
+ */
+export function canSeeNational(p: Principal): boolean {
+  return p.role === 'admin';
 }
 
 export function canSeeRegion(p: Principal, region: string): boolean {

@@ -12,6 +12,7 @@ import { auditTokenUse, type AuthFailureLimit, type RouteContext } from './route
 import { batchRoutes } from './routes/batches';
 import { fitRoutes } from './routes/fits';
 import { healthRoutes } from './routes/health';
+import { nationalRoutes } from './routes/national';
 import { pageRoutes } from './routes/pages';
 import { regionRoutes } from './routes/regions';
 import { SummaryCache } from './summary-cache';
@@ -129,6 +130,7 @@ export async function buildServer(deps: ServiceDeps, options: ReportServerOption
   auditTokenUse(app, ctx);
   healthRoutes(app, ctx);
   regionRoutes(app, ctx);
+  nationalRoutes(app, ctx);
   fitRoutes(app, ctx);
   batchRoutes(app, ctx);
   pageRoutes(app, ctx);

@@ -2,13 +2,16 @@ import type { FastifyInstance, FastifyReply, FastifyRequest } from 'fastify';
 import type { ZodTypeProvider } from 'fastify-type-provider-zod';
 import { z } from 'zod';
 import { IPCC_2006_CARBON_FRACTION } from '@stemwise/compute/science/allometry';
-import { listRegionHeads, listSummaryVersions } from '@stemwise/db';
-import { readsRegions, type Principal } from '../access';
+import { listNationalVersions, listRegionHeads, listSummaryVersions } from '@stemwise/db';
+import { canSeeNational, readsRegions, type Principal } from '../access';
+import { readNationalSnapshot } from '../national-snapshot';
 import { renderIndexPage } from '../page/index-page';
 import { renderMessagePage } from '../page/message-page';
+import { renderNationalPage } from '../page/national-page';
 import { renderRegionPage } from '../page/region-page';
 import { PAGE_HEADERS } from '../page/shell';
 import { checkToken, requireToken, routeOf, TOKEN_COOKIE, type Deny, type RouteContext } from './auth';
+import { checkNational, NATIONAL_LINKS } from './national';
 import { checkRegion, regionLinks, visibleRegions } from './regions';
 import { RegionParams, VersionNumber } from './schemas';
 
@@ -16,7 +19,7 @@ const COOKIE_MAX_AGE_S = 30 * 24 * 3600;
 
 const HINTS: Record<number, string> = {
   401: 'Open this address once with ?token=YOUR_TOKEN added (a token comes from `stemwise token create`); the browser then keeps it in a cookie for 30 days.',
-  403: 'Ask an administrator for a token that covers this region.',
+  403: 'Ask an administrator for a token that covers this page.',
 };
 
 /** Errors of the pages as small HTML pages. */
@@ -77,8 +80,35 @@ export function pageRoutes(app: FastifyInstance, ctx: RouteContext): void {
       updatedAt: h.head?.createdAt ?? null,
       href: h.head ? regionLinks(h.region).page : null,
     }));
-    return sendPage(reply, renderIndexPage(entries, { carbonFraction: IPCC_2006_CARBON_FRACTION, signOut: '/signout' }));
+    const national = canSeeNational(p) ? await readNationalSnapshot(ctx.deps.db) : null;
+    return sendPage(reply, renderIndexPage(entries, { carbonFraction: IPCC_2006_CARBON_FRACTION, signOut: '/signout', national: national && { snapshot: national, href: NATIONAL_LINKS.page } }));
   });
+
+  r.get(
+    '/national',
+    { preValidation, schema: { hide: true, querystring: z.object({ version: VersionNumber.optional() }) } },
+    async (request, reply) => {
+      if (!checkNational(request, reply, denyHtml)) return reply;
+      const snapshot = await readNationalSnapshot(ctx.deps.db, request.query.version);
+      if (!snapshot) {
+        return denyHtml(reply, 404, 'not_found', request.query.version ? `Version ${request.query.version} of the national summary does not exist.` : 'No national summary yet: it is assembled by the next recompute.');
+      }
+      const v = snapshot.version;
+      const body = renderNationalPage({
+        snapshot,
+        carbonFraction: IPCC_2006_CARBON_FRACTION,
+        versions: await listNationalVersions(ctx.deps.db),
+        links: {
+          index: '/',
+          summaryJson: `${NATIONAL_LINKS.summary}?version=${v}`,
+          summaryCsv: `${NATIONAL_LINKS.summary}?format=csv&version=${v}`,
+          versionPage: (n) => `${NATIONAL_LINKS.page}?version=${n}`,
+          signOut: '/signout',
+        },
+      });
+      return sendPage(reply, body);
+    },
+  );
 
   r.get(
     '/regions/:region',

@@ -30,7 +30,17 @@ export const RegionListItem = z.object({
   updated_at: z.string().nullable(),
   links: z.object({ summary: z.string(), summary_csv: z.string(), plots: z.string(), page: z.string() }),
 });
-export const RegionList = z.object({ regions: z.array(RegionListItem) });
+export const RegionList = z.object({
+  national: z
+    .object({
+      latest_version: z.number().int().nullable(),
+      updated_at: z.string().nullable(),
+      links: z.object({ summary: z.string(), summary_csv: z.string(), versions: z.string(), page: z.string() }),
+    })
+    .optional()
+    .describe('the national summary (all regions together): present for admin tokens only'),
+  regions: z.array(RegionListItem),
+});
 
 export const SummaryQuery = z.object({
   format: z.enum(['json', 'csv']).optional().describe('json (default) or csv; `Accept: text/csv` also selects CSV'),
@@ -96,6 +106,20 @@ export const RegionSummarySchema = z.object({
   notes: z.array(NoteSchema),
 });
 
+export const NationalSummarySchema = z.object({
+  n_plots: z.number().int(),
+  regions: z.array(z.string()),
+  forest_types: z.array(z.string()),
+  strata: z.array(z.object({ region: z.string(), forest_type: z.string(), n_plots: z.number().int(), forest_area_ha: num })).describe('the region × forest type strata'),
+  weighting: z.enum(['area', 'plot_count']).describe('W_h from forest areas of every stratum, or from plot counts when one is missing'),
+  confidence: z.number(),
+  sampling_error_t: z.union([z.literal('t'), z.number()]),
+  rows: z.array(RegionRowSchema).describe('`export regions` rows with region `national`: `all` (every region × forest type), then each forest type nationally'),
+  totals: z.array(TotalRowSchema),
+  estimate_details: z.array(EstimateDetailSchema.extend({ forest_type: z.string() })),
+  notes: z.array(NoteSchema),
+});
+
 export const FitRowSchema = z.object({
   scope: z.string().describe('`all` = the forest type as a whole; otherwise a region'),
   forest_type: z.string(),
@@ -136,10 +160,20 @@ export const SummaryResponse = z.object({
   fits: z.array(FitRowSchema),
 });
 
+export const NationalResponse = SummaryResponse.omit({ fits: true }).extend({
+  region: z.literal('national'),
+  data: SummaryResponse.shape.data.omit({ species_reference_version: true }).extend({ regions: z.number().int() }),
+  method: z.object({ estimator: z.string() }),
+  summary: NationalSummarySchema,
+  sources: z.record(z.string(), z.number().int().nullable()).describe('region → its summary version current when this was assembled'),
+});
+
 export const VersionList = z.object({
   region: z.string(),
   versions: z.array(z.object({ version: z.number().int(), etag: z.string(), created_at: z.string() })),
 });
+
+export const NationalVersionList = VersionList.omit({ region: true });
 
 export const GeoJsonCollection = z
   .object({
