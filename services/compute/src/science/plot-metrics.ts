@@ -1,5 +1,5 @@
 // Every numeric column of `export plots` for one plot visit, from its stems: one pure function.
-// Rules (shared/spec/outputs.md, inventory-format.md):
+// Rules (docs/methods.md#which-stems-count; columns in docs/exports.md, fields in docs/upload-format.md):
 //  - structure, biomass and carbon: all live stems, identified or not, main plot and subplot, each
 //    expanded by its own area; live stems below their plot's or subplot's dbh minimum are left out
 //    (they were not sampled on that area) and counted in the diagnostics;

@@ -16,7 +16,7 @@ export const PLAUSIBILITY = {
 
 /**
  * Bounds of the plausibility warnings. None comes from a measured standard: they are common practice,
- * recalled from memory (see the reference notes of the project), so they are options, not constants.
+ * recalled from memory (docs/methods.md#plausibility-warnings), so they are options, not constants.
  */
 export interface PlausibilityOptions {
   /** A plot whose median diameter exceeds this (cm) probably recorded millimetres. Common practice: tropical
