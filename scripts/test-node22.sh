@@ -6,7 +6,7 @@
 set -euo pipefail
 cd "$(dirname "$0")/.."
 
-dir="${STEMWISE_NODE22_DIR:-${TMPDIR:-/tmp}/stemwise-node22}"
+dir="${STEMWISE_NODE22_DIR:-$(node -p "require('node:os').tmpdir()")/stemwise-node22}"
 pkg="node-$(node -p process.platform)-$(node -p process.arch)"
 bin="$dir/node_modules/$pkg/bin/node"
 
