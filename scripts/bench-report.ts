@@ -99,7 +99,8 @@ async function serve(plots: number): Promise<void> {
   } else {
     dataDir = fs.mkdtempSync(path.join(os.tmpdir(), 'stemwise-bench-'));
   }
-  const config = loadConfig({ DATABASE_URL: databaseUrl, STEMWISE_DATA_DIR: dataDir ?? env.dataDir, STEMWISE_LOG_LEVEL: 'warn' });
+  // every connection comes from loopback: the per-client request limit would measure 429s, not summaries
+  const config = loadConfig({ DATABASE_URL: databaseUrl, STEMWISE_DATA_DIR: dataDir ?? env.dataDir, STEMWISE_LOG_LEVEL: 'warn', STEMWISE_RATE_LIMIT_PER_MINUTE: '1000000' });
   const db = await openDatabase(config);
   await migrateDatabase(db);
   await syncForestTypes(db, config.forestTypes);

@@ -153,7 +153,9 @@ describe('report API', () => {
       const broken = await buildServer({ ...deps, queue, db: { ...deps.db, query: async () => Promise.reject(new Error('connection refused')) } });
       const bad = await broken.inject({ url: '/readyz' });
       expect(bad.statusCode).toBe(503);
-      expect(bad.json().checks.database).toEqual({ ok: false, error: 'Error: connection refused' });
+      // a short status only: /readyz needs no token, and driver messages name hosts, users and databases
+      expect(bad.json().checks.database).toEqual({ ok: false, error: 'unreachable' });
+      expect(bad.body).not.toMatch(/connection refused/);
       expect(bad.json().checks.redis.ok).toBe(true);
       expect((await broken.inject({ url: '/healthz' })).json()).toEqual({ status: 'ok' });
       await broken.close();

@@ -205,6 +205,14 @@ describe('computePlotMetrics edge cases', () => {
     expect(d.unresolvedNames).toEqual([{ name: 'Veltria nova', level: 'genus', stems: 2 }]);
   });
 
+  it('lists unresolved names over every stem of the visit, any status or size (the stems the ingest warnings count)', () => {
+    const { diagnostics: d } = computePlotMetrics(VISIT, [
+      stem('Veltria nova', 20), stem('Veltria nova', 25, { status: 'dead' }), stem('Veltria nova', 30, { status: 'stump', stumpCause: 'natural' }),
+      stem('Veltria nova', 4), stem('Xenoa spinosa', 20, { status: 'dead' }),
+    ], index);
+    expect(d.unresolvedNames).toEqual([{ name: 'Veltria nova', level: 'genus', stems: 4 }, { name: 'Xenoa spinosa', level: 'unresolved', stems: 1 }]);
+  });
+
   it('diversity is null below minStemsForDiversity (default 2) and computed from it', () => {
     const one = [stem('Veltria magna', 20)];
     expect(computePlotMetrics(VISIT, one, index).metrics.richness).toBeNull();

@@ -8,8 +8,9 @@ import { renderIndexPage } from '../page/index-page';
 import { renderMessagePage } from '../page/message-page';
 import { renderRegionPage } from '../page/region-page';
 import { PAGE_HEADERS } from '../page/shell';
-import { requireToken, TOKEN_COOKIE, type Deny, type RouteContext } from './auth';
+import { checkToken, requireToken, routeOf, TOKEN_COOKIE, type Deny, type RouteContext } from './auth';
 import { checkRegion, regionLinks, visibleRegions } from './regions';
+import { RegionParams, VersionNumber } from './schemas';
 
 const COOKIE_MAX_AGE_S = 30 * 24 * 3600;
 
@@ -20,7 +21,7 @@ const HINTS: Record<number, string> = {
 
 /** Errors of the pages as small HTML pages. */
 export const denyHtml: Deny = (reply, status, code, message) => {
-  const titles: Record<number, string> = { 401: 'Sign-in needed', 403: 'Not for this token', 404: 'Not found' };
+  const titles: Record<number, string> = { 401: 'Sign-in needed', 403: 'Not for this token', 404: 'Not found', 429: 'Too many attempts' };
   return reply
     .code(status)
     .headers(PAGE_HEADERS)
@@ -28,6 +29,11 @@ export const denyHtml: Deny = (reply, status, code, message) => {
     .type('text/html; charset=utf-8')
     .send(renderMessagePage(titles[status], message, HINTS[status]));
 };
+
+/** The session cookie (see TOKEN_COOKIE): Secure when the original request was https (`request.protocol` follows a trusted proxy's X-Forwarded-Proto). */
+function tokenCookie(request: FastifyRequest, value: string, maxAgeS: number): string {
+  return `${TOKEN_COOKIE}=${value}; HttpOnly; SameSite=Lax; Path=/; Max-Age=${maxAgeS}${request.protocol === 'https' ? '; Secure' : ''}`;
+}
 
 function sendPage(reply: FastifyReply, body: string): FastifyReply {
   return reply.headers(PAGE_HEADERS).type('text/html; charset=utf-8').send(body);
@@ -42,13 +48,14 @@ function tokenFromQuery(ctx: RouteContext) {
     const url = new URL(request.url, 'http://local');
     const token = url.searchParams.get('token');
     if (token === null) return;
-    const v = await ctx.verifier.verify(token);
+    const v = await checkToken(ctx, request, reply, token, denyHtml);
+    if (!v) return reply;
     if (!v.ok) return denyHtml(reply, 401, 'unauthorized', v.reason === 'revoked' ? 'This token was revoked.' : 'This token is not valid.');
+    ctx.audit.record({ actor: v.principal.tokenId, action: 'token.signin', target: routeOf(request), details: { client: request.ip } });
     url.searchParams.delete('token');
-    const secure = request.protocol === 'https' ? '; Secure' : '';
     return reply
       .code(303)
-      .header('set-cookie', `${TOKEN_COOKIE}=${encodeURIComponent(token)}; HttpOnly; SameSite=Lax; Path=/; Max-Age=${COOKIE_MAX_AGE_S}${secure}`)
+      .header('set-cookie', tokenCookie(request, encodeURIComponent(token), COOKIE_MAX_AGE_S))
       .header('cache-control', 'no-store')
       .redirect(url.pathname + url.search, 303);
   };
@@ -57,9 +64,9 @@ function tokenFromQuery(ctx: RouteContext) {
 export function pageRoutes(app: FastifyInstance, ctx: RouteContext): void {
   const r = app.withTypeProvider<ZodTypeProvider>();
   const auth = requireToken(ctx, { cookie: true, deny: denyHtml });
-  const preHandler = [tokenFromQuery(ctx), auth];
+  const preValidation = [tokenFromQuery(ctx), auth];
 
-  r.get('/', { preHandler, schema: { hide: true } }, async (request, reply) => {
+  r.get('/', { preValidation, schema: { hide: true } }, async (request, reply) => {
     const p = request.principal as Principal;
     if (!readsRegions(p)) return denyHtml(reply, 403, 'forbidden', 'This token may submit and follow batches only; the summaries need a reader or admin token.');
     const heads = visibleRegions(p, await listRegionHeads(ctx.deps.db));
@@ -75,7 +82,7 @@ export function pageRoutes(app: FastifyInstance, ctx: RouteContext): void {
 
   r.get(
     '/regions/:region',
-    { preHandler, schema: { hide: true, params: z.object({ region: z.string().min(1).max(80) }), querystring: z.object({ version: z.coerce.number().int().min(1).optional() }) } },
+    { preValidation, schema: { hide: true, params: RegionParams, querystring: z.object({ version: VersionNumber.optional() }) } },
     async (request, reply) => {
       const { region } = request.params;
       if (!(await checkRegion(ctx, request, reply, region, denyHtml))) return reply;
@@ -102,9 +109,9 @@ export function pageRoutes(app: FastifyInstance, ctx: RouteContext): void {
     },
   );
 
-  r.get('/signout', { schema: { hide: true } }, async (_request, reply) => {
+  r.get('/signout', { schema: { hide: true } }, async (request, reply) => {
     return reply
-      .header('set-cookie', `${TOKEN_COOKIE}=; HttpOnly; SameSite=Lax; Path=/; Max-Age=0`)
+      .header('set-cookie', tokenCookie(request, '', 0))
       .headers(PAGE_HEADERS)
       .type('text/html; charset=utf-8')
       .send(renderMessagePage('Signed out', 'The token was removed from this browser.', 'Open a page with ?token=YOUR_TOKEN to sign in again.'));

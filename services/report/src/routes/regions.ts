@@ -60,7 +60,7 @@ export function regionRoutes(app: FastifyInstance, ctx: RouteContext): void {
   r.get(
     '/v1/regions',
     {
-      preHandler: auth,
+      preValidation: auth,
       schema: {
         summary: 'Regions this token may see, with their latest summary version',
         tags: ['regions'],
@@ -87,7 +87,7 @@ export function regionRoutes(app: FastifyInstance, ctx: RouteContext): void {
   r.get(
     '/v1/regions/:region/summary',
     {
-      preHandler: auth,
+      preValidation: auth,
       schema: {
         summary: "A region's summary: stratified estimates with intervals, guilds, disturbance classes, species, fits",
         description:
@@ -129,7 +129,7 @@ export function regionRoutes(app: FastifyInstance, ctx: RouteContext): void {
   r.get(
     '/v1/regions/:region/versions',
     {
-      preHandler: auth,
+      preValidation: auth,
       schema: {
         summary: "Every stored version of a region's summary, newest first",
         tags: ['regions'],
@@ -149,7 +149,7 @@ export function regionRoutes(app: FastifyInstance, ctx: RouteContext): void {
   r.get(
     '/v1/regions/:region/plots',
     {
-      preHandler: auth,
+      preValidation: auth,
       schema: {
         summary: "A region's plots with their metrics (GeoJSON)",
         tags: ['regions'],
