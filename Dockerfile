@@ -1,5 +1,6 @@
 # One image for every service: `stemwise serve ingest|compute|report`.
-FROM node:20-bookworm-slim
+# Node 22 LTS; the project also runs on Node 20 (package.json "engines"), and CI runs the unit tests on both.
+FROM node:22-bookworm-slim
 WORKDIR /app
 COPY package.json package-lock.json ./
 COPY platform/package.json platform/

@@ -2,14 +2,15 @@ import fs from 'node:fs';
 import path from 'node:path';
 import { InProcessQueue, loadConfig, type Config, type Logger } from '@stemwise/platform';
 import { migrateDatabase, openDatabase, syncForestTypes, type ServiceDeps } from '@stemwise/db';
+import { checkOwnFolder, claimOwnFolder } from './own-folder';
 import { availableProcessors } from './processors';
 
 export interface DemoOptions {
   /** Folder holding plots.csv(.gz), trees.csv(.gz), optionally strata and species. */
   inputDir: string;
-  /** Report folder to write (emptied first). */
+  /** Report folder to write: missing, empty, or one stemwise made (emptied first); any other is refused. */
   outDir: string;
-  /** Folder of the demo's own embedded database (recreated each run). */
+  /** Folder of the demo's own embedded database (recreated each run; the same rule as outDir). */
   workDir: string;
   log: Logger;
   /** Settings other than the database and queue (taken from the caller's configuration). */
@@ -46,7 +47,9 @@ export interface DemoResult {
 export async function runDemo(o: DemoOptions): Promise<DemoResult> {
   const started = Date.now();
   const step = o.step ?? (() => {});
-  fs.rmSync(o.workDir, { recursive: true, force: true });
+  // Refused before any work: a folder with someone's files in it is never emptied.
+  checkOwnFolder(o.outDir);
+  claimOwnFolder(o.workDir, ['pgdata', 'uploads']);
   const config: Config = {
     ...(o.base ?? loadConfig({})),
     databaseUrl: undefined,
@@ -78,8 +81,7 @@ export async function runDemo(o: DemoOptions): Promise<DemoResult> {
     if (batch.state !== 'computed') throw new Error(`the demo batch ended ${batch.state} with ${batch.n_errors} error(s)`);
 
     step(`writing the report folder ${o.outDir}`);
-    fs.rmSync(o.outDir, { recursive: true, force: true });
-    fs.mkdirSync(o.outDir, { recursive: true });
+    claimOwnFolder(o.outDir);
     const report = await import('@stemwise/report');
     const compute = await import('@stemwise/compute');
     const pages = await report.writeRegionPages(deps, o.outDir);

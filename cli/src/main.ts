@@ -1,25 +1,37 @@
 import { oneLine, StemwiseError } from '@stemwise/platform';
+import { resolveCommand, type Command } from './command';
+import { printErr, printOut } from './output';
 import { Runtime } from './runtime';
 
-type Command = { summary: string; run(args: string[], rt: Runtime): Promise<number> };
-
-// One module per command; a command whose issue has not landed yet says so plainly.
+// One module per command, each exporting `command` (its usage, options and run).
 const COMMANDS: Record<string, () => Promise<Command>> = {
-  migrate: () => import('./commands/migrate'),
-  species: () => import('./commands/species'),
-  upload: () => import('./commands/upload'),
-  batch: () => import('./commands/batch'),
-  recompute: () => import('./commands/recompute'),
-  export: () => import('./commands/export'),
-  serve: () => import('./commands/serve'),
-  token: () => import('./commands/token'),
-  demo: () => import('./commands/demo'),
+  migrate: async () => (await import('./commands/migrate')).command,
+  species: async () => (await import('./commands/species')).command,
+  upload: async () => (await import('./commands/upload')).command,
+  batch: async () => (await import('./commands/batch')).command,
+  recompute: async () => (await import('./commands/recompute')).command,
+  export: async () => (await import('./commands/export')).command,
+  serve: async () => (await import('./commands/serve')).command,
+  token: async () => (await import('./commands/token')).command,
+  demo: async () => (await import('./commands/demo')).command,
 };
+
+/** The command names, for tests that walk every command. */
+export const COMMAND_NAMES = Object.keys(COMMANDS);
+
+/** A command by name (with its subcommands), without running anything. */
+export async function loadCommand(name: string): Promise<Command | undefined> {
+  return COMMANDS[name]?.();
+}
 
 async function usage(): Promise<string> {
   const lines = ['usage: stemwise <command> [options]', '', 'commands:'];
   for (const [name, load] of Object.entries(COMMANDS)) lines.push(`  ${name.padEnd(10)} ${(await load()).summary}`);
-  lines.push('', 'Without DATABASE_URL the database is embedded (PGlite); without REDIS_URL jobs run in-process.');
+  lines.push(
+    '',
+    "'stemwise <command> --help' shows the options of a command. An unknown option is a usage error (exit code 2).",
+    'Without DATABASE_URL the database is embedded (PGlite); without REDIS_URL jobs run in-process.',
+  );
   return lines.join('\n') + '\n';
 }
 
@@ -27,20 +39,25 @@ async function usage(): Promise<string> {
 export async function main(argv: string[], env: Readonly<Record<string, string | undefined>> = process.env): Promise<number> {
   const [name, ...args] = argv;
   if (!name || name === '--help' || name === '-h' || name === 'help') {
-    process.stdout.write(await usage());
+    printOut(await usage());
     return name ? 0 : 2;
   }
   const load = COMMANDS[name];
   if (!load) {
-    process.stderr.write(`stemwise: unknown command '${name}'\n${await usage()}`);
+    printErr(`stemwise: unknown command '${name}'\n${await usage()}`);
     return 2;
   }
   let rt: Runtime | null = null;
   try {
-    rt = new Runtime(env);
-    return await (await load()).run(args, rt);
+    const resolved = resolveCommand(name, await load(), args);
+    if ('help' in resolved) {
+      printOut(resolved.help);
+      return 0;
+    }
+    rt = new Runtime(env, resolved.spec.logs ?? 'text');
+    return await resolved.spec.run(resolved.parsed, rt);
   } catch (err) {
-    process.stderr.write(`stemwise: ${oneLine(err)}\n`);
+    printErr(`stemwise: ${oneLine(err)}\n`);
     if (!(err instanceof StemwiseError) && env.STEMWISE_LOG_LEVEL === 'debug') console.error(err);
     return err instanceof StemwiseError && err.code === 'usage' ? 2 : 1;
   } finally {

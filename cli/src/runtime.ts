@@ -1,5 +1,13 @@
-import { createLogger, loadConfig, openQueue, type Config, type JobQueue, type Logger } from '@stemwise/platform';
+import { createLogger, loadConfig, openQueue, type Config, type JobQueue, type LogFormat, type Logger } from '@stemwise/platform';
 import { migrateDatabase, openDatabase, syncForestTypes, type Db } from '@stemwise/db';
+
+/**
+ * Text logs sit between a command's own lines: the pipeline's info entries would drown them, so only
+ * warnings and worse are shown, unless STEMWISE_LOG_LEVEL asks for debug or trace (or is quieter).
+ */
+function textLevel(level: string): string {
+  return level === 'info' ? 'warn' : level;
+}
 
 /** What a command needs, opened lazily and closed once at the end. */
 export class Runtime {
@@ -8,9 +16,11 @@ export class Runtime {
   private db_: Db | null = null;
   private queue_: JobQueue | null = null;
 
-  constructor(env: Readonly<Record<string, string | undefined>> = process.env) {
+  /** `logs`: the command's log format when STEMWISE_LOG_FORMAT does not set one. */
+  constructor(env: Readonly<Record<string, string | undefined>> = process.env, logs: LogFormat = 'text') {
     this.config = loadConfig(env);
-    this.log = createLogger(this.config.logLevel);
+    const format = this.config.logFormat ?? logs;
+    this.log = createLogger(format === 'text' ? textLevel(this.config.logLevel) : this.config.logLevel, {}, format);
   }
 
   /** The database, migrated to the current schema (embedded PGlite when DATABASE_URL is unset). */

@@ -1,6 +1,7 @@
 import path from 'node:path';
 import { z } from 'zod';
 import { ConfigError } from './errors';
+import type { LogFormat } from './logger';
 
 // The only module that reads process.env. Every setting, its default and its meaning; the README's
 // configuration table is written from this list.
@@ -19,6 +20,7 @@ const envSchema = z.object({
   STEMWISE_DATA_DIR: z.string().min(1).default('.stemwise'),
   STEMWISE_STORAGE_DIR: z.string().min(1).optional(),
   STEMWISE_LOG_LEVEL: z.enum(['fatal', 'error', 'warn', 'info', 'debug', 'trace', 'silent']).default('info'),
+  STEMWISE_LOG_FORMAT: z.enum(['json', 'text']).optional(),
   STEMWISE_QUEUE_PREFIX: z.string().regex(/^[A-Za-z0-9_.-]+$/, 'letters, digits, _ . - only').default('stemwise'),
   STEMWISE_FOREST_TYPES: z
     .string()
@@ -66,6 +68,8 @@ export interface Config {
   dataDir: string;
   storageDir: string;
   logLevel: string;
+  /** Unset: `serve` writes JSON lines, the other commands text lines (see SETTINGS). */
+  logFormat: LogFormat | undefined;
   queuePrefix: string;
   forestTypes: ReadonlyArray<{ code: string; climate: Climate }>;
   computeConcurrency: number;
@@ -116,7 +120,8 @@ export const SETTINGS: ReadonlyArray<{ name: string; default: string; meaning: s
   { name: 'REDIS_URL', default: '(unset: jobs run in-process)', meaning: 'Redis for BullMQ queues, e.g. redis://127.0.0.1:6379' },
   { name: 'STEMWISE_DATA_DIR', default: '.stemwise', meaning: 'folder of the embedded database and, by default, stored uploads' },
   { name: 'STEMWISE_STORAGE_DIR', default: '<data dir>/uploads', meaning: 'where uploaded files are kept; must be shared by all ingest workers' },
-  { name: 'STEMWISE_LOG_LEVEL', default: 'info', meaning: 'pino log level (logs go to stderr as JSON lines)' },
+  { name: 'STEMWISE_LOG_LEVEL', default: 'info', meaning: 'pino log level; logs go to stderr (in text format only warnings and errors unless it is debug or trace)' },
+  { name: 'STEMWISE_LOG_FORMAT', default: '(unset: json for serve, text for other commands)', meaning: 'json: one JSON object per line; text: a line for a person (`stemwise: warning: …`)' },
   { name: 'STEMWISE_QUEUE_PREFIX', default: 'stemwise', meaning: 'Redis key prefix of the queues' },
   { name: 'STEMWISE_FOREST_TYPES', default: 'wet:wet,moist:moist,dry:dry', meaning: 'known forest type codes and the climate class of their no-height biomass model' },
   { name: 'STEMWISE_COMPUTE_CONCURRENCY', default: '2', meaning: 'jobs a compute worker runs at once' },
@@ -177,6 +182,7 @@ export function loadConfig(env: Readonly<Record<string, string | undefined>> = p
     dataDir,
     storageDir: path.resolve(e.STEMWISE_STORAGE_DIR ?? path.join(dataDir, 'uploads')),
     logLevel: e.STEMWISE_LOG_LEVEL,
+    logFormat: e.STEMWISE_LOG_FORMAT,
     queuePrefix: e.STEMWISE_QUEUE_PREFIX,
     forestTypes: e.STEMWISE_FOREST_TYPES.split(',').map((pair) => {
       const [code, climate] = pair.split(':');

@@ -3,3 +3,4 @@ export * from './errors';
 export * from './logger';
 export * from './queue/index';
 export * from './table-format';
+export * from './terminal-text';

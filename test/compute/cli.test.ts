@@ -3,8 +3,8 @@ import fs from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
 import { promisify } from 'node:util';
-import { afterAll, beforeAll, describe, expect, it, vi } from 'vitest';
-import { main } from '../../cli/src/main';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { runMain } from '../support/cli';
 import type { ServiceDeps } from '@stemwise/db';
 import { BullQueue } from '@stemwise/platform';
 import { createProcessors } from '@stemwise/compute';
@@ -31,19 +31,7 @@ describe('stemwise recompute and export', () => {
   let s: TestServices;
   const out = fs.mkdtempSync(path.join(os.tmpdir(), 'stemwise-export-'));
   const noRedis = () => ({ ...envFor(s), REDIS_URL: undefined, STEMWISE_BOOTSTRAP: '50' });
-  // main() in this process (what bin/stemwise.mjs runs), its stdout and stderr captured: quicker than a process.
-  const inProcess = async (args: string[], env: Record<string, string | undefined> = noRedis()) => {
-    let stdout = '';
-    let stderr = '';
-    const out = vi.spyOn(process.stdout, 'write').mockImplementation((chunk: string | Uint8Array) => ((stdout += String(chunk)), true));
-    const err = vi.spyOn(process.stderr, 'write').mockImplementation((chunk: string | Uint8Array) => ((stderr += String(chunk)), true));
-    try {
-      return { code: await main(args, env), stdout, stderr };
-    } finally {
-      out.mockRestore();
-      err.mockRestore();
-    }
-  };
+  const inProcess = (args: string[], env: Record<string, string | undefined> = noRedis()) => runMain(args, env);
 
   beforeAll(async () => {
     s = await useServices();

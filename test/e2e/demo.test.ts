@@ -6,6 +6,7 @@ import { generateInventory } from '@stemwise/demo-inventory';
 import { createLogger } from '@stemwise/platform';
 import { runDemo, type DemoResult } from '../../cli/src/demo-pipeline';
 import { demoTable } from '../../cli/src/commands/demo';
+import { OWN_FOLDER_MARKER } from '../../cli/src/own-folder';
 
 // The demo pipeline end to end, exactly as `stemwise demo` runs it (embedded PGlite, in-process jobs),
 // on a freshly generated inventory with a seed other than the committed set's: the planted shapes
@@ -48,6 +49,7 @@ describe('stemwise demo on a generated inventory', () => {
   it('writes the report folder: pages per region, exports and charts', () => {
     const index = fs.readFileSync(result.index, 'utf8');
     expect(index).toContain('<html');
+    expect(fs.existsSync(path.join(out, OWN_FOLDER_MARKER))).toBe(true); // the next run may empty it
     const pages = fs.readdirSync(path.join(out, 'regions')).filter((f) => f.endsWith('.html'));
     expect(pages.length).toBe(result.regions);
     const page = fs.readFileSync(path.join(out, 'regions', pages[0]), 'utf8');

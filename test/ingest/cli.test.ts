@@ -2,8 +2,8 @@ import { execFile, spawn } from 'node:child_process';
 import fs from 'node:fs';
 import path from 'node:path';
 import { promisify } from 'node:util';
-import { afterAll, beforeAll, describe, expect, it, vi } from 'vitest';
-import { main } from '../../cli/src/main';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { runMain } from '../support/cli';
 import { envFor, useServices, type TestServices } from '../support/services';
 import { PLOTS, SPECIES, tempDir, TREES, writeUpload } from './support';
 
@@ -26,20 +26,11 @@ describe('stemwise upload, batch show and species import', () => {
   }
 
   async function stemwiseWith(env: Record<string, string | undefined>, ...args: string[]) {
-    let stdout = '';
-    let stderr = '';
-    const o = vi.spyOn(process.stdout, 'write').mockImplementation((c: string | Uint8Array) => ((stdout += String(c)), true));
-    const e = vi.spyOn(process.stderr, 'write').mockImplementation((c: string | Uint8Array) => ((stderr += String(c)), true));
-    try {
-      return { code: await main(args, env), stdout, stderr };
-    } finally {
-      o.mockRestore();
-      e.mockRestore();
-    }
+    return runMain(args, env);
   }
 
   /** A real process, as users run it. */
-  async function spawned(...args: string[]) {
+  async function spawnedWith(env: Record<string, string | undefined>, ...args: string[]) {
     try {
       const r = await run(process.execPath, [BIN, ...args], { env: env as NodeJS.ProcessEnv, timeout: 120_000 });
       return { code: 0, stdout: r.stdout, stderr: r.stderr };
@@ -51,11 +42,14 @@ describe('stemwise upload, batch show and species import', () => {
 
   it('uploads a folder, waits for it, recognises it again and shows it as text, JSON and CSV', async () => {
     const dir = writeUpload({ plots: PLOTS, trees: TREES, species: SPECIES });
-    const up = await spawned('upload', dir, '--wait');
+    // At the default log level (info), as users run it.
+    const up = await spawnedWith({ ...env, STEMWISE_LOG_LEVEL: undefined }, 'upload', dir, '--wait');
     expect(up.code, up.stderr).toBe(0);
     const id = up.stdout.trim();
     expect(id).toMatch(/^[0-9a-f-]{36}$/);
     expect(up.stderr).toMatch(/9 stems loaded/);
+    // Human lines only: the pipeline's JSON log entries stay off the terminal (STEMWISE_LOG_FORMAT=json brings them).
+    expect(`${up.stdout}${up.stderr}`).not.toMatch(/^\s*\{/m);
 
     const again = await stemwise('upload', dir);
     expect(again.stdout.trim()).toBe(`already received as ${id}`);
@@ -68,6 +62,33 @@ describe('stemwise upload, batch show and species import', () => {
     expect(fs.readFileSync(csvFile, 'utf8')).toMatch(/^severity,rule,file,line,column,value,message\nwarning,plausibility_species_genus_only,trees\.csv,5,/);
     const json = JSON.parse((await stemwise('batch', 'show', id, '--format', 'json')).stdout);
     expect(json).toMatchObject({ id, counts: { stemsLoaded: 9, plotsLoaded: 3, errors: 0 } });
+  });
+
+  it('writes JSON log lines when STEMWISE_LOG_FORMAT=json asks for them', async () => {
+    const dir = writeUpload({ plots: PLOTS.replace(/MW-/g, 'JL-').replace(/27\./g, '26.'), trees: TREES.replace(/MW-/g, 'JL-') });
+    const up = await spawnedWith({ ...env, STEMWISE_LOG_LEVEL: undefined, STEMWISE_LOG_FORMAT: 'json' }, 'upload', dir, '--wait');
+    expect(up.code, up.stderr).toBe(0);
+    const json = up.stderr.split('\n').filter((l) => l.startsWith('{'));
+    expect(json.length).toBeGreaterThan(0);
+    expect(JSON.parse(json[0])).toMatchObject({ app: 'stemwise', level: 30 });
+    expect(up.stdout.trim()).toMatch(/^[0-9a-f-]{36}$/);
+  });
+
+  it('shows file names with terminal control characters escaped, in text and in JSON', async () => {
+    const dir = writeUpload({ plots: PLOTS.replace(/MW-/g, 'EC-').replace(/27\./g, '25.'), trees: TREES.replace(/MW-/g, 'EC-') });
+    const name = 'plots\x1b[2J\x07\u202e.csv';
+    fs.renameSync(path.join(dir, 'plots.csv'), path.join(dir, name));
+    const up = await stemwise('upload', '--plots', path.join(dir, name), '--trees', path.join(dir, 'trees.csv'));
+    expect(up.code, up.stderr).toBe(0);
+    const id = up.stdout.trim();
+    const raw = /[\x00-\x08\x0b-\x1f\x7f-\x9f\u202a-\u202e\u2066-\u2069]/;
+    const text = await stemwise('batch', 'show', id);
+    expect(text.code).toBe(0);
+    expect(text.stdout).not.toMatch(raw);
+    expect(text.stdout).toContain('plots\\u001b[2J\\u0007\\u202e.csv');
+    const json = await stemwise('batch', 'show', id, '--format', 'json');
+    expect(json.stdout).not.toMatch(raw);
+    expect(JSON.parse(json.stdout).files.map((f: { name: string }) => f.name)).toContain(name); // the same value once parsed
   });
 
   it('exits 1 with the grouped errors when a waited-for batch is rejected', async () => {

@@ -5,7 +5,8 @@ import { afterAll, beforeAll, describe, expect, it, vi } from 'vitest';
 import { markStale, type ServiceDeps } from '@stemwise/db';
 import { InProcessQueue } from '@stemwise/platform';
 import { createProcessors, exportRegions, writeRegionPages } from '@stemwise/report';
-import { run as exportCommand } from '../../cli/src/commands/export';
+import { runCommand } from '../../cli/src/command';
+import { command as exportCommand } from '../../cli/src/commands/export';
 import { Runtime } from '../../cli/src/runtime';
 import { envFor, testLogger, useServices, type TestServices } from '../support/services';
 import { jobContext, seedRun } from './fixture';
@@ -66,7 +67,7 @@ describe('export regions and the static report', () => {
     const rt = new Runtime(envFor(s, { STEMWISE_LOG_LEVEL: 'silent' }));
     const err = vi.spyOn(process.stderr, 'write').mockImplementation(() => true);
     try {
-      expect(await exportCommand(['regions', '--region', 'Northvale', '--out', file], rt)).toBe(0);
+      expect(await runCommand('export', exportCommand, ['regions', '--region', 'Northvale', '--out', file], rt)).toBe(0);
     } finally {
       err.mockRestore();
       await rt.close();

@@ -5,7 +5,8 @@ import { findAccessTokenByHash, listAuditEntries } from '@stemwise/db';
 import { hashToken } from '@stemwise/report';
 import { envFor, useServices, type TestServices } from '../support/services';
 import { ensureRegion } from './fixture';
-import { run as tokenCommand } from '../../cli/src/commands/token';
+import { runCommand } from '../../cli/src/command';
+import { command as tokenCommand } from '../../cli/src/commands/token';
 import { Runtime } from '../../cli/src/runtime';
 
 // `stemwise token` as a person runs it (a real process against this file's database), and its other
@@ -21,7 +22,7 @@ async function inProcess(...args: string[]): Promise<{ stdout: string; error: { 
   const spy = vi.spyOn(process.stdout, 'write').mockImplementation((chunk: string | Uint8Array) => ((stdout += String(chunk)), true));
   const err = vi.spyOn(process.stderr, 'write').mockImplementation(() => true);
   try {
-    await tokenCommand(args, rt);
+    await runCommand('token', tokenCommand, args, rt);
     return { stdout, error: null };
   } catch (e) {
     return { stdout, error: e as { code?: string; message: string } };

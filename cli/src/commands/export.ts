@@ -1,9 +1,7 @@
-import { parseArgs } from 'node:util';
 import type { ServiceDeps } from '@stemwise/db';
 import { StemwiseError } from '@stemwise/platform';
-import type { Runtime } from '../runtime';
-
-export const summary = 'writes results: export plots|fits|regions [--format csv|json|geojson] [--out FILE] [--axis A] [--metric M] [--region R]';
+import { defineCommand, usageError } from '../command';
+import { printErr } from '../output';
 
 const KINDS = ['plots', 'fits', 'regions'] as const;
 const FORMATS: Record<(typeof KINDS)[number], readonly string[]> = { plots: ['csv', 'json', 'geojson'], fits: ['csv', 'json'], regions: ['csv', 'json'] };
@@ -23,59 +21,60 @@ async function loadRegionsExport(): Promise<RegionsExport | null> {
   }
 }
 
-export async function run(args: string[], rt: Runtime): Promise<number> {
-  let parsed;
-  try {
-    parsed = parseArgs({
-      args,
-      allowPositionals: true,
-      options: {
-        format: { type: 'string' },
-        out: { type: 'string' },
-        axis: { type: 'string' },
-        metric: { type: 'string' },
-        region: { type: 'string' },
-      },
-    });
-  } catch (err) {
-    throw new StemwiseError('usage', `export: ${(err as Error).message}`);
-  }
-  const { positionals, values } = parsed;
-  const kind = positionals[0] as (typeof KINDS)[number] | undefined;
-  if (!kind || !KINDS.includes(kind) || positionals.length > 1) {
-    throw new StemwiseError('usage', `export takes one of ${KINDS.join(', ')} (usage: stemwise ${summary.replace('writes results: ', '')})`);
-  }
-  const format = values.format ?? 'csv';
-  if (!FORMATS[kind].includes(format)) throw new StemwiseError('usage', `export ${kind}: --format must be one of ${FORMATS[kind].join(', ')}, not '${format}'`);
-  if (kind !== 'fits' && (values.axis !== undefined || values.metric !== undefined)) {
-    throw new StemwiseError('usage', `export ${kind}: --axis and --metric apply to export fits only`);
-  }
-  if (kind === 'fits' && values.region !== undefined) {
-    throw new StemwiseError('usage', 'export fits: --region does not apply (fits are per forest type; region × forest type fits are in the report)');
-  }
-  if (values.out === '') throw new StemwiseError('usage', 'export: --out needs a file name');
-  const target: Target = values.out ? { file: values.out } : { stream: process.stdout };
+export const command = defineCommand({
+  summary: 'writes results: export plots|fits|regions [--format csv|json|geojson] [--out FILE] [--axis A] [--metric M] [--region R]',
+  usage: `usage: stemwise export plots|fits|regions [--format F] [--out FILE] [--axis A] [--metric M] [--region R]
 
-  const compute = await import('@stemwise/compute');
-  let written: { rows: number; staleVisits?: number };
-  if (kind === 'fits') {
-    // Names are checked before the database is opened: a typo is a usage error at once.
-    if (values.axis !== undefined) compute.checkFitColumn('axis', values.axis);
-    if (values.metric !== undefined) compute.checkFitColumn('metric', values.metric);
-    const db = await rt.db();
-    written = await compute.exportFits({ db, config: rt.config, log: rt.log }, { format: format as 'csv' | 'json', axis: values.axis, metric: values.metric }, target as never);
-  } else if (kind === 'plots') {
-    const db = await rt.db();
-    written = await compute.exportPlots(db, { format: format as 'csv' | 'json' | 'geojson', region: values.region ?? null }, target as never);
-  } else {
-    const exportRegions = await loadRegionsExport();
-    if (!exportRegions) throw new StemwiseError('not_yet', "'stemwise export regions' is not available yet in this version");
-    const deps: ServiceDeps = { config: rt.config, db: await rt.db(), log: rt.log, queue: await rt.queue() };
-    written = await exportRegions(deps, { format: format as 'csv' | 'json', region: values.region ?? null }, target);
-  }
-  if (values.out) process.stderr.write(`stemwise: ${written.rows} row${written.rows === 1 ? '' : 's'} written to ${values.out}\n`);
-  if (written.staleVisits) {
-    process.stderr.write(`stemwise: note: ${written.staleVisits} plot visit${written.staleVisits === 1 ? ' awaits' : 's await'} recompute; their figures are missing or out of date (run 'stemwise recompute')\n`);
-  }
-  return 0;
-}
+Writes results to FILE, or to stdout (the data as stored, byte for byte: see docs/exports.md).
+  plots     one row per plot visit; --format csv, json or geojson; --region R for one region
+  fits      the diversity–disturbance curve fits; --format csv or json; --axis and --metric for one pair
+  regions   the per-region estimates; --format csv or json; --region R for one region
+`,
+  options: {
+    format: { type: 'string' },
+    out: { type: 'string' },
+    axis: { type: 'string' },
+    metric: { type: 'string' },
+    region: { type: 'string' },
+  },
+  positionals: true,
+  async run({ positionals, values }, rt) {
+    const kind = positionals[0] as (typeof KINDS)[number] | undefined;
+    if (!kind || !KINDS.includes(kind) || positionals.length > 1) {
+      throw usageError('export', `takes one of ${KINDS.join(', ')}`);
+    }
+    const format = values.format ?? 'csv';
+    if (!FORMATS[kind].includes(format)) throw new StemwiseError('usage', `export ${kind}: --format must be one of ${FORMATS[kind].join(', ')}, not '${format}'`);
+    if (kind !== 'fits' && (values.axis !== undefined || values.metric !== undefined)) {
+      throw new StemwiseError('usage', `export ${kind}: --axis and --metric apply to export fits only`);
+    }
+    if (kind === 'fits' && values.region !== undefined) {
+      throw new StemwiseError('usage', 'export fits: --region does not apply (fits are per forest type; region × forest type fits are in the report)');
+    }
+    if (values.out === '') throw new StemwiseError('usage', 'export: --out needs a file name');
+    const target: Target = values.out ? { file: values.out } : { stream: process.stdout };
+
+    const compute = await import('@stemwise/compute');
+    let written: { rows: number; staleVisits?: number };
+    if (kind === 'fits') {
+      // Names are checked before the database is opened: a typo is a usage error at once.
+      if (values.axis !== undefined) compute.checkFitColumn('axis', values.axis);
+      if (values.metric !== undefined) compute.checkFitColumn('metric', values.metric);
+      const db = await rt.db();
+      written = await compute.exportFits({ db, config: rt.config, log: rt.log }, { format: format as 'csv' | 'json', axis: values.axis, metric: values.metric }, target as never);
+    } else if (kind === 'plots') {
+      const db = await rt.db();
+      written = await compute.exportPlots(db, { format: format as 'csv' | 'json' | 'geojson', region: values.region ?? null }, target as never);
+    } else {
+      const exportRegions = await loadRegionsExport();
+      if (!exportRegions) throw new StemwiseError('not_yet', "'stemwise export regions' is not available yet in this version");
+      const deps: ServiceDeps = { config: rt.config, db: await rt.db(), log: rt.log, queue: await rt.queue() };
+      written = await exportRegions(deps, { format: format as 'csv' | 'json', region: values.region ?? null }, target);
+    }
+    if (values.out) printErr(`stemwise: ${written.rows} row${written.rows === 1 ? '' : 's'} written to ${values.out}\n`);
+    if (written.staleVisits) {
+      printErr(`stemwise: note: ${written.staleVisits} plot visit${written.staleVisits === 1 ? ' awaits' : 's await'} recompute; their figures are missing or out of date (run 'stemwise recompute')\n`);
+    }
+    return 0;
+  },
+});

@@ -1,10 +1,9 @@
-import { parseArgs } from 'node:util';
 import { getRecomputeRun, type ServiceDeps } from '@stemwise/db';
 import { StemwiseError, type JobName } from '@stemwise/platform';
 import { availableProcessors } from '../processors';
+import { defineCommand, type Parsed } from '../command';
+import { printErr, printOut } from '../output';
 import type { Runtime } from '../runtime';
-
-export const summary = 'recomputes what new plots made stale: recompute [--now] [--all]';
 
 /** How long `--now` waits for queued work before giving up (the jobs stay queued). */
 const WAIT_LIMIT_MS = 60 * 60_000;
@@ -12,13 +11,23 @@ const WAIT_LIMIT_MS = 60 * 60_000;
 // Without REDIS_URL the run happens here, to completion. With REDIS_URL, `recompute` queues the
 // planner job (a compute worker plans and runs it); `recompute --now` plans here and waits until the
 // workers have finished the run's flow, then prints what ran.
-export async function run(args: string[], rt: Runtime): Promise<number> {
-  let values;
-  try {
-    ({ values } = parseArgs({ args, options: { now: { type: 'boolean', default: false }, all: { type: 'boolean', default: false } } }));
-  } catch (err) {
-    throw new StemwiseError('usage', `recompute: ${(err as Error).message} (usage: stemwise recompute [--now] [--all])`);
-  }
+const options = { now: { type: 'boolean', default: false }, all: { type: 'boolean', default: false } } as const;
+
+export const command = defineCommand({
+  summary: 'recomputes what new plots made stale: recompute [--now] [--all]',
+  usage: `usage: stemwise recompute [--now] [--all]
+
+Recomputes the plot figures, curve fits and region summaries that new or changed plots made stale.
+Without REDIS_URL the run happens in this process, to completion.
+  --now   with REDIS_URL: plan the run here and wait until the workers have finished it
+          (otherwise a compute worker is asked to plan and run it, and the command returns at once)
+  --all   recompute everything, not only what is stale
+`,
+  options,
+  run: recompute,
+});
+
+async function recompute({ values }: Parsed<typeof options>, rt: Runtime): Promise<number> {
   const all = values.all === true;
   const deps: ServiceDeps = { config: rt.config, db: await rt.db(), log: rt.log, queue: await rt.queue() };
   const { planRecompute } = await import('@stemwise/compute');
@@ -31,13 +40,13 @@ export async function run(args: string[], rt: Runtime): Promise<number> {
     const failures = await deps.queue.drain();
     await printRun(deps, plan.runId);
     const noSummaries = failures.filter((f) => f.name === 'report.summaries' && /no processor/.test(f.error));
-    if (noSummaries.length && missing.includes('report')) process.stdout.write('summaries: not available in this build (no report service yet)\n');
+    if (noSummaries.length && missing.includes('report')) printOut('summaries: not available in this build (no report service yet)\n');
     const real = failures.filter((f) => !noSummaries.includes(f));
-    for (const f of real) process.stderr.write(`stemwise: job ${f.jobId} failed: ${f.error}\n`);
+    for (const f of real) printErr(`stemwise: job ${f.jobId} failed: ${f.error}\n`);
     // A job that failed before this process started waiting is not in `failures`: the root's state tells.
     const root = await deps.queue.state(plan.rootJobId, 'report.summaries');
     if (!real.length && !noSummaries.length && root !== 'completed') {
-      process.stderr.write(`stemwise: run ${plan.runId} did not complete (its last stage is ${root}); see the log above\n`);
+      printErr(`stemwise: run ${plan.runId} did not complete (its last stage is ${root}); see the log above\n`);
       return 1;
     }
     return real.length ? 1 : 0;
@@ -46,13 +55,13 @@ export async function run(args: string[], rt: Runtime): Promise<number> {
   if (!values.now) {
     const jobId = `recompute.manual.${new Date().toISOString().replace(/\D/g, '').slice(0, 17)}`;
     await deps.queue.add({ name: 'maintenance.recompute', data: { trigger: 'manual', all }, jobId });
-    process.stdout.write(`queued ${jobId} (a compute worker plans and runs it; 'stemwise recompute --now' waits for the result)\n`);
+    printOut(`queued ${jobId} (a compute worker plans and runs it; 'stemwise recompute --now' waits for the result)\n`);
     return 0;
   }
 
   const plan = await planRecompute(deps, 'manual', all);
   if (!plan) return nothingStale(deps);
-  process.stderr.write(`stemwise: run ${plan.runId} queued (${plan.visits} plot visits in ${plan.chunks} chunks); waiting for the workers\n`);
+  printErr(`stemwise: run ${plan.runId} queued (${plan.visits} plot visits in ${plan.chunks} chunks); waiting for the workers\n`);
   const stages: Array<[string, JobName, string]> = [
     [`plots.${plan.runId}`, 'compute.plots', 'plot metrics'],
     [`fits.${plan.runId}`, 'compute.fits', 'fits'],
@@ -69,12 +78,12 @@ export async function run(args: string[], rt: Runtime): Promise<number> {
       throw new StemwiseError('job_failed', `${label} of run ${plan.runId} failed (job ${jobId}); see the worker log`);
     }
     if (state === 'completed') {
-      process.stderr.write(`stemwise: ${label} done\n`);
+      printErr(`stemwise: ${label} done\n`);
       if (++done === stages.length) break;
       continue;
     }
     if (!hinted && Date.now() - started > 15_000 && done === 0) {
-      process.stderr.write("stemwise: still waiting — is a compute worker running ('stemwise serve compute')?\n");
+      printErr("stemwise: still waiting — is a compute worker running ('stemwise serve compute')?\n");
       hinted = true;
     }
     if (Date.now() - started > WAIT_LIMIT_MS) throw new StemwiseError('timeout', `run ${plan.runId} still not finished after an hour; its jobs stay queued`);
@@ -88,7 +97,7 @@ export async function run(args: string[], rt: Runtime): Promise<number> {
 async function nothingStale(deps: ServiceDeps): Promise<number> {
   const { liveRecompute } = await import('@stemwise/compute/maintenance/live-run');
   const running = await liveRecompute(deps);
-  process.stdout.write(running ? `run ${running} is in progress; what is stale now is recomputed by the run that follows it\n` : 'nothing stale\n');
+  printOut(running ? `run ${running} is in progress; what is stale now is recomputed by the run that follows it\n` : 'nothing stale\n');
   return 0;
 }
 
@@ -110,5 +119,5 @@ async function printRun(deps: ServiceDeps, runId: string): Promise<void> {
     lines.push(`height model ${h.forestType}: ${what}, ${h.heights} measured heights`);
   }
   for (const f of d.fits ?? []) lines.push(`fits ${f.forestType}: ${f.verdict} (n = ${f.n}${f.regions ? `, ${f.regions} region fits` : ''})`);
-  process.stdout.write(lines.join('\n') + '\n');
+  printOut(lines.join('\n') + '\n');
 }

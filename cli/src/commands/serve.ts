@@ -1,20 +1,35 @@
-import { parseArgs } from 'node:util';
 import type { ServiceDeps } from '@stemwise/db';
-import { StemwiseError } from '@stemwise/platform';
 import { processorsFor, type ServiceName } from '../processors';
+import { defineCommand, usageError, type Parsed } from '../command';
 import type { Runtime } from '../runtime';
 
-export const summary = 'runs services and workers: serve [ingest|compute|report|all]';
-
 const CHOICES = ['ingest', 'compute', 'report', 'all'] as const;
+
+const options = {} as const;
+
+export const command = defineCommand({
+  summary: 'runs services and workers: serve [ingest|compute|report|all]',
+  usage: `usage: stemwise serve [ingest|compute|report|all]
+
+Runs until SIGTERM or SIGINT (then lets running jobs finish for STEMWISE_STOP_GRACE_SECONDS).
+  ingest    a worker that validates and loads uploaded batches
+  compute   a worker that computes plot figures and curve fits, plans recomputes, runs the nightly one
+  report    the report service (API, pages, uploads) at STEMWISE_HOST:STEMWISE_PORT, and its summary jobs
+  all       all three in one process (the default)
+Logs are JSON lines on stderr (STEMWISE_LOG_FORMAT=text for lines to read).
+`,
+  options,
+  positionals: true,
+  logs: 'json',
+  run: serve,
+});
 
 /** After a stop, how long closing connections may take before the process ends anyway. */
 const EXIT_DEADLINE_MS = 5000;
 
-export async function run(args: string[], rt: Runtime): Promise<number> {
-  const { positionals } = parseArgs({ args, allowPositionals: true, options: {} });
+async function serve({ positionals }: Parsed<typeof options>, rt: Runtime): Promise<number> {
   const which = (positionals[0] ?? 'all') as (typeof CHOICES)[number];
-  if (!CHOICES.includes(which)) throw new StemwiseError('usage', `serve takes one of ${CHOICES.join(', ')}, not '${which}'`);
+  if (!CHOICES.includes(which) || positionals.length > 1) throw usageError('serve', `takes one of ${CHOICES.join(', ')}, not '${positionals.join(' ')}'`);
   const services: ServiceName[] = which === 'all' ? ['ingest', 'compute', 'report'] : [which];
 
   // Listen for the stop signal from the start: a SIGTERM while starting up stops right after.

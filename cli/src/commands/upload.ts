@@ -1,6 +1,5 @@
 import fs from 'node:fs';
 import path from 'node:path';
-import { parseArgs } from 'node:util';
 import { getBatch, type ServiceDeps } from '@stemwise/db';
 import { StemwiseError, type ProcessorMap, type QueueName } from '@stemwise/platform';
 import {
@@ -16,14 +15,14 @@ import {
   type SubmittedFile,
 } from '@stemwise/ingest';
 import { processorsFor, type ServiceName } from '../processors';
+import { defineCommand, type Parsed } from '../command';
+import { printErr, printOut } from '../output';
 import type { Runtime } from '../runtime';
 
 /** How long `--wait` lets a batch sit before it checks that a worker serves its queue. */
 const WORKER_CHECK_MS = 5_000;
 
-export const summary = 'submits a batch: upload DIR | --plots F --trees F [--strata F] [--species F] [--wait]';
-
-const HELP = `usage: stemwise upload DIR [options]
+const USAGE = `usage: stemwise upload DIR [options]
        stemwise upload --plots FILE --trees FILE [--strata FILE] [--species FILE] [options]
 
 DIR holds plots.csv and trees.csv, optionally strata.csv and species.csv (each may be .csv.gz).
@@ -36,7 +35,30 @@ options:
   --decimal-comma    numbers are written with a decimal comma (needs --delimiter ';')
   --wait             wait until the batch is loaded and computed; exit 1 if it is rejected or fails
                      (with Redis, says so when no worker serves the queue the batch waits in)
+
+Progress is shown as bars on a terminal, as a line every few seconds otherwise; logs show warnings
+and errors only, as text (STEMWISE_LOG_FORMAT=json for JSON lines).
 `;
+
+const options = {
+  plots: { type: 'string' },
+  trees: { type: 'string' },
+  strata: { type: 'string' },
+  species: { type: 'string' },
+  'skip-invalid': { type: 'boolean', default: false },
+  replace: { type: 'boolean', default: false },
+  delimiter: { type: 'string' },
+  'decimal-comma': { type: 'boolean', default: false },
+  wait: { type: 'boolean', default: false },
+} as const;
+
+export const command = defineCommand({
+  summary: 'submits a batch: upload DIR | --plots F --trees F [--strata F] [--species F] [--wait]',
+  usage: USAGE,
+  options,
+  positionals: true,
+  run: upload,
+});
 
 function fileArg(value: string | undefined, kind: SubmittedFile['kind']): SubmittedFile | null {
   if (value === undefined) return null;
@@ -70,11 +92,12 @@ function progressPrinter(): { show(p: Omit<IngestProgress, 'batchId' | 'phase'>)
     show(p) {
       if (tty) {
         const lines = progressBars(p);
+        // Written directly: the bars hold numbers only, and these cursor movements are ours.
         process.stderr.write(`${drawn ? `\x1b[${drawn}A` : ''}${lines.map((l) => `\x1b[2K${l}`).join('\n')}\n`);
         drawn = lines.length;
       } else if (Date.now() - lastPlain >= 2000) {
         lastPlain = Date.now();
-        process.stderr.write(`${progressLine(p)}\n`);
+        printErr(`${progressLine(p)}\n`);
       }
     },
     end() {
@@ -83,27 +106,7 @@ function progressPrinter(): { show(p: Omit<IngestProgress, 'batchId' | 'phase'>)
   };
 }
 
-export async function run(args: string[], rt: Runtime): Promise<number> {
-  const { values, positionals } = parseArgs({
-    args,
-    allowPositionals: true,
-    options: {
-      plots: { type: 'string' },
-      trees: { type: 'string' },
-      strata: { type: 'string' },
-      species: { type: 'string' },
-      'skip-invalid': { type: 'boolean', default: false },
-      replace: { type: 'boolean', default: false },
-      delimiter: { type: 'string' },
-      'decimal-comma': { type: 'boolean', default: false },
-      wait: { type: 'boolean', default: false },
-      help: { type: 'boolean', short: 'h', default: false },
-    },
-  });
-  if (values.help) {
-    process.stdout.write(HELP);
-    return 0;
-  }
+async function upload({ values, positionals }: Parsed<typeof options>, rt: Runtime): Promise<number> {
   let files: SubmittedFile[];
   if (positionals.length) {
     if (positionals.length > 1 || values.plots || values.trees) throw new StemwiseError('usage', 'give either one folder or --plots and --trees');
@@ -116,7 +119,7 @@ export async function run(args: string[], rt: Runtime): Promise<number> {
     }
     for (const need of ['plots', 'trees']) if (!files.some((f) => f.kind === need)) throw new StemwiseError('usage', `${dir} has no ${need}.csv (or ${need}.csv.gz)`);
   } else {
-    if (!values.plots || !values.trees) throw new StemwiseError('usage', `give an upload folder, or --plots FILE and --trees FILE\n${HELP}`);
+    if (!values.plots || !values.trees) throw new StemwiseError('usage', `give an upload folder, or --plots FILE and --trees FILE`);
     files = (['plots', 'trees', 'strata', 'species'] as const).map((k) => fileArg(values[k], k)).filter((f): f is SubmittedFile => f !== null);
   }
   const delimiter = values.delimiter;
@@ -139,8 +142,8 @@ export async function run(args: string[], rt: Runtime): Promise<number> {
     if (err instanceof SubmissionError) throw new StemwiseError('usage', err.message);
     throw err;
   }
-  process.stdout.write(result.duplicate ? `already received as ${result.batchId}\n` : `${result.batchId}\n`);
-  if (!result.duplicate && !result.queued) process.stderr.write('stemwise: the batch is stored but could not be queued now; a running worker will pick it up\n');
+  printOut(result.duplicate ? `already received as ${result.batchId}\n` : `${result.batchId}\n`);
+  if (!result.duplicate && !result.queued) printErr('stemwise: the batch is stored but could not be queued now; a running worker will pick it up\n');
 
   const printer = progressPrinter();
   if (inProcess) {
@@ -166,7 +169,7 @@ export async function run(args: string[], rt: Runtime): Promise<number> {
         if (!hinted.has(queue) && (await deps.queue.workerCount(queue)) === 0) {
           hinted.add(queue);
           printer.end();
-          process.stderr.write(
+          printErr(
             `stemwise: no ${queue} worker is running, so the batch is ${b.state === 'loaded' ? 'loaded but not computed' : 'not being read'} yet; ` +
               `start one with 'stemwise serve ${queue}' (still waiting; Ctrl-C stops waiting, the batch stays queued)\n`,
           );
@@ -181,10 +184,10 @@ export async function run(args: string[], rt: Runtime): Promise<number> {
   const report = await batchReport(deps.db, result.batchId);
   if (!report) throw new StemwiseError('batch_missing', `batch ${result.batchId} disappeared`);
   if (report.state === 'rejected' || report.state === 'failed') {
-    process.stderr.write(formatBatchReport(report));
+    printErr(formatBatchReport(report));
     return 1;
   }
-  process.stderr.write(
+  printErr(
     `batch ${report.id}: ${report.state}; ${report.counts.plotsLoaded.toLocaleString('en-US')} plots and ${report.counts.stemsLoaded.toLocaleString('en-US')} stems loaded; ` +
       `${report.counts.warnings.toLocaleString('en-US')} warnings${report.counts.warnings ? ` (stemwise batch show ${report.id})` : ''}\n`,
   );
