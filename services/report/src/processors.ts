@@ -1,5 +1,5 @@
-import { failRecomputeRun, finishRecomputeRun, mergeRunDetails, type ServiceDeps } from '@stemwise/db';
-import { parsePayload, PermanentError, type ProcessorMap } from '@stemwise/platform';
+import { finishRecomputeRun, mergeRunDetails, problemLine, type ServiceDeps } from '@stemwise/db';
+import { parsePayload, type ProcessorMap } from '@stemwise/platform';
 import { queueFollowUp } from '@stemwise/compute/maintenance/follow-up';
 import { refreshStaleSummaries } from './snapshots';
 
@@ -16,7 +16,7 @@ export function createProcessors(deps: ServiceDeps): ProcessorMap {
     'report.summaries': async (data, ctx) => {
       const { runId } = parsePayload('report.summaries', data);
       const { db } = deps;
-      const result = await db.withLock(SUMMARIES_LOCK, () => refreshStaleSummaries({ db, config: deps.config, log: ctx.log }));
+      const result = await db.withLock(SUMMARIES_LOCK, () => refreshStaleSummaries({ db, config: deps.config, log: ctx.log, runId }));
       const details = {
         summaries: {
           regions: result.regions.length,
@@ -25,12 +25,10 @@ export function createProcessors(deps: ServiceDeps): ProcessorMap {
         },
       };
       await mergeRunDetails(db, runId, details);
-      if (result.rejected.length) {
-        const reason = `region summaries rejected: ${result.rejected.map((r) => `${r.region} (${r.reason})`).join('; ')}`;
-        await failRecomputeRun(db, runId, reason);
-        throw new PermanentError('summary_rejected', reason);
-      }
-      await finishRecomputeRun(db, runId);
+      // A region, forest type or plot that could not be computed does not fail the run: the run ends
+      // done, with what it could not compute in compute_problems (and its count in the run's details).
+      const problems = await finishRecomputeRun(db, runId);
+      if (problems.length) ctx.log.warn({ runId, problems: problems.map(problemLine) }, 'recompute done; some parts could not be computed');
       await queueFollowUp({ ...deps, log: ctx.log }, runId); // what became stale during this run is the next run's
       ctx.log.info({ runId, ...details.summaries }, 'region summaries stored');
       return details.summaries;

@@ -2,7 +2,7 @@ import type { FastifyInstance, FastifyReply, FastifyRequest } from 'fastify';
 import type { ZodTypeProvider } from 'fastify-type-provider-zod';
 import { z } from 'zod';
 import { IPCC_2006_CARBON_FRACTION } from '@stemwise/compute/science/allometry';
-import { listRegionHeads, listSummaryVersions } from '@stemwise/db';
+import { listRegionHeads, listRegionProblems, listSummaryVersions, problemView } from '@stemwise/db';
 import { readsRegions, type Principal } from '../access';
 import { renderIndexPage } from '../page/index-page';
 import { renderMessagePage } from '../page/message-page';
@@ -86,9 +86,11 @@ export function pageRoutes(app: FastifyInstance, ctx: RouteContext): void {
       const links = regionLinks(region);
       const v = entry.snapshot.version;
       const versions = await listSummaryVersions(ctx.deps.db, region);
+      const problems = (await listRegionProblems(ctx.deps.db, region, entry.snapshot.payload.summary.forest_types)).map(problemView);
       const body = renderRegionPage({
         snapshot: entry.snapshot,
         versions,
+        problems,
         links: {
           index: '/',
           summaryJson: `${links.summary}?version=${v}`,
