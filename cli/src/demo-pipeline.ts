@@ -96,7 +96,7 @@ export async function runDemo(o: DemoOptions): Promise<DemoResult> {
     fs.mkdirSync(chartsDir, { recursive: true });
     const fitRows = await db.query<{ forest_type: string; n: number; verdict: string; peak_x: number | null; peak_ci_low: number | null; peak_ci_high: number | null; r2: number | null; chart: string | null }>(
       `select forest_type, n, verdict, peak_x, peak_ci_low, peak_ci_high, r2, details->>'chart_svg' as chart
-         from curve_fits where scope = 'all' and model = 'quadratic' and metric = $1 and axis = $2 order by forest_type`,
+         from curve_fits where scope_kind = 'forest_type' and model = 'quadratic' and metric = $1 and axis = $2 order by forest_type`,
       [config.fitMetric, config.fitAxis],
     );
     for (const f of fitRows) if (f.chart) fs.writeFileSync(path.join(chartsDir, `fit-${f.forest_type}.svg`), f.chart);

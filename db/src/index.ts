@@ -6,6 +6,7 @@ export type { ServiceDeps } from './deps';
 export * from './queries/reconcile';
 export * from './queries/metrics';
 export * from './queries/fits';
+export * from './queries/problems';
 export * from './queries/species-read';
 export * from './queries/summaries';
 export * from './queries/national-summaries';

@@ -46,3 +46,13 @@ export function oneLine(value: unknown): string {
   const first = (err.message || err.name).split('\n')[0];
   return err instanceof StemwiseError ? first : `${err.name}: ${first}`;
 }
+
+/**
+ * An error of the machinery rather than of the data: a PostgreSQL error (a five-character SQLSTATE
+ * code) or a system error (ECONNRESET …). A job retries these; a computation error (anything else) is
+ * recorded against the one plot, forest type or region it concerns, and the others go on.
+ */
+export function isInfrastructureError(err: unknown): boolean {
+  const code = err && typeof err === 'object' && 'code' in err ? (err as { code: unknown }).code : undefined;
+  return (typeof code === 'string' && (/^[0-9A-Z]{5}$/.test(code) || /^E[A-Z_]+$/.test(code))) || err instanceof ServiceUnavailableError;
+}

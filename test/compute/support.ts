@@ -19,12 +19,20 @@ export function standInSummaries(db: Db, ran?: string[]): ProcessorMap {
   };
 }
 
-/** Plans a recompute and runs it to the end in this process; returns the plan (null: nothing stale). */
-export async function recomputeInProcess(config: Config, db: Db, all = false): Promise<{ plan: RecomputePlan | null; failures: readonly { jobId: string; error: string }[] }> {
+/**
+ * Plans a recompute and runs it to the end in this process; returns the plan (null: nothing stale).
+ * `report` gives the report service's processors (default: the stand-in summaries).
+ */
+export async function recomputeInProcess(
+  config: Config,
+  db: Db,
+  all = false,
+  report: (deps: ServiceDeps) => ProcessorMap = () => standInSummaries(db),
+): Promise<{ plan: RecomputePlan | null; failures: readonly { jobId: string; error: string }[] }> {
   const log = testLogger();
   const queue: JobQueue = new InProcessQueue(log);
   const deps: ServiceDeps = { config, db, log, queue };
-  await queue.work({ ...createProcessors(deps), ...standInSummaries(db) }, { queues: ['compute', 'report'] });
+  await queue.work({ ...createProcessors(deps), ...report(deps) }, { queues: ['compute', 'report'] });
   const plan = await planRecompute(deps, 'manual', all);
   const failures = await queue.drain();
   await queue.close();

@@ -1,11 +1,11 @@
 import type { FastifyInstance } from 'fastify';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { markStale, type ServiceDeps } from '@stemwise/db';
+import { listCurveFits, markStale, recordProblems, upsertCurveFits, type ServiceDeps } from '@stemwise/db';
 import { BullQueue, InProcessQueue } from '@stemwise/platform';
 import { buildServer, createProcessors } from '@stemwise/report';
 import { NationalResponse, SummaryResponse } from '../../services/report/src/routes/schemas';
 import { testLogger, useServices, type TestServices } from '../support/services';
-import { jobContext, seedPlots, seedRun } from './fixture';
+import { ensureRegion, jobContext, seedPlots, seedRun } from './fixture';
 import { seedScenario } from './seed-scenario';
 import { createToken } from './tokens';
 
@@ -131,6 +131,21 @@ describe('report API', () => {
     const csv = await app.inject({ url: '/v1/fits?format=csv&scope=Southmere', headers: auth });
     expect(csv.body.split('\n')[0]).toMatch(/^scope,forest_type,metric,axis,n,model,b0,/);
     expect(csv.body.split('\n')[1]).toMatch(/^Southmere,moist,fisher_alpha,disturbance_index,5,linear,8,2,,1,1,,0\.2,,0\.3,0\.1,30,,,,increasing$/);
+  });
+
+  it('tells a region named `all` from the forest type as a whole, and lists fits that could not be computed', async () => {
+    await ensureRegion(s.db, 'all');
+    await upsertCurveFits(s.db, [{ ...(await listCurveFits(s.db, { scope: { kind: 'region', region: 'Southmere' }, metric: 'fisher_alpha', axis: 'disturbance_index' }))[0], scope: 'all', n: 7 }]);
+    const whole = (await app.inject({ url: '/v1/fits?scope=all', headers: auth })).json();
+    expect(whole.fits.map((f: { n: number }) => f.n)).toEqual([5, 5, 5]); // unchanged: the region's row is not among them
+    expect(whole.problems).toBeUndefined();
+    const region = (await app.inject({ url: '/v1/fits?region=all', headers: auth })).json();
+    expect(region.fits.map((f: { scope: string; forest_type: string; n: number }) => [f.scope, f.forest_type, f.n])).toEqual([['all', 'moist', 7]]);
+    await recordProblems(s.db, 'run-x', [{ stage: 'fit', forestType: 'dry', region: null, visitId: null, plotKey: null, reason: 'cannot be fitted (test)' }]);
+    const listed = (await app.inject({ url: '/v1/fits', headers: auth })).json();
+    expect(listed.problems).toEqual([{ stage: 'fit', forest_type: 'dry', region: null, plot_id: null, run_id: 'run-x', reason: 'cannot be fitted (test)' }]);
+    await s.db.query(`delete from compute_problems`);
+    await s.db.query(`delete from curve_fits where scope_kind = 'region' and scope = 'all'`);
   });
 
   it('publishes an OpenAPI document listing every API route, and browsable docs', async () => {

@@ -33,7 +33,7 @@ export const OSTMARK: FixturePlot[] = [
 
 function fitRow(scope: string, forestType: string, model: 'linear' | 'quadratic', n: number, verdict: string): CurveFitRow {
   return {
-    scope, forestType, metric: 'fisher_alpha', axis: 'disturbance_index', model, n,
+    scopeKind: scope === 'all' ? 'forest_type' : 'region', scope, forestType, metric: 'fisher_alpha', axis: 'disturbance_index', model, n,
     b0: 8, b1: 2, b2: model === 'quadratic' ? -1 : null, seB0: 1, seB1: 1, seB2: model === 'quadratic' ? 1 : null,
     pB1: 0.2, pB2: model === 'quadratic' ? 0.4 : null, r2: 0.3, adjR2: 0.1, aicc: 30, peakX: null, peakCiLow: null, peakCiHigh: null, verdict, details: {},
   };

@@ -35,7 +35,16 @@ export async function listLatestPlotMetrics(db: Queryable, forestType: string): 
   });
 }
 
+/** What a fit was fitted on: the forest type as a whole, or the plots of one region (of any name). */
+export type FitScopeKind = 'forest_type' | 'region';
+/** The `scope` label of a whole-forest-type fit (in the API and snapshots); the kind, not the label, tells it from a region. */
+export const WHOLE_FOREST_TYPE_SCOPE = 'all';
+/** A scope to read: the whole forest type, or a region by name. */
+export type FitScope = { kind: 'forest_type' } | { kind: 'region'; region: string };
+
 export interface CurveFitRow {
+  scopeKind: FitScopeKind;
+  /** `all` for the whole forest type, else the region's name. */
   scope: string;
   forestType: string;
   metric: string;
@@ -77,16 +86,17 @@ const FIT_FIELDS = [
   ['peakCiHigh', 'peak_ci_high'],
 ] as const;
 
-const UPSERT_FITS_SQL = `insert into curve_fits (scope, forest_type, metric, axis, model, n, ${FIT_FIELDS.map(([, c]) => c).join(', ')}, verdict, details, computed_at)
-  select t.*, now() from unnest($1::text[], $2::text[], $3::text[], $4::text[], $5::text[], $6::int[],
-    ${FIT_FIELDS.map((_, i) => `$${i + 7}::float8[]`).join(', ')}, $${FIT_FIELDS.length + 7}::text[], $${FIT_FIELDS.length + 8}::jsonb[]) t
-  on conflict (scope, forest_type, metric, axis, model) do update set n = excluded.n,
+const UPSERT_FITS_SQL = `insert into curve_fits (scope_kind, scope, forest_type, metric, axis, model, n, ${FIT_FIELDS.map(([, c]) => c).join(', ')}, verdict, details, computed_at)
+  select t.*, now() from unnest($1::text[], $2::text[], $3::text[], $4::text[], $5::text[], $6::text[], $7::int[],
+    ${FIT_FIELDS.map((_, i) => `$${i + 8}::float8[]`).join(', ')}, $${FIT_FIELDS.length + 8}::text[], $${FIT_FIELDS.length + 9}::jsonb[]) t
+  on conflict (scope_kind, scope, forest_type, metric, axis, model) do update set n = excluded.n,
     ${FIT_FIELDS.map(([, c]) => `${c} = excluded.${c}`).join(', ')}, verdict = excluded.verdict, details = excluded.details, computed_at = excluded.computed_at`;
 
 /** Writes fit rows in one statement (a rerun overwrites them). */
 export async function upsertCurveFits(tx: Queryable, rows: readonly CurveFitRow[]): Promise<void> {
   if (!rows.length) return;
   const params: unknown[] = [
+    rows.map((r) => r.scopeKind),
     rows.map((r) => r.scope),
     rows.map((r) => r.forestType),
     rows.map((r) => r.metric),
@@ -100,25 +110,29 @@ export async function upsertCurveFits(tx: Queryable, rows: readonly CurveFitRow[
   await tx.query(UPSERT_FITS_SQL, params);
 }
 
-/** Removes the fits of a forest type × metric × axis whose scope is not in `keepScopes` (a region fell below the minimum). */
-export async function deleteCurveFitsExcept(tx: Queryable, forestType: string, metric: string, axis: string, keepScopes: readonly string[]): Promise<void> {
+/** Removes the fits of a forest type × metric × axis other than the whole-type fit (when `keepWhole`) and the regions in `keepRegions` (a region fell below the minimum). */
+export async function deleteCurveFitsExcept(tx: Queryable, forestType: string, metric: string, axis: string, keep: { whole: boolean; regions: readonly string[] }): Promise<void> {
   await tx.query(
-    `delete from curve_fits where forest_type = $1 and metric = $2 and axis = $3 and not (scope = any($4::text[]))`,
-    [forestType, metric, axis, keepScopes],
+    `delete from curve_fits where forest_type = $1 and metric = $2 and axis = $3
+        and not ((scope_kind = 'forest_type' and $4::boolean) or (scope_kind = 'region' and scope = any($5::text[])))`,
+    [forestType, metric, axis, keep.whole, keep.regions],
   );
 }
 
 /** Stored fits of a scope, metric and axis, by forest type then model (linear first). */
-export async function listCurveFits(db: Queryable, filter: { scope: string; metric: string; axis: string; forestTypes?: readonly string[] }): Promise<CurveFitRow[]> {
+export async function listCurveFits(db: Queryable, filter: { scope: FitScope; metric: string; axis: string; forestTypes?: readonly string[] }): Promise<CurveFitRow[]> {
+  const { kind } = filter.scope;
+  const label = filter.scope.kind === 'region' ? filter.scope.region : WHOLE_FOREST_TYPE_SCOPE;
   const rows = await db.query<Record<string, unknown>>(
-    `select scope, forest_type, metric, axis, model, n, ${FIT_FIELDS.map(([, c]) => c).join(', ')}, verdict, details
+    `select scope_kind, scope, forest_type, metric, axis, model, n, ${FIT_FIELDS.map(([, c]) => c).join(', ')}, verdict, details
        from curve_fits
-      where scope = $1 and metric = $2 and axis = $3 and ($4::text[] is null or forest_type = any($4::text[]))
+      where scope_kind = $1 and scope = $2 and metric = $3 and axis = $4 and ($5::text[] is null or forest_type = any($5::text[]))
       order by forest_type collate "C", model`,
-    [filter.scope, filter.metric, filter.axis, filter.forestTypes ?? null],
+    [kind, label, filter.metric, filter.axis, filter.forestTypes ?? null],
   );
   return rows.map((r) => {
     const out = {
+      scopeKind: r.scope_kind as FitScopeKind,
       scope: r.scope as string,
       forestType: r.forest_type as string,
       metric: r.metric as string,

@@ -1,5 +1,6 @@
 import crypto from 'node:crypto';
 import type { Db, Queryable } from '../connection';
+import { listRunProblems, problemView, type ProblemView } from './problems';
 
 // Stale state lives in PostgreSQL: plot_visits.stale for metrics, stale_work for the fits of a forest
 // type and the summary of a region. Each stage clears its marks and marks the next, in one transaction
@@ -84,12 +85,14 @@ export async function startRecomputeRun(db: Db, trigger: 'nightly' | 'manual' | 
 }
 
 /**
- * Ends a run: marks it done, and as computed every loaded batch with nothing of it left to do — no
+ * Ends a run: marks it done (with the number of problems it recorded in its details; it returns them),
+ * and as computed every loaded batch with nothing of it left to do — no
  * stale visit, and no stale fits of its forest types or summaries of its regions.
  */
-export async function finishRecomputeRun(db: Db, runId: string): Promise<void> {
-  await db.transaction(async (tx) => {
-    await tx.query(`update recompute_runs set state = 'done', finished_at = now() where id = $1`, [runId]);
+export async function finishRecomputeRun(db: Db, runId: string): Promise<ProblemView[]> {
+  return db.transaction(async (tx) => {
+    const problems = (await listRunProblems(tx, runId)).map(problemView);
+    await tx.query(`update recompute_runs set state = 'done', finished_at = now(), details = details || jsonb_build_object('problems', $2::int) where id = $1`, [runId, problems.length]);
     await tx.query(
       `update batches b set state = 'computed', updated_at = now()
         where b.state = 'loaded'
@@ -101,6 +104,7 @@ export async function finishRecomputeRun(db: Db, runId: string): Promise<void> {
               join stale_work w on (w.kind = 'fits' and w.key = p.forest_type) or (w.kind = 'summary' and w.key = r.name)
              where v.batch_id = b.id)`,
     );
+    return problems;
   });
 }
 

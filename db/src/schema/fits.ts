@@ -1,9 +1,15 @@
-import { doublePrecision, integer, jsonb, pgTable, primaryKey, text, timestamp } from 'drizzle-orm/pg-core';
+import { check, doublePrecision, integer, jsonb, pgTable, primaryKey, text, timestamp } from 'drizzle-orm/pg-core';
+import { sql } from 'drizzle-orm';
 
-/** Diversity–disturbance fits; `scope` is `all` for a forest type as a whole or a region name. */
+/**
+ * Diversity–disturbance fits. `scope_kind` says what was fitted: `forest_type` (the forest type as a
+ * whole; `scope` holds the label `all`) or `region` (`scope` holds the region's name). The kind is part
+ * of the key, so a region may have any name, `all` included.
+ */
 export const curveFits = pgTable(
   'curve_fits',
   {
+    scopeKind: text('scope_kind').notNull().default('region'),
     scope: text('scope').notNull(),
     forestType: text('forest_type').notNull(),
     metric: text('metric').notNull(),
@@ -29,5 +35,8 @@ export const curveFits = pgTable(
     details: jsonb('details').notNull().default({}),
     computedAt: timestamp('computed_at', { withTimezone: true }).notNull().defaultNow(),
   },
-  (t) => [primaryKey({ name: 'curve_fits_pk', columns: [t.scope, t.forestType, t.metric, t.axis, t.model] })],
+  (t) => [
+    primaryKey({ name: 'curve_fits_pk', columns: [t.scopeKind, t.scope, t.forestType, t.metric, t.axis, t.model] }),
+    check('curve_fits_scope_kind_chk', sql`${t.scopeKind} in ('forest_type','region')`),
+  ],
 );

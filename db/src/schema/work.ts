@@ -1,4 +1,4 @@
-import { check, integer, jsonb, pgTable, primaryKey, text, timestamp } from 'drizzle-orm/pg-core';
+import { bigint, check, integer, jsonb, pgTable, primaryKey, text, timestamp } from 'drizzle-orm/pg-core';
 import { sql } from 'drizzle-orm';
 
 /**
@@ -31,4 +31,30 @@ export const recomputeRuns = pgTable(
     finishedAt: timestamp('finished_at', { withTimezone: true }),
   },
   (t) => [check('recompute_runs_state_chk', sql`${t.state} in ('queued','running','done','failed')`)],
+);
+
+/**
+ * What a recompute could not compute, one row per subject: a plot visit whose metrics failed (`plot`),
+ * a forest type or region × forest type whose fit failed (`fit`), a region whose summary failed
+ * (`summary`). The others are computed all the same; the subject's stale mark is cleared so no run
+ * retries it until its data change. A later success removes the row; `run_id` is the run that met it.
+ */
+export const computeProblems = pgTable(
+  'compute_problems',
+  {
+    stage: text('stage').notNull(),
+    /** The key within the stage: the visit id, the forest type, the forest type and region, the region. */
+    subject: text('subject').notNull(),
+    runId: text('run_id').notNull(),
+    forestType: text('forest_type'),
+    region: text('region'),
+    visitId: bigint('visit_id', { mode: 'number' }),
+    plotKey: text('plot_key'),
+    reason: text('reason').notNull(),
+    recordedAt: timestamp('recorded_at', { withTimezone: true }).notNull().defaultNow(),
+  },
+  (t) => [
+    primaryKey({ name: 'compute_problems_pk', columns: [t.stage, t.subject] }),
+    check('compute_problems_stage_chk', sql`${t.stage} in ('plot','fit','summary')`),
+  ],
 );

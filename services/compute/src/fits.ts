@@ -1,19 +1,24 @@
 import {
+  clearProblems,
   clearStale,
   deleteCurveFitsExcept,
   listLatestPlotMetrics,
   listStale,
   listStaleMarks,
   markStale,
+  problemSubject,
+  recordProblems,
   regionsOfForestTypes,
   upsertCurveFits,
+  WHOLE_FOREST_TYPE_SCOPE,
   type CurveFitRow,
   type Db,
+  type FitScope,
   type LatestPlotMetrics,
   type PlotMetricDbColumn,
   type ServiceDeps,
 } from '@stemwise/db';
-import { PermanentError, type Logger } from '@stemwise/platform';
+import { isInfrastructureError, PermanentError, type Logger } from '@stemwise/platform';
 import { renderFitChartSvg } from './charts/fit-chart';
 import { FITTABLE_COLUMNS } from './fit-columns';
 import { fitCurves, fitRows, type CurvePoint, type CurveResult, type FitRow } from './science/verdict';
@@ -38,6 +43,8 @@ export interface ForestTypeFits {
   all: CurveResult;
   /** Region × forest type fits with at least MIN_REGION_PLOTS plots. */
   regions: Array<{ region: string; points: CurvePoint[]; result: CurveResult }>;
+  /** Regions whose fit threw (the others are fitted all the same), with the reason. */
+  failedRegions: Array<{ region: string; reason: string }>;
 }
 
 /** Points (x = axis, y = metric) of the latest visit of each plot, where both are known. */
@@ -57,10 +64,18 @@ export async function fitForestType(db: Pick<Db, 'query'>, forestType: string, s
     if (!FITTABLE_COLUMNS.includes(c)) throw new PermanentError('fit_column_unknown', `cannot fit on '${c}': not a numeric column of export plots`);
   }
   const plots = await listLatestPlotMetrics(db, forestType);
-  const points = pointsOf(plots, settings.axis, settings.metric);
+  return fitPoints(forestType, pointsOf(plots, settings.axis, settings.metric), settings, options);
+}
+
+/**
+ * The fits of one forest type's points (no I/O). A region whose fit throws is set aside in
+ * `failedRegions` and the other regions are fitted; a throw of the whole-type fit propagates.
+ */
+export function fitPoints(forestType: string, points: ReadonlyArray<CurvePoint & { region: string }>, settings: FitSettings, options: { regions: boolean }): ForestTypeFits {
   const curveOptions = { bootstrapN: settings.bootstrap, seed: settings.seed };
   const all = fitCurves(points.map(({ x, y }) => ({ x, y })), curveOptions);
   const regions: ForestTypeFits['regions'] = [];
+  const failedRegions: ForestTypeFits['failedRegions'] = [];
   if (options.regions) {
     const byRegion = new Map<string, CurvePoint[]>();
     for (const p of points) {
@@ -69,10 +84,15 @@ export async function fitForestType(db: Pick<Db, 'query'>, forestType: string, s
       byRegion.set(p.region, list);
     }
     for (const [region, list] of [...byRegion].sort(([a], [b]) => (a < b ? -1 : a > b ? 1 : 0))) {
-      if (list.length >= MIN_REGION_PLOTS) regions.push({ region, points: list, result: fitCurves(list, curveOptions) });
+      if (list.length < MIN_REGION_PLOTS) continue;
+      try {
+        regions.push({ region, points: list, result: fitCurves(list, curveOptions) });
+      } catch (err) {
+        failedRegions.push({ region, reason: (err as Error).message });
+      }
     }
   }
-  return { forestType, points: points.map(({ x, y }) => ({ x, y })), all, regions };
+  return { forestType, points: points.map(({ x, y }) => ({ x, y })), all, regions, failedRegions };
 }
 
 /** What is kept of a result beside the columns: the reasons, the tests, the intervals. */
@@ -83,6 +103,7 @@ export function fitDetails(result: CurveResult): Record<string, unknown> {
     xMin: result.xMin,
     xMax: result.xMax,
     reasons: result.reasons,
+    untestable: result.untestable,
     peak: result.peak,
     tests: result.tests,
     linear: strip(result.linear),
@@ -91,10 +112,11 @@ export function fitDetails(result: CurveResult): Record<string, unknown> {
 }
 
 /** A stored row from an `export fits` row. */
-export function toStoredRow(scope: string, row: FitRow, details: Record<string, unknown>): CurveFitRow {
+export function toStoredRow(scope: FitScope, row: FitRow, details: Record<string, unknown>): CurveFitRow {
   const n = (v: string | number | null) => (typeof v === 'number' ? v : null);
   return {
-    scope,
+    scopeKind: scope.kind,
+    scope: scope.kind === 'region' ? scope.region : WHOLE_FOREST_TYPE_SCOPE,
     forestType: String(row.forest_type),
     metric: String(row.metric),
     axis: String(row.axis),
@@ -156,36 +178,69 @@ async function chartFor(fits: ForestTypeFits, settings: FitSettings, log?: Logge
   }
 }
 
+export interface StoredFits {
+  forestType: string;
+  n: number;
+  verdict: string;
+  regions: number;
+  /** Set when the forest type (or some of its regions) could not be fitted; see compute_problems. */
+  problems?: string[];
+}
+
 /**
- * Fits the given forest types with the configured metric and axis and stores them: rows for scope
- * `all` (with the chart SVG in details.chart_svg) and per region with enough plots; clears the types'
- * `fits` marks and marks the summaries of their regions stale — per forest type, in one transaction.
+ * Fits the given forest types with the configured metric and axis and stores them: rows for the whole
+ * forest type (scope kind `forest_type`, with the chart SVG in details.chart_svg) and per region with
+ * enough plots; clears the types' `fits` marks and marks the summaries of their regions stale — per
+ * forest type, in one transaction. A forest type or region whose fit throws is recorded in
+ * compute_problems (with `runId`), logged, and its mark cleared so no run retries it until its data
+ * change; the other forest types are fitted all the same. Read and write errors still fail the job.
  */
-export async function storeFits(deps: Pick<ServiceDeps, 'db' | 'config'> & { log?: Logger }, forestTypes: readonly string[]): Promise<Array<{ forestType: string; n: number; verdict: string; regions: number }>> {
+export async function storeFits(deps: Pick<ServiceDeps, 'db' | 'config'> & { log?: Logger; runId?: string }, forestTypes: readonly string[]): Promise<StoredFits[]> {
   const { db, config } = deps;
+  const runId = deps.runId ?? 'export';
   const settings: FitSettings = { metric: config.fitMetric, axis: config.fitAxis, bootstrap: config.bootstrap, seed: config.seed };
-  const out: Array<{ forestType: string; n: number; verdict: string; regions: number }> = [];
+  const out: StoredFits[] = [];
   for (const forestType of forestTypes) {
     const marks = await listStaleMarks(db, 'fits', [forestType]); // before the inputs are read
-    const fits = await fitForestType(db, forestType, settings, { regions: true });
+    const plots = await listLatestPlotMetrics(db, forestType);
     const labels = { forestType, metric: settings.metric, axis: settings.axis };
+    let fits: ForestTypeFits;
     const rows: CurveFitRow[] = [];
-    const chart = await chartFor(fits, settings, deps.log);
-    for (const row of fitRows(fits.all, labels)) rows.push(toStoredRow('all', row, { ...fitDetails(fits.all), ...chart }));
-    for (const r of fits.regions) for (const row of fitRows(r.result, labels)) rows.push(toStoredRow(r.region, row, fitDetails(r.result)));
+    try {
+      fits = fitPoints(forestType, pointsOf(plots, settings.axis, settings.metric), settings, { regions: true });
+      const chart = await chartFor(fits, settings, deps.log);
+      for (const row of fitRows(fits.all, labels)) rows.push(toStoredRow({ kind: 'forest_type' }, row, { ...fitDetails(fits.all), ...chart }));
+      for (const r of fits.regions) for (const row of fitRows(r.result, labels)) rows.push(toStoredRow({ kind: 'region', region: r.region }, row, fitDetails(r.result)));
+    } catch (err) {
+      if (isInfrastructureError(err)) throw err;
+      // The science met data it cannot handle: keep the stored fits, say why, go on with the next type.
+      const reason = (err as Error).message;
+      deps.log?.error({ err, runId, forestType }, 'forest type could not be fitted; the others go on');
+      await db.transaction(async (tx) => {
+        await recordProblems(tx, runId, [{ stage: 'fit', forestType, region: null, visitId: null, plotKey: null, reason }]);
+        await clearStale(tx, 'fits', marks);
+      });
+      out.push({ forestType, n: plots.length, verdict: 'not fitted', regions: 0, problems: [reason] });
+      continue;
+    }
+    for (const f of fits.failedRegions) deps.log?.error({ runId, forestType, region: f.region, reason: f.reason }, 'region × forest type could not be fitted; the others go on');
     const regions = await regionsOfForestTypes(db, [forestType]);
     await db.transaction(async (tx) => {
-      await deleteCurveFitsExcept(tx, forestType, settings.metric, settings.axis, regions.length ? ['all', ...fits.regions.map((r) => r.region)] : []);
+      await deleteCurveFitsExcept(tx, forestType, settings.metric, settings.axis, { whole: regions.length > 0, regions: [...fits.regions, ...fits.failedRegions].map((r) => r.region) });
       if (regions.length) await upsertCurveFits(tx, rows);
+      const fitted = [{ region: null }, ...fits.regions].map((r) => problemSubject({ stage: 'fit', forestType, region: r.region, visitId: null }));
+      await clearProblems(tx, 'fit', fitted);
+      await recordProblems(tx, runId, fits.failedRegions.map((f) => ({ stage: 'fit' as const, forestType, region: f.region, visitId: null, plotKey: null, reason: f.reason })));
       await clearStale(tx, 'fits', marks);
       await markStale(tx, 'summary', regions);
     });
-    out.push({ forestType, n: fits.all.n, verdict: fits.all.verdict, regions: fits.regions.length });
+    const problems = fits.failedRegions.map((f) => `${f.region}: ${f.reason}`);
+    out.push({ forestType, n: fits.all.n, verdict: fits.all.verdict, regions: fits.regions.length, ...(problems.length ? { problems } : {}) });
   }
   return out;
 }
 
 /** The `compute.fits` stage: every forest type whose fits are marked stale. */
-export async function refreshStaleFits(deps: Pick<ServiceDeps, 'db' | 'config'> & { log?: Logger }): Promise<Array<{ forestType: string; n: number; verdict: string; regions: number }>> {
+export async function refreshStaleFits(deps: Pick<ServiceDeps, 'db' | 'config'> & { log?: Logger; runId?: string }): Promise<StoredFits[]> {
   return storeFits(deps, await listStale(deps.db, 'fits'));
 }

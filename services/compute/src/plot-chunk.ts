@@ -7,6 +7,8 @@ import {
   markVisitsComputed,
   recordChunkInRun,
   applyUnresolvedNameCounts,
+  clearProblems,
+  recordProblems,
   upsertPlotMetrics,
   type ComputeStemRow,
   type ComputeVisitRow,
@@ -14,7 +16,7 @@ import {
   type UnresolvedNameCount,
   type ServiceDeps,
 } from '@stemwise/db';
-import { PermanentError } from '@stemwise/platform';
+import { isInfrastructureError, PermanentError, type Logger } from '@stemwise/platform';
 import { heightModelFromRow } from './height-models';
 import { computePlotMetrics, PLOT_METRIC_COLUMNS, type PlotDiagnostics, type PlotMetrics } from './science/plot-metrics';
 import type { HeightDiameterModel } from './science/height-diameter';
@@ -32,6 +34,8 @@ export interface ChunkCounts {
   stems: number;
   /** Requested visits that no longer exist (deleted since the chunk was planned). */
   missing: number;
+  /** Visits whose metrics could not be computed (recorded in compute_problems; the others are written). */
+  failed: number;
   ms: number;
 }
 
@@ -42,9 +46,9 @@ export interface ChunkCounts {
  * and bring the unresolved-name counts of their batches up to date. Idempotent: a rerun writes the
  * same rows and counts.
  */
-export async function computePlotChunk(deps: Pick<ServiceDeps, 'db' | 'config'>, runId: string, visitIds: readonly number[], jobId: string): Promise<ChunkCounts> {
+export async function computePlotChunk(deps: Pick<ServiceDeps, 'db' | 'config'> & { log?: Logger }, runId: string, visitIds: readonly number[], jobId: string): Promise<ChunkCounts> {
   const started = performance.now();
-  const { db, config } = deps;
+  const { db, config, log } = deps;
   const species = await currentSpecies(db);
   return db.transaction(async (tx) => {
     const visits = await lockVisitsForCompute(tx, visitIds);
@@ -55,22 +59,37 @@ export async function computePlotChunk(deps: Pick<ServiceDeps, 'db' | 'config'>,
 
     const writes: PlotMetricsWrite[] = [];
     const unresolved: UnresolvedNameCount[] = [];
+    const failed: Parameters<typeof recordProblems>[2][number][] = [];
     let nStems = 0;
     for (const visit of visits) {
       const stems = stemsOf.get(visit.visitId) ?? [];
       nStems += stems.length;
-      const write = computeVisit(visit, stems, species.index, models.get(visit.forestType) ?? null, config.defaultWoodDensity, species.versionId);
+      let write;
+      try {
+        write = computeVisit(visit, stems, species.index, models.get(visit.forestType) ?? null, config.defaultWoodDensity, species.versionId);
+      } catch (err) {
+        if (isInfrastructureError(err)) throw err;
+        // One plot that cannot be computed does not hold back the others: its reason is recorded, its
+        // stale mark cleared (no run retries it until its data change), its earlier metrics left as they were.
+        const reason = (err as Error).message;
+        log?.error({ runId, plotKey: visit.plotKey, visitId: visit.visitId, forestType: visit.forestType, reason }, 'plot metrics could not be computed; the other plots go on');
+        failed.push({ stage: 'plot', forestType: visit.forestType, region: visit.region, visitId: visit.visitId, plotKey: visit.plotKey, reason });
+        continue;
+      }
       for (const u of write.diagnostics.unresolvedNames) unresolved.push({ batchId: visit.batchId, name: u.name, level: u.level, stems: u.stems });
       writes.push(write);
     }
 
     const ids = visits.map((v) => v.visitId);
-    await applyUnresolvedNameCounts(tx, ids, unresolved); // before the upsert: it reads the old diagnostics
+    const computed = writes.map((w) => w.visitId);
+    await applyUnresolvedNameCounts(tx, computed, unresolved); // before the upsert: it reads the old diagnostics
     await upsertPlotMetrics(tx, writes);
+    await clearProblems(tx, 'plot', computed.map(String));
+    await recordProblems(tx, runId, failed);
     await markVisitsComputed(tx, ids);
     await markStale(tx, 'fits', forestTypes);
     await markStale(tx, 'summary', [...new Set(visits.map((v) => v.region))].sort());
-    const counts: ChunkCounts = { visits: visits.length, stems: nStems, missing: visitIds.length - visits.length, ms: Math.round(performance.now() - started) };
+    const counts: ChunkCounts = { visits: visits.length, stems: nStems, missing: visitIds.length - visits.length, failed: failed.length, ms: Math.round(performance.now() - started) };
     await recordChunkInRun(tx, runId, jobId, { ...counts });
     return counts;
   });

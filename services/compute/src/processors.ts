@@ -18,7 +18,7 @@ export function createProcessors(deps: ServiceDeps): ProcessorMap {
     },
     'compute.plot-chunk': async (data, ctx) => {
       const { runId, visitIds } = parsePayload('compute.plot-chunk', data);
-      const counts = await computePlotChunk(deps, runId, visitIds, ctx.jobId);
+      const counts = await computePlotChunk({ ...deps, log: ctx.log }, runId, visitIds, ctx.jobId);
       ctx.log.info({ runId, ...counts }, 'plot metrics written');
       return counts;
     },
@@ -33,8 +33,10 @@ export function createProcessors(deps: ServiceDeps): ProcessorMap {
     },
     'compute.fits': async (data, ctx) => {
       const { runId } = parsePayload('compute.fits', data);
-      const fits = await refreshStaleFits({ ...deps, log: ctx.log });
+      const fits = await refreshStaleFits({ ...deps, log: ctx.log, runId });
       await mergeRunDetails(deps.db, runId, { fits });
+      const problems = fits.filter((f) => f.problems).map((f) => ({ forestType: f.forestType, problems: f.problems }));
+      if (problems.length) ctx.log.warn({ runId, problems }, 'some fits could not be computed; the others are stored');
       ctx.log.info({ runId, forestTypes: fits.map((f) => f.forestType) }, 'fits stored');
       return { forestTypes: fits.length };
     },

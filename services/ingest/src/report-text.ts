@@ -1,3 +1,4 @@
+import { problemLine } from '@stemwise/db';
 import type { BatchReport } from './report';
 
 const n = (x: number) => x.toLocaleString('en-US');
@@ -36,6 +37,11 @@ export function formatBatchReport(r: BatchReport, perRule = 5): string {
     out.push('', 'species names not resolved to a species of the reference list:');
     for (const u of r.unresolvedNames.slice(0, 20)) out.push(`  ${u.name} (${u.level}, ${n(u.stems)} stem${u.stems === 1 ? '' : 's'})`);
     if (r.unresolvedNames.length > 20) out.push(`  … ${n(r.unresolvedNames.length - 20)} more`);
+  }
+  if (r.computeProblems.length) {
+    out.push('', 'not computed (the rest of the batch was):');
+    for (const p of r.computeProblems.slice(0, 20)) out.push(`  ${problemLine(p)}`);
+    if (r.computeProblems.length > 20) out.push(`  … ${n(r.computeProblems.length - 20)} more`);
   }
   return `${out.join('\n')}\n`;
 }

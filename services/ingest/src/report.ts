@@ -1,4 +1,4 @@
-import { getBatch, listBatchIssues, listUnresolvedNames, type BatchFile, type BatchOptions, type BatchState, type Queryable } from '@stemwise/db';
+import { getBatch, listBatchIssues, listBatchProblems, listUnresolvedNames, problemView, type BatchFile, type BatchOptions, type BatchState, type ProblemView, type Queryable } from '@stemwise/db';
 import { csvCell } from '@stemwise/platform';
 import { OMITTED_MARK } from './issues';
 import { ALL_RULES, ruleByCode } from './rules/catalogue';
@@ -47,6 +47,8 @@ export interface BatchReport {
   issues: RuleGroup[];
   /** Species names of the batch that did not resolve to a species of the reference list. */
   unresolvedNames: Array<{ name: string; level: string; stems: number }>;
+  /** What the latest recompute could not compute of this batch's plots, forest types and regions (the rest was computed). */
+  computeProblems: ProblemView[];
 }
 
 /** State, counts, progress and issues grouped by rule (with the first `perRule` of each), or null. */
@@ -97,6 +99,7 @@ export async function batchReport(db: Queryable, id: string, perRule = 5): Promi
     progress: { bytesTotal: Number(b.bytesTotal), bytesRead: Number(b.bytesRead), rowsChecked: b.rowsChecked, rowsLoaded: b.rowsLoaded },
     issues,
     unresolvedNames: await listUnresolvedNames(db, id),
+    computeProblems: (await listBatchProblems(db, id)).map(problemView),
   };
 }
 

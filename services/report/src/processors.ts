@@ -1,5 +1,5 @@
-import { failRecomputeRun, finishRecomputeRun, mergeRunDetails, type ServiceDeps } from '@stemwise/db';
-import { parsePayload, PermanentError, type ProcessorMap } from '@stemwise/platform';
+import { finishRecomputeRun, mergeRunDetails, problemLine, type ServiceDeps } from '@stemwise/db';
+import { parsePayload, type ProcessorMap } from '@stemwise/platform';
 import { queueFollowUp } from '@stemwise/compute/maintenance/follow-up';
 import { refreshNationalSummary } from './national-snapshot';
 import { RegionSummaryInputError } from './summary/input';
@@ -19,7 +19,7 @@ export function createProcessors(deps: ServiceDeps): ProcessorMap {
       const { runId } = parsePayload('report.summaries', data);
       const { db } = deps;
       const result = await db.withLock(SUMMARIES_LOCK, async () => {
-        const regions = await refreshStaleSummaries({ db, config: deps.config, log: ctx.log });
+        const regions = await refreshStaleSummaries({ db, config: deps.config, log: ctx.log, runId });
         // The national summary mixes every region: only once they all went through, else it stays stale.
         if (regions.rejected.length) return { ...regions, national: null };
         try {
@@ -39,12 +39,10 @@ export function createProcessors(deps: ServiceDeps): ProcessorMap {
         },
       };
       await mergeRunDetails(db, runId, details);
-      if (result.rejected.length) {
-        const reason = `region summaries rejected: ${result.rejected.map((r) => `${r.region} (${r.reason})`).join('; ')}`;
-        await failRecomputeRun(db, runId, reason);
-        throw new PermanentError('summary_rejected', reason);
-      }
-      await finishRecomputeRun(db, runId);
+      // A region, forest type or plot that could not be computed does not fail the run: the run ends
+      // done, with what it could not compute in compute_problems (and its count in the run's details).
+      const problems = await finishRecomputeRun(db, runId);
+      if (problems.length) ctx.log.warn({ runId, problems: problems.map(problemLine) }, 'recompute done; some parts could not be computed');
       await queueFollowUp({ ...deps, log: ctx.log }, runId); // what became stale during this run is the next run's
       ctx.log.info({ runId, ...details.summaries }, 'region summaries stored');
       return details.summaries;

@@ -1,5 +1,6 @@
 import crypto from 'node:crypto';
 import {
+  clearProblems,
   clearStale,
   insertSummarySnapshot,
   listCurveFits,
@@ -8,10 +9,11 @@ import {
   listRegionLatestPlots,
   listRegionStemNames,
   listStaleMarks,
+  recordProblems,
   regionExists,
   type ServiceDeps,
 } from '@stemwise/db';
-import { PermanentError, type Config, type Logger } from '@stemwise/platform';
+import { isInfrastructureError, type Config, type Logger } from '@stemwise/platform';
 import { renderFitChartSvg } from '@stemwise/compute/charts/fit-chart';
 import { pointsOf, toFitRow } from '@stemwise/compute/fits';
 import { currentSpecies } from '@stemwise/compute/species-cache';
@@ -19,7 +21,7 @@ import { IPCC_2006_CARBON_FRACTION } from '@stemwise/compute/science/allometry';
 import { fitCurves, type CurveResult } from '@stemwise/compute/science/verdict';
 import { renderGuildChartSvg } from './charts/guild-chart';
 import { renderMeansChartSvg } from './charts/means-chart';
-import { RegionSummaryInputError, summariseRegion, type PlotMetrics } from './summary/region-summary';
+import { summariseRegion, type PlotMetrics } from './summary/region-summary';
 import type { SamplingErrorT } from './estimators/stratified';
 import { SNAPSHOT_FORMAT, type FitChart, type SnapshotFitRow, type SnapshotMethod, type SnapshotPayload } from './snapshot-payload';
 
@@ -119,11 +121,11 @@ export async function assembleRegionSnapshot(deps: Deps, region: string, curves:
   const summary = summariseRegion({ region, plots: inputPlots, forestAreas: areas, options: { samplingErrorT: samplingErrorMultiplier(config) } });
 
   const fits: SnapshotFitRow[] = [];
-  for (const scope of ['all', region]) {
+  for (const scope of [{ kind: 'forest_type' }, { kind: 'region', region }] as const) {
     const rows = summary.forest_types.length
       ? await listCurveFits(db, { scope, metric: config.fitMetric, axis: config.fitAxis, forestTypes: summary.forest_types })
       : [];
-    for (const r of rows) fits.push({ scope, ...(toFitRow(r) as Omit<SnapshotFitRow, 'scope'>) });
+    for (const r of rows) fits.push({ scope: r.scope, ...(toFitRow(r) as Omit<SnapshotFitRow, 'scope'>) });
   }
   const fitCharts: FitChart[] = [];
   for (const t of summary.forest_types) fitCharts.push(await fitChart(deps, region, t, curves));
@@ -159,9 +161,10 @@ export interface RefreshedRegion {
 /**
  * The `report.summaries` stage: a new snapshot of every region marked stale for `summary`, each stored
  * with its stale mark cleared in one transaction. A region that no longer exists is just unmarked. A
- * region whose data the summary rejects is left marked and reported; the others are still stored.
+ * region whose summary cannot be built is recorded in compute_problems, unmarked and reported in
+ * `rejected`; the others are still stored.
  */
-export async function refreshStaleSummaries(deps: Deps): Promise<{ regions: RefreshedRegion[]; rejected: Array<{ region: string; reason: string }> }> {
+export async function refreshStaleSummaries(deps: Deps & { runId?: string }): Promise<{ regions: RefreshedRegion[]; rejected: Array<{ region: string; reason: string }> }> {
   const { db } = deps;
   const curves: CurveCache = new Map();
   const regions: RefreshedRegion[] = [];
@@ -176,15 +179,23 @@ export async function refreshStaleSummaries(deps: Deps): Promise<{ regions: Refr
     try {
       payload = await assembleRegionSnapshot(deps, region, curves);
     } catch (err) {
-      if (!(err instanceof RegionSummaryInputError) && !(err instanceof PermanentError)) throw err;
-      deps.log?.error({ err, region }, 'region summary rejected its input');
-      rejected.push({ region, reason: err.message });
+      if (isInfrastructureError(err)) throw err;
+      // This region's summary cannot be built from its data: the latest snapshot stays, the reason is
+      // recorded, the mark cleared (no run retries it until its data change); the other regions go on.
+      const reason = (err as Error).message;
+      deps.log?.error({ err, runId: deps.runId, region }, 'region summary could not be built; the other regions go on');
+      await db.transaction(async (tx) => {
+        await recordProblems(tx, deps.runId ?? 'export', [{ stage: 'summary', forestType: null, region, visitId: null, plotKey: null, reason }]);
+        await clearStale(tx, 'summary', [mark]);
+      });
+      rejected.push({ region, reason });
       continue;
     }
     const etag = payloadEtag(payload);
     const stored = await db.transaction(async (tx) => {
       const r = await insertSummarySnapshot(tx, region, etag, payload);
       await clearStale(tx, 'summary', [mark]);
+      await clearProblems(tx, 'summary', [region]);
       return r;
     });
     regions.push({ region, ...stored });

@@ -35,11 +35,11 @@ export async function fitExportRows(deps: Pick<ServiceDeps, 'db' | 'config'> & {
   const metric = checkFitColumn('metric', options.metric ?? config.fitMetric);
   const types = await forestTypesWithPlots(db);
   if (axis === config.fitAxis && metric === config.fitMetric) {
-    const have = new Set((await listCurveFits(db, { scope: 'all', metric, axis })).map((r) => r.forestType));
+    const have = new Set((await listCurveFits(db, { scope: { kind: 'forest_type' }, metric, axis })).map((r) => r.forestType));
     const stale = new Set(await listStale(db, 'fits'));
     const due = types.filter((t) => stale.has(t) || !have.has(t));
     if (due.length) await storeFits(deps, due);
-    const stored = await listCurveFits(db, { scope: 'all', metric, axis, forestTypes: types });
+    const stored = await listCurveFits(db, { scope: { kind: 'forest_type' }, metric, axis, forestTypes: types });
     return { rows: stored.map(toFitRow), stored: true };
   }
   const rows: FitRow[] = [];

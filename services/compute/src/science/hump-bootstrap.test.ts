@@ -71,9 +71,20 @@ describe('bootstrapVertexInterval', () => {
     expect(width).toBeGreaterThan(1);
   });
 
-  it('rejects bad input by name', () => {
-    expect(() => bootstrapVertexInterval([1, 2, 3], [1, 2, 3], { replicates: 10, seed: 1 })).toThrow(/bootstrapVertexInterval/);
-    expect(() => bootstrapVertexInterval([1, 1, 1, 1], [1, 2, 3, 4], { replicates: 10, seed: 1 })).toThrow(/bootstrapVertexInterval/);
+  it('rejects a bad call by name', () => {
     expect(() => bootstrapVertexInterval([1, 2, 3, 4], [1, 2, 3, 4], { replicates: 0, seed: 1 })).toThrow(/bootstrapVertexInterval/);
+    expect(() => bootstrapVertexInterval([1, 2, 3, 4], [1, 2, 3], { replicates: 10, seed: 1 })).toThrow(/bootstrapVertexInterval/);
+  });
+
+  // Degenerate data are not testable, never an exception: no interval, and the reason. (A vertex
+  // needs a parabola, i.e. 3 distinct x, and a resample of at least 4 points: by definition.)
+  it.each([
+    ['n below the minimum', [1, 2, 3], [1, 2, 3], /at least 4 points/],
+    ['all x equal', [1, 1, 1, 1], [1, 2, 3, 4], /same on every point/],
+    ['two distinct x', [1, 1, 2, 2, 1, 2], [1, 2, 3, 4, 1, 3], /fewer than 3 distinct/],
+  ])('gives no interval with a reason on degenerate data: %s', (_label, x, y, reason) => {
+    const boot = bootstrapVertexInterval(x, y, { replicates: 10, seed: 1 });
+    expect(boot).toMatchObject({ replicates: 0, low: null, high: null });
+    expect(boot.reason).toMatch(reason);
   });
 });

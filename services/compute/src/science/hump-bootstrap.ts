@@ -22,6 +22,8 @@ export interface VertexBootstrap {
   readonly high: number | null;
   /** Share of replicates whose b₂ has the sign of the full-sample b₂. */
   readonly curvatureSignAgreement: number;
+  /** Why no interval could be drawn from these data (fewer than 4 points, fewer than 3 distinct x); null otherwise. */
+  readonly reason: string | null;
 }
 
 // Solve the symmetric 3×3 system M·a = r by Gaussian elimination with partial pivoting; null if singular.
@@ -55,7 +57,8 @@ export function bootstrapVertexInterval(x: readonly number[], y: readonly number
   const n = x.length;
   if (y.length !== n) throw new RangeError(`${fn}: x has ${n} values, y has ${y.length}`);
   if (!Number.isInteger(replicates) || replicates < 1) throw new RangeError(`${fn}: replicates must be a positive integer, got ${replicates}`);
-  if (n < 4) throw new RangeError(`${fn}: need at least 4 points, got ${n}`);
+  const untestable = (reason: string): VertexBootstrap => ({ replicates: 0, failed: 0, low: null, high: null, curvatureSignAgreement: 0, reason });
+  if (n < 4) return untestable(`need at least 4 points, got ${n}`);
   let xs = 0;
   let ys = 0;
   for (let i = 0; i < n; i++) {
@@ -68,7 +71,7 @@ export function bootstrapVertexInterval(x: readonly number[], y: readonly number
   let ss = 0;
   for (let i = 0; i < n; i++) ss += (x[i] - xm) ** 2;
   const sx = Math.sqrt(ss / n);
-  if (!(sx > 0)) throw new RangeError(`${fn}: x is constant`);
+  if (!(sx > 0)) return untestable('x is the same on every point');
   const u = new Float64Array(n);
   const u2 = new Float64Array(n);
   const yc = new Float64Array(n);
@@ -96,7 +99,7 @@ export function bootstrapVertexInterval(x: readonly number[], y: readonly number
   };
   const full = sums(() => 1);
   const fullSolution = solve3(full.m, full.r);
-  if (!fullSolution) throw new RangeError(`${fn}: x has fewer than 3 distinct values`);
+  if (!fullSolution) return untestable('x has fewer than 3 distinct values, so no vertex can be estimated');
   const fullSign = Math.sign(fullSolution[2]);
 
   const rng = createRng(seed);
@@ -119,7 +122,7 @@ export function bootstrapVertexInterval(x: readonly number[], y: readonly number
     const vu = c2 === 0 ? (c1 > 0 ? Infinity : -Infinity) : -c1 / (2 * c2);
     vertices[used++] = xm + sx * vu;
   }
-  if (used === 0) return { replicates: 0, failed, low: null, high: null, curvatureSignAgreement: 0 };
+  if (used === 0) return { replicates: 0, failed, low: null, high: null, curvatureSignAgreement: 0, reason: 'every resample had a singular design' };
   const { low, high } = percentileInterval(vertices.subarray(0, used), alpha);
   return {
     replicates: used,
@@ -127,5 +130,6 @@ export function bootstrapVertexInterval(x: readonly number[], y: readonly number
     low: Number.isFinite(low) ? low : null,
     high: Number.isFinite(high) ? high : null,
     curvatureSignAgreement: agree / used,
+    reason: null,
   };
 }

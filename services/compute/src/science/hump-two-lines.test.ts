@@ -78,3 +78,24 @@ describe('twoLinesTest', () => {
     expect(t.reason).toMatch(/too few points/);
   });
 });
+
+// A line through two x values, each repeated with the same y, has zero residuals: its HC3 variance is
+// zero by construction (MacKinnon & White 1985: the sandwich sums squared residuals), so the split is
+// not testable. Old behaviour: t = 0/0 and an exception. Data invented for the test.
+describe('two lines on repeated points', () => {
+  const low = [0.05, 0.1, 0.15, 0.2, 0.25, 0.3, 0.35];
+  const lowY = [1.1, 1.9, 2.2, 3.4, 3.6, 4.9, 5.1];
+  const x = [...low, 0.8, 0.8, 0.8, 0.9, 0.9, 0.9];
+  const y = [...lowY, 5, 5, 5, 4, 4, 4];
+
+  it('the interrupted regression is not estimable there', () => {
+    expect(interruptedRegression(x, y, 0.5)).toBeNull();
+  });
+
+  it('the two-lines test on plots entered three times is not testable, with a reason, never an exception', () => {
+    const [sx, sy] = xy(simulateCurve(20, (v) => 10 + 3 * v, 1, 1));
+    const t = twoLinesTest([...sx, ...sx, ...sx], [...sy, ...sy, ...sy], 'hump');
+    expect(t.passes).toBe(false);
+    expect(t.reason).toMatch(/no sampling variance|too few points/);
+  });
+});

@@ -15,7 +15,8 @@
 //     which gives more data to the line whose slope is the less significant;
 //  4. refit there with HC3 robust standard errors; a hump needs b₁ > 0 and b₂ < 0 with both
 //     two-sided p < α (a U the mirror).
-// Each line needs at least MIN_POINTS_PER_LINE points with two distinct x, else the test cannot pass.
+// Each line needs at least MIN_POINTS_PER_LINE points with two distinct x and some residual scatter,
+// else the test is not testable: `reason` says why and `passes` is false (never an exception).
 import { quantileSorted } from './bootstrap';
 import type { CurveShape } from './hump';
 import { fitOls, fitPolynomial, predictPolynomial, RegressionError } from './regression';
@@ -46,6 +47,12 @@ export interface TwoLinesResult {
 
 // Interrupted regression y = a + b₁x_low + b₂x_high + c·high with HC3 SEs (Simonsohn 2018, eq. for "two lines"); null if a line is not estimable.
 export function interruptedRegression(x: readonly number[], y: readonly number[], breakpoint: number): { first: LineSegment; second: LineSegment } | null {
+  const out = splitLines(x, y, breakpoint);
+  return 'reason' in out ? null : out;
+}
+
+// The interrupted regression, or why it cannot be tested at this breakpoint (too few points or distinct x on a side, a singular design, no residual scatter).
+function splitLines(x: readonly number[], y: readonly number[], breakpoint: number): { first: LineSegment; second: LineSegment } | { reason: string } {
   const n = x.length;
   const xLow = new Array<number>(n);
   const xHigh = new Array<number>(n);
@@ -65,12 +72,14 @@ export function interruptedRegression(x: readonly number[], y: readonly number[]
     }
   }
   const nHigh = n - nLow;
-  if (nLow < MIN_POINTS_PER_LINE || nHigh < MIN_POINTS_PER_LINE || lowXs.size < 2 || highXs.size < 2) return null;
+  if (nLow < MIN_POINTS_PER_LINE || nHigh < MIN_POINTS_PER_LINE || lowXs.size < 2 || highXs.size < 2) {
+    return { reason: `too few points on one side of the breakpoint (a line needs ${MIN_POINTS_PER_LINE} points at 2 distinct x or more)` };
+  }
   let fit;
   try {
     fit = fitOls(y, [xLow, xHigh, high], { hc3: true });
   } catch (e) {
-    if (e instanceof RegressionError) return null;
+    if (e instanceof RegressionError) return { reason: e.message };
     throw e;
   }
   const hc3 = fit.hc3!;
@@ -128,14 +137,14 @@ export function twoLinesTest(x: readonly number[], y: readonly number[], shape: 
   const flatLow = flatSorted[0];
   const flatHigh = flatSorted[flatSorted.length - 1];
   const median = quantileSorted(flatSorted, 0.5);
-  const first = interruptedRegression(x, y, median);
-  if (!first) return none('too few points on one side of the median breakpoint', { flatLow, flatHigh, breakpoint: median });
+  const first = splitLines(x, y, median);
+  if ('reason' in first) return none(`${first.reason} (the median breakpoint)`, { flatLow, flatHigh, breakpoint: median });
   const z1 = Math.abs(first.first.t);
   const z2 = Math.abs(first.second.t);
   const q = z1 + z2 > 0 ? z2 / (z1 + z2) : 0.5;
   const breakpoint = quantileSorted(flatSorted, q);
-  const lines = interruptedRegression(x, y, breakpoint);
-  if (!lines) return none('too few points on one side of the Robin Hood breakpoint', { flatLow, flatHigh, breakpoint });
+  const lines = splitLines(x, y, breakpoint);
+  if ('reason' in lines) return none(`${lines.reason} (the Robin Hood breakpoint)`, { flatLow, flatHigh, breakpoint });
   const sign = shape === 'hump' ? 1 : -1;
   const passes =
     sign * lines.first.slope > 0 && sign * lines.second.slope < 0 && lines.first.p < alpha && lines.second.p < alpha;

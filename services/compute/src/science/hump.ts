@@ -91,6 +91,8 @@ export interface MitchellOldsShawResult {
   readonly passes: boolean;
   /** passes and ciInside. */
   readonly strong: boolean;
+  /** Why the curvature could not be tested (then pB2 is 1 and nothing passes); null when it was. */
+  readonly reason: string | null;
 }
 
 // Mitchell-Olds & Shaw (1987, Evolution 41:1149–1161): b₂ of the right sign with two-sided p < α, and the vertex inside [min x, max x]; the strong form also needs its delta-method CI inside.
@@ -99,7 +101,12 @@ export function mitchellOldsShawTest(fit: PolynomialFit, range: XRange, shape: C
   checkAlpha(fn, alpha);
   if (!(range.min < range.max)) throw new RangeError(`${fn}: the x range must have min < max, got [${range.min}, ${range.max}]`);
   const b2 = fit.coefficients[2];
-  const pB2 = studentTTwoSidedP(fit.shiftedCoefficients[2] / Math.sqrt(fit.shiftedCovariance[2][2]), fit.df);
+  const seB2 = Math.sqrt(fit.shiftedCovariance[2][2]);
+  if (!(seB2 > 0 && Number.isFinite(seB2))) {
+    const reason = 'the curvature b2 has no sampling variance (no residual scatter), so it cannot be tested';
+    return { shape, b2, pB2: 1, curvatureSignificant: false, vertex: null, vertexInside: false, ciInside: false, passes: false, strong: false, reason };
+  }
+  const pB2 = studentTTwoSidedP(fit.shiftedCoefficients[2] / seB2, fit.df);
   const signOk = shape === 'hump' ? b2 < 0 : b2 > 0;
   const curvatureSignificant = signOk && pB2 < alpha;
   const ci = vertexDeltaInterval(fit, alpha);
@@ -108,7 +115,7 @@ export function mitchellOldsShawTest(fit: PolynomialFit, range: XRange, shape: C
   const vertexInside = vertex !== null && inside(vertex);
   const ciInside = ci !== null && inside(ci.low) && inside(ci.high);
   const passes = curvatureSignificant && vertexInside;
-  return { shape, b2, pB2, curvatureSignificant, vertex, vertexInside, ciInside, passes, strong: passes && ciInside };
+  return { shape, b2, pB2, curvatureSignificant, vertex, vertexInside, ciInside, passes, strong: passes && ciInside, reason: null };
 }
 
 export interface LindMehlumResult {
@@ -120,6 +127,8 @@ export interface LindMehlumResult {
   /** max of the two one-sided p-values (intersection–union test). */
   readonly p: number;
   readonly passes: boolean;
+  /** Why the slopes could not be tested (then p is 1); null when they were. */
+  readonly reason: string | null;
 }
 
 // Lind & Mehlum (2010, Oxford Bull. Econ. Stat. 72:109–118): H₁ slope(x_min) > 0 > slope(x_max) for a hump (mirrored for a U); p = max of the one-sided t p-values.
@@ -130,9 +139,12 @@ export function lindMehlumTest(fit: PolynomialFit, range: XRange, shape: CurveSh
   const low = quadraticSlopeAt(fit, range.min);
   const high = quadraticSlopeAt(fit, range.max);
   const sign = shape === 'hump' ? 1 : -1;
+  if (!(low.se > 0 && high.se > 0)) {
+    return { shape, slopeLow: low.slope, seLow: low.se, slopeHigh: high.slope, seHigh: high.se, p: 1, passes: false, reason: 'a slope at the ends of the range has no sampling variance, so it cannot be tested' };
+  }
   // one-sided: P(T ≥ t) for the slope that should be positive, P(T ≤ t) for the one that should be negative
   const pLow = studentTCdf((-sign * low.slope) / low.se, fit.df);
   const pHigh = studentTCdf((sign * high.slope) / high.se, fit.df);
   const p = Math.max(pLow, pHigh);
-  return { shape, slopeLow: low.slope, seLow: low.se, slopeHigh: high.slope, seHigh: high.se, p, passes: p < alpha };
+  return { shape, slopeLow: low.slope, seLow: low.se, slopeHigh: high.slope, seHigh: high.se, p, passes: p < alpha, reason: null };
 }

@@ -239,3 +239,27 @@ describe('fitPolynomial agrees with R lm() on a 30-point data set', () => {
     expect(relErr(fit.aicc as number, 22.405471371036128 + 40 / 25)).toBeLessThan(1e-10);
   });
 });
+
+// Zero residual variance is not testable: a stable code, never a t of 0/0 (definitional; data invented).
+describe('zero residual variance', () => {
+  it('an exact straight line is a perfect fit, also when rounding leaves residuals of 1e-16', () => {
+    const x = Array.from({ length: 12 }, (_, i) => i / 7);
+    const err = (() => {
+      try {
+        fitPolynomial(x, x.map((v) => 0.1 + 0.3 * v), 1);
+      } catch (e) {
+        return e;
+      }
+    })();
+    expect(err).toBeInstanceOf(RegressionError);
+    expect((err as RegressionError).code).toBe('perfect_fit');
+  });
+
+  it('HC3 refuses a coefficient fitted only by points with zero residuals (code zero_variance)', () => {
+    const x = [0.05, 0.1, 0.15, 0.2, 0.25, 0.3, 0.35, 0.8, 0.8, 0.8, 0.9, 0.9, 0.9];
+    const y = [1.1, 1.9, 2.2, 3.4, 3.6, 4.9, 5.1, 5, 5, 5, 4, 4, 4];
+    const cols = [x.map((v) => (v > 0.5 ? 0 : v - 0.5)), x.map((v) => (v > 0.5 ? v - 0.5 : 0)), x.map((v) => (v > 0.5 ? 1 : 0))];
+    expect(() => fitOls(y, cols)).not.toThrow();
+    expect(() => fitOls(y, cols, { hc3: true })).toThrow(expect.objectContaining({ code: 'zero_variance' }));
+  });
+});

@@ -5,7 +5,7 @@
 import { covarianceFromFactor, householderQr, matMul, upperTriangularInverse } from './regression-qr';
 import { studentTTwoSidedP } from './student-t';
 
-export type RegressionErrorCode = 'bad_input' | 'too_few_points' | 'rank_deficient' | 'perfect_fit';
+export type RegressionErrorCode = 'bad_input' | 'too_few_points' | 'rank_deficient' | 'perfect_fit' | 'zero_variance';
 
 /** A precondition of a fit failed; `code` is stable, the message names the function. */
 export class RegressionError extends Error {
@@ -71,6 +71,15 @@ export interface OlsOptions {
   readonly hc3?: boolean;
 }
 
+/** RSS below this share of the total sum of squares counts as zero: rounding level (about n·ε² for an exact fit). */
+export const EXACT_FIT_RSS_SHARE = 1e-24;
+/**
+ * An HC3 variance below this share of the classical variance of the same coefficient counts as zero:
+ * with real scatter the two are of the same order; a coefficient fitted only by points with zero
+ * residuals leaves rounding noise (about 1e-18 of it). stemwise's choice, far from both.
+ */
+export const ROBUST_ZERO_SHARE = 1e-12;
+
 // Throws a RegressionError naming the function and the first non-finite value.
 function checkFinite(fn: string, name: string, values: ArrayLike<number>): void {
   for (let i = 0; i < values.length; i++) {
@@ -88,9 +97,12 @@ export function informationCriteria(n: number, rss: number, coefficients: number
   return { logLik, k, aic, aicc };
 }
 
-// SEᵢ = √Cᵢᵢ, tᵢ = bᵢ/SEᵢ, two-sided pᵢ from Student t with the residual df.
-function testsFrom(coefficients: readonly number[], covariance: readonly (readonly number[])[], df: number) {
+// SEᵢ = √Cᵢᵢ, tᵢ = bᵢ/SEᵢ, two-sided pᵢ from Student t with the residual df; a zero (or rounded below
+// zero) variance leaves t undefined, so it is refused with a stable code rather than divided by.
+function testsFrom(fn: string, coefficients: readonly number[], covariance: readonly (readonly number[])[], df: number) {
   const standardErrors = covariance.map((row, i) => Math.sqrt(row[i]));
+  const zero = standardErrors.findIndex((se) => !(se > 0 && Number.isFinite(se)));
+  if (zero >= 0) throw new RegressionError('zero_variance', `${fn}: coefficient ${zero} has no sampling variance (its residuals have no scatter), so it cannot be tested`);
   const tValues = coefficients.map((b, i) => b / standardErrors[i]);
   const pValues = tValues.map((t) => studentTTwoSidedP(t, df));
   return { standardErrors, tValues, pValues };
@@ -153,10 +165,11 @@ export function fitOls(y: readonly number[], predictors: readonly (readonly numb
     rss += residuals[i] * residuals[i];
     ySum += y[i];
   }
-  if (!(rss > 0)) throw new RegressionError('perfect_fit', `${fn}: the fit is exact (all residuals zero), so standard errors are undefined`);
   const yMean = ySum / n;
   let tss = 0;
   for (let i = 0; i < n; i++) tss += (y[i] - yMean) ** 2;
+  // Residuals at rounding level (RSS/TSS near the square of the machine epsilon) are an exact fit too.
+  if (!(rss > EXACT_FIT_RSS_SHARE * tss)) throw new RegressionError('perfect_fit', `${fn}: the fit is exact (all residuals zero), so standard errors are undefined`);
 
   // β = T·β_s with T = [[1, −c/s], [0, diag(1/s)]]; Cov = σ²·(T R⁻¹)(T R⁻¹)ᵀ
   const t: number[][] = Array.from({ length: p }, (_, i) => {
@@ -172,7 +185,7 @@ export function fitOls(y: readonly number[], predictors: readonly (readonly numb
   const sigma2 = rss / df;
   const factor = matMul(t, rInverse);
   const covariance = covarianceFromFactor(factor, sigma2);
-  const { standardErrors, tValues, pValues } = testsFrom(coefficients, covariance, df);
+  const { standardErrors, tValues, pValues } = testsFrom(fn, coefficients, covariance, df);
   const r2 = 1 - rss / tss;
   const adjR2 = 1 - ((1 - r2) * (n - 1)) / df;
   const ic = informationCriteria(n, rss, p);
@@ -203,7 +216,12 @@ export function fitOls(y: readonly number[], predictors: readonly (readonly numb
     for (let a = 0; a < p; a++) for (let b = 0; b < a; b++) meat[a][b] = meat[b][a];
     const left = matMul(factor, meat);
     const robust = left.map((row) => factor.map((fRow) => row.reduce((s, v, k) => s + v * fRow[k], 0)));
-    hc3 = { covariance: robust, ...testsFrom(coefficients, robust, df) };
+    // A coefficient fitted only by points with zero residuals (a line through two repeated x values,
+    // say) has a robust variance of zero up to rounding: not testable, rather than a huge t.
+    robust.forEach((row, i) => {
+      if (!(row[i] > ROBUST_ZERO_SHARE * covariance[i][i])) row[i] = 0;
+    });
+    hc3 = { covariance: robust, ...testsFrom(`${fn} (HC3)`, coefficients, robust, df) };
   }
 
   return {
@@ -289,7 +307,7 @@ export function fitPolynomial(x: readonly number[], y: readonly number[], degree
     inner.basis.rInverse,
   );
   const covariance = covarianceFromFactor(matMul(t, innerFactor), inner.residualSd ** 2);
-  const { standardErrors, tValues, pValues } = testsFrom(coefficients, covariance, inner.df);
+  const { standardErrors, tValues, pValues } = testsFrom(fn, coefficients, covariance, inner.df);
   return {
     ...inner,
     coefficients,

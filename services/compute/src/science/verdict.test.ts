@@ -148,3 +148,61 @@ describe('fitRows', () => {
     expect(quad.verdict).toBe('none');
   });
 });
+
+// Degenerate data give a defined "not testable" result, never an exception. The expected outcomes are
+// definitional (no slope without two distinct x, no curvature without three, no test without residual
+// scatter: any regression text, e.g. Seber & Lee 2003, Linear Regression Analysis, ch. 3); the data are
+// invented for these tests.
+describe('fitCurves on degenerate data', () => {
+  const rising = (x: number) => 10 + 3 * x;
+
+  it('exact duplicated points (each plot entered three times) judge the shape without an exception', () => {
+    const pts = simulateCurve(20, rising, 1, 1);
+    const tripled = [...pts, ...pts, ...pts];
+    const r = fitCurves(tripled, { bootstrapN: 200 });
+    expect(r.n).toBe(60);
+    expect(VERDICTS_OF_ALL).toContain(r.verdict);
+    expect(r.untestable).toBeNull();
+    const twoLines = r.tests.twoLines!;
+    // a side of the split with two repeated x is fitted exactly: its slope cannot be tested (HC3 variance 0)
+    expect(twoLines.passes).toBe(false);
+    expect(twoLines.reason).toMatch(/no sampling variance|too few points/);
+    expect(r.reasons.join('\n')).toMatch(/two-lines test not possible/);
+  });
+
+  it('constant y: not testable, verdict none', () => {
+    const r = fitCurves(Array.from({ length: 20 }, (_, i) => ({ x: i / 19, y: 4.2 })));
+    expect(r).toMatchObject({ verdict: 'none', linear: null, quadratic: null });
+    expect(r.untestable).toMatch(/same value on every plot/);
+  });
+
+  it('all x equal: not testable, verdict none', () => {
+    const r = fitCurves(Array.from({ length: 20 }, (_, i) => ({ x: 0.3, y: i % 7 })));
+    expect(r.verdict).toBe('none');
+    expect(r.untestable).toMatch(/x has the same value/);
+  });
+
+  it('two distinct x: the straight line is judged, the curvature is not testable', () => {
+    const r = fitCurves(Array.from({ length: 20 }, (_, i) => ({ x: i % 2, y: (i % 2) * 3 + (i % 5) * 0.1 })));
+    expect(r.untestable).toBeNull();
+    expect(r.quadratic).toBeNull();
+    expect(r.tests.twoLines).toBeNull();
+    expect(r.reasons.join('\n')).toMatch(/only 2 distinct values, so no curvature/);
+    expect(r.verdict).toBe('increasing');
+  });
+
+  it('n below the minimum: not testable, verdict none', () => {
+    const r = fitCurves(simulateCurve(MIN_POINTS - 1, rising, 1, 2));
+    expect(r.verdict).toBe('none');
+    expect(r.untestable).toMatch(new RegExp(`only ${MIN_POINTS - 1} plots`));
+  });
+
+  it('an exact straight line (zero residual variance): not testable, verdict none', () => {
+    const r = fitCurves(Array.from({ length: 20 }, (_, i) => ({ x: i, y: 2 + 0.5 * i })));
+    expect(r).toMatchObject({ verdict: 'none', linear: null, quadratic: null });
+    expect(r.untestable).toMatch(/neither the straight line nor the parabola/);
+    expect(r.reasons.join('\n')).toMatch(/fit is exact/);
+  });
+});
+
+const VERDICTS_OF_ALL: readonly Verdict[] = ['hump', 'increasing', 'decreasing', 'u_shape', 'none'];

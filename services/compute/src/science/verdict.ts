@@ -22,6 +22,10 @@
 //    from zero (p < alpha), by its sign.
 //  - Otherwise "none": the data do not show a clear relation. This is a common, honest answer.
 // With fewer than MIN_POINTS plots (10), no verdict is attempted ("none", with the reason).
+// Degenerate data never throw: when the data cannot answer at all (too few plots, the metric or x the
+// same everywhere, no model fits) the result is "none" with `untestable` set to the reason; a single
+// test that cannot be run (no residual scatter, too few distinct x on a side, a singular design) says
+// why in its own `reason` and does not pass.
 // The peak (or trough) position is reported only with a hump or U verdict, with a 95 % interval
 // (delta method; a bootstrap interval from resampled plots is given beside it). A verdict is a
 // statistical summary of survey plots, not proof of cause: other differences between the plots
@@ -119,6 +123,11 @@ export interface CurveResult {
   readonly tests: CurveTests;
   readonly verdict: Verdict;
   readonly reasons: readonly string[];
+  /**
+   * Why the data cannot answer the question at all (too few plots, the metric or x the same on every
+   * plot, no model could be fitted); the verdict is then `none`. null when the shape was judged.
+   */
+  readonly untestable: string | null;
 }
 
 export interface CurvePoint {
@@ -198,22 +207,18 @@ export function fitCurves(points: readonly CurvePoint[], options: CurveOptions =
     peak: null,
     tests: noTests,
     reasons,
+    untestable: null,
     ...parts,
   });
+  const untestable = (reason: string, parts: Partial<CurveResult> = {}): CurveResult => {
+    reasons.push(reason);
+    return result({ ...parts, verdict: 'none', untestable: reason });
+  };
 
-  if (n < MIN_POINTS) {
-    reasons.push(`only ${n} plots; at least ${MIN_POINTS} are needed to judge the shape of the curve`);
-    return result({ verdict: 'none' });
-  }
-  if (y.every((v) => v === y[0])) {
-    reasons.push('the metric has the same value on every plot, so it cannot vary with x');
-    return result({ verdict: 'none' });
-  }
+  if (n < MIN_POINTS) return untestable(`only ${n} plots; at least ${MIN_POINTS} are needed to judge the shape of the curve`);
+  if (y.every((v) => v === y[0])) return untestable('the metric has the same value on every plot, so it cannot vary with x');
   const distinct = new Set(x).size;
-  if (distinct < 2) {
-    reasons.push('x has the same value on every plot, so no slope can be estimated');
-    return result({ verdict: 'none' });
-  }
+  if (distinct < 2) return untestable('x has the same value on every plot, so no slope can be estimated');
 
   const tryFit = (degree: 1 | 2, label: string): ModelFit | null => {
     try {
@@ -239,6 +244,7 @@ export function fitCurves(points: readonly CurvePoint[], options: CurveOptions =
     return 'none';
   };
 
+  if (!linear && !quadratic) return untestable('neither the straight line nor the parabola could be fitted (see the reasons above)');
   if (!quadratic || xMin === null || xMax === null) {
     return result({ linear, verdict: linearVerdict() });
   }
@@ -265,6 +271,8 @@ export function fitCurves(points: readonly CurvePoint[], options: CurveOptions =
       ? `the parabola bends ${bend} clearly (b2 = ${fmt(mos.b2)}, ${fmtP(mos.pB2)})`
       : `the parabola's bend ${bend} is not significant (b2 = ${fmt(mos.b2)}, ${fmtP(mos.pB2)})`,
   );
+  if (mos.reason !== null) reasons.push(`Mitchell-Olds & Shaw test not possible: ${mos.reason}`);
+  if (lm.reason !== null) reasons.push(`Lind & Mehlum test not possible: ${lm.reason}`);
   if (mos.vertex !== null) {
     reasons.push(
       mos.vertexInside
@@ -291,6 +299,8 @@ export function fitCurves(points: readonly CurvePoint[], options: CurveOptions =
     const delta = vertexDeltaInterval(quadratic.fit, alpha);
     const fieller = vertexFiellerInterval(quadratic.fit, alpha);
     if (bootstrapN > 0) bootstrap = bootstrapVertexInterval(x, y, { replicates: bootstrapN, seed, alpha });
+    if (bootstrap?.reason) reasons.push(`no bootstrap interval of the turning point: ${bootstrap.reason}`);
+    if (!delta) reasons.push('no delta-method interval of the turning point: the curvature is exactly zero');
     if (delta) {
       peak = {
         x: delta.x,

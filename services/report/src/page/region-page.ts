@@ -1,3 +1,4 @@
+import { problemLine, type ProblemView } from '@stemwise/db';
 import type { Snapshot } from '../snapshot-payload';
 import type { DisturbanceRow, RegionRow, TotalRow } from '../summary/types';
 import { HEADLINE_VARIABLES, totalUnit, variableLabel } from '../variables';
@@ -20,6 +21,8 @@ export interface RegionPageInput {
   links: RegionPageLinks;
   /** Every version of the region's summary, newest first. */
   versions: ReadonlyArray<{ version: number; createdAt: Date }>;
+  /** What the latest recompute could not compute for this region (its plots, fits, summary); a short note when any. */
+  problems?: readonly ProblemView[];
 }
 
 const WHOLE = 'all';
@@ -142,6 +145,13 @@ function fitsSection(s: Snapshot): Markup {
   return html`${figures}${table}`;
 }
 
+// A short note of what could not be computed: the figures shown leave these parts out or are older for them.
+function problemsNote(problems: readonly ProblemView[]): Markup | null {
+  if (!problems.length) return null;
+  const shown = problems.slice(0, 5);
+  return html`<div class="caution" id="not-computed"><p>Not computed in the latest recompute (the rest of the page is up to date; these parts are missing or older):</p><ul>${shown.map((p) => html`<li>${problemLine(p)}</li>`)}</ul>${problems.length > shown.length ? html`<p>… and ${problems.length - shown.length} more (see <code>stemwise batch show</code>).</p>` : null}</div>`;
+}
+
 export interface VersionsInput {
   readonly versions: RegionPageInput['versions'];
   readonly links: Pick<RegionPageLinks, 'versionPage'>;
@@ -181,6 +191,7 @@ export function renderRegionPage(input: RegionPageInput): string {
   </div>
   ${s.version !== latest ? html`<p class="caution">This is an earlier version (${s.version}); the latest is version ${latest}.</p>` : null}
   ${cautions(method.carbon_fraction)}
+  ${problemsNote(input.problems ?? [])}
   <h2 id="headline-figures">Headline figures for the whole region</h2>
   <p class="muted">Stratified estimates over the forest types; 95 % intervals use Student t (degrees of freedom in the notes below).</p>
   ${headlineCards(summary.rows, summary.totals)}

@@ -2,7 +2,7 @@ import type { FastifyInstance, FastifyReply, FastifyRequest } from 'fastify';
 import type { ZodTypeProvider } from 'fastify-type-provider-zod';
 import { z } from 'zod';
 import { IPCC_2006_CARBON_FRACTION } from '@stemwise/compute/science/allometry';
-import { listNationalVersions, listRegionHeads, listSummaryVersions } from '@stemwise/db';
+import { listNationalVersions, listRegionHeads, listRegionProblems, listSummaryVersions, problemView } from '@stemwise/db';
 import { canSeeNational, readsRegions, type Principal } from '../access';
 import { readNationalSnapshot } from '../national-snapshot';
 import { renderIndexPage } from '../page/index-page';
@@ -123,9 +123,11 @@ export function pageRoutes(app: FastifyInstance, ctx: RouteContext): void {
       const links = regionLinks(region);
       const v = entry.snapshot.version;
       const versions = await listSummaryVersions(ctx.deps.db, region);
+      const problems = (await listRegionProblems(ctx.deps.db, region, entry.snapshot.payload.summary.forest_types)).map(problemView);
       const body = renderRegionPage({
         snapshot: entry.snapshot,
         versions,
+        problems,
         links: {
           index: '/',
           summaryJson: `${links.summary}?version=${v}`,

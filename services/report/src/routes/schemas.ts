@@ -192,9 +192,23 @@ export const FitsQuery = z.object({
   forest_type: paramText(80).optional(),
   metric: paramText(80).optional().describe('default: the configured fit metric (fisher_alpha)'),
   axis: paramText(80).optional().describe('default: the configured fit axis (disturbance_index)'),
-  scope: paramText(80).optional().describe('`all` or a region; default every scope the token may see'),
+  scope: paramText(80).optional().describe('`all` (the forest type as a whole) or a region; default every scope the token may see'),
+  region: paramText(80).optional().describe('the fits of this region (any name, `all` included); takes precedence over scope'),
   format: z.enum(['json', 'csv']).optional(),
 });
-export const FitList = z.object({ fits: z.array(FitRowSchema) });
+export const ComputeProblemSchema = z
+  .object({
+    stage: z.enum(['plot', 'fit', 'summary']),
+    forest_type: z.string().nullable(),
+    region: z.string().nullable(),
+    plot_id: z.string().nullable(),
+    run_id: z.string(),
+    reason: z.string(),
+  })
+  .describe('something the latest recompute could not compute (the rest was computed): its stage, what it concerns and why');
+export const FitList = z.object({
+  fits: z.array(FitRowSchema),
+  problems: z.array(ComputeProblemSchema).optional().describe('fits that could not be computed (present only when there are some)'),
+});
 
 export const BatchParams = z.object({ id: z.string().uuid() });
