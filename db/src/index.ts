@@ -8,6 +8,7 @@ export * from './queries/metrics';
 export * from './queries/fits';
 export * from './queries/species-read';
 export * from './queries/summaries';
+export * from './queries/national-summaries';
 export * from './queries/access';
 export * from './queries/batches';
 export * from './queries/load';

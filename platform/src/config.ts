@@ -35,6 +35,20 @@ const envSchema = z.object({
   STEMWISE_JOB_LOCK_SECONDS: intIn(2, 3600).default(30),
   STEMWISE_HOST: z.string().min(1).default('127.0.0.1'),
   STEMWISE_PORT: intIn(0, 65535).default(8080),
+  STEMWISE_TRUST_PROXY: z
+    .string()
+    .regex(/^(false|true|\d{1,2}|(loopback|linklocal|uniquelocal|[0-9A-Fa-f.:/]+)(,(loopback|linklocal|uniquelocal|[0-9A-Fa-f.:/]+))*)$/, 'false, true, a hop count, or a comma-separated list of addresses/CIDR ranges')
+    .default('false'),
+  STEMWISE_REQUEST_TIMEOUT_SECONDS: intIn(1, 86_400).default(1800),
+  STEMWISE_IDLE_TIMEOUT_SECONDS: intIn(1, 3600).default(60),
+  STEMWISE_HEADERS_TIMEOUT_SECONDS: intIn(1, 600).default(20),
+  STEMWISE_KEEP_ALIVE_SECONDS: intIn(1, 600).default(5),
+  STEMWISE_MAX_UPLOAD_MB: intIn(1, 1_048_576).default(2048),
+  STEMWISE_MAX_UNPACKED_MB: intIn(1, 1_048_576).default(20_480),
+  STEMWISE_MAX_CONCURRENT_UPLOADS: intIn(1, 1000).default(4),
+  STEMWISE_RATE_LIMIT_PER_MINUTE: intIn(1, 1_000_000).default(600),
+  STEMWISE_AUTH_FAILURES_PER_MINUTE: intIn(1, 100_000).default(20),
+  STEMWISE_TOKEN_CACHE_SIZE: intIn(1, 10_000_000).default(10_000),
   STEMWISE_DEFAULT_WOOD_DENSITY: num().pipe(z.number().min(0.1).max(1.5)).default(0.58),
   STEMWISE_MIN_HEIGHTS: intIn(3, 100_000).default(30),
   STEMWISE_SAMPLING_ERROR_T: z.enum(['t', '1.96', '2']).default('t'),
@@ -66,6 +80,27 @@ export interface Config {
   jobLockSeconds: number;
   host: string;
   port: number;
+  /** Which proxies' X-Forwarded-* headers are believed: false, true (any), a hop count, or addresses/CIDR ranges. */
+  trustProxy: boolean | number | string[];
+  /** Longest time to receive a whole request, body included (ms). */
+  requestTimeoutMs: number;
+  /** A connection that sends or receives nothing this long is closed (ms). */
+  idleTimeoutMs: number;
+  /** Longest time to receive a request's headers (ms). */
+  headersTimeoutMs: number;
+  /** An idle kept-alive connection is closed after this (ms). */
+  keepAliveMs: number;
+  /** Largest upload over HTTP, all files together (bytes). */
+  maxUploadBytes: number;
+  /** Largest decompressed size of one gzip upload file (bytes). */
+  maxUnpackedBytes: number;
+  maxConcurrentUploads: number;
+  /** Requests per minute per client address (health routes are not counted). */
+  rateLimitPerMinute: number;
+  /** Failed authentications per minute per client address before further attempts get 429. */
+  authFailuresPerMinute: number;
+  /** Token checks the report service remembers (least recently used dropped first). */
+  tokenCacheSize: number;
   defaultWoodDensity: number;
   minHeights: number;
   samplingErrorT: 't' | '1.96' | '2';
@@ -95,6 +130,17 @@ export const SETTINGS: ReadonlyArray<{ name: string; default: string; meaning: s
   { name: 'STEMWISE_STOP_GRACE_SECONDS', default: '30', meaning: 'on SIGTERM, how long a worker lets running jobs finish before handing them back to the queue' },
   { name: 'STEMWISE_HOST', default: '127.0.0.1', meaning: 'address the report service listens on' },
   { name: 'STEMWISE_PORT', default: '8080', meaning: 'port of the report service' },
+  { name: 'STEMWISE_TRUST_PROXY', default: 'false', meaning: "whose X-Forwarded-For/-Proto the report service believes: false (none), true (any: only when the proxy is the sole way in), a hop count, or addresses/CIDR ranges like 10.0.0.1,10.1.0.0/16; with it the session cookie gets Secure behind a TLS proxy" },
+  { name: 'STEMWISE_REQUEST_TIMEOUT_SECONDS', default: '1800', meaning: 'longest time the report service waits for a whole request, upload included' },
+  { name: 'STEMWISE_IDLE_TIMEOUT_SECONDS', default: '60', meaning: 'a connection that sends nothing for this long is closed' },
+  { name: 'STEMWISE_HEADERS_TIMEOUT_SECONDS', default: '20', meaning: "longest time to receive a request's headers" },
+  { name: 'STEMWISE_KEEP_ALIVE_SECONDS', default: '5', meaning: 'an idle kept-alive connection is closed after this' },
+  { name: 'STEMWISE_MAX_UPLOAD_MB', default: '2048', meaning: 'largest upload over HTTP (all files together, MiB); a larger Content-Length is refused (413) before the body is read' },
+  { name: 'STEMWISE_MAX_UNPACKED_MB', default: '20480', meaning: 'largest decompressed size of one .gz upload file (MiB); a larger one rejects the batch (rule structure_unpacked_too_large)' },
+  { name: 'STEMWISE_MAX_CONCURRENT_UPLOADS', default: '4', meaning: 'uploads the report service receives at once; more get 503 with Retry-After' },
+  { name: 'STEMWISE_RATE_LIMIT_PER_MINUTE', default: '600', meaning: 'requests per minute per client address to the API and pages (429 beyond; health routes not counted)' },
+  { name: 'STEMWISE_AUTH_FAILURES_PER_MINUTE', default: '20', meaning: 'failed token checks per minute per client address; beyond it every attempt gets 429 until the minute is over' },
+  { name: 'STEMWISE_TOKEN_CACHE_SIZE', default: '10000', meaning: 'token checks the report service remembers (least recently used dropped first)' },
   { name: 'STEMWISE_DEFAULT_WOOD_DENSITY', default: '0.58', meaning: 'regional default wood density (g/cm³) when nothing better is known' },
   { name: 'STEMWISE_MIN_HEIGHTS', default: '30', meaning: 'measured heights a forest type needs before a height–diameter model is fitted' },
   { name: 'STEMWISE_SAMPLING_ERROR_T', default: 't', meaning: 'multiplier of the sampling error %: Student t, 1.96 or 2' },
@@ -103,6 +149,13 @@ export const SETTINGS: ReadonlyArray<{ name: string; default: string; meaning: s
   { name: 'STEMWISE_BOOTSTRAP', default: '1000', meaning: 'bootstrap resamples for the vertex interval' },
   { name: 'STEMWISE_SEED', default: '20261201', meaning: 'seed of the bootstrap, so reruns give the same intervals' },
 ];
+
+function parseTrustProxy(v: string): boolean | number | string[] {
+  if (v === 'false') return false;
+  if (v === 'true') return true;
+  if (/^\d+$/.test(v)) return Number(v);
+  return v.split(',');
+}
 
 /** Parses the environment once into a typed configuration; a bad value throws a ConfigError naming it. */
 export function loadConfig(env: Readonly<Record<string, string | undefined>> = process.env): Config {
@@ -140,6 +193,17 @@ export function loadConfig(env: Readonly<Record<string, string | undefined>> = p
     jobLockSeconds: e.STEMWISE_JOB_LOCK_SECONDS,
     host: e.STEMWISE_HOST,
     port: e.STEMWISE_PORT,
+    trustProxy: parseTrustProxy(e.STEMWISE_TRUST_PROXY),
+    requestTimeoutMs: e.STEMWISE_REQUEST_TIMEOUT_SECONDS * 1000,
+    idleTimeoutMs: e.STEMWISE_IDLE_TIMEOUT_SECONDS * 1000,
+    headersTimeoutMs: e.STEMWISE_HEADERS_TIMEOUT_SECONDS * 1000,
+    keepAliveMs: e.STEMWISE_KEEP_ALIVE_SECONDS * 1000,
+    maxUploadBytes: e.STEMWISE_MAX_UPLOAD_MB * 1024 ** 2,
+    maxUnpackedBytes: e.STEMWISE_MAX_UNPACKED_MB * 1024 ** 2,
+    maxConcurrentUploads: e.STEMWISE_MAX_CONCURRENT_UPLOADS,
+    rateLimitPerMinute: e.STEMWISE_RATE_LIMIT_PER_MINUTE,
+    authFailuresPerMinute: e.STEMWISE_AUTH_FAILURES_PER_MINUTE,
+    tokenCacheSize: e.STEMWISE_TOKEN_CACHE_SIZE,
     defaultWoodDensity: e.STEMWISE_DEFAULT_WOOD_DENSITY,
     minHeights: e.STEMWISE_MIN_HEIGHTS,
     samplingErrorT: e.STEMWISE_SAMPLING_ERROR_T,

@@ -4,7 +4,7 @@ import os from 'node:os';
 import path from 'node:path';
 import { promisify } from 'node:util';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { BullQueue, ConfigError, ServiceUnavailableError, createLogger, loadConfig, oneLine } from '@stemwise/platform';
+import { BullQueue, ConfigError, ServiceUnavailableError, SETTINGS, createLogger, loadConfig, oneLine } from '@stemwise/platform';
 import { envFor, useServices, type TestServices } from '../support/services';
 
 const run = promisify(execFile);
@@ -26,6 +26,20 @@ describe('configuration', () => {
     expect(c.databaseUrl).toBeUndefined();
     expect(c.forestTypes.map((t) => t.code)).toEqual(['wet', 'moist', 'dry']);
     expect(c.nightlyCron).toBe('0 2 * * *');
+  });
+  it('is listed in the README exactly as SETTINGS says (the table is written from it)', () => {
+    const readme = fs.readFileSync(path.resolve(__dirname, '../../README.md'), 'utf8');
+    const rows = [...readme.matchAll(/^\| `([A-Z_]+)` \| (.*) \| (.*) \|$/gm)].map((m) => ({ name: m[1], default: m[2], meaning: m[3] }));
+    expect(rows).toEqual(SETTINGS.map((s) => ({ ...s })));
+  });
+  it('reads the report service limits and the trusted proxy', () => {
+    const c = loadConfig({ STEMWISE_TRUST_PROXY: '10.0.0.1,10.1.0.0/16', STEMWISE_MAX_UNPACKED_MB: '3', STEMWISE_REQUEST_TIMEOUT_SECONDS: '2' });
+    expect(c.trustProxy).toEqual(['10.0.0.1', '10.1.0.0/16']);
+    expect(c.maxUnpackedBytes).toBe(3 * 1024 ** 2);
+    expect(c.requestTimeoutMs).toBe(2000);
+    expect(loadConfig({ STEMWISE_TRUST_PROXY: '1' }).trustProxy).toBe(1);
+    expect(loadConfig({}).trustProxy).toBe(false);
+    expect(() => loadConfig({ STEMWISE_TRUST_PROXY: 'everyone' })).toThrow(/^STEMWISE_TRUST_PROXY: /);
   });
   it('names the setting of a bad value', () => {
     expect(() => loadConfig({ STEMWISE_PORT: 'eighty' })).toThrow(ConfigError);

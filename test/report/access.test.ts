@@ -41,6 +41,7 @@ const DENIED_TOKENS = { none: 401, revoked: 401, garbage: 401 } as const;
 const PUBLIC = Object.fromEntries(WHO.map((w) => [w, 'ok'])) as Record<Who, Expect>;
 const REGION_N = { ...DENIED_TOKENS, admin: 'ok', uploader: 403, otherUploader: 403, readerN: 'ok', readerS: 403 } as const;
 const ANY_REGION_READER = { ...DENIED_TOKENS, admin: 'ok', uploader: 403, otherUploader: 403, readerN: 'ok', readerS: 'ok' } as const;
+const ADMIN_ONLY = { ...DENIED_TOKENS, admin: 'ok', uploader: 403, otherUploader: 403, readerN: 403, readerS: 403 } as const;
 const BATCH_OWNER = { ...DENIED_TOKENS, admin: 'ok', uploader: 'ok', otherUploader: 403, readerN: 403, readerS: 403 } as const;
 const SUBMIT = { ...DENIED_TOKENS, admin: 'ok', uploader: 'ok', otherUploader: 'ok', readerN: 403, readerS: 403 } as const;
 
@@ -55,6 +56,10 @@ const CASES: Case[] = [
   { method: 'GET', url: '/v1/regions/Northvale/summary?version=1', expect: REGION_N },
   { method: 'GET', url: '/v1/regions/Northvale/versions', expect: REGION_N },
   { method: 'GET', url: '/v1/regions/Northvale/plots', expect: REGION_N },
+  { method: 'GET', url: '/v1/national/summary', expect: ADMIN_ONLY },
+  { method: 'GET', url: '/v1/national/summary?format=csv', expect: ADMIN_ONLY },
+  { method: 'GET', url: '/v1/national/summary?version=1', expect: ADMIN_ONLY },
+  { method: 'GET', url: '/v1/national/versions', expect: ADMIN_ONLY },
   { method: 'GET', url: '/v1/fits', expect: ANY_REGION_READER },
   { method: 'GET', url: '/v1/fits?scope=Northvale', expect: REGION_N },
   { method: 'POST', url: '/v1/batches', expect: SUBMIT, ok: BATCH_OK },
@@ -62,11 +67,13 @@ const CASES: Case[] = [
   { method: 'GET', url: '/v1/batches/{batch}/errors.csv', expect: BATCH_OWNER, ok: BATCH_OK },
   { method: 'GET', url: '/', expect: ANY_REGION_READER },
   { method: 'GET', url: '/regions/Northvale', expect: REGION_N },
+  { method: 'GET', url: '/national', expect: ADMIN_ONLY },
 ];
 
 describe('access by role', () => {
   beforeAll(async () => {
-    s = await useServices();
+    // Every role meets every route from one address here: the failed-sign-in limit is tested in hardening.test.ts.
+    s = await useServices({ STEMWISE_AUTH_FAILURES_PER_MINUTE: '100000' });
     const deps: ServiceDeps = { config: s.config, db: s.db, log: testLogger(), queue: new InProcessQueue(testLogger()) };
     await seedScenario(s.db);
     await markStale(s.db, 'summary', ['Northvale', 'Southmere']);
@@ -116,6 +123,24 @@ describe('access by role', () => {
       ['Ostmark', null],
       ['Southmere', 1],
     ]);
+  });
+
+  it('never shows a reader the national figures (they mix regions it may not read); an admin sees them', async () => {
+    for (const who of ['readerN', 'readerS'] as const) {
+      const list = (await app.inject({ url: '/v1/regions', headers: headers(who) })).json() as Record<string, unknown>;
+      expect(list).not.toHaveProperty('national');
+      const index = await app.inject({ url: '/', headers: headers(who) });
+      expect(index.body).not.toContain('id="national"');
+      expect(index.body).not.toContain('/national');
+      const page = await app.inject({ url: '/national', headers: headers(who) });
+      expect(page.statusCode).toBe(403);
+      expect(page.body).not.toMatch(/All regions/);
+    }
+    const list = (await app.inject({ url: '/v1/regions', headers: headers('admin') })).json() as { national: { latest_version: number; links: { page: string } } };
+    expect(list.national).toMatchObject({ latest_version: 1, links: { page: '/national' } });
+    const index = await app.inject({ url: '/', headers: headers('admin') });
+    expect(index.body).toContain('id="national"');
+    expect(index.body).toContain('href="/national"');
   });
 
   it('answers 404 to an admin and 403 to a reader for a region that does not exist', async () => {

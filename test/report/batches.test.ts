@@ -8,13 +8,14 @@ import { listAuditEntries, type ServiceDeps } from '@stemwise/db';
 import { InProcessQueue } from '@stemwise/platform';
 import { buildServer } from '@stemwise/report';
 import { testLogger, useServices, type TestServices } from '../support/services';
+import { UPLOAD_PLOTS, UPLOAD_TREES_HEADER } from './fixture';
 import { createToken, type TestToken } from './tokens';
 
 // Uploads over HTTP: multipart to the ingest service's intake; the batch is stored and queued (the
 // ingest worker is not running here, so it stays `received`).
 
-const PLOTS = 'plot_id,region,forest_type,latitude,longitude,area_ha,survey_date,logging_class,fire_class\nTS-1,Northvale,wet,-12.1,34.2,0.5,2026-03-01,0,0\n';
-const TREES = 'plot_id,tree_id,species,dbh_cm,status\nTS-1,1,Arborea lucida,24.5,live\nTS-1,2,,12,live\n';
+const PLOTS = UPLOAD_PLOTS;
+const TREES = `${UPLOAD_TREES_HEADER}TS-1,1,Arborea lucida,24.5,live\nTS-1,2,,12,live\n`;
 
 let s: TestServices;
 let app: FastifyInstance;

@@ -35,7 +35,14 @@ describe('export regions and the static report', () => {
     const lines = fs.readFileSync(csvFile, 'utf8').trimEnd().split('\n');
     expect(lines[0]).toBe(COLUMNS);
     expect(all.rows).toBe(lines.length - 1);
-    expect(new Set(lines.slice(1).map((l) => l.split(',')[0]))).toEqual(new Set(['Northvale', 'Southmere'])); // Ostmark has no summary
+    const regionOf = lines.slice(1).map((l) => l.split(',')[0]);
+    expect(new Set(regionOf)).toEqual(new Set(['Northvale', 'Southmere', 'national'])); // Ostmark has no summary
+    // the national rows come last: `all` then each forest type, every default variable (13 × 4)
+    const first = regionOf.indexOf('national');
+    expect(regionOf.slice(first).every((r) => r === 'national')).toBe(true);
+    expect(regionOf.length - first).toBe(13 * 4);
+    // 12 plots of three regions with plot-count weights: ȳ = 18.5 (by hand, see summaries.test.ts), no total
+    expect(lines.filter((l) => /^national,all,basal_area_m2_ha,12,18\.5,[^,]+,[^,]+,[^,]+,[^,]+,,$/.test(l))).toHaveLength(1);
     // mean 21 and SE √3.25 (computed by hand, see summaries.test.ts) in shortest round-trip form
     expect(lines.filter((l) => l.startsWith('Northvale,all,basal_area_m2_ha,5,21,1.8027756377319946,'))).toHaveLength(1);
 
@@ -46,6 +53,11 @@ describe('export regions and the static report', () => {
     expect(Object.keys(rows[0]).join(',')).toBe(COLUMNS);
     expect(rows.every((r) => r.region === 'Southmere')).toBe(true);
     expect(rows.find((r) => r.forest_type === 'all' && r.variable === 'basal_area_m2_ha')).toMatchObject({ mean: 14, total: null, forest_area_ha: null });
+    const nationalFile = path.join(out, 'national.json');
+    const nat = await exportRegions(deps, { format: 'json', region: 'national' }, { file: nationalFile });
+    const natRows = JSON.parse(fs.readFileSync(nationalFile, 'utf8')) as Array<Record<string, unknown>>;
+    expect(natRows).toHaveLength(nat.rows);
+    expect(natRows.map((r) => `${r.region}/${r.forest_type}`).filter((k, i, a) => a.indexOf(k) === i)).toEqual(['national/all', 'national/dry', 'national/moist', 'national/wet']);
     await expect(exportRegions(deps, { format: 'csv', region: 'Atlantis' }, { file: path.join(out, 'x.csv') })).rejects.toThrow(/no region named 'Atlantis'/);
   });
 
@@ -84,5 +96,27 @@ describe('export regions and the static report', () => {
     expect(page).toContain('licensed foresters');
     expect(fs.readFileSync(path.join(dir, 'regions', 'northvale-summary.csv'), 'utf8').split('\n')[0]).toBe(COLUMNS);
     expect(JSON.parse(fs.readFileSync(path.join(dir, 'regions', 'northvale-plots.geojson'), 'utf8')).features).toHaveLength(5);
+    expect(page).toContain('Uses the latest visit of each plot, surveyed 2025–2026.');
+  });
+
+  it('writes the national page with its figures, the visits it uses and its downloads, linked from the index', async () => {
+    const dir = path.join(out, 'report-national');
+    const written = await writeRegionPages(deps, dir);
+    expect(written.national).toBe(path.join(dir, 'national.html'));
+    const index = fs.readFileSync(path.join(dir, 'index.html'), 'utf8');
+    expect(index).toContain('href="national.html"');
+    expect(index).toMatch(/<tr data-variable="basal_area_m2_ha"><td>Basal area[^]*?<td class="num">18\.5<\/td>/);
+    const page = fs.readFileSync(written.national!, 'utf8');
+    expect(page).toContain('<h1>National figures</h1>');
+    expect(page).toContain('Uses the latest visit of each plot, surveyed 2025–2026.');
+    expect(page).toContain('All regions (stratified by region × forest type)');
+    expect(page).toMatch(/<div class="card" data-variable="basal_area_m2_ha">[^]*?<div class="value">18\.5 /);
+    expect(page).toContain('licensed foresters');
+    expect(page).not.toMatch(/<script/i);
+    for (const link of ['index.html', 'national-summary.csv', 'national-summary.json']) {
+      expect(page).toContain(`href="${link}"`);
+      expect(fs.existsSync(path.join(dir, link))).toBe(true);
+    }
+    expect(fs.readFileSync(path.join(dir, 'national-summary.csv'), 'utf8').split('\n')[0]).toBe(COLUMNS);
   });
 });

@@ -5,6 +5,10 @@ import { InProcessQueue, type JobContext, type Logger } from '@stemwise/platform
 // Plots, metrics, strata and species inserted directly with SQL (no ingest, no compute), in an
 // invented scenario: the country of Tessaly, its regions and made-up tree species.
 
+/** A one-plot upload (plots.csv) and the header of its trees.csv, for the tests that upload over HTTP. */
+export const UPLOAD_PLOTS = 'plot_id,region,forest_type,latitude,longitude,area_ha,survey_date,logging_class,fire_class\nTS-1,Northvale,wet,-12.1,34.2,0.5,2026-03-01,0,0\n';
+export const UPLOAD_TREES_HEADER = 'plot_id,tree_id,species,dbh_cm,status\n';
+
 export interface FixturePlot {
   key: string;
   region: string;

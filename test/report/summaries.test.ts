@@ -1,12 +1,13 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import tQuantile from '@stdlib/stats-base-dists-t-quantile';
-import { getSummarySnapshot, listStale, listSummaryVersions, markStale, type ServiceDeps } from '@stemwise/db';
+import { getNationalSnapshot, getSummarySnapshot, listNationalVersions, listStale, listSummaryVersions, markStale, type ServiceDeps } from '@stemwise/db';
 import { InProcessQueue } from '@stemwise/platform';
 import { createProcessors } from '@stemwise/report';
+import type { NationalPayload } from '../../services/report/src/national-snapshot';
 import type { SnapshotPayload } from '../../services/report/src/snapshot-payload';
 import type { RegionRow } from '../../services/report/src/summary/types';
 import { testLogger, useServices, type TestServices } from '../support/services';
-import { jobContext, seedRun } from './fixture';
+import { jobContext, seedPlots, seedRun } from './fixture';
 import { seedScenario } from './seed-scenario';
 
 // The report.summaries job end to end: plots and forest areas inserted with SQL, the job run, the
@@ -17,7 +18,7 @@ const rel = 1e-9; // hand computations are exact rationals; floating point only
 let s: TestServices;
 let deps: ServiceDeps;
 
-function row(p: SnapshotPayload, forestType: string, variable: string): RegionRow {
+function row(p: SnapshotPayload | NationalPayload, forestType: string, variable: string): RegionRow {
   const r = p.summary.rows.find((x) => x.forest_type === forestType && x.variable === variable);
   if (!r) throw new Error(`no row ${forestType} ${variable}`);
   return r;
@@ -145,10 +146,30 @@ describe('report.summaries', () => {
     expect(payload.method.carbon_fraction).toBe(0.47);
   });
 
+  it('stores the national summary in the same job: every region by region × forest type (hand computation)', async () => {
+    const national = await getNationalSnapshot(s.db);
+    expect(national?.version).toBe(1);
+    const p = national!.payload as NationalPayload;
+    expect(p.sources).toEqual({ Northvale: 1, Ostmark: null, Southmere: 1 });
+    expect(p.data).toEqual({ plots: 12, regions: 3, first_survey: '2025-10-01', last_survey: '2026-03-01' });
+    // Southmere and Ostmark have no forest areas: plot-count weights W_h = n_h/n over the four strata
+    // Northvale/wet 20 24 28 (ȳ 24, s² 16), Northvale/dry 10 14 (12, 8), Southmere/moist 10…18 (14, 10),
+    // Ostmark/wet 30 26 (28, 8): ȳ = (3·24 + 2·12 + 5·14 + 2·28)/12 = 18.5;
+    // v = (3/12)²·16/3 + (2/12)²·8/2 + (5/12)²·10/5 + (2/12)²·8/2 = (48 + 16 + 50 + 16)/144 = 65/72 (by hand)
+    expect(p.summary.weighting).toBe('plot_count');
+    const all = row(p, 'all', 'basal_area_m2_ha');
+    expect(all).toMatchObject({ region: 'national', n_plots: 12, total: null });
+    expect(all.mean).toBeCloseTo(18.5, 12);
+    expect(all.se! / Math.sqrt(65 / 72)).toBeCloseTo(1, 12);
+    // wet nationally: Northvale/wet and Ostmark/wet, W = 3/5, 2/5: ȳ = (72 + 56)/5 = 25.6 (by hand)
+    expect(row(p, 'wet', 'basal_area_m2_ha').mean).toBeCloseTo(25.6, 12);
+  });
+
   it('is idempotent: with nothing stale it only finishes the run', async () => {
     await firstRun();
     const { runId } = await runSummaries();
     expect((await listSummaryVersions(s.db, 'Northvale')).map((v) => v.version)).toEqual([1]);
+    expect((await listNationalVersions(s.db)).map((v) => v.version)).toEqual([1]);
     const [run] = await s.db.query<{ state: string }>(`select state from recompute_runs where id = $1`, [runId]);
     expect(run.state).toBe('done');
   });
@@ -170,11 +191,26 @@ describe('report.summaries', () => {
     expect(row(after.payload, 'wet', 'basal_area_m2_ha').mean).toBeCloseTo(76 / 3, 12);
     const v1 = await getSummarySnapshot(s.db, 'Northvale', 1);
     expect(row(v1!.payload as SnapshotPayload, 'wet', 'basal_area_m2_ha').mean).toBe(24);
+    // a region stale → the national summary is assembled again: NV-W3 28 → 32 gives ȳ = 226/12 (by hand)
+    const national = await getNationalSnapshot(s.db);
+    expect(national?.version).toBe(2);
+    expect((national!.payload as NationalPayload).sources.Northvale).toBe(2);
+    expect(row(national!.payload as NationalPayload, 'all', 'basal_area_m2_ha').mean).toBeCloseTo(226 / 12, 12);
   });
 
   it('unmarks a region that no longer exists instead of failing', async () => {
     await markStale(s.db, 'summary', ['Atlantis']);
     await runSummaries();
     expect(await listStale(s.db, 'summary')).toEqual([]);
+  });
+
+  it('fails the run, naming the cause, when a region called national was stored before the name was reserved', async () => {
+    await seedPlots(s.db, [{ key: 'NA-1', region: 'national', forestType: 'dry', metrics: { basal_area_m2_ha: 9 } }]);
+    await markStale(s.db, 'summary', ['national']);
+    const runId = await seedRun(s.db);
+    await expect(createProcessors(deps)['report.summaries']!({ runId }, jobContext(testLogger()))).rejects.toThrow(/national.*may not be named 'national'/);
+    const [run] = await s.db.query<{ state: string }>(`select state from recompute_runs where id = $1`, [runId]);
+    expect(run.state).toBe('failed');
+    expect((await listNationalVersions(s.db)).map((v) => v.version)).toEqual([2, 1]); // no new version: the last good one stays
   });
 });

@@ -32,3 +32,19 @@ export const regionSummaries = pgTable(
   },
   (t) => [unique('region_summaries_version_uq').on(t.regionId, t.version)],
 );
+
+/**
+ * The national summary (all regions, stratified by region × forest type) as assembled by the same
+ * report job as the region summaries; versioned like them, never updated.
+ */
+export const nationalSummaries = pgTable(
+  'national_summaries',
+  {
+    id: integer('id').primaryKey().generatedAlwaysAsIdentity(),
+    version: integer('version').notNull(),
+    etag: text('etag').notNull(),
+    payload: jsonb('payload').notNull(),
+    createdAt: timestamp('created_at', { withTimezone: true }).notNull().defaultNow(),
+  },
+  (t) => [unique('national_summaries_version_uq').on(t.version)],
+);

@@ -1,7 +1,7 @@
 import crypto from 'node:crypto';
 import fs from 'node:fs';
 import path from 'node:path';
-import { Readable, Transform } from 'node:stream';
+import { Readable, Transform, Writable } from 'node:stream';
 import { pipeline } from 'node:stream/promises';
 import { createGunzip } from 'node:zlib';
 import type { BatchFile } from '@stemwise/db';
@@ -13,6 +13,11 @@ export interface SubmittedFile {
   name: string;
   /** A path to read, or the upload stream itself. */
   source: string | Readable;
+  /**
+   * `source` is a file the service spooled itself on the storage folder's file system (an HTTP upload):
+   * it is moved into the batch folder instead of copied, so an upload is written to disk once.
+   */
+  move?: boolean;
 }
 
 export interface StoredFile extends BatchFile {
@@ -32,10 +37,12 @@ async function fsyncPath(p: string): Promise<void> {
 }
 
 /**
- * Copies one upload into the batch folder durably (temporary name, fsync, rename) while hashing it:
- * the hash is over the decompressed text, so the same data uploaded plain or gzipped is one content.
+ * Copies (or, with `move`, moves) one upload into the batch folder durably (temporary name, fsync,
+ * rename) while hashing it: the hash is over the decompressed text, so the same data uploaded plain or
+ * gzipped is one content. A gzip file that expands past `maxUnpackedBytes` is hashed as raw bytes
+ * (decompression stops there; the ingest refuses the file with its own rule).
  */
-export async function storeFile(dir: string, file: SubmittedFile): Promise<StoredFile> {
+export async function storeFile(dir: string, file: SubmittedFile, maxUnpackedBytes = Infinity): Promise<StoredFile> {
   const part = path.join(dir, `${file.kind}.part`);
   const raw = crypto.createHash('sha256');
   const plain = crypto.createHash('sha256');
@@ -44,19 +51,27 @@ export async function storeFile(dir: string, file: SubmittedFile): Promise<Store
   let gunzip: ReturnType<typeof createGunzip> | null = null;
   let gunzipFailed = false;
   let gunzipDone: Promise<void> = Promise.resolve();
+  let unpacked = 0;
   const tap = new Transform({
     transform(chunk: Buffer, _enc, cb) {
       if (head === null) {
         head = chunk.subarray(0, 2);
         if (head.length === 2 && head[0] === 0x1f && head[1] === 0x8b) {
-          gunzip = createGunzip();
-          gunzip.on('data', (d: Buffer) => plain.update(d));
+          const g = createGunzip();
+          gunzip = g;
           gunzipDone = new Promise((resolve) => {
-            gunzip!.on('end', resolve);
-            gunzip!.on('error', () => {
+            const stop = () => {
               gunzipFailed = true;
               resolve();
+            };
+            g.on('data', (d: Buffer) => {
+              unpacked += d.length;
+              if (unpacked <= maxUnpackedBytes) return void plain.update(d);
+              stop();
+              g.destroy();
             });
+            g.on('end', resolve);
+            g.on('error', stop);
           });
         }
       }
@@ -67,17 +82,20 @@ export async function storeFile(dir: string, file: SubmittedFile): Promise<Store
       cb(null, chunk);
     },
     flush(cb) {
-      (gunzip as ReturnType<typeof createGunzip> | null)?.end();
+      if (!gunzipFailed) (gunzip as ReturnType<typeof createGunzip> | null)?.end();
       cb();
     },
   });
   const source = typeof file.source === 'string' ? fs.createReadStream(file.source) : file.source;
-  await pipeline(source, tap, fs.createWriteStream(part));
+  const moving = file.move === true && typeof file.source === 'string';
+  const discard = new Writable({ write: (_chunk, _enc, cb) => cb() });
+  await pipeline(source, tap, moving ? discard : fs.createWriteStream(part));
   await gunzipDone;
-  await fsyncPath(part);
+  const from = moving ? (file.source as string) : part;
+  await fsyncPath(from);
   const gzip = gunzip !== null;
   const stored = `${file.kind}.csv${gzip ? '.gz' : ''}`;
-  await fs.promises.rename(part, path.join(dir, stored));
+  await fs.promises.rename(from, path.join(dir, stored));
   return {
     kind: file.kind,
     name: file.name,

@@ -58,7 +58,7 @@ export async function submitBatch(deps: ServiceDeps, files: readonly SubmittedFi
   let keep = false;
   try {
     const stored = [];
-    for (const f of files) stored.push(await storeFile(dir, f));
+    for (const f of files) stored.push(await storeFile(dir, f, deps.config.maxUnpackedBytes));
     await syncDir(dir);
     const contentHash = batchContentHash(stored);
     const bytesTotal = stored.reduce((a, f) => a + f.bytes, 0);

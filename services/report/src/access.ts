@@ -8,7 +8,9 @@ import { findAccessTokenByHash, findAccessTokensByHashes, type Queryable, type T
 //              should read summaries.
 //  - reader:   the regions named on the token only: their summaries, plots, pages and region-scope
 //              fits, plus the forest-type-wide fits (scope `all`, national science that names no
-//              region). Another region answers 403 and never appears in a list.
+//              region). Another region answers 403 and never appears in a list. The national
+//              figures (all regions together) answer 403 and are not listed: they mix regions
+//              the reader may not read.
 // A token is `swt_` + 32 random bytes (base64url); only its SHA-256 hash is stored.
 
 export const TOKEN_ROLES = ['admin', 'uploader', 'reader'] as const satisfies readonly TokenRole[];
@@ -37,6 +39,14 @@ export function looksLikeToken(token: string): boolean {
   return TOKEN_PATTERN.test(token);
 }
 
+/**
+ * The national figures mix every region, so only a token that may read every region sees them: an
+ * admin. Readers are always limited to named regions (a reader token needs --region) and never do.
+ */
+export function canSeeNational(p: Principal): boolean {
+  return p.role === 'admin';
+}
+
 export function canSeeRegion(p: Principal, region: string): boolean {
   return p.role === 'admin' || (p.role === 'reader' && p.regions.includes(region));
 }
@@ -61,6 +71,7 @@ const STALE_IF_ERROR_MS = 60_000;
 export type Verification = { ok: true; principal: Principal } | { ok: false; reason: 'unknown' | 'revoked' | 'malformed'; tokenId?: string };
 
 type Row = Awaited<ReturnType<typeof findAccessTokenByHash>>;
+type CacheEntry = { hash: string; at: number; result: Verification };
 
 function verdict(row: Row): Verification {
   if (!row) return { ok: false, reason: 'unknown' };
@@ -75,7 +86,7 @@ function verdict(row: Row): Verification {
  * revocation still takes effect within about a second.
  */
 export class TokenVerifier {
-  private readonly cache = new Map<string, { hash: string; at: number; result: Verification }>();
+  private readonly cache = new Map<string, CacheEntry>();
   private timer: NodeJS.Timeout | null = null;
   private refreshing: Promise<void> | null = null;
 
@@ -106,9 +117,28 @@ export class TokenVerifier {
       if (!entries.length) return;
       const at = Date.now();
       const rows = await findAccessTokensByHashes(this.db, entries.map(([, e]) => e.hash));
-      for (const [token, e] of entries) this.cache.set(token, { hash: e.hash, at, result: verdict(rows.get(e.hash) ?? null) });
+      // Updated in place (no change of recency); an entry evicted meanwhile stays out.
+      for (const [token, e] of entries) if (this.cache.has(token)) this.cache.set(token, { hash: e.hash, at, result: verdict(rows.get(e.hash) ?? null) });
     })().finally(() => (this.refreshing = null));
     return this.refreshing;
+  }
+
+  // A Map keeps insertion order: re-inserting on each use keeps the least recently used first, so
+  // dropping the first key on overflow is an LRU (a flood of unknown tokens evicts only cold entries).
+  private touch(token: string, entry: CacheEntry): void {
+    this.cache.delete(token);
+    this.cache.set(token, entry);
+  }
+
+  private remember(token: string, entry: CacheEntry): void {
+    this.cache.delete(token);
+    while (this.cache.size >= this.maxEntries) this.cache.delete(this.cache.keys().next().value as string);
+    this.cache.set(token, entry);
+  }
+
+  /** Tokens remembered, least recently used first (for tests and diagnostics). */
+  cachedTokens(): string[] {
+    return [...this.cache.keys()];
   }
 
   // Keyed by the token as presented (it is in memory for the request anyway): a hit costs no hashing.
@@ -116,6 +146,7 @@ export class TokenVerifier {
     if (!looksLikeToken(token)) return { ok: false, reason: 'malformed' };
     const now = Date.now();
     const hit = this.cache.get(token);
+    if (hit) this.touch(token, hit);
     if (hit && now - hit.at < this.ttlMs) return hit.result;
     const hash = hit?.hash ?? hashToken(token);
     let row: Row;
@@ -127,10 +158,7 @@ export class TokenVerifier {
       throw err;
     }
     const result = verdict(row);
-    if (this.ttlMs > 0) {
-      if (this.cache.size >= this.maxEntries) this.cache.clear();
-      this.cache.set(token, { hash, at: now, result });
-    }
+    if (this.ttlMs > 0) this.remember(token, { hash, at: now, result });
     return result;
   }
 }

@@ -3,4 +3,5 @@ export { buildServer, startReportServer, type ReportServerOptions } from './serv
 export { writeRegionPages } from './static-pages';
 export { exportRegions, listRegionExportRows, type ExportRegionsOptions } from './export-regions';
 export { assembleRegionSnapshot, refreshStaleSummaries } from './snapshots';
-export { newToken, hashToken, TOKEN_ROLES, type Principal } from './access';
+export { newToken, hashToken, TOKEN_ROLES, TokenVerifier, type Principal } from './access';
+export { AuditWriter } from './audit';

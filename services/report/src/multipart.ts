@@ -61,7 +61,31 @@ function parseHeaders(text: string): { name: string; filename: string | null } {
   return { name, filename };
 }
 
-type Sink = { kind: 'file'; file: MultipartFile; stream: fs.WriteStream } | { kind: 'text'; name: string; chunks: Buffer[]; bytes: number };
+type Sink = { kind: 'file'; file: MultipartFile; stream: fs.WriteStream; failed: Error | null } | { kind: 'text'; name: string; chunks: Buffer[]; bytes: number };
+
+/** Opens a spool file whose errors are kept on the sink (an 'error' event without a listener would end the process). */
+function fileSink(file: MultipartFile): Sink {
+  const sink: Sink = { kind: 'file', file, stream: fs.createWriteStream(file.path), failed: null };
+  sink.stream.on('error', (err) => (sink.failed ??= err));
+  return sink;
+}
+
+/** Waits for 'drain' or 'finish' of a spool file, or rejects with its error. */
+function settle(sink: Extract<Sink, { kind: 'file' }>, event: 'drain' | 'finish'): Promise<void> {
+  if (sink.failed) return Promise.reject(sink.failed);
+  return new Promise((resolve, reject) => {
+    const done = () => {
+      sink.stream.off('error', fail);
+      resolve();
+    };
+    const fail = (err: Error) => {
+      sink.stream.off(event, done);
+      reject(err);
+    };
+    sink.stream.once(event, done);
+    sink.stream.once('error', fail);
+  });
+}
 
 /**
  * Reads a multipart body from `body`, writing file parts into `dir` (created; named after their field).
@@ -83,8 +107,9 @@ export async function readMultipart(body: AsyncIterable<Buffer>, boundary: strin
   const write = async (data: Buffer) => {
     if (!data.length || !sink) return;
     if (sink.kind === 'file') {
+      if (sink.failed) throw sink.failed;
       sink.file.bytes += data.length;
-      if (!sink.stream.write(data)) await once(sink.stream, 'drain');
+      if (!sink.stream.write(data)) await settle(sink, 'drain');
     } else {
       sink.bytes += data.length;
       if (sink.bytes > maxText) throw new MultipartError(`field ${sink.name} is longer than ${maxText} bytes`, 413);
@@ -94,8 +119,9 @@ export async function readMultipart(body: AsyncIterable<Buffer>, boundary: strin
   const closeSink = async () => {
     if (!sink) return;
     if (sink.kind === 'file') {
+      const done = settle(sink, 'finish');
       sink.stream.end();
-      await once(sink.stream, 'finish');
+      await done;
       result.files.push(sink.file);
     } else {
       result.fields[sink.name] = Buffer.concat(sink.chunks).toString('utf8');
@@ -108,7 +134,7 @@ export async function readMultipart(body: AsyncIterable<Buffer>, boundary: strin
     if (filename !== null) {
       if (!limits.fileFields.includes(name)) throw new MultipartError(`unexpected file part ${name} (expected ${limits.fileFields.join(', ')})`);
       const file: MultipartFile = { field: name, filename: path.basename(filename.replace(/\\/g, '/')) || name, path: path.join(dir, `${name}.upload`), bytes: 0 };
-      sink = { kind: 'file', file, stream: fs.createWriteStream(file.path) };
+      sink = fileSink(file);
     } else {
       if (!limits.textFields.includes(name)) throw new MultipartError(`unexpected field ${name} (files are sent with a filename; fields: ${limits.textFields.join(', ') || 'none'})`);
       sink = { kind: 'text', name, chunks: [], bytes: 0 };
@@ -172,8 +198,13 @@ export async function readMultipart(body: AsyncIterable<Buffer>, boundary: strin
     if (state !== 'done') throw new MultipartError('the upload ended before its closing boundary (interrupted?)');
     return result;
   } catch (err) {
+    // Close the spool file before the caller removes the folder (a pending write fails quietly).
     const s = sink as Sink | null;
-    if (s?.kind === 'file') s.stream.destroy();
+    if (s?.kind === 'file' && !s.stream.closed) {
+      const closed = once(s.stream, 'close').catch(() => {});
+      s.stream.destroy();
+      await closed;
+    }
     throw err;
   }
 }

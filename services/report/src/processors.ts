@@ -1,6 +1,8 @@
 import { failRecomputeRun, finishRecomputeRun, mergeRunDetails, type ServiceDeps } from '@stemwise/db';
 import { parsePayload, PermanentError, type ProcessorMap } from '@stemwise/platform';
 import { queueFollowUp } from '@stemwise/compute/maintenance/follow-up';
+import { refreshNationalSummary } from './national-snapshot';
+import { RegionSummaryInputError } from './summary/input';
 import { refreshStaleSummaries } from './snapshots';
 
 /** Advisory lock key: one summaries job at a time across all report workers (they write versions). */
@@ -16,11 +18,23 @@ export function createProcessors(deps: ServiceDeps): ProcessorMap {
     'report.summaries': async (data, ctx) => {
       const { runId } = parsePayload('report.summaries', data);
       const { db } = deps;
-      const result = await db.withLock(SUMMARIES_LOCK, () => refreshStaleSummaries({ db, config: deps.config, log: ctx.log }));
+      const result = await db.withLock(SUMMARIES_LOCK, async () => {
+        const regions = await refreshStaleSummaries({ db, config: deps.config, log: ctx.log });
+        // The national summary mixes every region: only once they all went through, else it stays stale.
+        if (regions.rejected.length) return { ...regions, national: null };
+        try {
+          return { ...regions, national: await refreshNationalSummary({ db, config: deps.config, log: ctx.log }) };
+        } catch (err) {
+          if (!(err instanceof RegionSummaryInputError)) throw err;
+          ctx.log.error({ err }, 'national summary rejected its input');
+          return { ...regions, national: null, rejected: [{ region: 'national', reason: err.message }] };
+        }
+      });
       const details = {
         summaries: {
           regions: result.regions.length,
           versions_created: result.regions.filter((r) => r.created).length,
+          national: result.national,
           rejected: result.rejected,
         },
       };

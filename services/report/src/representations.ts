@@ -1,5 +1,6 @@
 import { csvHeader, csvLine, type Row } from '@stemwise/platform';
 import { REGION_COLUMNS } from './summary/types';
+import type { NationalSnapshot } from './national-snapshot';
 import type { Snapshot } from './snapshot-payload';
 
 // The forms a snapshot is served in: JSON (everything but the chart SVGs) and CSV (the `export
@@ -20,8 +21,14 @@ export function summaryJson(s: Snapshot): string {
 }
 
 /** The `export regions` rows of a snapshot as CSV (spec columns, safe for spreadsheets). */
-export function summaryCsv(s: Snapshot): string {
+export function summaryCsv(s: Snapshot | NationalSnapshot): string {
   let out = csvHeader(REGION_COLUMNS);
   for (const row of s.payload.summary.rows) out += csvLine(REGION_COLUMNS, row as unknown as Row);
   return out;
+}
+
+/** The national snapshot as JSON (everything but the chart SVG). */
+export function nationalJson(s: NationalSnapshot): string {
+  const { data, method, summary, sources } = s.payload;
+  return JSON.stringify({ region: 'national', version: s.version, created_at: s.createdAt.toISOString(), etag: s.etag, data, method, summary, sources });
 }

@@ -145,7 +145,7 @@ export async function assembleRegionSnapshot(deps: Deps, region: string, curves:
 }
 
 /** The ETag of a payload: SHA-256 of its JSON text (the payload holds no clock, so equal content gives an equal tag). */
-export function payloadEtag(payload: SnapshotPayload): string {
+export function payloadEtag(payload: object): string {
   return crypto.createHash('sha256').update(JSON.stringify(payload)).digest('base64url').slice(0, 32);
 }
 

@@ -1,12 +1,14 @@
 import crypto from 'node:crypto';
 import fs from 'node:fs';
 import path from 'node:path';
-import { listLatestSnapshots, listRegionHeads, listSummaryVersions, type ServiceDeps } from '@stemwise/db';
+import { listLatestSnapshots, listNationalVersions, listRegionHeads, listSummaryVersions, type ServiceDeps } from '@stemwise/db';
 import { IPCC_2006_CARBON_FRACTION } from '@stemwise/compute/science/allometry';
+import { readNationalSnapshot } from './national-snapshot';
 import { renderIndexPage } from './page/index-page';
+import { renderNationalPage } from './page/national-page';
 import { renderRegionPage } from './page/region-page';
 import { regionPlotsGeoJson } from './plots-geojson';
-import { summaryCsv, summaryJson } from './representations';
+import { nationalJson, summaryCsv, summaryJson } from './representations';
 import type { Snapshot, SnapshotPayload } from './snapshot-payload';
 
 /** A file-name-safe, unique-enough name for a region (names may hold any character). */
@@ -24,13 +26,16 @@ export function regionSlug(region: string): string {
 
 export interface WrittenPages {
   index: string;
+  /** national.html, when a national summary exists. */
+  national: string | null;
   regions: Array<{ region: string; version: number; page: string }>;
   files: string[];
 }
 
 /**
  * The report as files (what `stemwise demo` leaves behind): index.html, and per region with a summary
- * regions/<slug>.html with its summary CSV and JSON and its plots GeoJSON beside it. Links are relative,
+ * regions/<slug>.html with its summary CSV and JSON and its plots GeoJSON beside it, and national.html
+ * with national-summary.csv and .json when the national summary exists. Links are relative,
  * so the folder can be opened from disk or copied anywhere. Covers every region (no token applies).
  */
 export async function writeRegionPages(deps: Pick<ServiceDeps, 'db'>, outDir: string): Promise<WrittenPages> {
@@ -78,7 +83,16 @@ export async function writeRegionPages(deps: Pick<ServiceDeps, 'db'>, outDir: st
     updatedAt: h.head?.createdAt ?? null,
     href: slugs.has(h.region) ? `regions/${slugs.get(h.region)}.html` : null,
   }));
+  const national = await readNationalSnapshot(db);
+  let nationalPage: string | null = null;
+  if (national) {
+    write(path.join(outDir, 'national-summary.csv'), summaryCsv(national));
+    write(path.join(outDir, 'national-summary.json'), nationalJson(national));
+    nationalPage = path.join(outDir, 'national.html');
+    const links = { index: 'index.html', summaryJson: 'national-summary.json', summaryCsv: 'national-summary.csv', versionPage: null, signOut: null };
+    write(nationalPage, renderNationalPage({ snapshot: national, carbonFraction: IPCC_2006_CARBON_FRACTION, versions: await listNationalVersions(db), links }));
+  }
   const index = path.join(outDir, 'index.html');
-  write(index, renderIndexPage(entries, { carbonFraction: IPCC_2006_CARBON_FRACTION, signOut: null }));
-  return { index, regions: written, files };
+  write(index, renderIndexPage(entries, { carbonFraction: IPCC_2006_CARBON_FRACTION, signOut: null, national: national && { snapshot: national, href: 'national.html' } }));
+  return { index, national: nationalPage, regions: written, files };
 }

@@ -4,7 +4,7 @@ import { PLOT_METRIC_COLUMNS } from '../science/plot-metrics';
 import { encodeFeatureCollection, encodeTable, type Row } from '@stemwise/platform';
 import { writeExport, type ExportTarget } from './sink';
 
-/** The columns of `export plots`, in the order of shared/spec/outputs.md. */
+/** The columns of `export plots`, in the order of docs/exports.md. */
 export const PLOT_EXPORT_COLUMNS: readonly string[] = ['plot_id', 'survey_date', 'region', 'forest_type', ...PLOT_METRIC_COLUMNS.map((c) => c.column)];
 
 export const PLOT_EXPORT_FORMATS = ['csv', 'json', 'geojson'] as const;

@@ -32,9 +32,10 @@ function countNewlines(buf: Uint8Array, end: number): number {
 /**
  * The text of a stored upload file as UTF-8 string chunks (a BOM dropped), decompressed when `gzip`.
  * `onBytes` gets the count of stored (possibly compressed) bytes read, for progress. Throws a
- * FileProblem for a damaged gzip file or text that is not UTF-8, naming the line.
+ * FileProblem for a damaged gzip file, one that expands past `maxUnpackedBytes` (a few KB of gzip can
+ * hold gigabytes), or text that is not UTF-8, naming the line.
  */
-export async function* textChunks(filePath: string, gzip: boolean, onBytes: (n: number) => void): AsyncGenerator<string> {
+export async function* textChunks(filePath: string, gzip: boolean, onBytes: (n: number) => void, maxUnpackedBytes = Infinity): AsyncGenerator<string> {
   const raw = fs.createReadStream(filePath, { highWaterMark: 64 * 1024 });
   raw.on('data', (b) => onBytes(b.length));
   const source: AsyncIterable<Buffer> = gzip ? raw.pipe(createGunzip({ chunkSize: 64 * 1024 })) : raw;
@@ -42,8 +43,13 @@ export async function* textChunks(filePath: string, gzip: boolean, onBytes: (n: 
   const decoder = new TextDecoder('utf-8', { fatal: true });
   let first = true;
   let newlines = 0;
+  let unpacked = 0;
   try {
     for await (const buf of source) {
+      unpacked += buf.length;
+      if (gzip && unpacked > maxUnpackedBytes) {
+        throw new FileProblem(STRUCTURE.unpackedTooLarge, null, structureMessages.unpackedTooLarge(fileLabel(filePath), maxUnpackedBytes));
+      }
       if (first && buf.length >= 2 && ((buf[0] === 0xff && buf[1] === 0xfe) || (buf[0] === 0xfe && buf[1] === 0xff))) {
         throw new FileProblem(STRUCTURE.encoding, 1, structureMessages.utf16());
       }

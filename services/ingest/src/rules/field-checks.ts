@@ -20,6 +20,9 @@ export interface FieldCheckOptions {
   today: string;
 }
 
+/** The `region` of the national rows of `export regions`; refused as a region name (any case). */
+export const RESERVED_REGION = 'national';
+
 const NUMBER = /^[+-]?(?:\d+(?:\.\d*)?|\.\d+)(?:[eE][+-]?\d{1,3})?$/;
 const INTEGER = /^[+-]?\d+$/;
 const DATE = /^(\d{4})-(\d{2})-(\d{2})$/;
@@ -57,6 +60,7 @@ export function compileFieldCheck(c: ColumnSpec, o: FieldCheckOptions): FieldChe
   switch (c.kind) {
     case 'text': {
       const isForestType = c.name === 'forest_type';
+      const isRegion = c.name === 'region';
       const known = new Set(o.forestTypes);
       return (raw, line) => {
         if (raw === undefined) return INVALID;
@@ -68,6 +72,11 @@ export function compileFieldCheck(c: ColumnSpec, o: FieldCheckOptions): FieldChe
         }
         if (c.chars && !c.chars.test(v)) {
           log.add(FIELD.badCharacters, file, line, c.name, v, `${c.name} ${shown(v)} may only contain ${c.charsHint}`);
+          return INVALID;
+        }
+        // The exports name all regions together `national` (docs/exports.md): a real region of that name would be mistaken for them.
+        if (isRegion && v.toLowerCase() === RESERVED_REGION) {
+          log.add(FIELD.reservedRegion, file, line, c.name, v, `region ${shown(v)} is reserved: exports and reports name all regions together "${RESERVED_REGION}"; give the region another name`);
           return INVALID;
         }
         if (isForestType && !known.has(v)) {

@@ -14,5 +14,12 @@ export const FIELD = {
   tooLong: defineRule('field', 'field_too_long', 'error', 'A text value is longer than the column allows.'),
   badCharacters: defineRule('field', 'field_bad_characters', 'error', 'A key holds characters other than A-Z a-z 0-9 _ . -.'),
   unknownForestType: defineRule('field', 'field_unknown_forest_type', 'error', 'A forest type code is not in the configured list.'),
+  reservedRegion: defineRule('field', 'field_reserved_region', 'error', 'A region is named "national", the name the exports give to all regions together.'),
   speciesNameForm: defineRule('field', 'field_species_name_form', 'error', 'An accepted name in species.csv is not written "Genus epithet".'),
+  nulCharacter: defineRule('field', 'field_nul_character', 'error', 'A value holds a NUL character (byte 0x00), which no text column of the database can store.'),
 } as const;
+
+export const fieldMessages = {
+  nulCharacter: (column: string | null) =>
+    `${column ?? 'a header name'} holds a NUL character (byte 0x00), which cannot be stored; the file may be damaged or written by a program that pads with zero bytes — remove them and upload again`,
+};

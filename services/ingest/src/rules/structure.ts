@@ -7,6 +7,7 @@ export const STRUCTURE = {
   emptyFile: defineRule('structure', 'structure_empty_file', 'error', 'A file has no content at all (not even a header).'),
   noRows: defineRule('structure', 'structure_no_rows', 'error', 'plots.csv or trees.csv has a header row but no data rows.'),
   gzipCorrupt: defineRule('structure', 'structure_gzip_corrupt', 'error', 'A .gz file is damaged or cut short and cannot be decompressed.'),
+  unpackedTooLarge: defineRule('structure', 'structure_unpacked_too_large', 'error', 'A .gz file expands to more than the configured cap (STEMWISE_MAX_UNPACKED_MB); reading stops there.'),
   encoding: defineRule('structure', 'structure_encoding', 'error', 'A file is not UTF-8 (Latin-1/Windows-1252 and UTF-16 are recognised and named).'),
   semicolonDelimited: defineRule('structure', 'structure_semicolon_delimited', 'error', 'Values are separated by semicolons but the upload did not say so (--delimiter \';\').'),
   lineTooLong: defineRule('structure', 'structure_line_too_long', 'error', 'A line is longer than 1 MB (usually a missing closing quote or a binary file); reading stops there.'),
@@ -23,6 +24,8 @@ export const structureMessages = {
   emptyFile: (file: string) => `${file} is empty; it needs a header row and at least one data row`,
   noRows: (file: string) => `${file} has a header but no data rows`,
   gzipCorrupt: (file: string, detail: string) => `${file} is not a readable gzip file (${detail}); compress it again or upload it uncompressed`,
+  unpackedTooLarge: (file: string, maxBytes: number) =>
+    `${file} expands to more than ${Math.round(maxBytes / 1024 ** 2)} MiB when decompressed (the cap set by STEMWISE_MAX_UNPACKED_MB); split it into smaller batches`,
   latin1: (byte: number) =>
     `byte 0x${byte.toString(16).toUpperCase().padStart(2, '0')} is not valid UTF-8; the file looks like Latin-1 (ISO-8859-1) or Windows-1252 — save it as UTF-8 and upload again`,
   utf16: () => 'the file is UTF-16 text; save it as UTF-8 (with or without BOM) and upload again',

@@ -8,6 +8,8 @@ export interface ValidationContext {
   log: IssueLog;
   options: BatchOptions;
   forestTypes: readonly string[];
+  /** Largest decompressed size of a gzip file (bytes; STEMWISE_MAX_UNPACKED_MB). Default: no cap. */
+  maxUnpackedBytes?: number;
   /** Dates after this (YYYY-MM-DD) are in the future. */
   today: string;
   plausibility: PlausibilityOptions;
@@ -33,5 +35,6 @@ export function tableOptions(ctx: ValidationContext, columns: TableOptions['colu
     today: ctx.today,
     requireRows,
     onBytes: (n) => (ctx.progress.bytesRead += n),
+    maxUnpackedBytes: ctx.maxUnpackedBytes,
   };
 }

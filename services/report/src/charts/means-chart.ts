@@ -40,21 +40,28 @@ function panel(title: string, bars: Bar[], order: string[]): Record<string, unkn
   };
 }
 
+/** How the `all` bar is named: the whole region, or the whole country for the national rows. */
+export interface WholeLabel {
+  readonly label: string;
+  readonly subtitle: string;
+}
+const WHOLE_REGION_BAR: WholeLabel = { label: WHOLE_REGION_LABEL, subtitle: 'dark: the whole region (stratified estimate); light: each forest type' };
+
 /** Bars of the means per forest type and for the whole region, with their 95 % intervals as whiskers. */
-export function buildMeansChartSpec(rows: readonly RegionRow[]): TopLevelSpec | null {
+export function buildMeansChartSpec(rows: readonly RegionRow[], whole: WholeLabel = WHOLE_REGION_BAR): TopLevelSpec | null {
   const panels: Record<string, unknown>[] = [];
   for (const variable of MEANS_CHART_VARIABLES) {
     const bars: Bar[] = rows
       .filter((r) => r.variable === variable && r.mean !== null)
       .map((r) => ({
-        stratum: r.forest_type === 'all' ? WHOLE_REGION_LABEL : r.forest_type,
+        stratum: r.forest_type === 'all' ? whole.label : r.forest_type,
         whole: r.forest_type === 'all',
         mean: r.mean as number,
         low: r.ci_low ?? (r.mean as number),
         high: r.ci_high ?? (r.mean as number),
       }));
     if (!bars.length) continue;
-    const order = [WHOLE_REGION_LABEL, ...bars.filter((b) => !b.whole).map((b) => b.stratum).sort()];
+    const order = [whole.label, ...bars.filter((b) => !b.whole).map((b) => b.stratum).sort()];
     panels.push(panel(variableLabel(variable).short, bars, order));
   }
   if (!panels.length) return null;
@@ -62,14 +69,14 @@ export function buildMeansChartSpec(rows: readonly RegionRow[]): TopLevelSpec | 
     $schema: 'https://vega.github.io/schema/vega-lite/v6.json',
     background: 'white',
     padding: 8,
-    title: { text: 'Means with 95 % confidence intervals', subtitle: 'dark: the whole region (stratified estimate); light: each forest type' },
+    title: { text: 'Means with 95 % confidence intervals', subtitle: whole.subtitle },
     hconcat: panels,
     spacing: 24,
     config: REPORT_CHART_CONFIG,
   } as unknown as TopLevelSpec;
 }
 
-export async function renderMeansChartSvg(rows: readonly RegionRow[]): Promise<string | null> {
-  const spec = buildMeansChartSpec(rows);
+export async function renderMeansChartSvg(rows: readonly RegionRow[], whole?: WholeLabel): Promise<string | null> {
+  const spec = buildMeansChartSpec(rows, whole);
   return spec ? renderVegaLiteSvg(spec) : null;
 }

@@ -1,6 +1,8 @@
-import { cautions } from './region-page';
-import { isoMinute } from './figures';
-import { html } from './html';
+import type { NationalSnapshot } from '../national-snapshot';
+import { HEADLINE_VARIABLES, variableLabel } from '../variables';
+import { cautions, visitsSentence } from './region-page';
+import { figure, interval, isoMinute, samplingError } from './figures';
+import { html, type Markup } from './html';
 import { pageShell } from './shell';
 
 export interface IndexEntry {
@@ -12,8 +14,27 @@ export interface IndexEntry {
   href: string | null;
 }
 
-/** The list of regions the viewer may see. */
-export function renderIndexPage(entries: readonly IndexEntry[], options: { carbonFraction: number; signOut: string | null }): string {
+/** The national figures on the index page: where the viewer may see them (admins). */
+export interface IndexNational {
+  snapshot: NationalSnapshot;
+  href: string;
+}
+
+function nationalSection(n: IndexNational): Markup {
+  const { summary, data } = n.snapshot.payload;
+  const rows = HEADLINE_VARIABLES.map((v) => summary.rows.find((r) => r.forest_type === 'all' && r.variable === v)).filter((r) => r !== undefined);
+  return html`<section id="national">
+  <h2>All regions together</h2>
+  <p>Stratified by region × forest type over ${data.plots} plots in ${data.regions} regions. ${visitsSentence(data.first_survey, data.last_survey)} <a href="${n.href}">National figures by forest type</a> (version ${n.snapshot.version}, ${isoMinute(n.snapshot.createdAt)}).</p>
+  <table class="national"><thead><tr><th>Variable</th><th class="num">Mean</th><th class="num">95 % CI</th><th class="num">Sampling error</th><th class="num">Plots</th></tr></thead><tbody>${rows.map((r) => {
+    const label = variableLabel(r.variable);
+    return html`<tr data-variable="${r.variable}"><td>${label.name}${label.unit ? html` <span class="muted">(${label.unit})</span>` : null}</td><td class="num">${figure(r.mean)}</td><td class="num">${interval(r.ci_low, r.ci_high)}</td><td class="num">${samplingError(r.sampling_error_pct)}</td><td class="num">${r.n_plots}</td></tr>`;
+  })}</tbody></table>
+</section>`;
+}
+
+/** The list of regions the viewer may see, and the national figures when it may see them. */
+export function renderIndexPage(entries: readonly IndexEntry[], options: { carbonFraction: number; signOut: string | null; national?: IndexNational | null }): string {
   const body = html`
 <header class="top"><div>
   <div class="where">stemwise</div>
@@ -21,6 +42,7 @@ export function renderIndexPage(entries: readonly IndexEntry[], options: { carbo
 </div></header>
 <main>
   ${cautions(options.carbonFraction)}
+  ${options.national ? nationalSection(options.national) : null}
   <h2>Regions</h2>
   ${entries.length
     ? html`<table class="regions" id="regions"><thead><tr><th>Region</th><th class="num">Plots</th><th class="num">Summary version</th><th>Assembled</th></tr></thead><tbody>${entries.map(

@@ -1,5 +1,5 @@
 import type { Snapshot } from '../snapshot-payload';
-import type { DisturbanceRow, RegionRow } from '../summary/types';
+import type { DisturbanceRow, RegionRow, TotalRow } from '../summary/types';
 import { HEADLINE_VARIABLES, totalUnit, variableLabel } from '../variables';
 import { figure, interval, isoMinute, percentOfShare, samplingError } from './figures';
 import { html, safeSvg, type Markup } from './html';
@@ -24,7 +24,7 @@ export interface RegionPageInput {
 
 const WHOLE = 'all';
 const plots = (n: number): string => `${n} ${n === 1 ? 'plot' : 'plots'}`;
-const stratumName = (t: string): string => (t === WHOLE ? 'Whole region (stratified)' : t);
+const stratumName = (t: string, whole = 'Whole region (stratified)'): string => (t === WHOLE ? whole : t);
 const GUILD_NAMES: Record<string, string> = { pioneer: 'Pioneer', light_demander: 'Light-demanding', shade_tolerant: 'Shade-tolerant', unassigned: 'Unassigned' };
 
 /** The cautions every region page shows, in our words. */
@@ -39,8 +39,14 @@ export function cautions(carbonFraction: number): Markup {
 </section>`;
 }
 
-function headlineCards(s: Snapshot): Markup {
-  const { rows, totals } = s.payload.summary;
+/** Which visits the figures use, in a sentence with the survey years from the data. */
+export function visitsSentence(first: string | null, last: string | null): string {
+  if (first === null || last === null) return 'Uses the latest visit of each plot (no plot surveyed yet).';
+  const [a, b] = [first.slice(0, 4), last.slice(0, 4)];
+  return `Uses the latest visit of each plot, surveyed ${a === b ? a : `${a}–${b}`}.`;
+}
+
+export function headlineCards(rows: readonly RegionRow[], totals: readonly TotalRow[]): Markup {
   const cards = HEADLINE_VARIABLES.map((v) => {
     const r = rows.find((x) => x.forest_type === WHOLE && x.variable === v);
     if (!r) return null;
@@ -58,7 +64,7 @@ function headlineCards(s: Snapshot): Markup {
   return html`<div class="cards" id="headline">${cards}</div>`;
 }
 
-function estimatesTable(rows: readonly RegionRow[]): Markup {
+export function estimatesTable(rows: readonly RegionRow[], whole?: string): Markup {
   const variables = [...new Set(rows.map((r) => r.variable))];
   const body = variables.map((v) => {
     const group = rows.filter((r) => r.variable === v).sort((a, b) => (a.forest_type === WHOLE ? -1 : b.forest_type === WHOLE ? 1 : a.forest_type < b.forest_type ? -1 : 1));
@@ -66,7 +72,7 @@ function estimatesTable(rows: readonly RegionRow[]): Markup {
     return group.map(
       (r, i) => html`<tr class="${r.forest_type === WHOLE ? 'whole' : ''}">
   ${i === 0 ? html`<td rowspan="${group.length}">${label.name}${label.unit ? html` <span class="muted">(${label.unit})</span>` : null}</td>` : null}
-  <td>${stratumName(r.forest_type)}</td><td class="num">${r.n_plots}</td><td class="num">${figure(r.mean)}</td><td class="num">${figure(r.se)}</td>
+  <td>${stratumName(r.forest_type, whole)}</td><td class="num">${r.n_plots}</td><td class="num">${figure(r.mean)}</td><td class="num">${figure(r.se)}</td>
   <td class="num">${interval(r.ci_low, r.ci_high)}</td><td class="num">${samplingError(r.sampling_error_pct)}</td>
   <td class="num">${figure(r.forest_area_ha)}</td><td class="num">${figure(r.total)}</td>
 </tr>`,
@@ -136,7 +142,13 @@ function fitsSection(s: Snapshot): Markup {
   return html`${figures}${table}`;
 }
 
-function versionsList(input: RegionPageInput): Markup {
+export interface VersionsInput {
+  readonly versions: RegionPageInput['versions'];
+  readonly links: Pick<RegionPageLinks, 'versionPage'>;
+  readonly snapshot: { readonly version: number };
+}
+
+export function versionsList(input: VersionsInput): Markup {
   const { versions, links, snapshot } = input;
   return html`<ul class="versions">${versions.map((v) => {
     const label = `version ${v.version} · ${isoMinute(v.createdAt)}`;
@@ -163,6 +175,7 @@ export function renderRegionPage(input: RegionPageInput): string {
     <span><b>${data.plots}</b> ${data.plots === 1 ? 'plot' : 'plots'}</span>
     <span>forest types: <b>${summary.forest_types.join(', ') || '–'}</b></span>
     <span>surveyed <b>${data.first_survey ?? '–'}</b> to <b>${data.last_survey ?? '–'}</b></span>
+    <span id="visits">${visitsSentence(data.first_survey, data.last_survey)}</span>
     <span>summary <b>version ${s.version}</b> of ${isoMinute(s.createdAt)}</span>
     <span>strata weighted ${weighting}</span>
   </div>
@@ -170,7 +183,7 @@ export function renderRegionPage(input: RegionPageInput): string {
   ${cautions(method.carbon_fraction)}
   <h2 id="headline-figures">Headline figures for the whole region</h2>
   <p class="muted">Stratified estimates over the forest types; 95 % intervals use Student t (degrees of freedom in the notes below).</p>
-  ${headlineCards(s)}
+  ${headlineCards(summary.rows, summary.totals)}
   <h2>Charts</h2>
   ${means ? html`<figure id="means-chart">${means}<figcaption>Means per hectare with their 95 % confidence intervals: the whole region (dark) and each forest type. Wide intervals come from few plots.</figcaption></figure>` : null}
   ${guilds ? html`<figure id="guild-chart">${guilds}<figcaption>Guild composition: the mean share of live basal area per plot.</figcaption></figure>` : null}

@@ -2,7 +2,7 @@ import crypto from 'node:crypto';
 import fs from 'node:fs';
 import path from 'node:path';
 import type { Readable } from 'node:stream';
-import type { FastifyInstance, FastifyReply } from 'fastify';
+import type { FastifyInstance, FastifyReply, FastifyRequest } from 'fastify';
 import type { ZodTypeProvider } from 'fastify-type-provider-zod';
 import { z } from 'zod';
 import { batchSubmitter } from '@stemwise/db';
@@ -12,8 +12,6 @@ import { multipartBoundary, MultipartError, readMultipart } from '../multipart';
 import { denyJson, requireToken, type RouteContext } from './auth';
 import { BatchParams, ErrorBody } from './schemas';
 
-/** Largest upload accepted over HTTP (all files together); bigger inventories go through `stemwise upload`. */
-export const MAX_UPLOAD_BYTES = 2 * 1024 ** 3;
 const FILE_FIELDS = ['plots', 'trees', 'strata', 'species'] as const;
 const OPTION_FIELDS = ['skip_invalid', 'replace', 'delimiter', 'decimal_comma'] as const;
 
@@ -39,9 +37,27 @@ function submitOptions(fields: Record<string, string>): SubmitOptions {
   return { skipInvalid: flag(fields, 'skip_invalid'), replace: flag(fields, 'replace'), delimiter: delimiter as SubmitOptions['delimiter'], decimalComma: flag(fields, 'decimal_comma') };
 }
 
+/** A client that went away in the middle of its upload (the body stream ended with an error). */
+function interrupted(err: unknown): boolean {
+  const code = (err as { code?: string }).code;
+  return code === 'ECONNRESET' || code === 'ERR_STREAM_PREMATURE_CLOSE' || (err as Error).message === 'aborted';
+}
+
 export function batchRoutes(app: FastifyInstance, ctx: RouteContext): void {
   const r = app.withTypeProvider<ZodTypeProvider>();
   const security = [{ bearer: [] }];
+  const { maxUploadBytes, maxConcurrentUploads, storageDir } = ctx.deps.config;
+  const mib = Math.round(maxUploadBytes / 1024 ** 2);
+  let receiving = 0;
+
+  // A declared size over the cap is refused before anything else, and the connection is closed so
+  // the body is never read (bigger inventories go through `stemwise upload`).
+  const refuseDeclaredSize = async (request: FastifyRequest, reply: FastifyReply) => {
+    const declared = Number(request.headers['content-length']);
+    if (Number.isFinite(declared) && declared > maxUploadBytes) {
+      return reply.code(413).header('connection', 'close').send({ error: 'too_large', message: `the upload is larger than ${mib} MiB (STEMWISE_MAX_UPLOAD_MB); use \`stemwise upload\` for bigger batches` });
+    }
+  };
 
   // The body stays a stream: the route reads it part by part to disk (fastify's body limit does not apply).
   app.addContentTypeParser('multipart/form-data', (_request, payload, done) => done(null, payload));
@@ -49,18 +65,20 @@ export function batchRoutes(app: FastifyInstance, ctx: RouteContext): void {
   r.post(
     '/v1/batches',
     {
-      preHandler: requireToken(ctx, { cookie: false }),
+      onRequest: refuseDeclaredSize,
+      preValidation: requireToken(ctx, { cookie: false }),
       schema: {
         summary: 'Submit a batch (admin or uploader)',
         description:
           'multipart/form-data with file parts `plots` and `trees` (required), `strata` and `species` (optional), each CSV or gzip-compressed CSV, ' +
           'and optional text fields `skip_invalid`, `replace`, `decimal_comma` (true/false) and `delimiter` (`,` or `;`). ' +
-          `At most ${MAX_UPLOAD_BYTES / 1024 ** 3} GiB in all. Answers 202 with the batch id (200 when the same content is already a batch); ` +
+          `At most ${mib} MiB in all (413 beyond; a larger Content-Length is refused before the body is read); ` +
+          `at most ${maxConcurrentUploads} uploads at once (503 with Retry-After beyond). Answers 202 with the batch id (200 when the same content is already a batch); ` +
           'follow it at GET /v1/batches/{id}.',
         tags: ['batches'],
         security,
         consumes: ['multipart/form-data'],
-        response: { 200: Submitted, 202: Submitted, 400: ErrorBody, 401: ErrorBody, 403: ErrorBody, 413: ErrorBody, 415: ErrorBody },
+        response: { 200: Submitted, 202: Submitted, 400: ErrorBody, 401: ErrorBody, 403: ErrorBody, 413: ErrorBody, 415: ErrorBody, 429: ErrorBody, 503: ErrorBody },
       },
     },
     async (request, reply) => {
@@ -70,22 +88,33 @@ export function batchRoutes(app: FastifyInstance, ctx: RouteContext): void {
       if (!boundary || !request.body) {
         return reply.code(415).send({ error: 'unsupported_media_type', message: 'send the files as multipart/form-data (parts plots, trees, and optionally strata, species)' });
       }
-      const spool = path.join(ctx.deps.config.storageDir, '.incoming', crypto.randomUUID());
+      if (receiving >= maxConcurrentUploads) {
+        return reply
+          .code(503)
+          .header('retry-after', '30')
+          .header('connection', 'close')
+          .send({ error: 'busy', message: `${maxConcurrentUploads} uploads are being received (STEMWISE_MAX_CONCURRENT_UPLOADS); try again in a little while` });
+      }
+      receiving++;
+      // Spooled inside the storage folder (same file system), so each file is then moved, not copied, into its batch folder.
+      const spool = path.join(storageDir, '.incoming', crypto.randomUUID());
       try {
         const { files, fields } = await readMultipart(request.body as Readable, boundary, spool, {
-          maxBytes: MAX_UPLOAD_BYTES,
+          maxBytes: maxUploadBytes,
           fileFields: FILE_FIELDS,
           textFields: OPTION_FIELDS,
         });
-        const submitted: SubmittedFile[] = files.map((f) => ({ kind: f.field as SubmittedFile['kind'], name: f.filename, source: f.path }));
+        const submitted: SubmittedFile[] = files.map((f) => ({ kind: f.field as SubmittedFile['kind'], name: f.filename, source: f.path, move: true }));
         const result = await submitBatch(ctx.deps, submitted, submitOptions(fields), p.tokenId);
         const links = { self: `/v1/batches/${result.batchId}`, errors_csv: `/v1/batches/${result.batchId}/errors.csv` };
         return reply.code(result.duplicate ? 200 : 202).send({ id: result.batchId, state: result.state, duplicate: result.duplicate, queued: result.queued, links });
       } catch (err) {
         if (err instanceof MultipartError) return reply.code(err.status).send({ error: err.status === 413 ? 'too_large' : 'bad_request', message: err.message });
         if (err instanceof SubmissionError) return reply.code(400).send({ error: 'bad_request', message: err.message });
+        if (interrupted(err)) return reply.code(400).send({ error: 'bad_request', message: 'the upload was interrupted before its end; nothing was stored' });
         throw err;
       } finally {
+        receiving--;
         await fs.promises.rm(spool, { recursive: true, force: true });
       }
     },
@@ -111,7 +140,7 @@ export function batchRoutes(app: FastifyInstance, ctx: RouteContext): void {
   r.get(
     '/v1/batches/:id',
     {
-      preHandler: requireToken(ctx, { cookie: true }),
+      preValidation: requireToken(ctx, { cookie: true }),
       schema: {
         summary: "A batch's state, counts, progress, failure reason and row issues by rule (admin, or the uploader that submitted it)",
         tags: ['batches'],
@@ -131,7 +160,7 @@ export function batchRoutes(app: FastifyInstance, ctx: RouteContext): void {
   r.get(
     '/v1/batches/:id/errors.csv',
     {
-      preHandler: requireToken(ctx, { cookie: true }),
+      preValidation: requireToken(ctx, { cookie: true }),
       schema: {
         summary: "A batch's row errors as CSV; `?severity=all` adds the warnings (admin, or the uploader that submitted it)",
         tags: ['batches'],

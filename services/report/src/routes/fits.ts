@@ -23,7 +23,7 @@ export function fitRoutes(app: FastifyInstance, ctx: RouteContext): void {
   app.withTypeProvider<ZodTypeProvider>().get(
     '/v1/fits',
     {
-      preHandler: requireToken(ctx, { cookie: true }),
+      preValidation: requireToken(ctx, { cookie: true }),
       schema: {
         summary: 'Diversity–disturbance fits per forest type (scope all) and per region (readers: their regions only)',
         tags: ['fits'],

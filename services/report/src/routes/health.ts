@@ -7,11 +7,19 @@ import type { RouteContext } from './auth';
 
 const CHECK_TIMEOUT_MS = 2000;
 
+class CheckTimeout extends Error {}
+
 function withTimeout<T>(p: Promise<T>, what: string): Promise<T> {
-  return Promise.race([p, new Promise<never>((_, reject) => setTimeout(() => reject(new Error(`${what}: no answer within ${CHECK_TIMEOUT_MS} ms`)), CHECK_TIMEOUT_MS).unref())]);
+  return Promise.race([p, new Promise<never>((_, reject) => setTimeout(() => reject(new CheckTimeout(`${what}: no answer within ${CHECK_TIMEOUT_MS} ms`)), CHECK_TIMEOUT_MS).unref())]);
 }
 
-const Ready = z.object({ status: z.enum(['ready', 'not_ready']), checks: z.record(z.string(), z.object({ ok: z.boolean(), error: z.string().optional() })) });
+const Ready = z.object({
+  status: z.enum(['ready', 'not_ready']),
+  checks: z.record(z.string(), z.object({ ok: z.boolean(), error: z.enum(['unreachable', 'no answer in time']).optional().describe('a short status; the reason is in the log') })),
+});
+
+/** Probes and scrapers call these often from a few addresses: they are not counted by the rate limit. */
+const NOT_LIMITED = { rateLimit: false } as const;
 
 /** Labels in the Prometheus text format: backslash, double quote and newline escaped. */
 export const promLabel = (v: string): string => v.replace(/\\/g, '\\\\').replace(/"/g, '\\"').replace(/\n/g, '\\n');
@@ -23,19 +31,21 @@ export const promLabel = (v: string): string => v.replace(/\\/g, '\\\\').replace
  */
 export function healthRoutes(app: FastifyInstance, ctx: RouteContext): void {
   const r = app.withTypeProvider<ZodTypeProvider>();
-  r.get('/healthz', { schema: { summary: 'The process is alive', tags: ['health'], response: { 200: z.object({ status: z.literal('ok') }) } } }, async () => ({ status: 'ok' as const }));
+  r.get('/healthz', { config: NOT_LIMITED, schema: { summary: 'The process is alive', tags: ['health'], response: { 200: z.object({ status: z.literal('ok') }) } } }, async () => ({ status: 'ok' as const }));
 
   r.get(
     '/readyz',
-    { schema: { summary: 'PostgreSQL and Redis (when configured) answer', tags: ['health'], response: { 200: Ready, 503: Ready } } },
+    { config: NOT_LIMITED, schema: { summary: 'PostgreSQL and Redis (when configured) answer', tags: ['health'], response: { 200: Ready, 503: Ready } } },
     async (_request, reply) => {
-      const checks: Record<string, { ok: boolean; error?: string }> = {};
+      const checks: z.infer<typeof Ready>['checks'] = {};
       const probe = async (name: string, fn: () => Promise<unknown>) => {
         try {
           await withTimeout(fn(), name);
           checks[name] = { ok: true };
         } catch (err) {
-          checks[name] = { ok: false, error: oneLine(err) };
+          // The reason goes to the log only: this route needs no token, and driver messages name hosts, users and databases.
+          ctx.deps.log.warn({ check: name, reason: oneLine(err) }, 'readiness check failed');
+          checks[name] = { ok: false, error: err instanceof CheckTimeout ? 'no answer in time' : 'unreachable' };
         }
       };
       await Promise.all([
@@ -47,7 +57,7 @@ export function healthRoutes(app: FastifyInstance, ctx: RouteContext): void {
     },
   );
 
-  r.get('/metrics', { schema: { summary: 'Queue depth, job counts, batches by state, last recompute (Prometheus text format)', tags: ['health'], produces: ['text/plain'] } }, async (_request, reply) => {
+  r.get('/metrics', { config: NOT_LIMITED, schema: { summary: 'Queue depth, job counts, batches by state, last recompute (Prometheus text format)', tags: ['health'], produces: ['text/plain'] } }, async (_request, reply) => {
     const [counts, batches, last] = await Promise.all([ctx.deps.queue.counts(), countBatchesByState(ctx.deps.db), lastFinishedRecompute(ctx.deps.db)]);
     const lines: string[] = [];
     const metric = (name: string, type: string, help: string) => lines.push(`# HELP ${name} ${help}`, `# TYPE ${name} ${type}`);

@@ -2,25 +2,29 @@ import type { FastifyInstance, FastifyReply, FastifyRequest } from 'fastify';
 import type { ZodTypeProvider } from 'fastify-type-provider-zod';
 import { z } from 'zod';
 import { IPCC_2006_CARBON_FRACTION } from '@stemwise/compute/science/allometry';
-import { listRegionHeads, listSummaryVersions } from '@stemwise/db';
-import { readsRegions, type Principal } from '../access';
+import { listNationalVersions, listRegionHeads, listSummaryVersions } from '@stemwise/db';
+import { canSeeNational, readsRegions, type Principal } from '../access';
+import { readNationalSnapshot } from '../national-snapshot';
 import { renderIndexPage } from '../page/index-page';
 import { renderMessagePage } from '../page/message-page';
+import { renderNationalPage } from '../page/national-page';
 import { renderRegionPage } from '../page/region-page';
 import { PAGE_HEADERS } from '../page/shell';
-import { requireToken, TOKEN_COOKIE, type Deny, type RouteContext } from './auth';
+import { checkToken, requireToken, routeOf, TOKEN_COOKIE, type Deny, type RouteContext } from './auth';
+import { checkNational, NATIONAL_LINKS } from './national';
 import { checkRegion, regionLinks, visibleRegions } from './regions';
+import { RegionParams, VersionNumber } from './schemas';
 
 const COOKIE_MAX_AGE_S = 30 * 24 * 3600;
 
 const HINTS: Record<number, string> = {
   401: 'Open this address once with ?token=YOUR_TOKEN added (a token comes from `stemwise token create`); the browser then keeps it in a cookie for 30 days.',
-  403: 'Ask an administrator for a token that covers this region.',
+  403: 'Ask an administrator for a token that covers this page.',
 };
 
 /** Errors of the pages as small HTML pages. */
 export const denyHtml: Deny = (reply, status, code, message) => {
-  const titles: Record<number, string> = { 401: 'Sign-in needed', 403: 'Not for this token', 404: 'Not found' };
+  const titles: Record<number, string> = { 401: 'Sign-in needed', 403: 'Not for this token', 404: 'Not found', 429: 'Too many attempts' };
   return reply
     .code(status)
     .headers(PAGE_HEADERS)
@@ -28,6 +32,11 @@ export const denyHtml: Deny = (reply, status, code, message) => {
     .type('text/html; charset=utf-8')
     .send(renderMessagePage(titles[status], message, HINTS[status]));
 };
+
+/** The session cookie (see TOKEN_COOKIE): Secure when the original request was https (`request.protocol` follows a trusted proxy's X-Forwarded-Proto). */
+function tokenCookie(request: FastifyRequest, value: string, maxAgeS: number): string {
+  return `${TOKEN_COOKIE}=${value}; HttpOnly; SameSite=Lax; Path=/; Max-Age=${maxAgeS}${request.protocol === 'https' ? '; Secure' : ''}`;
+}
 
 function sendPage(reply: FastifyReply, body: string): FastifyReply {
   return reply.headers(PAGE_HEADERS).type('text/html; charset=utf-8').send(body);
@@ -42,13 +51,14 @@ function tokenFromQuery(ctx: RouteContext) {
     const url = new URL(request.url, 'http://local');
     const token = url.searchParams.get('token');
     if (token === null) return;
-    const v = await ctx.verifier.verify(token);
+    const v = await checkToken(ctx, request, reply, token, denyHtml);
+    if (!v) return reply;
     if (!v.ok) return denyHtml(reply, 401, 'unauthorized', v.reason === 'revoked' ? 'This token was revoked.' : 'This token is not valid.');
+    ctx.audit.record({ actor: v.principal.tokenId, action: 'token.signin', target: routeOf(request), details: { client: request.ip } });
     url.searchParams.delete('token');
-    const secure = request.protocol === 'https' ? '; Secure' : '';
     return reply
       .code(303)
-      .header('set-cookie', `${TOKEN_COOKIE}=${encodeURIComponent(token)}; HttpOnly; SameSite=Lax; Path=/; Max-Age=${COOKIE_MAX_AGE_S}${secure}`)
+      .header('set-cookie', tokenCookie(request, encodeURIComponent(token), COOKIE_MAX_AGE_S))
       .header('cache-control', 'no-store')
       .redirect(url.pathname + url.search, 303);
   };
@@ -57,9 +67,9 @@ function tokenFromQuery(ctx: RouteContext) {
 export function pageRoutes(app: FastifyInstance, ctx: RouteContext): void {
   const r = app.withTypeProvider<ZodTypeProvider>();
   const auth = requireToken(ctx, { cookie: true, deny: denyHtml });
-  const preHandler = [tokenFromQuery(ctx), auth];
+  const preValidation = [tokenFromQuery(ctx), auth];
 
-  r.get('/', { preHandler, schema: { hide: true } }, async (request, reply) => {
+  r.get('/', { preValidation, schema: { hide: true } }, async (request, reply) => {
     const p = request.principal as Principal;
     if (!readsRegions(p)) return denyHtml(reply, 403, 'forbidden', 'This token may submit and follow batches only; the summaries need a reader or admin token.');
     const heads = visibleRegions(p, await listRegionHeads(ctx.deps.db));
@@ -70,12 +80,39 @@ export function pageRoutes(app: FastifyInstance, ctx: RouteContext): void {
       updatedAt: h.head?.createdAt ?? null,
       href: h.head ? regionLinks(h.region).page : null,
     }));
-    return sendPage(reply, renderIndexPage(entries, { carbonFraction: IPCC_2006_CARBON_FRACTION, signOut: '/signout' }));
+    const national = canSeeNational(p) ? await readNationalSnapshot(ctx.deps.db) : null;
+    return sendPage(reply, renderIndexPage(entries, { carbonFraction: IPCC_2006_CARBON_FRACTION, signOut: '/signout', national: national && { snapshot: national, href: NATIONAL_LINKS.page } }));
   });
 
   r.get(
+    '/national',
+    { preValidation, schema: { hide: true, querystring: z.object({ version: VersionNumber.optional() }) } },
+    async (request, reply) => {
+      if (!checkNational(request, reply, denyHtml)) return reply;
+      const snapshot = await readNationalSnapshot(ctx.deps.db, request.query.version);
+      if (!snapshot) {
+        return denyHtml(reply, 404, 'not_found', request.query.version ? `Version ${request.query.version} of the national summary does not exist.` : 'No national summary yet: it is assembled by the next recompute.');
+      }
+      const v = snapshot.version;
+      const body = renderNationalPage({
+        snapshot,
+        carbonFraction: IPCC_2006_CARBON_FRACTION,
+        versions: await listNationalVersions(ctx.deps.db),
+        links: {
+          index: '/',
+          summaryJson: `${NATIONAL_LINKS.summary}?version=${v}`,
+          summaryCsv: `${NATIONAL_LINKS.summary}?format=csv&version=${v}`,
+          versionPage: (n) => `${NATIONAL_LINKS.page}?version=${n}`,
+          signOut: '/signout',
+        },
+      });
+      return sendPage(reply, body);
+    },
+  );
+
+  r.get(
     '/regions/:region',
-    { preHandler, schema: { hide: true, params: z.object({ region: z.string().min(1).max(80) }), querystring: z.object({ version: z.coerce.number().int().min(1).optional() }) } },
+    { preValidation, schema: { hide: true, params: RegionParams, querystring: z.object({ version: VersionNumber.optional() }) } },
     async (request, reply) => {
       const { region } = request.params;
       if (!(await checkRegion(ctx, request, reply, region, denyHtml))) return reply;
@@ -102,9 +139,9 @@ export function pageRoutes(app: FastifyInstance, ctx: RouteContext): void {
     },
   );
 
-  r.get('/signout', { schema: { hide: true } }, async (_request, reply) => {
+  r.get('/signout', { schema: { hide: true } }, async (request, reply) => {
     return reply
-      .header('set-cookie', `${TOKEN_COOKIE}=; HttpOnly; SameSite=Lax; Path=/; Max-Age=0`)
+      .header('set-cookie', tokenCookie(request, '', 0))
       .headers(PAGE_HEADERS)
       .type('text/html; charset=utf-8')
       .send(renderMessagePage('Signed out', 'The token was removed from this browser.', 'Open a page with ?token=YOUR_TOKEN to sign in again.'));

@@ -1,8 +1,8 @@
 import type { FastifyInstance, FastifyReply, FastifyRequest } from 'fastify';
 import type { ZodTypeProvider } from 'fastify-type-provider-zod';
-import { listRegionHeads, listSummaryVersions } from '@stemwise/db';
+import { listNationalVersions, listRegionHeads, listSummaryVersions } from '@stemwise/db';
 import { regionPlotsGeoJson } from '../plots-geojson';
-import { canSeeRegion, readsRegions, type Principal } from '../access';
+import { canSeeNational, canSeeRegion, readsRegions, type Principal } from '../access';
 import { denyJson, requireToken, type Deny, type RouteContext } from './auth';
 import { ErrorBody, GeoJsonCollection, RegionList, RegionParams, SummaryQuery, SummaryResponse, VersionList } from './schemas';
 
@@ -13,6 +13,8 @@ export const regionLinks = (region: string) => ({
   plots: `/v1/regions/${enc(region)}/plots`,
   page: `/regions/${enc(region)}`,
 });
+
+export const NATIONAL_LINKS = { summary: '/v1/national/summary', summary_csv: '/v1/national/summary?format=csv', versions: '/v1/national/versions', page: '/national' } as const;
 
 /** Regions a principal may see, among those that exist (a reader never learns of the others). */
 export function visibleRegions<T extends { region: string }>(p: Principal, regions: readonly T[]): T[] {
@@ -52,6 +54,23 @@ export function wantsCsv(format: string | undefined, accept: string | undefined)
   return !!accept && /\btext\/csv\b/i.test(accept) && !/application\/json/i.test(accept);
 }
 
+/** A summary (a region's or the national one) as JSON or CSV, with its ETag and version; 304 when it matches. */
+export function sendSummary(
+  request: FastifyRequest,
+  reply: FastifyReply,
+  s: { name: string; etag: string; version: number; json: string | Buffer; csv: string | Buffer },
+): FastifyReply {
+  const csv = wantsCsv((request.query as { format?: string }).format, request.headers.accept);
+  const etag = `"${s.etag}${csv ? '.csv' : ''}"`;
+  reply.header('etag', etag).header('cache-control', 'private, no-cache').header('vary', 'Accept, Authorization, Cookie').header('x-summary-version', String(s.version));
+  if (matchesEtag(request.headers['if-none-match'], etag)) return reply.code(304).send(undefined as never);
+  if (csv) {
+    const file = `summary-${s.name.replace(/[^A-Za-z0-9_.-]+/g, '_')}-v${s.version}.csv`;
+    return reply.type('text/csv; charset=utf-8').header('content-disposition', `attachment; filename="${file}"`).send(s.csv as never);
+  }
+  return reply.type('application/json; charset=utf-8').send(s.json as never);
+}
+
 export function regionRoutes(app: FastifyInstance, ctx: RouteContext): void {
   const r = app.withTypeProvider<ZodTypeProvider>();
   const auth = requireToken(ctx, { cookie: true });
@@ -60,9 +79,9 @@ export function regionRoutes(app: FastifyInstance, ctx: RouteContext): void {
   r.get(
     '/v1/regions',
     {
-      preHandler: auth,
+      preValidation: auth,
       schema: {
-        summary: 'Regions this token may see, with their latest summary version',
+        summary: 'Regions this token may see, with their latest summary version (and the national summary for admins)',
         tags: ['regions'],
         security,
         response: { 200: RegionList, 401: ErrorBody, 403: ErrorBody },
@@ -72,7 +91,9 @@ export function regionRoutes(app: FastifyInstance, ctx: RouteContext): void {
       const p = request.principal as Principal;
       if (!readsRegions(p)) return denyJson(reply, 403, 'forbidden', 'this token may submit and follow batches only; region data needs a reader or admin token');
       const heads = visibleRegions(p, await listRegionHeads(ctx.deps.db));
+      const national = canSeeNational(p) ? ((await listNationalVersions(ctx.deps.db))[0] ?? null) : undefined;
       return {
+        ...(national === undefined ? {} : { national: { latest_version: national?.version ?? null, updated_at: national?.createdAt.toISOString() ?? null, links: NATIONAL_LINKS } }),
         regions: heads.map((h) => ({
           region: h.region,
           plots: h.plots,
@@ -87,7 +108,7 @@ export function regionRoutes(app: FastifyInstance, ctx: RouteContext): void {
   r.get(
     '/v1/regions/:region/summary',
     {
-      preHandler: auth,
+      preValidation: auth,
       schema: {
         summary: "A region's summary: stratified estimates with intervals, guilds, disturbance classes, species, fits",
         description:
@@ -114,22 +135,14 @@ export function regionRoutes(app: FastifyInstance, ctx: RouteContext): void {
         const what = request.query.version ? `version ${request.query.version} of the summary of '${region}' does not exist` : `no summary of '${region}' yet: it is assembled by the next recompute`;
         return denyJson(reply, 404, 'not_found', what);
       }
-      const csv = wantsCsv(request.query.format, request.headers.accept);
-      const etag = `"${entry.snapshot.etag}${csv ? '.csv' : ''}"`;
-      reply.header('etag', etag).header('cache-control', 'private, no-cache').header('vary', 'Accept, Authorization, Cookie').header('x-summary-version', String(entry.snapshot.version));
-      if (matchesEtag(request.headers['if-none-match'], etag)) return reply.code(304).send(undefined as never);
-      if (csv) {
-        const file = `summary-${region.replace(/[^A-Za-z0-9_.-]+/g, '_')}-v${entry.snapshot.version}.csv`;
-        return reply.type('text/csv; charset=utf-8').header('content-disposition', `attachment; filename="${file}"`).send(entry.csv as never);
-      }
-      return reply.type('application/json; charset=utf-8').send(entry.json as never);
+      return sendSummary(request, reply, { name: region, etag: entry.snapshot.etag, version: entry.snapshot.version, json: entry.json, csv: entry.csv });
     },
   );
 
   r.get(
     '/v1/regions/:region/versions',
     {
-      preHandler: auth,
+      preValidation: auth,
       schema: {
         summary: "Every stored version of a region's summary, newest first",
         tags: ['regions'],
@@ -149,7 +162,7 @@ export function regionRoutes(app: FastifyInstance, ctx: RouteContext): void {
   r.get(
     '/v1/regions/:region/plots',
     {
-      preHandler: auth,
+      preValidation: auth,
       schema: {
         summary: "A region's plots with their metrics (GeoJSON)",
         tags: ['regions'],

@@ -4,11 +4,24 @@ import { z } from 'zod';
 
 const num = z.number().nullable();
 
+// Text from a path or query: PostgreSQL cannot hold U+0000, and no name in the data has a control
+// character or a lone surrogate, so such input is a 400 with a message, never a failed query.
+const CONTROL_OR_LONE_SURROGATE = /[\u0000-\u001f\u007f]|[\uD800-\uDBFF](?![\uDC00-\uDFFF])|(?<![\uD800-\uDBFF])[\uDC00-\uDFFF]/;
+export const paramText = (max: number) =>
+  z
+    .string()
+    .min(1)
+    .max(max)
+    .refine((v) => !CONTROL_OR_LONE_SURROGATE.test(v), 'must not contain control characters (such as NUL) or broken Unicode');
+
+/** Summary versions are PostgreSQL integers (int4). */
+export const VersionNumber = z.coerce.number().int().min(1).max(2_147_483_647);
+
 export const ErrorBody = z
   .object({ error: z.string().describe('stable code, e.g. unauthorized, forbidden, not_found'), message: z.string() })
   .describe('An error: a stable code and a sentence for people');
 
-export const RegionParams = z.object({ region: z.string().min(1).max(80).describe('region name as loaded from plots.csv') });
+export const RegionParams = z.object({ region: paramText(80).describe('region name as loaded from plots.csv') });
 
 export const RegionListItem = z.object({
   region: z.string(),
@@ -17,11 +30,21 @@ export const RegionListItem = z.object({
   updated_at: z.string().nullable(),
   links: z.object({ summary: z.string(), summary_csv: z.string(), plots: z.string(), page: z.string() }),
 });
-export const RegionList = z.object({ regions: z.array(RegionListItem) });
+export const RegionList = z.object({
+  national: z
+    .object({
+      latest_version: z.number().int().nullable(),
+      updated_at: z.string().nullable(),
+      links: z.object({ summary: z.string(), summary_csv: z.string(), versions: z.string(), page: z.string() }),
+    })
+    .optional()
+    .describe('the national summary (all regions together): present for admin tokens only'),
+  regions: z.array(RegionListItem),
+});
 
 export const SummaryQuery = z.object({
   format: z.enum(['json', 'csv']).optional().describe('json (default) or csv; `Accept: text/csv` also selects CSV'),
-  version: z.coerce.number().int().min(1).optional().describe('an earlier snapshot; default the latest'),
+  version: VersionNumber.optional().describe('an earlier snapshot; default the latest'),
 });
 
 export const RegionRowSchema = z.object({
@@ -83,6 +106,20 @@ export const RegionSummarySchema = z.object({
   notes: z.array(NoteSchema),
 });
 
+export const NationalSummarySchema = z.object({
+  n_plots: z.number().int(),
+  regions: z.array(z.string()),
+  forest_types: z.array(z.string()),
+  strata: z.array(z.object({ region: z.string(), forest_type: z.string(), n_plots: z.number().int(), forest_area_ha: num })).describe('the region × forest type strata'),
+  weighting: z.enum(['area', 'plot_count']).describe('W_h from forest areas of every stratum, or from plot counts when one is missing'),
+  confidence: z.number(),
+  sampling_error_t: z.union([z.literal('t'), z.number()]),
+  rows: z.array(RegionRowSchema).describe('`export regions` rows with region `national`: `all` (every region × forest type), then each forest type nationally'),
+  totals: z.array(TotalRowSchema),
+  estimate_details: z.array(EstimateDetailSchema.extend({ forest_type: z.string() })),
+  notes: z.array(NoteSchema),
+});
+
 export const FitRowSchema = z.object({
   scope: z.string().describe('`all` = the forest type as a whole; otherwise a region'),
   forest_type: z.string(),
@@ -123,10 +160,20 @@ export const SummaryResponse = z.object({
   fits: z.array(FitRowSchema),
 });
 
+export const NationalResponse = SummaryResponse.omit({ fits: true }).extend({
+  region: z.literal('national'),
+  data: SummaryResponse.shape.data.omit({ species_reference_version: true }).extend({ regions: z.number().int() }),
+  method: z.object({ estimator: z.string() }),
+  summary: NationalSummarySchema,
+  sources: z.record(z.string(), z.number().int().nullable()).describe('region → its summary version current when this was assembled'),
+});
+
 export const VersionList = z.object({
   region: z.string(),
   versions: z.array(z.object({ version: z.number().int(), etag: z.string(), created_at: z.string() })),
 });
+
+export const NationalVersionList = VersionList.omit({ region: true });
 
 export const GeoJsonCollection = z
   .object({
@@ -142,10 +189,10 @@ export const GeoJsonCollection = z
   .describe('GeoJSON (RFC 7946): the latest computed visit of each plot, WGS 84 longitude/latitude');
 
 export const FitsQuery = z.object({
-  forest_type: z.string().optional(),
-  metric: z.string().optional().describe('default: the configured fit metric (fisher_alpha)'),
-  axis: z.string().optional().describe('default: the configured fit axis (disturbance_index)'),
-  scope: z.string().optional().describe('`all` or a region; default every scope the token may see'),
+  forest_type: paramText(80).optional(),
+  metric: paramText(80).optional().describe('default: the configured fit metric (fisher_alpha)'),
+  axis: paramText(80).optional().describe('default: the configured fit axis (disturbance_index)'),
+  scope: paramText(80).optional().describe('`all` or a region; default every scope the token may see'),
   format: z.enum(['json', 'csv']).optional(),
 });
 export const FitList = z.object({ fits: z.array(FitRowSchema) });

@@ -103,27 +103,17 @@ export function summariseRegion(input: RegionSummaryInput): RegionSummary {
     const e = types.length === 0 ? null : estimateOf(variable);
     if (e === null) continue;
     const perHa = isPerHectare(variable);
-    rows.push(row(input.region, WHOLE_REGION, variable, e.n, e, e.size, perHa ? e.total : null));
+    rows.push(regionRow(input.region, WHOLE_REGION, variable, e.n, e, e.size, perHa ? e.total : null));
     if (perHa && e.size !== null && e.total !== null) {
       totals.push({ forest_type: WHOLE_REGION, variable, forest_area_ha: e.size, total: e.total, se: e.totalSe, ci_low: e.totalCiLow, ci_high: e.totalCiHigh });
     }
-    details.push({
-      variable,
-      n_plots: e.n,
-      df: e.df,
-      df_method: e.dfMethod,
-      t: e.tMultiplier,
-      sampling_error_multiplier: e.samplingErrorMultiplier,
-      strata_used: e.strataUsed,
-      strata_without_values: e.strataWithoutValues,
-      single_plot_strata: e.singleValueStrata,
-    });
+    details.push(estimateDetail(variable, e));
   }
   for (const [h, t] of types.entries()) {
     for (const variable of variables) {
       const s = estimateOf(variable).strata[h];
       const perHa = isPerHectare(variable);
-      rows.push(row(input.region, t, variable, s.n, s, s.size, perHa ? s.total : null));
+      rows.push(regionRow(input.region, t, variable, s.n, s, s.size, perHa ? s.total : null));
       if (perHa && s.size !== null && s.total !== null) {
         totals.push({ forest_type: t, variable, forest_area_ha: s.size, total: s.total, se: s.totalSe, ci_low: s.totalCiLow, ci_high: s.totalCiHigh });
       }
@@ -170,7 +160,22 @@ export function summariseRegion(input: RegionSummaryInput): RegionSummary {
   };
 }
 
-interface Estimated {
+/** How a stratified estimate of one variable was made (df, t, strata covered). */
+export function estimateDetail(variable: string, e: StratifiedEstimate): EstimateDetail {
+  return {
+    variable,
+    n_plots: e.n,
+    df: e.df,
+    df_method: e.dfMethod,
+    t: e.tMultiplier,
+    sampling_error_multiplier: e.samplingErrorMultiplier,
+    strata_used: e.strataUsed,
+    strata_without_values: e.strataWithoutValues,
+    single_plot_strata: e.singleValueStrata,
+  };
+}
+
+export interface Estimated {
   readonly mean: number | null;
   readonly se: number | null;
   readonly ciLow: number | null;
@@ -178,7 +183,7 @@ interface Estimated {
   readonly samplingErrorPct: number | null;
 }
 
-function row(region: string, forestType: string, variable: string, n: number, e: Estimated, area: number | null, total: number | null): RegionRow {
+export function regionRow(region: string, forestType: string, variable: string, n: number, e: Estimated, area: number | null, total: number | null): RegionRow {
   // Key order is REGION_COLUMNS order.
   return {
     region,

@@ -3,7 +3,7 @@ import type { SamplingErrorT, Weighting } from '../estimators/stratified';
 // The region summary as the report page and the API receive it. Plain JSON: arrays and objects only,
 // no Map, NaN or Infinity; what cannot be computed is null. Keys are snake_case like the export columns.
 
-/** Column order of `export regions` (outputs.md, version 1): a contract, columns may be added, never renamed. */
+/** Column order of `export regions` (docs/exports.md, version 1): a contract, columns may be added, never renamed. */
 export const REGION_COLUMNS = [
   'region',
   'forest_type',
@@ -22,6 +22,9 @@ export type RegionColumn = (typeof REGION_COLUMNS)[number];
 
 /** `forest_type` of the stratified estimate of the whole region. */
 export const WHOLE_REGION = 'all';
+
+/** `region` of the national rows (all regions together); refused as a region name at ingest. */
+export const NATIONAL = 'national';
 
 /** One `export regions` row: one region × stratum × variable. */
 export interface RegionRow {
@@ -127,7 +130,8 @@ export type NoteCode =
   | 'no_values'
   | 'totals_per_hectare_only'
   | 'species_names_partial'
-  | 'caution';
+  | 'caution'
+  | 'national_strata';
 
 export interface SummaryNote {
   readonly code: NoteCode;
@@ -153,5 +157,34 @@ export interface RegionSummary {
   readonly disturbance: DisturbanceSummary;
   /** null when no plot came with species names. */
   readonly species: readonly SpeciesCountRow[] | null;
+  readonly notes: readonly SummaryNote[];
+}
+
+/** One stratum of the national estimate: a region × forest type with plots. */
+export interface NationalStratum {
+  readonly region: string;
+  readonly forest_type: string;
+  readonly n_plots: number;
+  /** Its forest area (strata.csv); null where unknown. */
+  readonly forest_area_ha: number | null;
+}
+
+/** All regions together, stratified by region × forest type (Cochran 1977 ch. 5). */
+export interface NationalSummary {
+  readonly n_plots: number;
+  /** Regions with plots, sorted. */
+  readonly regions: readonly string[];
+  /** Forest types with plots, sorted. */
+  readonly forest_types: readonly string[];
+  readonly strata: readonly NationalStratum[];
+  readonly weighting: Weighting;
+  readonly confidence: number;
+  readonly sampling_error_t: SamplingErrorT;
+  /** `export regions` rows with region `national`: `all` (over every region × forest type stratum)
+   * first, then each forest type nationally (over the regions where it has plots). */
+  readonly rows: readonly RegionRow[];
+  readonly totals: readonly TotalRow[];
+  /** How each row was made; `forest_type` says which row (strata are named `region / forest type`). */
+  readonly estimate_details: readonly (EstimateDetail & { readonly forest_type: string })[];
   readonly notes: readonly SummaryNote[];
 }

@@ -1,0 +1,95 @@
+import {
+  getNationalSnapshot,
+  insertNationalSnapshot,
+  listLatestSummaryVersions,
+  listRegionForestAreas,
+  listRegionLatestPlots,
+  listRegionNames,
+  type Queryable,
+  type ServiceDeps,
+} from '@stemwise/db';
+import type { Logger } from '@stemwise/platform';
+import { renderMeansChartSvg } from './charts/means-chart';
+import { summariseNation, type NationalRegionInput } from './summary/national-summary';
+import type { NationalSummary } from './summary/types';
+import type { SnapshotData, SnapshotMethod } from './snapshot-payload';
+import { payloadEtag, samplingErrorMultiplier } from './snapshots';
+
+type Deps = Pick<ServiceDeps, 'db' | 'config'> & { log?: Logger };
+
+// What one national_summaries.payload holds (format 1): the national rows and how they were made,
+// the visits they use, and the region summary versions current when it was assembled. The latter
+// make it stale: when any region gets a new summary version, the next summaries job assembles it again.
+
+export const NATIONAL_FORMAT = 1;
+
+export interface NationalPayload {
+  readonly format: typeof NATIONAL_FORMAT;
+  /** Plots, survey dates (latest visit of each plot) and species list as for a region. */
+  readonly data: Omit<SnapshotData, 'species_reference_version'> & { readonly regions: number };
+  readonly method: Pick<SnapshotMethod, 'estimator'>;
+  readonly summary: NationalSummary;
+  /** Region → its latest summary version (null: none yet) when this was assembled. */
+  readonly sources: Readonly<Record<string, number | null>>;
+  readonly charts: { readonly means: string | null };
+}
+
+export interface NationalSnapshot {
+  readonly version: number;
+  readonly etag: string;
+  readonly createdAt: Date;
+  readonly payload: NationalPayload;
+}
+
+export const NATIONAL_ESTIMATOR =
+  'All regions together: a stratified estimate with region × forest type as strata (Cochran 1977, Sampling Techniques, ch. 5): mean Σ W_h ȳ_h, variance Σ W_h² s_h²/n_h, Student t at Satterthwaite degrees of freedom; each forest type nationally with the regions as strata; weights from forest areas (strata.csv), else from plot counts; no finite population correction.';
+
+/** The latest national snapshot, or a given version; null when there is none. */
+export async function readNationalSnapshot(db: Queryable, version?: number): Promise<NationalSnapshot | null> {
+  const row = await getNationalSnapshot(db, version);
+  return row && { version: row.version, etag: row.etag, createdAt: row.createdAt, payload: row.payload as NationalPayload };
+}
+
+/** Assembles the national payload from the database (no write). */
+export async function assembleNationalSnapshot(deps: Deps, sources: Readonly<Record<string, number | null>>): Promise<NationalPayload> {
+  const { db, config } = deps;
+  const regions: NationalRegionInput[] = [];
+  const dates: string[] = [];
+  for (const region of await listRegionNames(db)) {
+    const [plots, forestAreas] = await Promise.all([listRegionLatestPlots(db, region), listRegionForestAreas(db, region)]);
+    for (const p of plots) dates.push(p.surveyDate);
+    regions.push({ region, forestAreas, plots: plots.map((p) => ({ plotId: p.plotKey, forestType: p.forestType, values: p.metrics })) });
+  }
+  const summary = summariseNation({ regions, options: { samplingErrorT: samplingErrorMultiplier(config) } });
+  dates.sort();
+  let means: string | null = null;
+  try {
+    means = await renderMeansChartSvg(summary.rows, { label: 'whole country', subtitle: 'dark: all regions together (stratified by region × forest type); light: each forest type nationally' });
+  } catch (err) {
+    deps.log?.error({ err }, 'national means chart could not be rendered');
+  }
+  return {
+    format: NATIONAL_FORMAT,
+    data: { plots: summary.n_plots, regions: summary.regions.length, first_survey: dates[0] ?? null, last_survey: dates.at(-1) ?? null },
+    method: { estimator: NATIONAL_ESTIMATOR },
+    summary,
+    sources,
+    charts: { means },
+  };
+}
+
+const sameSources = (a: Readonly<Record<string, number | null>>, b: Readonly<Record<string, number | null>>): boolean =>
+  Object.keys(a).length === Object.keys(b).length && Object.entries(a).every(([k, v]) => Object.hasOwn(b, k) && b[k] === v);
+
+/**
+ * The national step of the `report.summaries` stage, run after the region summaries: a new national
+ * version when the region summary versions differ from those the latest one was built from (or there
+ * is none). Returns null when it was up to date.
+ */
+export async function refreshNationalSummary(deps: Deps): Promise<{ version: number; created: boolean } | null> {
+  const sources = Object.fromEntries([...(await listLatestSummaryVersions(deps.db)).entries()].sort(([a], [b]) => (a < b ? -1 : a > b ? 1 : 0)));
+  const latest = await readNationalSnapshot(deps.db);
+  if (latest && sameSources(latest.payload.sources, sources)) return null;
+  const payload = await assembleNationalSnapshot(deps, sources);
+  return insertNationalSnapshot(deps.db, payloadEtag(payload), payload);
+}
