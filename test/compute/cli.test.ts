@@ -42,6 +42,17 @@ describe('stemwise recompute and export', () => {
     fs.rmSync(out, { recursive: true, force: true });
   });
 
+  const inventory = () => generateInventory({ seed: 2, plotsPerCell: 2, stemsPerPlot: 30 });
+  let computed = false;
+  /** The inventory loaded and recomputed, as the recompute test leaves it: done here when a test runs without it (vitest -t). */
+  async function recomputed(): Promise<void> {
+    if (computed) return;
+    await loadInventory(s.db, inventory());
+    const r = await inProcess(['recompute']);
+    expect(r.code, r.stderr).toBe(0);
+    computed = true;
+  }
+
   it('says "nothing stale" when there is nothing to do', async () => {
     const r = await inProcess(['recompute']);
     expect(r.stderr).toBe('');
@@ -50,7 +61,7 @@ describe('stemwise recompute and export', () => {
   });
 
   it('recomputes in-process without REDIS_URL and prints what ran', async () => {
-    await loadInventory(s.db, generateInventory({ seed: 2, plotsPerCell: 2, stemsPerPlot: 30 }));
+    await loadInventory(s.db, inventory());
     const r = await stemwise(['recompute'], noRedis());
     expect(r.code, r.stderr).toBe(0);
     expect(r.stdout).toMatch(/^run \S+ \(manual\): (done|running)\n/);
@@ -58,9 +69,11 @@ describe('stemwise recompute and export', () => {
     expect(r.stdout).toMatch(/fits wet: (hump|increasing|decreasing|u_shape|none) \(n = \d+/);
     const [{ stale }] = await s.db.query<{ stale: number }>(`select count(*)::int stale from plot_visits where stale`);
     expect(stale).toBe(0);
+    computed = true;
   });
 
   it('writes export plots to a file, complete, and reports the row count on stderr', async () => {
+    await recomputed();
     const file = path.join(out, 'plots.csv');
     const r = await inProcess(['export', 'plots', '--out', file]);
     expect(r.code, r.stderr).toBe(0);
@@ -75,6 +88,7 @@ describe('stemwise recompute and export', () => {
   });
 
   it('writes export fits and GeoJSON to stdout, data only', async () => {
+    await recomputed();
     const fits = await inProcess(['export', 'fits', '--format', 'json', '--axis', 'fire_score', '--metric', 'richness']);
     expect(fits.code, fits.stderr).toBe(0);
     const rows = JSON.parse(fits.stdout);
@@ -104,6 +118,7 @@ describe('stemwise recompute and export', () => {
   });
 
   it('with REDIS_URL queues the planner job, or with --now plans and waits for the workers', async () => {
+    await recomputed();
     const queued = await inProcess(['recompute', '--all'], envFor(s, { STEMWISE_BOOTSTRAP: '50' }));
     expect(queued.code, queued.stderr).toBe(0);
     const jobId = /^queued (recompute\.manual\.\d{17}) /.exec(queued.stdout)?.[1];

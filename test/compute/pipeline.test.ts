@@ -25,6 +25,14 @@ describe('recompute pipeline', () => {
   });
   afterAll(async () => s?.cleanup());
 
+  /** The state after the first recompute: reached here when a test runs without the first one (vitest -t). */
+  async function computed(): Promise<void> {
+    if (firstCsv) return;
+    const { failures } = await recomputeInProcess(s.config, s.db);
+    expect(failures).toEqual([]);
+    firstCsv = await plotsText(s.db);
+  }
+
   it('computes every stale visit in chunks of STEMWISE_CHUNK_PLOTS and clears the marks', async () => {
     const { plan, failures } = await recomputeInProcess(s.config, s.db);
     expect(failures).toEqual([]);
@@ -44,6 +52,7 @@ describe('recompute pipeline', () => {
   });
 
   it('counts the unresolved names of the batch with their stems', async () => {
+    await computed();
     const rows = await s.db.query<{ name: string; level: string; stems: number }>(`select name, level, stems from batch_unresolved_names`);
     const expected = expectedUnresolved(inventory);
     expect(Object.keys(expected).length).toBeGreaterThan(2);
@@ -52,12 +61,14 @@ describe('recompute pipeline', () => {
   });
 
   it('says nothing is stale when nothing is, and runs nothing', async () => {
+    await computed();
     const { plan } = await recomputeInProcess(s.config, s.db);
     expect(plan).toBeNull();
     expect((await s.db.query(`select id from recompute_runs`)).length).toBe(1);
   });
 
   it('gives the same rows, counts and fits when everything is recomputed again (idempotent)', async () => {
+    await computed();
     const before = await snapshot();
     const { plan, failures } = await recomputeInProcess(s.config, s.db, true);
     expect(failures).toEqual([]);
@@ -67,6 +78,7 @@ describe('recompute pipeline', () => {
   });
 
   it('overwrites the same rows when a chunk job runs twice', async () => {
+    await computed();
     const ids = (await s.db.query<{ id: string }>(`select id from plot_visits order by id limit 5`)).map((r) => Number(r.id));
     const before = await snapshot();
     await computePlotChunk(s, 'no-such-run', ids, 'chunk.test.0');
@@ -77,6 +89,7 @@ describe('recompute pipeline', () => {
   });
 
   it('recomputes every plot after a new species reference version, with its guilds', async () => {
+    await computed();
     // The new list moves the genus Velarina from the pioneer to the shade-tolerant guild.
     const list = fixtureSpecies().map((sp) => (sp.name.startsWith('Velarina ') ? { ...sp, guild: 'shade_tolerant' as const } : sp));
     const shares = async () =>
@@ -108,6 +121,7 @@ describe('recompute pipeline', () => {
   });
 
   it('computes a new batch; a height model that changes brings its whole forest type along', async () => {
+    await computed();
     const more = generateInventory({ seed: 6, plotsPerCell: 1, stemsPerPlot: 40, prefix: 'Q', heightsShare: 1 });
     await loadInventory(s.db, more);
     const { plan, failures } = await recomputeInProcess(s.config, s.db);

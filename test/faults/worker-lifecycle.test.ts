@@ -54,6 +54,16 @@ describe('worker lifecycle', () => {
     return { runId: run.id, chunk };
   }
 
+  /**
+   * The worker the first test hands over to, once it has computed the seeded plots: started here when a
+   * test runs without the first one (vitest -t).
+   */
+  async function handOverWorker(): Promise<void> {
+    if (handOver) return;
+    handOver = await startWorker('compute', { ...env, STEMWISE_STOP_GRACE_SECONDS: '1' }, 'compute (hands back)');
+    await runDone((await until('a run', () => latestRun(s.db), 60_000)).id);
+  }
+
   beforeAll(async () => {
     s = await useServices(FAULT_ENV);
     port = await freePort();
@@ -91,6 +101,7 @@ describe('worker lifecycle', () => {
   });
 
   it('hands back a job that outlasts the grace time; another worker retries it with backoff and completes it', async () => {
+    await handOverWorker();
     const previous = (await latestRun(s.db))!.id;
     await loadInventory(s.db, faultInventory(1, { seed: 29, prefix: 'Q' }));
     const lock = await lockVisit(Number(await firstStaleVisit()));

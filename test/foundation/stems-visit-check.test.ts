@@ -2,7 +2,7 @@ import fs from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
 import pg from 'pg';
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { afterAll, beforeAll, beforeEach, describe, expect, it } from 'vitest';
 import { loadConfig } from '@stemwise/platform';
 import { migrateDatabase, openDatabase, type Db } from '@stemwise/db';
 import { useServices, type TestServices } from '../support/services';
@@ -44,6 +44,10 @@ function engineSuite(name: string, open: () => Promise<{ db: Db; close(): Promis
     let v2: number;
     beforeAll(async () => {
       ({ db, close } = await open());
+    });
+    // Each test starts from the seed alone, whatever the others left.
+    beforeEach(async () => {
+      await db.query('truncate stems, plot_visits, plots, regions, batches cascade');
       [v1, v2] = await seed(db);
     });
     afterAll(async () => close?.());
@@ -59,6 +63,7 @@ function engineSuite(name: string, open: () => Promise<{ db: Db; close(): Promis
     });
 
     it('never changes a stem’s visit or a visit’s id', async () => {
+      await db.query(...insertStem(v1, 'a'));
       await expect(db.query('update stems set visit_id = $1', [v2])).rejects.toThrow(/stems visit_id cannot change/);
       await expect(db.query('update plot_visits set id = id + 1000 where id = $1', [v1])).rejects.toThrow(/plot_visits id cannot change/);
       await db.query(`update stems set dbh_cm = 21 where visit_id = $1`, [v1]); // other columns may change
@@ -66,6 +71,7 @@ function engineSuite(name: string, open: () => Promise<{ db: Db; close(): Promis
     });
 
     it('deletes the stems of deleted visits, directly or through a deleted plot', async () => {
+      await db.query(...insertStem(v1, 'a'));
       await db.query(...insertStem(v2, 'a'));
       await db.query(...insertStem(v2, 'b'));
       await db.query('delete from plot_visits where id = $1', [v1]);

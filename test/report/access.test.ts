@@ -173,6 +173,7 @@ describe('access by role', () => {
     const h = headers('readerS');
     await app.inject({ url: '/v1/regions/Southmere/summary', headers: h });
     await app.inject({ url: '/v1/regions/Northvale/summary', headers: h });
+    await app.inject({ url: '/v1/regions', headers: headers('revoked') }); // a refused use of its own to find below
     await new Promise((r) => setTimeout(r, 200));
     const entries = await listAuditEntries(s.db, { actor: tokens.readerS.id, action: 'token.use' });
     const targets = entries.map((e) => `${e.target} ${(e.details.params as { region?: string })?.region} ${e.details.status}`);

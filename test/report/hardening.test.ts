@@ -127,7 +127,9 @@ describe('the served report under hostile input', () => {
     c.sock.write(uploadHead(uploader.token, 'slow', 10_000));
     c.sock.write(partHead('slow', 'trees', 'trees.csv'));
     const drip = setInterval(() => c.sock.writable && c.sock.write('a'), 300);
-    await Promise.race([c.closed, new Promise((r) => setTimeout(r, 10_000))]);
+    let limit: NodeJS.Timeout | undefined;
+    await Promise.race([c.closed, new Promise((r) => (limit = setTimeout(r, 10_000)))]);
+    clearTimeout(limit);
     clearInterval(drip);
     expect(c.sock.destroyed || c.sock.readableEnded).toBe(true);
     expect(Date.now() - started).toBeLessThan(8000);
