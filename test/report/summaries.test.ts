@@ -204,13 +204,17 @@ describe('report.summaries', () => {
     expect(await listStale(s.db, 'summary')).toEqual([]);
   });
 
-  it('fails the run, naming the cause, when a region called national was stored before the name was reserved', async () => {
+  it('records the cause and still finishes the run when a region called national was stored before the name was reserved', async () => {
     await seedPlots(s.db, [{ key: 'NA-1', region: 'national', forestType: 'dry', metrics: { basal_area_m2_ha: 9 } }]);
     await markStale(s.db, 'summary', ['national']);
     const runId = await seedRun(s.db);
-    await expect(createProcessors(deps)['report.summaries']!({ runId }, jobContext(testLogger()))).rejects.toThrow(/national.*may not be named 'national'/);
+    const result = (await createProcessors(deps)['report.summaries']!({ runId }, jobContext(testLogger()))) as { national: unknown; rejected: Array<{ region: string; reason: string }> };
+    expect(result.national).toBeNull();
+    expect(result.rejected.map((r) => r.region)).toContain('national');
     const [run] = await s.db.query<{ state: string }>(`select state from recompute_runs where id = $1`, [runId]);
-    expect(run.state).toBe('failed');
+    expect(run.state).toBe('done');
+    const problems = await s.db.query<{ stage: string; reason: string }>(`select stage, reason from compute_problems where run_id = $1`, [runId]);
+    expect(problems).toEqual([{ stage: 'summary', reason: expect.stringMatching(/may not be named 'national'/) }]);
     expect((await listNationalVersions(s.db)).map((v) => v.version)).toEqual([2, 1]); // no new version: the last good one stays
   });
 });

@@ -1,8 +1,9 @@
-import { finishRecomputeRun, mergeRunDetails, problemLine, type ServiceDeps } from '@stemwise/db';
+import { clearProblems, finishRecomputeRun, mergeRunDetails, problemLine, recordProblems, type ServiceDeps } from '@stemwise/db';
 import { parsePayload, type ProcessorMap } from '@stemwise/platform';
 import { queueFollowUp } from '@stemwise/compute/maintenance/follow-up';
 import { refreshNationalSummary } from './national-snapshot';
 import { RegionSummaryInputError } from './summary/input';
+import { NATIONAL } from './summary/types';
 import { refreshStaleSummaries } from './snapshots';
 
 /** Advisory lock key: one summaries job at a time across all report workers (they write versions). */
@@ -23,11 +24,16 @@ export function createProcessors(deps: ServiceDeps): ProcessorMap {
         // The national summary mixes every region: only once they all went through, else it stays stale.
         if (regions.rejected.length) return { ...regions, national: null };
         try {
-          return { ...regions, national: await refreshNationalSummary({ db, config: deps.config, log: ctx.log }) };
+          const national = await refreshNationalSummary({ db, config: deps.config, log: ctx.log });
+          await clearProblems(db, 'summary', [NATIONAL]);
+          return { ...regions, national };
         } catch (err) {
           if (!(err instanceof RegionSummaryInputError)) throw err;
-          ctx.log.error({ err }, 'national summary rejected its input');
-          return { ...regions, national: null, rejected: [{ region: 'national', reason: err.message }] };
+          // Like a region whose summary cannot be built: the last good version stays, the reason is
+          // recorded (batch show, the API, the run's log) and the run still ends done.
+          ctx.log.error({ err, runId }, 'national summary rejected its input; the region summaries are stored');
+          await recordProblems(db, runId, [{ stage: 'summary', forestType: null, region: NATIONAL, visitId: null, plotKey: null, reason: err.message }]);
+          return { ...regions, national: null, rejected: [...regions.rejected, { region: NATIONAL, reason: err.message }] };
         }
       });
       const details = {
