@@ -10,7 +10,8 @@ import crypto from 'node:crypto';
 import { parseArgs } from 'node:util';
 import { createLogger, loadConfig, type JobQueue } from '@stemwise/platform';
 import { migrateDatabase, openDatabase, syncForestTypes, type Db } from '@stemwise/db';
-import { computePlotChunk, finishPlotsStage, planRecompute, refreshStaleFits } from '@stemwise/compute';
+import { computePlotChunk, refreshStaleFits } from '@stemwise/compute';
+import { finishPlotsStage, planRecompute } from '@stemwise/core';
 import { fixtureSpecies, loadSpecies, rng } from '../test/compute/fixtures';
 
 const { values } = parseArgs({ options: { big: { type: 'boolean', default: false }, sizes: { type: 'string' }, keep: { type: 'boolean', default: false } } });

@@ -18,7 +18,7 @@ import pg from 'pg';
 import { createLogger, InProcessQueue, loadConfig } from '@stemwise/platform';
 import { getBatch, migrateDatabase, openDatabase, syncForestTypes } from '@stemwise/db';
 import { generateInventory } from '@stemwise/demo-inventory';
-import { submitBatch } from '@stemwise/ingest';
+import { submitBatch } from '@stemwise/core';
 import { bundle, ROOT } from './build';
 import type { IngestRun } from './bench-ingest-child';
 

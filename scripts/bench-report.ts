@@ -21,24 +21,16 @@ import { fileURLToPath } from 'node:url';
 import { Pool } from 'undici';
 import pg from 'pg';
 import { createLogger, InProcessQueue, loadConfig } from '@stemwise/platform';
-import { markStale, migrateDatabase, openDatabase, syncForestTypes, type ServiceDeps } from '@stemwise/db';
+import { markStale, migrateDatabase, openDatabase, syncForestTypes } from '@stemwise/db';
+import { createRng, type ServiceDeps } from '@stemwise/core';
 import { buildServer, createProcessors } from '@stemwise/report';
 import { jobContext, seedForestArea, seedPlots, seedRun, seedSpecies, type FixturePlot } from '../test/report/fixture';
 import { createToken } from '../test/report/tokens';
 
 const REGION = 'Northvale';
 
-/** Deterministic pseudo-random numbers (mulberry32), so every run seeds the same region. */
-function random(seed: number): () => number {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
+/** Deterministic pseudo-random numbers (the seeded generator of @stemwise/core), so every run seeds the same region. */
+const random = (seed: number): (() => number) => createRng(seed).next;
 
 function inventedPlots(n: number): FixturePlot[] {
   const r = random(20261201);

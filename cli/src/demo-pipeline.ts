@@ -1,7 +1,8 @@
 import fs from 'node:fs';
 import path from 'node:path';
 import { InProcessQueue, loadConfig, type Config, type Logger } from '@stemwise/platform';
-import { migrateDatabase, openDatabase, syncForestTypes, type ServiceDeps } from '@stemwise/db';
+import { migrateDatabase, openDatabase, syncForestTypes } from '@stemwise/db';
+import { filesInDir, submitBatch, type ServiceDeps } from '@stemwise/core';
 import { availableProcessors } from './processors';
 
 export interface DemoOptions {
@@ -65,9 +66,8 @@ export async function runDemo(o: DemoOptions): Promise<DemoResult> {
     if (missing.length) throw new Error(`this build lacks the ${missing.join(', ')} service(s)`);
     await queue.work(processors, { queues });
 
-    const ingest = await import('@stemwise/ingest');
     step(`submitting the batch in ${o.inputDir}`);
-    const submitted = await ingest.submitBatch(deps, ingest.filesInDir(o.inputDir), {}, 'demo');
+    const submitted = await submitBatch(deps, filesInDir(o.inputDir), {}, 'demo');
     step('validating, loading, computing plot metrics, fitting curves, assembling summaries');
     const failures = await queue.drain();
     if (failures.length) throw new Error(`a job failed: ${failures[0].name}: ${failures[0].error}`);

@@ -1,4 +1,4 @@
-import type { ServiceDeps } from '@stemwise/db';
+import type { ServiceDeps } from '@stemwise/core';
 import type { ProcessorMap, QueueName } from '@stemwise/platform';
 
 export type ServiceName = 'ingest' | 'compute' | 'report';
@@ -32,7 +32,7 @@ export async function processorsFor(deps: ServiceDeps, services: readonly Servic
     if (typeof mod.createProcessors !== 'function') throw new Error(`the ${service} service has no processors`);
     Object.assign(processors, mod.createProcessors(deps));
     if (service === 'compute') {
-      const { createMaintenanceProcessors } = await import('@stemwise/compute/maintenance/processors');
+      const { createMaintenanceProcessors } = await import('@stemwise/core');
       Object.assign(processors, createMaintenanceProcessors(deps));
     }
     queues.push(...SERVICE_QUEUES[service]);
@@ -70,7 +70,7 @@ export async function availableProcessors(deps: ServiceDeps): Promise<{ processo
     Object.assign(processors, mod.createProcessors(deps));
     if (service === 'compute') {
       try {
-        const { createMaintenanceProcessors } = await import('@stemwise/compute/maintenance/processors');
+        const { createMaintenanceProcessors } = await import('@stemwise/core');
         Object.assign(processors, createMaintenanceProcessors(deps));
       } catch (err) {
         if (!isMissingModule(err)) throw err;

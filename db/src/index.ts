@@ -2,7 +2,6 @@ export * from './connection';
 export * as schema from './schema/index';
 export * from './queries/forest-types';
 export * from './queries/recompute';
-export type { ServiceDeps } from './deps';
 export * from './queries/reconcile';
 export * from './queries/metrics';
 export * from './queries/fits';

@@ -2,4 +2,3 @@ export * from './config';
 export * from './errors';
 export * from './logger';
 export * from './queue/index';
-export * from './table-format';

@@ -3,8 +3,7 @@ import { PLANTED_CURVES, plantedAlpha } from '@stemwise/demo-inventory';
 import { crpPartition } from '@stemwise/demo-inventory/community';
 import { Rng } from '@stemwise/demo-inventory/random';
 import type { ForestType } from '@stemwise/demo-inventory';
-import { fisherAlphaFromTotals } from '@stemwise/compute/science/diversity';
-import { fitCurves } from '@stemwise/compute/science/verdict';
+import { fisherAlphaFromTotals, fitCurves } from '@stemwise/core';
 
 // Statistical behaviour of the verdicts on data simulated the demo generator's way, with its known
 // truth: each plot's target alpha is the generator's planted curve at the plot's disturbance index,

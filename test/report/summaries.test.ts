@@ -1,10 +1,10 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import tQuantile from '@stdlib/stats-base-dists-t-quantile';
-import { getSummarySnapshot, listStale, listSummaryVersions, markStale, type ServiceDeps } from '@stemwise/db';
+import { getSummarySnapshot, listStale, listSummaryVersions, markStale } from '@stemwise/db';
+import type { RegionRow, ServiceDeps } from '@stemwise/core';
 import { InProcessQueue } from '@stemwise/platform';
 import { createProcessors } from '@stemwise/report';
 import type { SnapshotPayload } from '../../services/report/src/snapshot-payload';
-import type { RegionRow } from '../../services/report/src/summary/types';
 import { testLogger, useServices, type TestServices } from '../support/services';
 import { jobContext, seedRun } from './fixture';
 import { seedScenario } from './seed-scenario';

@@ -1,7 +1,8 @@
 import fs from 'node:fs';
 import { parseArgs } from 'node:util';
 import { StemwiseError } from '@stemwise/platform';
-import { batchIssuesCsv, batchReport, formatBatchReport } from '@stemwise/ingest';
+import { formatBatchReport } from '@stemwise/ingest';
+import { batchIssuesCsv, batchReport } from '@stemwise/core';
 import type { Runtime } from '../runtime';
 
 export const summary = 'shows a batch: batch show ID [--format text|json] [--errors-csv FILE]';

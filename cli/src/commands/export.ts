@@ -1,5 +1,5 @@
 import { parseArgs } from 'node:util';
-import type { ServiceDeps } from '@stemwise/db';
+import { checkFitColumn, type ServiceDeps } from '@stemwise/core';
 import { StemwiseError } from '@stemwise/platform';
 import type { Runtime } from '../runtime';
 
@@ -60,8 +60,8 @@ export async function run(args: string[], rt: Runtime): Promise<number> {
   let written: { rows: number; staleVisits?: number };
   if (kind === 'fits') {
     // Names are checked before the database is opened: a typo is a usage error at once.
-    if (values.axis !== undefined) compute.checkFitColumn('axis', values.axis);
-    if (values.metric !== undefined) compute.checkFitColumn('metric', values.metric);
+    if (values.axis !== undefined) checkFitColumn('axis', values.axis);
+    if (values.metric !== undefined) checkFitColumn('metric', values.metric);
     const db = await rt.db();
     written = await compute.exportFits({ db, config: rt.config, log: rt.log }, { format: format as 'csv' | 'json', axis: values.axis, metric: values.metric }, target as never);
   } else if (kind === 'plots') {

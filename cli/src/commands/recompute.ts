@@ -1,5 +1,6 @@
 import { parseArgs } from 'node:util';
-import { getRecomputeRun, type ServiceDeps } from '@stemwise/db';
+import { getRecomputeRun } from '@stemwise/db';
+import { planRecompute, type ServiceDeps } from '@stemwise/core';
 import { StemwiseError, type JobName } from '@stemwise/platform';
 import { availableProcessors } from '../processors';
 import type { Runtime } from '../runtime';
@@ -21,7 +22,6 @@ export async function run(args: string[], rt: Runtime): Promise<number> {
   }
   const all = values.all === true;
   const deps: ServiceDeps = { config: rt.config, db: await rt.db(), log: rt.log, queue: await rt.queue() };
-  const { planRecompute } = await import('@stemwise/compute');
 
   if (deps.queue.kind === 'in-process') {
     const { processors, queues, missing } = await availableProcessors(deps);
@@ -86,7 +86,7 @@ export async function run(args: string[], rt: Runtime): Promise<number> {
 
 /** No run was planned: nothing is stale, or a run is in progress and the run after it takes what is stale now. */
 async function nothingStale(deps: ServiceDeps): Promise<number> {
-  const { liveRecompute } = await import('@stemwise/compute/maintenance/live-run');
+  const { liveRecompute } = await import('@stemwise/core');
   const running = await liveRecompute(deps);
   process.stdout.write(running ? `run ${running} is in progress; what is stale now is recomputed by the run that follows it\n` : 'nothing stale\n');
   return 0;

@@ -1,5 +1,5 @@
 import { parseArgs } from 'node:util';
-import type { ServiceDeps } from '@stemwise/db';
+import type { ServiceDeps } from '@stemwise/core';
 import { StemwiseError } from '@stemwise/platform';
 import { processorsFor, type ServiceName } from '../processors';
 import type { Runtime } from '../runtime';
@@ -38,7 +38,7 @@ export async function run(args: string[], rt: Runtime): Promise<number> {
     // Work that PostgreSQL says is due but no queued job covers is queued again, and the nightly schedule
     // registered again if Redis lost it, at start and every few minutes. The timer lives in the process
     // (not in Redis) so that it survives Redis losing its data; every compute worker runs it, which is safe.
-    const { reconcile } = await import('@stemwise/compute/maintenance/reconcile');
+    const { reconcile } = await import('@stemwise/core');
     await reconcile(deps);
     timer = setInterval(() => void reconcile(deps).catch((err) => log.error({ err }, 'reconcile failed')), config.reconcileMinutes * 60_000);
     if (queue.kind === 'bullmq') log.info({ cron: config.nightlyCron, timezone: config.timezone }, 'nightly recompute scheduled');

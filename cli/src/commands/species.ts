@@ -2,6 +2,7 @@ import fs from 'node:fs';
 import { parseArgs } from 'node:util';
 import { StemwiseError } from '@stemwise/platform';
 import { importSpeciesFile } from '@stemwise/ingest';
+import { delimiterOption } from '../delimiter-option';
 import type { Runtime } from '../runtime';
 
 export const summary = 'loads the species reference list: species import FILE (a new version)';
@@ -29,10 +30,9 @@ export async function run(args: string[], rt: Runtime): Promise<number> {
   const [sub, file, ...rest] = positionals;
   if (sub !== 'import' || !file || rest.length) throw new StemwiseError('usage', `expected: species import FILE\n${HELP}`);
   if (!fs.existsSync(file) || !fs.statSync(file).isFile()) throw new StemwiseError('usage', `${file} is not a file`);
-  const d = values.delimiter;
-  if (d !== undefined && d !== ',' && d !== ';') throw new StemwiseError('usage', `--delimiter takes ',' or ';', not ${JSON.stringify(d)}`);
+  const d = delimiterOption(values.delimiter);
   if (values['decimal-comma'] && d !== ';') throw new StemwiseError('usage', "--decimal-comma needs --delimiter ';'");
-  const result = await importSpeciesFile(await rt.db(), file, { delimiter: d as ',' | ';' | undefined, decimalComma: values['decimal-comma'] });
+  const result = await importSpeciesFile(await rt.db(), file, { delimiter: d, decimalComma: values['decimal-comma'] });
   const issues = result.log.rows();
   for (const i of issues) process.stderr.write(`${i.severity} ${i.rule} ${i.file}${i.line === null ? '' : `:${i.line}`}  ${i.message}\n`);
   if (result.versionId === null) {

@@ -1,21 +1,12 @@
 import fs from 'node:fs';
 import path from 'node:path';
 import { parseArgs } from 'node:util';
-import { getBatch, type ServiceDeps } from '@stemwise/db';
+import { getBatch } from '@stemwise/db';
+import { batchReport, filesInDir, SubmissionError, submitBatch, type ServiceDeps, type SubmittedFile } from '@stemwise/core';
 import { StemwiseError, type ProcessorMap, type QueueName } from '@stemwise/platform';
-import {
-  batchReport,
-  filesInDir,
-  formatBatchReport,
-  ingestEvents,
-  progressBars,
-  progressLine,
-  submitBatch,
-  SubmissionError,
-  type IngestProgress,
-  type SubmittedFile,
-} from '@stemwise/ingest';
+import { formatBatchReport, ingestEvents, progressBars, progressLine, type IngestProgress } from '@stemwise/ingest';
 import { processorsFor, type ServiceName } from '../processors';
+import { delimiterOption } from '../delimiter-option';
 import type { Runtime } from '../runtime';
 
 /** How long `--wait` lets a batch sit before it checks that a worker serves its queue. */
@@ -119,8 +110,7 @@ export async function run(args: string[], rt: Runtime): Promise<number> {
     if (!values.plots || !values.trees) throw new StemwiseError('usage', `give an upload folder, or --plots FILE and --trees FILE\n${HELP}`);
     files = (['plots', 'trees', 'strata', 'species'] as const).map((k) => fileArg(values[k], k)).filter((f): f is SubmittedFile => f !== null);
   }
-  const delimiter = values.delimiter;
-  if (delimiter !== undefined && delimiter !== ',' && delimiter !== ';') throw new StemwiseError('usage', `--delimiter takes ',' or ';', not ${JSON.stringify(delimiter)}`);
+  const delimiter = delimiterOption(values.delimiter);
 
   const deps: ServiceDeps = { config: rt.config, db: await rt.db(), log: rt.log, queue: await rt.queue() };
   const inProcess = deps.queue.kind === 'in-process';
@@ -132,7 +122,7 @@ export async function run(args: string[], rt: Runtime): Promise<number> {
     result = await submitBatch(
       deps,
       files,
-      { skipInvalid: values['skip-invalid'], replace: values.replace, delimiter: delimiter as ',' | ';' | undefined, decimalComma: values['decimal-comma'] },
+      { skipInvalid: values['skip-invalid'], replace: values.replace, delimiter, decimalComma: values['decimal-comma'] },
       'cli',
     );
   } catch (err) {

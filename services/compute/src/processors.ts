@@ -1,8 +1,8 @@
-import { mergeRunDetails, type ServiceDeps } from '@stemwise/db';
+import { mergeRunDetails } from '@stemwise/db';
+import { finishPlotsStage, planRecompute, type ServiceDeps } from '@stemwise/core';
 import { parsePayload, type ProcessorMap } from '@stemwise/platform';
 import { refreshStaleFits } from './fits';
 import { computePlotChunk } from './plot-chunk';
-import { finishPlotsStage, planRecompute } from './recompute';
 
 /**
  * The compute service's processors: `compute.*` and the recompute planner `maintenance.recompute`

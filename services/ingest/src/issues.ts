@@ -1,8 +1,5 @@
 import type { BatchIssueRow } from '@stemwise/db';
-import type { Rule } from './rules/rule';
-
-/** The `column` of the row that stands for issues counted but not stored (see IssueLog). */
-export const OMITTED_MARK = '*';
+import { OMITTED_MARK, type Rule } from '@stemwise/core';
 
 /**
  * Every issue of a batch is counted; the first `capPerRule` of each rule are kept with their line,

@@ -1,4 +1,5 @@
-import { getBatch, deleteBatchIssues, markBatchFailed, startBatchValidation, type ServiceDeps } from '@stemwise/db';
+import { getBatch, deleteBatchIssues, markBatchFailed, startBatchValidation } from '@stemwise/db';
+import { type ServiceDeps } from '@stemwise/core';
 import { oneLine, parsePayload, PermanentError, type JobContext, type ProcessorMap } from '@stemwise/platform';
 import { ingestBatch, type IngestOptions } from './ingest-batch';
 

@@ -1,4 +1,4 @@
-import type { BatchReport } from './report';
+import type { BatchReport } from '@stemwise/core';
 
 const n = (x: number) => x.toLocaleString('en-US');
 

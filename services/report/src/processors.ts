@@ -1,6 +1,6 @@
-import { failRecomputeRun, finishRecomputeRun, mergeRunDetails, type ServiceDeps } from '@stemwise/db';
+import { failRecomputeRun, finishRecomputeRun, mergeRunDetails } from '@stemwise/db';
+import { queueFollowUp, type ServiceDeps } from '@stemwise/core';
 import { parsePayload, PermanentError, type ProcessorMap } from '@stemwise/platform';
-import { queueFollowUp } from '@stemwise/compute/maintenance/follow-up';
 import { refreshStaleSummaries } from './snapshots';
 
 /** Advisory lock key: one summaries job at a time across all report workers (they write versions). */

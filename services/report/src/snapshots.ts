@@ -1,26 +1,9 @@
 import crypto from 'node:crypto';
-import {
-  clearStale,
-  insertSummarySnapshot,
-  listCurveFits,
-  listLatestPlotMetrics,
-  listRegionForestAreas,
-  listRegionLatestPlots,
-  listRegionStemNames,
-  listStaleMarks,
-  regionExists,
-  type ServiceDeps,
-} from '@stemwise/db';
+import { clearStale, insertSummarySnapshot, listCurveFits, listLatestPlotMetrics, listRegionForestAreas, listRegionLatestPlots, listRegionStemNames, listStaleMarks, regionExists } from '@stemwise/db';
+import { currentSpecies, fitCurves, IPCC_2006_CARBON_FRACTION, pointsOf, toFitRow, type CurveResult, type SamplingErrorT, type ServiceDeps } from '@stemwise/core';
 import { PermanentError, type Config, type Logger } from '@stemwise/platform';
-import { renderFitChartSvg } from '@stemwise/compute/charts/fit-chart';
-import { pointsOf, toFitRow } from '@stemwise/compute/fits';
-import { currentSpecies } from '@stemwise/compute/species-cache';
-import { IPCC_2006_CARBON_FRACTION } from '@stemwise/compute/science/allometry';
-import { fitCurves, type CurveResult } from '@stemwise/compute/science/verdict';
-import { renderGuildChartSvg } from './charts/guild-chart';
-import { renderMeansChartSvg } from './charts/means-chart';
+import { renderFitChartSvg, renderGuildChartSvg, renderMeansChartSvg } from '@stemwise/core/charts';
 import { RegionSummaryInputError, summariseRegion, type PlotMetrics } from './summary/region-summary';
-import type { SamplingErrorT } from './estimators/stratified';
 import { SNAPSHOT_FORMAT, type FitChart, type SnapshotFitRow, type SnapshotMethod, type SnapshotPayload } from './snapshot-payload';
 
 type Deps = Pick<ServiceDeps, 'db' | 'config'> & { log?: Logger };

@@ -3,7 +3,9 @@
 // zod schemas, because a zod schema built from them takes 13–15 times as long (scripts/bench-validate.ts)
 // and a batch holds millions of rows; the tables are plain data, so RULES.md and tests read them too.
 
-export type FileKind = 'plots' | 'trees' | 'strata' | 'species';
+import type { FileKind } from '@stemwise/core';
+
+export type { FileKind };
 
 interface Base {
   readonly name: string;

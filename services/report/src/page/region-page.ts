@@ -1,6 +1,5 @@
 import type { Snapshot } from '../snapshot-payload';
-import type { DisturbanceRow, RegionRow } from '../summary/types';
-import { HEADLINE_VARIABLES, totalUnit, variableLabel } from '../variables';
+import { HEADLINE_VARIABLES, totalUnit, variableLabel, type DisturbanceRow, type RegionRow } from '@stemwise/core';
 import { figure, interval, isoMinute, percentOfShare, samplingError } from './figures';
 import { html, safeSvg, type Markup } from './html';
 import { pageShell } from './shell';

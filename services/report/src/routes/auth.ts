@@ -1,5 +1,5 @@
 import type { FastifyInstance, FastifyReply, FastifyRequest, preHandlerAsyncHookHandler } from 'fastify';
-import type { ServiceDeps } from '@stemwise/db';
+import type { ServiceDeps } from '@stemwise/core';
 import type { Principal, TokenVerifier } from '../access';
 import type { AuditWriter } from '../audit';
 import type { SummaryCache } from '../summary-cache';
