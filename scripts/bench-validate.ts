@@ -12,9 +12,7 @@ import { pathToFileURL } from 'node:url';
 import { parseArgs } from 'node:util';
 import { z } from 'zod';
 import { generateInventory } from '@stemwise/demo-inventory';
-import { TREE_COLUMNS, type ColumnSpec } from '@stemwise/ingest/rules/columns';
-import { compileFieldCheck, INVALID } from '@stemwise/ingest/rules/field-checks';
-import { IssueLog } from '@stemwise/ingest/issues';
+import { compileFieldCheck, INVALID, IssueLog, TREE_COLUMNS, type ColumnSpec } from '@stemwise/ingest';
 
 const NUMBER = /^[+-]?(?:\d+(?:\.\d*)?|\.\d+)(?:[eE][+-]?\d{1,3})?$/;
 const INTEGER = /^[+-]?\d+$/;

@@ -4,7 +4,7 @@ import os from 'node:os';
 import path from 'node:path';
 import { promisify } from 'node:util';
 import { afterAll, beforeAll, describe, expect, it, vi } from 'vitest';
-import { main } from '../../cli/src/main';
+import { main } from '@stemwise/cli';
 import type { ServiceDeps } from '@stemwise/core';
 import { BullQueue } from '@stemwise/platform';
 import { createProcessors } from '@stemwise/compute';

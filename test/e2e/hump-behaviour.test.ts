@@ -1,7 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { PLANTED_CURVES, plantedAlpha } from '@stemwise/demo-inventory';
-import { crpPartition } from '@stemwise/demo-inventory/community';
-import { Rng } from '@stemwise/demo-inventory/random';
+import { crpPartition, PLANTED_CURVES, plantedAlpha, Rng } from '@stemwise/demo-inventory';
 import type { ForestType } from '@stemwise/demo-inventory';
 import { fisherAlphaFromTotals, fitCurves } from '@stemwise/core';
 

@@ -3,7 +3,7 @@ import fs from 'node:fs';
 import path from 'node:path';
 import { promisify } from 'node:util';
 import { afterAll, beforeAll, describe, expect, it, vi } from 'vitest';
-import { main } from '../../cli/src/main';
+import { main } from '@stemwise/cli';
 import { envFor, useServices, type TestServices } from '../support/services';
 import { PLOTS, SPECIES, tempDir, TREES, writeUpload } from './support';
 

@@ -4,7 +4,7 @@ import { markStale } from '@stemwise/db';
 import { type ServiceDeps } from '@stemwise/core';
 import { BullQueue, InProcessQueue } from '@stemwise/platform';
 import { buildServer, createProcessors } from '@stemwise/report';
-import { SummaryResponse } from '../../services/report/src/routes/schemas';
+import { SummaryResponse } from '@stemwise/report';
 import { testLogger, useServices, type TestServices } from '../support/services';
 import { jobContext, seedPlots, seedRun } from './fixture';
 import { seedScenario } from './seed-scenario';

@@ -4,7 +4,7 @@ import { getSummarySnapshot, listStale, listSummaryVersions, markStale } from '@
 import type { RegionRow, ServiceDeps } from '@stemwise/core';
 import { InProcessQueue } from '@stemwise/platform';
 import { createProcessors } from '@stemwise/report';
-import type { SnapshotPayload } from '../../services/report/src/snapshot-payload';
+import type { SnapshotPayload } from '@stemwise/report';
 import { testLogger, useServices, type TestServices } from '../support/services';
 import { jobContext, seedRun } from './fixture';
 import { seedScenario } from './seed-scenario';

@@ -2,7 +2,7 @@ import crypto from 'node:crypto';
 import { parseArgs } from 'node:util';
 import { StemwiseError } from '@stemwise/platform';
 import { appendAuditEntries, insertAccessToken, listAccessTokens, listRegionNames, revokeAccessToken, type TokenRole } from '@stemwise/db';
-import { newToken, TOKEN_ROLES } from '@stemwise/report/access';
+import { newToken, TOKEN_ROLES } from '@stemwise/report';
 import type { Runtime } from '../runtime';
 
 export const summary = 'access tokens: token create --role admin|uploader|reader [--region R]… [--label L] | token list | token revoke ID';

@@ -4,3 +4,5 @@ export { writeRegionPages } from './static-pages';
 export { exportRegions, listRegionExportRows, type ExportRegionsOptions } from './export-regions';
 export { assembleRegionSnapshot, refreshStaleSummaries } from './snapshots';
 export { newToken, hashToken, TOKEN_ROLES, type Principal } from './access';
+export { SummaryResponse } from './routes/schemas';
+export type { SnapshotPayload } from './snapshot-payload';
