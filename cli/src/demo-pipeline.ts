@@ -3,7 +3,7 @@ import path from 'node:path';
 import { InProcessQueue, loadConfig, type Config, type Logger } from '@stemwise/platform';
 import { migrateDatabase, openDatabase, syncForestTypes } from '@stemwise/db';
 import { filesInDir, submitBatch, type ServiceDeps } from '@stemwise/core';
-import { availableProcessors } from './processors';
+import { allProcessors } from './processors';
 
 export interface DemoOptions {
   /** Folder holding plots.csv(.gz), trees.csv(.gz), optionally strata and species. */
@@ -62,8 +62,7 @@ export async function runDemo(o: DemoOptions): Promise<DemoResult> {
     await migrateDatabase(db);
     await syncForestTypes(db, config.forestTypes);
     const deps: ServiceDeps = { config, db, log: o.log, queue };
-    const { processors, queues, missing } = await availableProcessors(deps);
-    if (missing.length) throw new Error(`this build lacks the ${missing.join(', ')} service(s)`);
+    const { processors, queues } = await allProcessors(deps);
     await queue.work(processors, { queues });
 
     step(`submitting the batch in ${o.inputDir}`);

@@ -3,7 +3,7 @@ import { Runtime } from './runtime';
 
 type Command = { summary: string; run(args: string[], rt: Runtime): Promise<number> };
 
-// One module per command; a command whose issue has not landed yet says so plainly.
+// One module per command, loaded when it runs.
 const COMMANDS: Record<string, () => Promise<Command>> = {
   migrate: () => import('./commands/migrate'),
   species: () => import('./commands/species'),

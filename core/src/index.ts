@@ -2,6 +2,7 @@
 // each. It sits below the three services and above @stemwise/db and @stemwise/platform; the pure
 // science (science/) does no I/O.
 export type { ServiceDeps } from './deps';
+export type { ServiceDescriptor, ServiceName, StartedService } from './service';
 export * from './science/index';
 export * from './fits/fit-columns';
 export * from './fits/stored-fits';
@@ -27,3 +28,4 @@ export * from './recompute/follow-up';
 export * from './recompute/schedules';
 export * from './recompute/reconcile';
 export * from './recompute/processors';
+export * from './recompute/reconciler';

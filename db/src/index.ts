@@ -1,4 +1,5 @@
 export * from './connection';
+export * from './advisory-locks';
 export * as schema from './schema/index';
 export * from './queries/forest-types';
 export * from './queries/recompute';

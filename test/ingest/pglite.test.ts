@@ -3,7 +3,7 @@ import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { loadConfig } from '@stemwise/platform';
 import { migrateDatabase, openDatabase, syncForestTypes, type Db } from '@stemwise/db';
-import { type ServiceDeps } from '@stemwise/core';
+import type { ServiceDeps } from '@stemwise/core';
 import { generateInventory } from '@stemwise/demo-inventory';
 import { importSpeciesFile } from '@stemwise/ingest';
 import { counts, depsFor, ingestDir, PLOTS, SPECIES, STRATA, tempDir, TREES, writeUpload } from './support';

@@ -1,7 +1,7 @@
 import type { FastifyInstance } from 'fastify';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { markStale } from '@stemwise/db';
-import { type ServiceDeps } from '@stemwise/core';
+import type { ServiceDeps } from '@stemwise/core';
 import { BullQueue, InProcessQueue } from '@stemwise/platform';
 import { buildServer, createProcessors } from '@stemwise/report';
 import { SummaryResponse } from '@stemwise/report';

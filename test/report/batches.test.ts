@@ -5,7 +5,7 @@ import zlib from 'node:zlib';
 import type { FastifyInstance } from 'fastify';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { listAuditEntries } from '@stemwise/db';
-import { type ServiceDeps } from '@stemwise/core';
+import type { ServiceDeps } from '@stemwise/core';
 import { InProcessQueue } from '@stemwise/platform';
 import { buildServer } from '@stemwise/report';
 import { testLogger, useServices, type TestServices } from '../support/services';

@@ -4,7 +4,7 @@ import path from 'node:path';
 import { chromium, type BrowserContext } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { markStale } from '@stemwise/db';
-import { type ServiceDeps } from '@stemwise/core';
+import type { ServiceDeps } from '@stemwise/core';
 import { InProcessQueue } from '@stemwise/platform';
 import { createProcessors, startReportServer } from '@stemwise/report';
 import { testLogger, useServices, type TestServices } from '../support/services';

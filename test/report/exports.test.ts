@@ -3,7 +3,7 @@ import os from 'node:os';
 import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it, vi } from 'vitest';
 import { markStale } from '@stemwise/db';
-import { type ServiceDeps } from '@stemwise/core';
+import type { ServiceDeps } from '@stemwise/core';
 import { InProcessQueue } from '@stemwise/platform';
 import { createProcessors, exportRegions, writeRegionPages } from '@stemwise/report';
 import { exportCommand, Runtime } from '@stemwise/cli';

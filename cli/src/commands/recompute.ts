@@ -1,8 +1,8 @@
 import { parseArgs } from 'node:util';
 import { getRecomputeRun } from '@stemwise/db';
-import { planRecompute, type ServiceDeps } from '@stemwise/core';
+import { liveRecompute, planRecompute, type ServiceDeps } from '@stemwise/core';
 import { StemwiseError, type JobName } from '@stemwise/platform';
-import { availableProcessors } from '../processors';
+import { allProcessors } from '../processors';
 import type { Runtime } from '../runtime';
 
 export const summary = 'recomputes what new plots made stale: recompute [--now] [--all]';
@@ -24,23 +24,20 @@ export async function run(args: string[], rt: Runtime): Promise<number> {
   const deps: ServiceDeps = { config: rt.config, db: await rt.db(), log: rt.log, queue: await rt.queue() };
 
   if (deps.queue.kind === 'in-process') {
-    const { processors, queues, missing } = await availableProcessors(deps);
+    const { processors, queues } = await allProcessors(deps);
     await deps.queue.work(processors, { queues });
     const plan = await planRecompute(deps, 'manual', all);
     if (!plan) return nothingStale(deps);
     const failures = await deps.queue.drain();
     await printRun(deps, plan.runId);
-    const noSummaries = failures.filter((f) => f.name === 'report.summaries' && /no processor/.test(f.error));
-    if (noSummaries.length && missing.includes('report')) process.stdout.write('summaries: not available in this build (no report service yet)\n');
-    const real = failures.filter((f) => !noSummaries.includes(f));
-    for (const f of real) process.stderr.write(`stemwise: job ${f.jobId} failed: ${f.error}\n`);
+    for (const f of failures) process.stderr.write(`stemwise: job ${f.jobId} failed: ${f.error}\n`);
     // A job that failed before this process started waiting is not in `failures`: the root's state tells.
     const root = await deps.queue.state(plan.rootJobId, 'report.summaries');
-    if (!real.length && !noSummaries.length && root !== 'completed') {
+    if (!failures.length && root !== 'completed') {
       process.stderr.write(`stemwise: run ${plan.runId} did not complete (its last stage is ${root}); see the log above\n`);
       return 1;
     }
-    return real.length ? 1 : 0;
+    return failures.length ? 1 : 0;
   }
 
   if (!values.now) {
@@ -86,7 +83,6 @@ export async function run(args: string[], rt: Runtime): Promise<number> {
 
 /** No run was planned: nothing is stale, or a run is in progress and the run after it takes what is stale now. */
 async function nothingStale(deps: ServiceDeps): Promise<number> {
-  const { liveRecompute } = await import('@stemwise/core');
   const running = await liveRecompute(deps);
   process.stdout.write(running ? `run ${running} is in progress; what is stale now is recomputed by the run that follows it\n` : 'nothing stale\n');
   return 0;

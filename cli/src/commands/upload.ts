@@ -3,9 +3,9 @@ import path from 'node:path';
 import { parseArgs } from 'node:util';
 import { getBatch } from '@stemwise/db';
 import { batchReport, filesInDir, SubmissionError, submitBatch, type ServiceDeps, type SubmittedFile } from '@stemwise/core';
-import { StemwiseError, type ProcessorMap, type QueueName } from '@stemwise/platform';
+import { StemwiseError, type QueueName } from '@stemwise/platform';
 import { formatBatchReport, ingestEvents, progressBars, progressLine, type IngestProgress } from '@stemwise/ingest';
-import { processorsFor, type ServiceName } from '../processors';
+import { processorsFor, SERVICE_NAMES } from '../processors';
 import { delimiterOption } from '../delimiter-option';
 import type { Runtime } from '../runtime';
 
@@ -33,23 +33,6 @@ function fileArg(value: string | undefined, kind: SubmittedFile['kind']): Submit
   if (value === undefined) return null;
   if (!fs.existsSync(value) || !fs.statSync(value).isFile()) throw new StemwiseError('usage', `--${kind}: ${value} is not a file`);
   return { kind, name: path.basename(value), source: value };
-}
-
-/** Registers every service's processors that this build has on the in-process queue (ingest at least). */
-async function workInProcess(deps: ServiceDeps, services: readonly ServiceName[]): Promise<void> {
-  const processors: ProcessorMap = {};
-  const queues: QueueName[] = [];
-  for (const service of services) {
-    try {
-      const found = await processorsFor(deps, [service]);
-      Object.assign(processors, found.processors);
-      queues.push(...found.queues);
-    } catch (err) {
-      if (service === 'ingest') throw err;
-      deps.log.warn({ service, err: String(err) }, 'service not available in this build; its jobs stay queued');
-    }
-  }
-  await deps.queue.work(processors, { queues });
 }
 
 /** Shows progress: bars redrawn in place on a terminal, a plain line every few seconds otherwise. */
@@ -115,7 +98,10 @@ export async function run(args: string[], rt: Runtime): Promise<number> {
   const deps: ServiceDeps = { config: rt.config, db: await rt.db(), log: rt.log, queue: await rt.queue() };
   const inProcess = deps.queue.kind === 'in-process';
   // Without Redis nothing outlives this process: the ingest job runs here, and with --wait the compute and report jobs too.
-  if (inProcess) await workInProcess(deps, values.wait ? ['ingest', 'compute', 'report'] : ['ingest']);
+  if (inProcess) {
+    const { processors, queues } = await processorsFor(deps, values.wait ? SERVICE_NAMES : ['ingest']);
+    await deps.queue.work(processors, { queues });
+  }
 
   let result;
   try {

@@ -1,7 +1,7 @@
 import crypto from 'node:crypto';
 import fs from 'node:fs';
 import { appendAuditEntries, findLiveBatchByHash, insertBatch, type BatchOptions, type BatchState } from '@stemwise/db';
-import { type ServiceDeps } from '../deps';
+import type { ServiceDeps } from '../deps';
 import { oneLine, StemwiseError } from '@stemwise/platform';
 import { batchContentHash, makeBatchDir, storeFile, syncDir, type SubmittedFile } from './storage';
 

@@ -1,6 +1,6 @@
-import { getRecomputeRun, hasStaleWork } from '@stemwise/db';
-import { type ServiceDeps } from '../deps';
-import { PLAN_LOCK, type RecomputeTrigger } from './recompute';
+import { getRecomputeRun, hasStaleWork, PLAN_LOCK } from '@stemwise/db';
+import type { ServiceDeps } from '../deps';
+import type { RecomputeTrigger } from './recompute';
 
 /**
  * Called when a run has ended (done): queues the planner of the next run if a planner found this one

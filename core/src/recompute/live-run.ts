@@ -1,5 +1,5 @@
 import { listRunningRecomputes } from '@stemwise/db';
-import { type ServiceDeps } from '../deps';
+import type { ServiceDeps } from '../deps';
 import type { JobState } from '@stemwise/platform';
 
 /** Queue states of a job that will still run or is running. */

@@ -1,13 +1,10 @@
-import { currentSpeciesVersion, forestTypesWithPlots, forestTypesWithStaleVisits, getRecomputeRun, listStaleVisits, markOutdatedSpeciesVisitsStale, markVisitsStale, mergeRunDetails, startRecomputeRun } from '@stemwise/db';
-import { type ServiceDeps } from '../deps';
+import { currentSpeciesVersion, forestTypesWithPlots, forestTypesWithStaleVisits, getRecomputeRun, listStaleVisits, markOutdatedSpeciesVisitsStale, markVisitsStale, mergeRunDetails, PLAN_LOCK, startRecomputeRun } from '@stemwise/db';
+import type { ServiceDeps } from '../deps';
 import type { JobSpec } from '@stemwise/platform';
 import { refitHeightModels, type HeightModelChange } from './height-models';
 import { liveRecompute } from './live-run';
 
 export type RecomputeTrigger = 'nightly' | 'manual' | 'batch' | 'reconcile';
-
-/** Advisory lock key of the planner: two planners (a batch and the nightly run, say) take turns. */
-export const PLAN_LOCK = 742_020;
 
 export interface RecomputePlan {
   runId: string;

@@ -1,6 +1,5 @@
-import { failRecomputeRun, hasStaleWork, listUnfinishedBatches, markBatchFailed } from '@stemwise/db';
-import { type ServiceDeps } from '../deps';
-import { PLAN_LOCK } from './recompute';
+import { failRecomputeRun, hasStaleWork, listUnfinishedBatches, markBatchFailed, PLAN_LOCK } from '@stemwise/db';
+import type { ServiceDeps } from '../deps';
 import { LIVE_STATES as LIVE, runsInProgress } from './live-run';
 import { ensureSchedules } from './schedules';
 

@@ -5,3 +5,4 @@ export { formatBatchReport, formatBytes, progressBars, progressLine } from './re
 export { PLOT_COLUMNS, TREE_COLUMNS, type ColumnSpec } from './rules/columns';
 export { compileFieldCheck, INVALID } from './rules/field-checks';
 export { IssueLog } from './issues';
+export { service } from './service';

@@ -6,3 +6,4 @@ export { assembleRegionSnapshot, refreshStaleSummaries } from './snapshots';
 export { newToken, hashToken, TOKEN_ROLES, type Principal } from './access';
 export { SummaryResponse } from './routes/schemas';
 export type { SnapshotPayload } from './snapshot-payload';
+export { service } from './service';

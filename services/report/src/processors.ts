@@ -1,10 +1,7 @@
-import { failRecomputeRun, finishRecomputeRun, mergeRunDetails } from '@stemwise/db';
+import { failRecomputeRun, finishRecomputeRun, mergeRunDetails, SUMMARIES_LOCK } from '@stemwise/db';
 import { queueFollowUp, type ServiceDeps } from '@stemwise/core';
 import { parsePayload, PermanentError, type ProcessorMap } from '@stemwise/platform';
 import { refreshStaleSummaries } from './snapshots';
-
-/** Advisory lock key: one summaries job at a time across all report workers (they write versions). */
-export const SUMMARIES_LOCK = 742_010;
 
 /**
  * The report service's jobs. `report.summaries {runId}` is the last stage (the root) of a recompute
