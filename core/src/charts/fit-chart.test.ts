@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { simulateCurve } from '../science/random-test-data';
+import { simulateCurve } from '../../test/random-test-data';
 import { fitCurves } from '../science/verdict';
 import { buildFitChartSpec, chartModel, fitChartCaption, renderFitChartSvg } from './fit-chart';
 

@@ -1,7 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import { drawCaseCounts, percentileInterval, quantileSorted } from './bootstrap';
 import { createRng } from './random';
-import { normalDeviate } from './random-test-data';
+import { normalDeviate } from '../../test/random-test-data';
 
 describe('quantileSorted (Hyndman & Fan type 7)', () => {
   it('matches R quantile() defaults on 1..10 (computed by hand: h = 9p)', () => {

@@ -3,7 +3,7 @@ import { drawCaseCounts, percentileInterval } from './bootstrap';
 import { vertexDeltaInterval } from './hump';
 import { bootstrapVertexInterval } from './hump-bootstrap';
 import { createRng } from './random';
-import { simulateCurve } from './random-test-data';
+import { simulateCurve } from '../../test/random-test-data';
 import { fitPolynomial } from './regression';
 
 const hump = (x: number) => 10 + 8 * x - 8 * x * x;

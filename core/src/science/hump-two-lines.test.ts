@@ -1,14 +1,14 @@
 import { describe, expect, it } from 'vitest';
 import { quantileSorted } from './bootstrap';
 import { interruptedRegression, twoLinesTest } from './hump-two-lines';
-import { simulateCurve } from './random-test-data';
-import { R_CHECK_X, R_CHECK_Y } from './regression-fixture';
+import { simulateCurve } from '../../test/random-test-data';
+import { R_CHECK_X, R_CHECK_Y } from '../../test/regression-fixture';
 
 const relErr = (a: number, b: number): number => Math.abs(a - b) / Math.abs(b);
 const xy = (pts: { x: number; y: number }[]) => [pts.map((p) => p.x), pts.map((p) => p.y)] as const;
 
 describe('interruptedRegression', () => {
-  // Reference: R 4.2.2 with sandwich 3.0-2 on this machine, data in regression-fixture.ts, x_c = 0.4:
+  // Reference: R 4.2.2 with sandwich 3.0-2 on this machine, data in core/test/regression-fixture.ts, x_c = 0.4:
   // lm(y ~ xlow + xhigh + high) with xlow = ifelse(x <= xc, x − xc, 0), xhigh = ifelse(x > xc, x − xc, 0),
   // high = ifelse(x > xc, 1, 0); sqrt(diag(vcovHC(m, type = "HC3"))). Tolerance 1e-9 relative.
   it('matches R lm() slopes and sandwich::vcovHC HC3 standard errors', () => {

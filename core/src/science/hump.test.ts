@@ -8,9 +8,9 @@ import {
   vertexDeltaInterval,
   vertexFiellerInterval,
 } from './hump';
-import { simulateCurve } from './random-test-data';
+import { simulateCurve } from '../../test/random-test-data';
 import { fitPolynomial } from './regression';
-import { R_CHECK_X, R_CHECK_Y } from './regression-fixture';
+import { R_CHECK_X, R_CHECK_Y } from '../../test/regression-fixture';
 
 const relErr = (a: number, b: number): number => Math.abs(a - b) / Math.abs(b);
 const range = (x: readonly number[]) => ({ min: Math.min(...x), max: Math.max(...x) });
@@ -25,7 +25,7 @@ describe('quadraticVertex', () => {
   });
 });
 
-// Reference: R 4.2.2 on this machine, lm(y ~ x + I(x^2)) on regression-fixture.ts, with vcov(lm) and
+// Reference: R 4.2.2 on this machine, lm(y ~ x + I(x^2)) on core/test/regression-fixture.ts, with vcov(lm) and
 // the formulas written out in R (delta method g'Vg; Fieller's quadratic; slopes b1 + 2·b2·x and
 // pt() for the one-sided Lind–Mehlum p-values). Tolerance 1e-9 relative.
 describe('vertex intervals against R', () => {
@@ -93,7 +93,7 @@ describe('mitchellOldsShawTest', () => {
   });
 
   it('fails on NIST Pontius: b2 < 0 is highly significant but the vertex (≈ 1.158e8, sources.md) lies far beyond x ≤ 3e6', () => {
-    const lines = readFileSync(new URL('./fixtures/nist_pontius.dat', import.meta.url), 'utf8').split('\n');
+    const lines = readFileSync(new URL('../../test/fixtures/nist_pontius.dat', import.meta.url), 'utf8').split('\n');
     const at = lines.findIndex((l) => /^Data:\s+y\b/.test(l));
     const rows = lines.slice(at + 1).map((l) => l.trim()).filter(Boolean).map((l) => l.split(/\s+/).map(Number));
     const x = rows.map((r) => r[1]);

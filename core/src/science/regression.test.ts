@@ -1,7 +1,7 @@
 import { readFileSync } from 'node:fs';
 import { describe, expect, it } from 'vitest';
 import { fitOls, fitPolynomial, informationCriteria, predictOls, predictPolynomial, RegressionError } from './regression';
-import { R_CHECK_X, R_CHECK_Y } from './regression-fixture';
+import { R_CHECK_X, R_CHECK_Y } from '../../test/regression-fixture';
 
 // NIST Statistical Reference Datasets (StRD), linear least squares: Pontius and Longley. The data
 // and the certified values are read from the copies in ./fixtures (public reference data, layout
@@ -17,7 +17,7 @@ interface StrdFile {
 }
 
 function readStrd(name: string): StrdFile {
-  const lines = readFileSync(new URL(`./fixtures/${name}`, import.meta.url), 'utf8').split('\n');
+  const lines = readFileSync(new URL(`../../test/fixtures/${name}`, import.meta.url), 'utf8').split('\n');
   const estimates: number[] = [];
   const sds: number[] = [];
   let residualSd = Number.NaN;
@@ -205,7 +205,7 @@ describe('fitOls preconditions', () => {
 
 // Cross-check against a general-purpose reference: R 4.2.2 (Debian r-base-core 4.2.2.20221110-2),
 // `lm(y ~ x)` and `lm(y ~ x + I(x^2))`, summary(), logLik() and AIC() (R counts σ² in AIC's k, as we
-// do), run on this machine on the data in regression-fixture.ts; printed with 15 digits.
+// do), run on this machine on the data in core/test/regression-fixture.ts; printed with 15 digits.
 // AICc is not in base R: computed from R's AIC by hand as AIC + 2k(k+1)/(n − k − 1). Tolerance 1e-10 relative.
 describe('fitPolynomial agrees with R lm() on a 30-point data set', () => {
   it('degree 1', () => {

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { simulateCurve } from './random-test-data';
+import { simulateCurve } from '../../test/random-test-data';
 import { FIT_COLUMNS, fitCurves, fitRows, MIN_POINTS, type Verdict } from './verdict';
 
 // The planted and null curves below are invented for these tests (x on [0, 1], Gaussian scatter).

@@ -7,3 +7,4 @@ export { newToken, hashToken, TOKEN_ROLES, type Principal } from './access';
 export { SummaryResponse } from './routes/schemas';
 export type { SnapshotPayload } from './snapshot-payload';
 export { service } from './service';
+export { DEFAULT_REGION_VARIABLES, summariseRegion, type PlotMetrics } from './summary/region-summary';

@@ -1,5 +1,5 @@
 // Ingest benchmark (a script, never a timed test):
-//   npx tsx scripts/bench-ingest.ts [--stems 1000000] [--big] [--gzip]
+//   npx tsx scripts/bench/ingest.ts [--stems 1000000] [--big] [--gzip]
 // For a generated batch of about --stems stems (and 4,000,000 more with --big): wall time of validate +
 // load on PostgreSQL in a fresh database, measured in a child process (compiled, as the services run
 // after `npm run build`) that also reports its peak memory (maxRSS); then `psql \copy` of the same trees
@@ -19,8 +19,8 @@ import { createLogger, InProcessQueue, loadConfig } from '@stemwise/platform';
 import { getBatch, migrateDatabase, openDatabase, syncForestTypes } from '@stemwise/db';
 import { generateInventory } from '@stemwise/demo-inventory';
 import { submitBatch } from '@stemwise/core';
-import { bundle, ROOT } from './build';
-import type { IngestRun } from './bench-ingest-child';
+import { bundle, ROOT } from '../build';
+import type { IngestRun } from './support/ingest-child';
 
 const HERE = path.dirname(fileURLToPath(import.meta.url));
 const STEMS_PER_DEMO_PLOT = 585; // the demo generator's average, measured on seed 3
@@ -63,7 +63,7 @@ async function benchOne(adminUrl: string, stems: number, gzip: boolean): Promise
 
     // The child runs compiled JavaScript, as the services do after `npm run build` (see scripts/build.ts).
     const childBundle = path.join(ROOT, 'dist', 'bench-ingest-child.mjs');
-    await bundle(path.join(HERE, 'bench-ingest-child.ts'), childBundle);
+    await bundle(path.join(HERE, 'support', 'ingest-child.ts'), childBundle);
     const r = spawnSync(process.execPath, [childBundle, batchId], { env, encoding: 'utf8', maxBuffer: 1 << 20 });
     if (r.status !== 0) throw new Error(`ingest child failed: ${r.stderr}`);
     const run = JSON.parse(r.stdout.trim().split('\n').pop()!) as IngestRun;

@@ -1,8 +1,8 @@
-// `npx tsx services/compute/src/charts/bench-fit-chart.ts`: time to render one fit chart to SVG
+// `npm run bench -- --only fit-chart`: time to render one fit chart to SVG
 // (target about 100 ms) for 300 and 3,000 plots. Speed is measured here, never in the test suite.
-import { simulateCurve } from '../science/random-test-data';
-import { fitCurves } from '../science/verdict';
-import { renderFitChartSvg } from './fit-chart';
+import { renderFitChartSvg } from '@stemwise/core/charts';
+import { fitCurves } from '@stemwise/core/science';
+import { simulateCurve } from '../../core/test/random-test-data';
 
 for (const n of [300, 3_000]) {
   const points = simulateCurve(n, (x) => 10 + 8 * x - 8 * x * x, 1, 2).map((p, i) => ({ ...p, highlight: i % 20 === 0 }));

@@ -1,9 +1,8 @@
-// `npx tsx services/compute/src/science/verdict-bench.ts`: times fitCurves on one forest type's worth
+// `npm run bench -- --only verdict`: times fitCurves on one forest type's worth
 // of plots (10,000 points, planted hump, so every test and the 1000-resample bootstrap run) and the
 // bootstrap alone. Speed is measured here, never in the test suite.
-import { bootstrapVertexInterval } from './hump-bootstrap';
-import { simulateCurve } from './random-test-data';
-import { fitCurves } from './verdict';
+import { bootstrapVertexInterval, fitCurves } from '@stemwise/core/science';
+import { simulateCurve } from '../../core/test/random-test-data';
 
 function time(label: string, runs: number, f: () => unknown): void {
   f(); // warm-up

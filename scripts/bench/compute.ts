@@ -3,7 +3,7 @@
 // plans a recompute and runs every plot-chunk job (the processor's own function, as many at once as
 // STEMWISE_COMPUTE_CONCURRENCY) and prints the wall time and µs per stem of each size.
 //
-//   DATABASE_URL=postgres://postgres@127.0.0.1:5432/postgres npx tsx scripts/bench-compute.ts [--big] [--sizes 250000,1000000]
+//   DATABASE_URL=postgres://postgres@127.0.0.1:5432/postgres npx tsx scripts/bench/compute.ts [--big] [--sizes 250000,1000000]
 //
 // DATABASE_URL (default: the local server) names a database used only to create and drop a scratch database per size.
 import crypto from 'node:crypto';
@@ -12,7 +12,7 @@ import { createLogger, loadConfig, type JobQueue } from '@stemwise/platform';
 import { migrateDatabase, openDatabase, syncForestTypes, type Db } from '@stemwise/db';
 import { computePlotChunk, refreshStaleFits } from '@stemwise/compute';
 import { finishPlotsStage, planRecompute } from '@stemwise/core';
-import { fixtureSpecies, loadSpecies, rng } from '../test/compute/fixtures';
+import { fixtureSpecies, loadSpecies, rng } from '../../test/compute/fixtures';
 
 const { values } = parseArgs({ options: { big: { type: 'boolean', default: false }, sizes: { type: 'string' }, keep: { type: 'boolean', default: false } } });
 const sizes = values.sizes ? values.sizes.split(',').map(Number) : [250_000, 1_000_000, ...(values.big ? [4_000_000] : [])];

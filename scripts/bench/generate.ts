@@ -1,13 +1,13 @@
 // Benchmark of the generator (a script, not a test): wall and CPU time, stems per second and peak
 // memory for a large run.
-//   npx tsx demo-inventory/src/bench-generate.ts [--plots 20000] [--gzip] [--out DIR]
+//   npm run bench -- --only generate [--plots 20000] [--gzip] [--out DIR]
 // Without --out it writes to a temporary folder and removes it afterwards.
 
 import { mkdtemp, rm, stat } from 'node:fs/promises';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { parseArgs } from 'node:util';
-import { generateInventory } from './generate';
+import { generateInventory } from '@stemwise/demo-inventory';
 
 const { values } = parseArgs({
   options: {

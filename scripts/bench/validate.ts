@@ -1,5 +1,5 @@
 // Field checks benchmark (a script, never a timed test):
-//   npx tsx scripts/bench-validate.ts [--stems 500000]
+//   npx tsx scripts/bench/validate.ts [--stems 500000]
 // The ingest checks each cell with functions compiled from the column tables (rules/columns.ts). The
 // other way the format could be checked is a zod schema per row, built here from the same tables with
 // the same rules. Both run over the same rows of a generated trees.csv (already split into cells, so

@@ -1,10 +1,8 @@
 // Benchmark of computePlotMetrics alone (no database): 8,000 plots, 1,000,000 stems of invented
-// species. Run: npx tsx services/compute/src/science/bench-plot-metrics.ts
+// species. Run: npm run bench -- --only plot-metrics
 // The pipeline's budget is ~10 s for this volume including database I/O; this measures the science part.
 
-import { fitHeightDiameter } from './height-diameter';
-import { computePlotMetrics, type PlotVisitInput, type StemInput } from './plot-metrics';
-import { GUILDS, SpeciesIndex, type SpeciesReference } from './species-names';
+import { computePlotMetrics, fitHeightDiameter, GUILDS, SpeciesIndex, type PlotVisitInput, type SpeciesReference, type StemInput } from '@stemwise/core/science';
 
 let seed = 12345;
 const rand = (): number => {

@@ -2,7 +2,7 @@
 // loopback against GET /v1/regions/:region/summary; prints requests/s and latency percentiles as the
 // client sees them and as the server measures them. Target: p99 under 50 ms.
 //
-//   npx tsx scripts/bench-report.ts [--connections 100] [--seconds 10] [--plots 600] [--healthz] [--profile]
+//   npx tsx scripts/bench/report.ts [--connections 100] [--seconds 10] [--plots 600] [--healthz] [--profile]
 //
 // --healthz drives /healthz instead (the floor of this machine and client); --profile writes a CPU
 // profile of the server process to /tmp/report-prof.
@@ -24,8 +24,8 @@ import { createLogger, InProcessQueue, loadConfig } from '@stemwise/platform';
 import { markStale, migrateDatabase, openDatabase, syncForestTypes } from '@stemwise/db';
 import { createRng, type ServiceDeps } from '@stemwise/core';
 import { buildServer, createProcessors } from '@stemwise/report';
-import { jobContext, seedForestArea, seedPlots, seedRun, seedSpecies, type FixturePlot } from '../test/report/fixture';
-import { createToken } from '../test/report/tokens';
+import { jobContext, seedForestArea, seedPlots, seedRun, seedSpecies, type FixturePlot } from '../../test/report/fixture';
+import { createToken } from '../../test/report/tokens';
 
 const REGION = 'Northvale';
 

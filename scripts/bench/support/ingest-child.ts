@@ -1,4 +1,4 @@
-// The measured side of the ingest benchmark (see bench-ingest.ts): validates and loads one stored
+// The measured side of the ingest benchmark (see ../ingest.ts): validates and loads one stored
 // batch, then prints wall time and peak memory as JSON on stdout. Run compiled, as a service runs.
 
 import { createLogger, InProcessQueue, loadConfig } from '@stemwise/platform';

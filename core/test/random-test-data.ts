@@ -1,5 +1,5 @@
 // Seeded simulated data for the statistical behaviour tests (test support; not used by the product).
-import { createRng, type Rng } from './random';
+import { createRng, type Rng } from '../src/science/random';
 
 // Standard normal deviate by the Box–Muller transform z = √(−2 ln u)·cos(2πv) (Box & Muller 1958, Ann. Math. Stat. 29:610–611).
 export function normalDeviate(rng: Rng): number {
