@@ -16,7 +16,7 @@ describe('crpPartition', () => {
 
   it('has the Ewens mean number of species E[S] = Σ θ/(θ + i), close to Fisher’s θ ln(1 + n/θ)', () => {
     // Ewens (1972, Theor. Popul. Biol. 3:87–112), mean of the number of alleles (formula from memory);
-    // Fisher, Corbet & Williams (1943) S = α ln(1 + N/α) (sources.md, read).
+    // Fisher, Corbet & Williams (1943) S = α ln(1 + N/α) (docs/methods.md#fishers-alpha).
     const n = 450;
     const theta = 40;
     let expected = 0;

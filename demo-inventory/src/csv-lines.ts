@@ -1,4 +1,4 @@
-// CSV lines of the inventory batch format, version 1 (shared/spec/inventory-format.md).
+// CSV lines of the inventory batch format, version 1 (docs/upload-format.md).
 
 import type { PlotRow, TreeStem } from './plot-generator';
 import { REGIONS } from './scenario';

@@ -22,7 +22,7 @@ const plot: IndexStem[] = [
 ];
 
 describe('basalAreaM2', () => {
-  it('is π (D/200)² m² (inventory format spec): 30 cm → 0.0706858 m² (computed)', () => {
+  it('is π (D/200)² m² (docs/methods.md#basal-area): 30 cm → 0.0706858 m² (computed)', () => {
     expect(basalAreaM2(30)).toBeCloseTo(0.07068583470577035, 14);
     expect(() => basalAreaM2(0)).toThrow(/basalAreaM2/);
   });

@@ -14,14 +14,14 @@ export interface IndexStem {
 /** Basal area at which logging counts as total (removed share 0.5 → score 1), a tool default. */
 export const LOGGING_SATURATION_FRAC = 0.5;
 
-// Basal area of a stem, g = π (D / 200)² m² with D in cm (standard mensuration definition; inventory format spec).
+// Basal area of a stem, g = π (D / 200)² m² with D in cm (standard mensuration definition; docs/methods.md#basal-area).
 export function basalAreaM2(dbhCm: number): number {
   if (!(dbhCm > 0)) throw new RangeError(`basalAreaM2: dbh must be > 0 cm, got ${dbhCm}`);
   const r = dbhCm / 200;
   return Math.PI * r * r;
 }
 
-// f = BA(logged stumps) / (BA(live) + BA(logged stumps)), main plot only (project definition, outputs spec); null when both are 0.
+// f = BA(logged stumps) / (BA(live) + BA(logged stumps)), main plot only (project definition, docs/methods.md#removed-basal-area-fraction); null when both are 0.
 export function loggingRemovedBaFrac(stems: readonly IndexStem[]): number | null {
   let live = 0;
   let logged = 0;

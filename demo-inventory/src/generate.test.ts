@@ -90,7 +90,7 @@ describe('generateInventory: the files follow the inventory batch format, versio
     expect(trees.length).toBe(plain.truth.counts.stems.rows);
   });
 
-  it('looks like tropical forest: 300–700 live stems/ha ≥ 10 cm and 15–45 m²/ha basal area on average (plausibility bounds, sources.md, memory)', () => {
+  it('looks like tropical forest: 300–700 live stems/ha ≥ 10 cm and 15–45 m²/ha basal area on average (plausibility bounds, docs/methods.md#plausibility-warnings, memory)', () => {
     const area = new Map(plots.map((p) => [p.plot_id, Number(p.area_ha)]));
     const stems = new Map<string, number>();
     const ba = new Map<string, number>();

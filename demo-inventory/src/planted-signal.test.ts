@@ -151,12 +151,12 @@ afterAll(async () => {
 const ofType = (t: string) => figures.filter((f) => f.type === t);
 
 describe('fisherAlphaOf (test-local helper)', () => {
-  it('matches Fisher et al. 1943: N = 100000, S = 100 → α = 10.96716 by the equation (sources.md, read; 1e-5 relative)', () => {
+  it('matches Fisher et al. 1943: N = 100000, S = 100 → α = 10.96716 by the equation (docs/methods.md#fishers-alpha, computed; 1e-5 relative)', () => {
     const counts = [...new Array<number>(99).fill(1), 100_000 - 99];
     expect(Math.abs(fisherAlphaOf(counts) / 10.96716 - 1)).toBeLessThan(1e-5);
   });
 
-  it('matches the worked example N = 60, S = 18 → α = 8.7185298805 (sources.md, computed; 1e-8)', () => {
+  it('matches the worked example N = 60, S = 18 → α = 8.7185298805 (docs/methods.md#fishers-alpha, computed; 1e-8)', () => {
     const counts = [19, 12, 7, 3, 3, 2, 2, 2, 1, 1, 1, 1, 1, 1, 1, 1, 1, 1];
     expect(fisherAlphaOf(counts)).toBeCloseTo(8.7185298805, 8);
   });

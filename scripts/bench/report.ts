@@ -5,7 +5,7 @@
 //   npx tsx scripts/bench/report.ts [--connections 100] [--seconds 10] [--plots 600] [--healthz] [--profile]
 //
 // --healthz drives /healthz instead (the floor of this machine and client); --profile writes a CPU
-// profile of the server process to /tmp/report-prof.
+// profile of the server process to report-prof in the system temporary folder (os.tmpdir()).
 //
 // The server runs in a child process (so the load loop does not share its event loop) on its own
 // database: a scratch database created on the PostgreSQL server of DATABASE_URL (dropped at the end),
@@ -132,7 +132,7 @@ function percentile(sorted: Float64Array, p: number): number {
 /** Parent: start the child, drive the load, print the figures. */
 async function load(connections: number, seconds: number, plots: number): Promise<void> {
   const script = fileURLToPath(import.meta.url);
-  const child = spawn(process.execPath, [...(process.argv.includes('--profile') ? ['--cpu-prof', '--cpu-prof-dir=/tmp/report-prof'] : []), '--import', 'tsx', script, '--serve', '--plots', String(plots)], { stdio: ['ignore', 'pipe', 'inherit', 'ipc'] });
+  const child = spawn(process.execPath, [...(process.argv.includes('--profile') ? ['--cpu-prof', `--cpu-prof-dir=${path.join(os.tmpdir(), 'report-prof')}`] : []), '--import', 'tsx', script, '--serve', '--plots', String(plots)], { stdio: ['ignore', 'pipe', 'inherit', 'ipc'] });
   const ready = await new Promise<{ url: string; token: string }>((resolve, reject) => {
     let out = '';
     child.stdout!.on('data', (d: Buffer) => {

@@ -3,7 +3,7 @@ import { generateInventory, fixtureSpecies, loadInventory, loadSpecies } from '.
 import { plotsText, recomputeInProcess } from './support';
 import { useServices, type TestServices } from '../support/services';
 
-// The `export plots` columns exactly as in shared/spec/outputs.md (copied here on purpose: the test
+// The `export plots` columns exactly as in docs/exports.md (copied here on purpose: the test
 // must fail if the code's list drifts from the contract).
 const SPEC_COLUMNS =
   'plot_id, survey_date, region, forest_type, stems_ha, basal_area_m2_ha, qmd_cm, agb_mg_ha, carbon_mg_ha, n_identified, richness, shannon, simpson, inv_simpson, pielou, fisher_alpha, rarefied_50, chao1, pioneer_ba_share, light_demander_ba_share, shade_tolerant_ba_share, unassigned_ba_share, logging_removed_ba_frac, logging_score, fire_score, disturbance_index'.split(
@@ -50,7 +50,7 @@ describe('export plots', () => {
     const rows = JSON.parse(await plotsText(s.db, 'json')) as Array<Record<string, unknown>>;
     expect(rows).toHaveLength(nVisits);
     for (const r of rows) expect(Object.keys(r)).toEqual(SPEC_COLUMNS);
-    // rarefied_50 is empty below 50 identified stems (outputs.md)
+    // rarefied_50 is empty below 50 identified stems (docs/exports.md)
     const small = rows.filter((r) => (r.n_identified as number) < 50);
     expect(small.length).toBeGreaterThan(0);
     for (const r of small) expect(r.rarefied_50).toBeNull();

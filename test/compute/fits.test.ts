@@ -7,7 +7,7 @@ import { fixtureSpecies, generateInventory, loadInventory, loadSpecies, REGIONS 
 import { fitsText, plotsText, recomputeInProcess } from './support';
 import { useServices, type TestServices } from '../support/services';
 
-// The columns of `export fits` exactly as in shared/spec/outputs.md.
+// The columns of `export fits` exactly as in docs/exports.md.
 const SPEC_COLUMNS =
   'forest_type, metric, axis, n, model, b0, b1, b2, se_b0, se_b1, se_b2, p_b1, p_b2, r2, adj_r2, aicc, peak_x, peak_ci_low, peak_ci_high, verdict'.split(', ');
 const VERDICTS = ['hump', 'increasing', 'decreasing', 'u_shape', 'none'];

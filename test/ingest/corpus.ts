@@ -11,7 +11,7 @@ export interface CorpusCase {
   files: Partial<Record<'plots' | 'trees' | 'strata' | 'species', string | Buffer>>;
   options?: SubmitOptions;
   gzip?: boolean;
-  expect: { rule: string; file: string; line: number | null };
+  expect: { rule: string; file: string; line: number | null; column?: string };
 }
 
 const plotRows = PLOTS.split('\n').slice(1);
@@ -67,6 +67,11 @@ export const CORPUS: CorpusCase[] = [
   { name: 'a plot id with a space', files: { ...base, plots: withPlot(2, 'MW 003,Lowmere,dry,-3.3003,27.6011,0.5,10,0,5,2023-06-02,1,0,180') }, expect: { rule: 'field_bad_characters', file: 'plots.csv', line: 4 } },
   { name: 'an unknown forest type', files: { ...base, plots: withPlot(1, 'MW-002,Upper Tarn,swamp,-3.1302,27.4522,1,10,0,5,2023-05-15,2,0,') }, expect: { rule: 'field_unknown_forest_type', file: 'plots.csv', line: 3 } },
   { name: 'logging class missing', files: { ...base, plots: withPlot(1, 'MW-002,Upper Tarn,moist,-3.1302,27.4522,1,10,0,5,2023-05-15,,0,') }, expect: { rule: 'field_required', file: 'plots.csv', line: 3 } },
+  // A NUL byte passes the UTF-8 check, but PostgreSQL text cannot hold it: a field error, never a load failure.
+  { name: 'a NUL byte in a species cell of trees', files: { ...base, trees: withTree(1, 'MW-001,2,Tikka\u0000rubra,41.0,,live,,1,0') }, expect: { rule: 'field_nul_character', file: 'trees.csv', line: 3, column: 'species' } },
+  { name: 'a NUL byte in a region cell of plots', files: { ...base, plots: withPlot(2, 'MW-003,Low\u0000mere,dry,-3.3003,27.6011,0.5,10,0,5,2023-06-02,1,0,180') }, expect: { rule: 'field_nul_character', file: 'plots.csv', line: 4, column: 'region' } },
+  { name: 'a NUL byte in a forest area of strata', files: { ...base, strata: `${STRATA}\nLowmere,wet,12\u00000` }, expect: { rule: 'field_nul_character', file: 'strata.csv', line: 5, column: 'forest_area_ha' } },
+  { name: 'a NUL byte in a quoted family of species', files: { ...base, species: `${SPECIES}\nOssara alba,"Ossara\u0000ceae",pioneer,0.40,` }, expect: { rule: 'field_nul_character', file: 'species.csv', line: 5, column: 'family' } },
   { name: 'fire class 1.5', files: { ...base, plots: withPlot(1, 'MW-002,Upper Tarn,moist,-3.1302,27.4522,1,10,0,5,2023-05-15,2,1.5,') }, expect: { rule: 'field_not_integer', file: 'plots.csv', line: 3 } },
   // rows
   { name: 'a stump without a cause', files: { ...base, trees: withTree(4, 'MW-001,5,Ossara lumen,33.0,,stump,,0,0') }, expect: { rule: 'row_stump_cause_missing', file: 'trees.csv', line: 6 } },

@@ -75,3 +75,14 @@ export async function ingestDir(deps: ServiceDeps, dir: string, options: SubmitO
 }
 
 export const counts = (db: Db) => loadedRowCounts(db);
+
+/** Polls `probe` every 100 ms until it gives a value, or throws after `deadlineMs`. */
+export async function until<T>(what: string, deadlineMs: number, probe: () => Promise<T | null | undefined | false>): Promise<T> {
+  const end = Date.now() + deadlineMs;
+  for (;;) {
+    const v = await probe();
+    if (v) return v;
+    if (Date.now() > end) throw new Error(`timed out waiting for ${what}`);
+    await new Promise((r) => setTimeout(r, 100));
+  }
+}

@@ -7,7 +7,7 @@ import { getBatch } from '@stemwise/db';
 import { generateInventory } from '@stemwise/demo-inventory';
 import { submitBatch } from '@stemwise/core';
 import { envFor, testLogger, useServices, type TestServices } from '../support/services';
-import { tempDir, uploadFiles } from './support';
+import { tempDir, until, uploadFiles } from './support';
 
 const BIN = path.resolve(__dirname, '../../bin/stemwise.mjs');
 
@@ -15,16 +15,6 @@ function startWorker(env: Record<string, string>, log: string[]): ChildProcess {
   const child = spawn(process.execPath, [BIN, 'serve', 'ingest'], { env, stdio: ['ignore', 'ignore', 'pipe'] });
   child.stderr!.on('data', (d) => log.push(String(d)));
   return child;
-}
-
-async function until<T>(what: string, deadlineMs: number, probe: () => Promise<T | null | undefined | false>): Promise<T> {
-  const end = Date.now() + deadlineMs;
-  for (;;) {
-    const v = await probe();
-    if (v) return v;
-    if (Date.now() > end) throw new Error(`timed out waiting for ${what}`);
-    await new Promise((r) => setTimeout(r, 100));
-  }
 }
 
 // A worker process killed with SIGKILL in the middle of loading a batch: nothing of the attempt is

@@ -3,7 +3,7 @@ import type { SamplingErrorT, Weighting } from '../science/stratified';
 // The region summary as the report page and the API receive it. Plain JSON: arrays and objects only,
 // no Map, NaN or Infinity; what cannot be computed is null. Keys are snake_case like the export columns.
 
-/** Column order of `export regions` (outputs.md, version 1): a contract, columns may be added, never renamed. */
+/** Column order of `export regions` (docs/exports.md, version 1): a contract, columns may be added, never renamed. */
 export const REGION_COLUMNS = [
   'region',
   'forest_type',

@@ -3,7 +3,7 @@ import { agbChave2005, agbChave2014, carbonFromBiomass, IPCC_2006_CARBON_FRACTIO
 
 const rel = (got: number, want: number): number => Math.abs(got - want) / Math.abs(want);
 
-// Check values for ρ = 0.6 g/cm³, D = 30 cm, H = 25 m: shared/reference/sources.md, computed from the
+// Check values for ρ = 0.6 g/cm³, D = 30 cm, H = 25 m (docs/methods.md#biomass-with-height), computed from the
 // published equations (Chave et al. 2014 eq. 4; Chave et al. 2005 no-height models, coefficients from
 // memory, corroborated in several public code files). Tolerance 1e-8 relative (values given to 9 digits).
 describe('agbChave2014 (Chave et al. 2014, eq. 4)', () => {

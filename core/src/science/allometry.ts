@@ -1,4 +1,5 @@
 // Above-ground biomass (AGB) of a tree from pantropical allometric models, and its carbon content.
+// Formulas, sources and check values: docs/methods.md#biomass-with-height, docs/methods.md#biomass-without-height, docs/methods.md#carbon-fraction.
 // D = dbh in cm, H = total height in m, ρ = basic wood density in g/cm³, AGB in kg of dry matter.
 // These models carry their own error (eq. 4 of Chave et al. 2014 has a residual standard error of
 // about 0.36 on the log scale: memory), so a plot figure is an estimate with its uncertainty, and

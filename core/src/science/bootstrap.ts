@@ -1,4 +1,5 @@
 // Generic pieces of the nonparametric bootstrap: case-resampling counts and percentile intervals.
+// Formulas and check values: docs/methods.md#bootstrap-interval.
 import type { Rng } from './random';
 
 // Type 7 sample quantile Q(p) = x₍ⱼ₎ + g·(x₍ⱼ₊₁₎ − x₍ⱼ₎), h = (n − 1)p, j = ⌊h⌋, g = h − j (Hyndman & Fan 1996, Am. Stat. 50:361–365; R's default).

@@ -1,4 +1,5 @@
 // Disturbance scores of a plot visit from logged stumps, stem fire damage and the field classes.
+// Formulas and check values: docs/methods.md#disturbance-scores.
 // These are stemwise's own documented defaults, NOT published constants or a published index: the
 // 0.5 saturation of the removed basal-area fraction and the equal weights of stem evidence and field
 // class are choices of this tool, all configurable through DisturbanceOptions. Scores lie in [0, 1].
@@ -38,7 +39,7 @@ function assertFieldClass(fn: string, name: string, value: number): void {
   }
 }
 
-// f = G_logged stumps / (G_live + G_logged stumps), main plot only — output spec (stemwise definition); null if both 0
+// f = G_logged stumps / (G_live + G_logged stumps), main plot only — docs/methods.md#removed-basal-area-fraction (stemwise definition); null if both 0
 export function loggingRemovedBaFraction(liveBaM2: number, loggedStumpBaM2: number): number | null {
   if (!(liveBaM2 >= 0) || !(loggedStumpBaM2 >= 0) || !Number.isFinite(liveBaM2 + loggedStumpBaM2)) {
     throw new RangeError(

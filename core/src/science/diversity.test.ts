@@ -15,10 +15,10 @@ import {
 
 const rel = (got: number | null, want: number): number => Math.abs((got as number) - want) / Math.abs(want);
 
-// Worked numbers of shared/reference/sources.md (computed from the formulas; N = 60, S = 18).
+// Worked numbers of docs/methods.md#chao1-bias-corrected (computed from the formulas; N = 60, S = 18).
 const WORKED = [19, 12, 7, 3, 3, 2, 2, 2, 1, 1, 1, 1, 1, 1, 1, 1, 1, 1] as const;
 
-describe('diversity on the worked abundances of sources.md (computed, rel 1e-10)', () => {
+describe('diversity on the worked abundances of docs/methods.md (computed, rel 1e-10)', () => {
   it('has N = 60 and S = 18', () => {
     expect(totalIndividuals(WORKED)).toBe(60);
     expect(richness(WORKED)).toBe(18);
@@ -35,10 +35,10 @@ describe('diversity on the worked abundances of sources.md (computed, rel 1e-10)
 });
 
 describe('fisherAlphaFromTotals', () => {
-  it('reproduces Fisher, Corbet & Williams (1943) Table 9, N = 100000, S = 100: α ≈ 10.96705 (read; rel 1e-4)', () => {
+  it('reproduces Fisher, Corbet & Williams (1943) Table 9, N = 100000, S = 100: α ≈ 10.96705 (read in a secondary quotation; rel 1e-4)', () => {
     expect(rel(fisherAlphaFromTotals(100, 100000), 10.96705)).toBeLessThan(1e-4);
   });
-  it('gives the equation root 10.96716 for the same N, S (sources.md, computed; rel 1e-6)', () => {
+  it('gives the equation root 10.96716 for the same N, S (docs/methods.md#fishers-alpha, computed; rel 1e-6)', () => {
     expect(rel(fisherAlphaFromTotals(100, 100000), 10.96716)).toBeLessThan(1e-6);
   });
   it('solves S = α ln(1 + N/α) to 1e-12 relative over a wide range of S and N', () => {

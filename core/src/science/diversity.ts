@@ -1,4 +1,5 @@
 // Species diversity of one sample, from per-species counts of individuals (abundances).
+// Formulas, sources and check values: docs/methods.md#diversity.
 // Every function takes `readonly number[]` of non-negative integer counts; zeros are allowed and
 // ignored (a species listed but absent), so S counts only species with at least one individual.
 // Functions that are undefined for a sample return null rather than 0 or NaN.
@@ -164,7 +165,7 @@ function singletonsAndDoubletons(counts: readonly number[]): { s: number; f1: nu
 }
 
 // S + f₁(f₁ − 1) / (2 (f₂ + 1)) — Chao (1987) bias-corrected Chao1, without the (N − 1)/N factor
-// (as the output spec asks); null when N = 0.
+// (docs/methods.md#chao1-bias-corrected); null when N = 0.
 export function chao1(counts: readonly number[]): number | null {
   const n = assertCounts('chao1', counts);
   if (n === 0) return null;

@@ -10,7 +10,7 @@ import {
 
 const rel = (got: number, want: number): number => Math.abs(got - want) / Math.abs(want);
 
-// Chave et al. 2014 eq. 6a at E = 0 (memory, corroborated in public code; shared/reference/sources.md).
+// Chave et al. 2014 eq. 6a at E = 0 (memory, corroborated in public code; docs/methods.md#height-diameter-model).
 const A = 0.893;
 const B = 0.76;
 const C = -0.034;
@@ -38,7 +38,7 @@ describe('fitHeightDiameter on heights generated exactly from eq. 6a (E = 0)', (
     expect(model.rse).toBeLessThan(1e-12);
     expect(Math.abs((model.r2 as number) - 1)).toBeLessThan(1e-12);
   });
-  it('predicts H(30) = 21.858571 m (sources.md, computed from eq. 6a; rel 1e-7)', () => {
+  it('predicts H(30) = 21.858571 m (docs/methods.md#height-diameter-model, computed from eq. 6a; rel 1e-7)', () => {
     expect(rel(predictHeight(model, 30), 21.858571)).toBeLessThan(1e-7);
   });
 });

@@ -4,6 +4,7 @@
 //   Biology 20:3177–3190) eq. 6a, whose pantropical values are a = 0.893 − E, b = 0.760, c = −0.0340.
 // Fitted by ordinary least squares on the log scale (Householder QR on centred and scaled ln D), and
 // back-transformed with Baskerville's (1972) correction exp(RSE²/2) for the bias of the log model.
+// Formulas, sources and check values: docs/methods.md#height-diameter-model, docs/methods.md#baskerville-correction.
 
 import { householderQr } from './regression-qr';
 

@@ -2,6 +2,7 @@
 // generator. Each replicate solves the 3×3 normal equations of y on (1, u, u²) with u = (x − x̄)/s_x
 // fixed from the full sample: on standardised x the moment matrix is well conditioned (about 10 for
 // uniform x), and this keeps 1000 replicates of 10,000 points allocation-free.
+// Method and check values: docs/methods.md#bootstrap-interval.
 import { drawCaseCounts, percentileInterval } from './bootstrap';
 import { createRng } from './random';
 

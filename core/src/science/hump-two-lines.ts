@@ -2,14 +2,16 @@
 // Science 1:538–555): fit two separate lines, before and after a breakpoint chosen near the top of
 // a flexible fit, and ask whether the first rises and the second falls, both significantly.
 //
-// Simplification, documented: the author's procedure uses a smoothing spline (GAM) as the flexible
-// fit; we use a cubic polynomial (a quadratic when x has only 3 distinct values), with the standard
-// errors of its fitted mean. The rest follows the procedure as published:
+// It follows the published steps below, but differs from the author's procedure in the flexible fit
+// (a cubic polynomial, a quadratic for 3 distinct x or 5 points or fewer, instead of a smoothing spline),
+// the range the breakpoint may take, the shape being fixed beforehand by the parabola's b₂, one
+// interrupted regression instead of two, and Student t instead of normal p-values; each difference
+// is listed in docs/methods.md#where-it-differs-from-the-published-procedure (effects not yet measured).
 //  1. flat region = the observed x whose fitted value is within 1 SE of the highest fitted value
 //     (ŷᵢ + SEᵢ ≥ max ŷ; for a U, ŷᵢ − SEᵢ ≤ min ŷ);
 //  2. interrupted regression at the median of the flat region: y = a + b₁·x_low + b₂·x_high + c·high,
 //     x_low = x − x_c for x ≤ x_c (else 0), x_high = x − x_c for x > x_c (else 0), high = [x > x_c];
-//  3. "Robin Hood": move the breakpoint to the q-quantile of the flat region, q = |z₂|/(|z₁| + |z₂|),
+//  3. "Robin Hood": move the breakpoint to the q-quantile of the flat region, q = |t₂|/(|t₁| + |t₂|) from the slopes' t values,
 //     which gives more data to the line whose slope is the less significant;
 //  4. refit there with HC3 robust standard errors; a hump needs b₁ > 0 and b₂ < 0 with both
 //     two-sided p < α (a U the mirror).
@@ -82,7 +84,7 @@ export function interruptedRegression(x: readonly number[], y: readonly number[]
   return { first: segment(1, nLow), second: segment(2, nHigh) };
 }
 
-// Two-lines test with the Robin Hood breakpoint (Simonsohn 2018; flexible fit simplified to a cubic, see the header).
+// Two-lines test with the Robin Hood breakpoint (Simonsohn 2018, with the differences listed in the header).
 export function twoLinesTest(x: readonly number[], y: readonly number[], shape: CurveShape, alpha = 0.05): TwoLinesResult {
   const fn = 'twoLinesTest';
   if (x.length !== y.length) throw new RangeError(`${fn}: x has ${x.length} values, y has ${y.length}`);

@@ -92,7 +92,7 @@ describe('mitchellOldsShawTest', () => {
     expect(relErr(mos.pB2, 9.83226358298887e-6)).toBeLessThan(1e-8);
   });
 
-  it('fails on NIST Pontius: b2 < 0 is highly significant but the vertex (≈ 1.158e8, sources.md) lies far beyond x ≤ 3e6', () => {
+  it('fails on NIST Pontius: b2 < 0 is highly significant but the vertex (≈ 1.158e8 from the certified B1, B2) lies far beyond x ≤ 3e6', () => {
     const lines = readFileSync(new URL('../../test/fixtures/nist_pontius.dat', import.meta.url), 'utf8').split('\n');
     const at = lines.findIndex((l) => /^Data:\s+y\b/.test(l));
     const rows = lines.slice(at + 1).map((l) => l.trim()).filter(Boolean).map((l) => l.split(/\s+/).map(Number));

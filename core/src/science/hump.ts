@@ -1,6 +1,7 @@
 // Where a quadratic diversity–disturbance curve turns, and whether the turn is real: the vertex,
 // its confidence intervals, and the Mitchell-Olds & Shaw and Lind & Mehlum tests. All work on a
 // degree-2 PolynomialFit, in its shifted basis (powers of x − x̄) for accuracy; results are in x.
+// Formulas, sources and check values: docs/methods.md#vertex and the sections after it.
 import type { PolynomialFit } from './regression';
 import { studentTCdf, studentTQuantile, studentTTwoSidedP } from './student-t';
 

@@ -1,4 +1,5 @@
 // Natural logarithm of the gamma function for x > 0, used by rarefaction (ratios of binomial coefficients).
+// Formula and check values: docs/methods.md#log-gamma.
 // Stirling's asymptotic series with Bernoulli-number terms up to B12 (Abramowitz & Stegun 6.1.40),
 // applied at x + k >= 15 and brought back with the recurrence Γ(x + 1) = x Γ(x) (A&S 6.1.15).
 // Absolute error about 1e-14 near x = 1 and 2, relative error about 1e-16 for large x.

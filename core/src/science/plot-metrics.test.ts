@@ -205,6 +205,14 @@ describe('computePlotMetrics edge cases', () => {
     expect(d.unresolvedNames).toEqual([{ name: 'Veltria nova', level: 'genus', stems: 2 }]);
   });
 
+  it('lists unresolved names over every stem of the visit, any status or size (the stems the ingest warnings count)', () => {
+    const { diagnostics: d } = computePlotMetrics(VISIT, [
+      stem('Veltria nova', 20), stem('Veltria nova', 25, { status: 'dead' }), stem('Veltria nova', 30, { status: 'stump', stumpCause: 'natural' }),
+      stem('Veltria nova', 4), stem('Xenoa spinosa', 20, { status: 'dead' }),
+    ], index);
+    expect(d.unresolvedNames).toEqual([{ name: 'Veltria nova', level: 'genus', stems: 4 }, { name: 'Xenoa spinosa', level: 'unresolved', stems: 1 }]);
+  });
+
   it('diversity is null below minStemsForDiversity (default 2) and computed from it', () => {
     const one = [stem('Veltria magna', 20)];
     expect(computePlotMetrics(VISIT, one, index).metrics.richness).toBeNull();
@@ -215,7 +223,7 @@ describe('computePlotMetrics edge cases', () => {
     expect(computePlotMetrics(VISIT, two, index).metrics.pielou).toBeNull();
   });
 
-  it('with 60 identified stems, diversity equals the worked numbers of sources.md and rarefied_50 is set', () => {
+  it('with 60 identified stems, diversity equals the worked numbers of docs/methods.md#fishers-alpha and rarefied_50 is set', () => {
     const epithets = ['alba', 'bella', 'cava', 'dura', 'erecta', 'flava', 'gracilis', 'hirta', 'ima', 'juncea',
       'lata', 'mollis', 'nana', 'ovata', 'picta', 'quadra', 'rosea', 'sola'];
     const worked = [19, 12, 7, 3, 3, 2, 2, 2, 1, 1, 1, 1, 1, 1, 1, 1, 1, 1];
@@ -228,7 +236,7 @@ describe('computePlotMetrics edge cases', () => {
     });
     const { metrics: m } = computePlotMetrics(VISIT, stems, big);
     expect(m.nIdentified).toBe(60);
-    // sources.md worked numbers (computed): H' = 2.2587587579, 1/D = 6.0606060606, α = 8.7185298805, Chao1 = 29.25
+    // worked numbers of docs/methods.md#chao1-bias-corrected (computed): H' = 2.2587587579, 1/D = 6.0606060606, α = 8.7185298805, Chao1 = 29.25
     expect(rel(m.shannon, 2.2587587579)).toBeLessThan(1e-10);
     expect(rel(m.invSimpson, 6.0606060606)).toBeLessThan(1e-10);
     expect(rel(m.fisherAlpha, 8.7185298805)).toBeLessThan(1e-10);
@@ -250,7 +258,7 @@ describe('computePlotMetrics edge cases', () => {
 });
 
 describe('PLOT_METRIC_COLUMNS', () => {
-  it('lists the numeric columns of `export plots` in spec order (shared/spec/outputs.md, version 1)', () => {
+  it('lists the numeric columns of `export plots` in the order of docs/exports.md (version 1)', () => {
     expect(PLOT_METRIC_COLUMNS.map((c) => c.column)).toEqual([
       'stems_ha', 'basal_area_m2_ha', 'qmd_cm', 'agb_mg_ha', 'carbon_mg_ha', 'n_identified', 'richness', 'shannon',
       'simpson', 'inv_simpson', 'pielou', 'fisher_alpha', 'rarefied_50', 'chao1', 'pioneer_ba_share',

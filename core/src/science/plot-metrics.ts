@@ -1,5 +1,5 @@
 // Every numeric column of `export plots` for one plot visit, from its stems: one pure function.
-// Rules (shared/spec/outputs.md, inventory-format.md):
+// Rules (docs/methods.md#which-stems-count; columns in docs/exports.md, fields in docs/upload-format.md):
 //  - structure, biomass and carbon: all live stems, identified or not, main plot and subplot, each
 //    expanded by its own area; live stems below their plot's or subplot's dbh minimum are left out
 //    (they were not sampled on that area) and counted in the diagnostics;
@@ -144,7 +144,7 @@ export interface PlotDiagnostics {
   modelledOutsideFitRange: number;
   /** Live stems below the dbh minimum of the area they were recorded on (left out of every column). */
   liveStemsBelowDbhMin: number;
-  /** Recorded names of included live stems not matched to a listed species (genus-only or unknown genus). */
+  /** Recorded names of the visit's stems (every status and size) not matched to a listed species: `genus` when the genus is listed, else `unresolved`. */
   unresolvedNames: { name: string; level: 'genus' | 'unresolved'; stems: number }[];
 }
 
@@ -237,6 +237,14 @@ export function computePlotMetrics(
   for (let i = 0; i < stems.length; i += 1) {
     const s = stems[i];
     checkStem(i, s);
+    // Every stored stem counts towards its name (any status or size), as the ingest warnings count it.
+    const named = s.species === null ? null : index.resolve(s.species);
+    if (named !== null && (named.level === 'genus' || named.level === 'unresolved')) {
+      const key = (s.species as string).trim();
+      const u = unresolved.get(key);
+      if (u === undefined) unresolved.set(key, { level: named.level, stems: 1 });
+      else u.stems += 1;
+    }
     if (s.status === 'stump') {
       if (s.stumpCause === 'logged' && !s.inSubplot) loggedStumpBa += basalAreaM2(s.dbhCm);
       continue;
@@ -262,12 +270,6 @@ export function computePlotMetrics(
     if (!s.inSubplot) {
       mainLiveBa += g;
       if (r.species !== null) speciesCounts.set(r.species, (speciesCounts.get(r.species) ?? 0) + 1);
-    }
-    if (r.level === 'genus' || r.level === 'unresolved') {
-      const key = (s.species as string).trim();
-      const u = unresolved.get(key);
-      if (u === undefined) unresolved.set(key, { level: r.level, stems: 1 });
-      else u.stems += 1;
     }
   }
 

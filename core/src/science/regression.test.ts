@@ -5,7 +5,7 @@ import { R_CHECK_X, R_CHECK_Y } from '../../test/regression-fixture';
 
 // NIST Statistical Reference Datasets (StRD), linear least squares: Pontius and Longley. The data
 // and the certified values are read from the copies in ./fixtures (public reference data, layout
-// reconstructed; values agree digit for digit with the GSL test suite, see shared/reference/sources.md).
+// reconstructed; values agree digit for digit with the GSL test suite, see docs/methods.md#least-squares-by-qr).
 interface StrdFile {
   readonly rows: number[][];
   readonly estimates: number[];

@@ -1,6 +1,7 @@
 // Ordinary least squares for a design of any width, solved stably: the predictors are centred and
 // scaled, the design [1, z₁ … z_m] is factorised by Householder QR, and every result is mapped back
 // to the ORIGINAL scale of the predictors. The normal equations are never formed.
+// Formulas, sources and check values: docs/methods.md#least-squares-by-qr, docs/methods.md#aicc, docs/methods.md#hc3-robust-standard-errors.
 import { covarianceFromFactor, householderQr, matMul, upperTriangularInverse } from './regression-qr';
 import { studentTTwoSidedP } from './student-t';
 

@@ -12,7 +12,7 @@ import { tMultiplier } from './student-t';
 
 const rel = (a: number | null, b: number): number => Math.abs((a as number) - b) / Math.abs(b);
 
-// Constructed example of /work/shared/reference/sources.md, "Stratified sampling" (computed): sizes are
+// Constructed example of docs/methods.md#stratified-estimator (computed): sizes are
 // numbers of sampling units, so fpcUnitSize = 1 gives f_h = n_h / N_h.
 const CONSTRUCTED: readonly StratumInput[] = [
   { name: 's1', size: 400, values: [152, 170, 188, 141, 163, 177, 159, 166, 181, 149] },
@@ -20,7 +20,7 @@ const CONSTRUCTED: readonly StratumInput[] = [
   { name: 's3', size: 350, values: [230, 251, 214, 262, 245, 228, 239, 256, 221, 248, 236, 242] },
 ];
 
-describe('stratifiedEstimate on the sources.md constructed example (computed)', () => {
+describe('stratifiedEstimate on the constructed example of docs/methods.md (computed)', () => {
   it('gives ȳ_st = 175.544167 and SE 2.57401485 without fpc, 1e-6 relative', () => {
     const e = stratifiedEstimate(CONSTRUCTED);
     expect(e.weighting).toBe('area');

@@ -3,6 +3,7 @@ import { sampleMean, sampleVariance } from './sample-moments';
 import { tMultiplier } from './student-t';
 
 // Stratified random sampling estimators (Cochran 1977, Sampling Techniques 3rd ed., ch. 5).
+// Formulas and check values: docs/methods.md#stratified-estimator and the sections after it.
 //
 // Decisions, stated once here and repeated in the result so a report can say them:
 // - Weights W_h = N_h / N from stratum sizes (forest areas) when every stratum has one

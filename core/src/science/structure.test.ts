@@ -4,7 +4,7 @@ import { basalAreaM2, basalAreaPerHa, expansionFactor, quadraticMeanDiameter, st
 const rel = (got: number | null, want: number): number => Math.abs((got as number) - want) / Math.abs(want);
 
 describe('basalAreaM2', () => {
-  it('is π (D/200)² (inventory format spec): D = 20 cm → 0.0314159265… m² (computed by hand; rel 1e-15)', () => {
+  it('is π (D/200)² (docs/methods.md#basal-area): D = 20 cm → 0.0314159265… m² (computed by hand; rel 1e-15)', () => {
     expect(rel(basalAreaM2(20), 0.031415926535897934)).toBeLessThan(1e-15);
   });
   it('D = 100 cm → π/4 m² (a 1 m disc, geometry; rel 1e-15)', () => {
@@ -17,7 +17,7 @@ describe('basalAreaM2', () => {
 });
 
 describe('expansionFactor', () => {
-  it('is 1/area_ha on the main plot and 1/subplot_area_ha on the subplot (spec)', () => {
+  it('is 1/area_ha on the main plot and 1/subplot_area_ha on the subplot (docs/methods.md#expansion-factors)', () => {
     expect(expansionFactor(false, 0.5, 0.1)).toBe(2);
     expect(expansionFactor(true, 0.5, 0.1)).toBe(10);
   });

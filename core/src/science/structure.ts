@@ -1,8 +1,9 @@
 // Stand structure per hectare from stem diameters and per-stem expansion factors.
 // Each stem carries its own expansion factor w (stems per hectare it stands for): 1/area_ha on the
-// main plot, 1/subplot_area_ha on the nested subplot (inventory format, "Units and conventions").
+// main plot, 1/subplot_area_ha on the nested subplot (docs/methods.md#expansion-factors).
+// Formulas and check values: docs/methods.md#stand-structure.
 
-// g = π (D/200)² m², D = dbh in cm — basal area of a stem (inventory format spec; forest mensuration)
+// g = π (D/200)² m², D = dbh in cm — basal area of a stem (docs/methods.md#basal-area; forest mensuration)
 export function basalAreaM2(dbhCm: number): number {
   if (!(dbhCm > 0) || !Number.isFinite(dbhCm)) {
     throw new RangeError(`basalAreaM2: dbh must be a finite number > 0 cm (got ${dbhCm})`);
@@ -11,7 +12,7 @@ export function basalAreaM2(dbhCm: number): number {
   return Math.PI * r * r;
 }
 
-// w = 1/a, a = area (ha) of the plot or subplot the stem was recorded on — inventory format spec
+// w = 1/a, a = area (ha) of the plot or subplot the stem was recorded on — docs/methods.md#expansion-factors
 export function expansionFactor(inSubplot: boolean, areaHa: number, subplotAreaHa: number): number {
   const a = inSubplot ? subplotAreaHa : areaHa;
   if (!(a > 0) || !Number.isFinite(a)) {

@@ -4,7 +4,7 @@ import { studentTCdf, studentTQuantile, studentTTwoSidedP, tMultiplier } from '.
 describe('studentTQuantile', () => {
   // Critical values of Student's t as printed (3 decimals) in the t table at the back of standard
   // statistics texts and handbooks — recalled from memory, each one a commonly quoted entry — except
-  // t(0.975, 10), which shared/stack.md records to 10 digits (read). Tolerance: half a unit of the last
+  // t(0.975, 10), given to 10 digits as commonly quoted (memory; 2.228 in printed tables). Tolerance: half a unit of the last
   // printed digit.
   const table: Array<[p: number, df: number, t: number, tol: number]> = [
     [0.975, 10, 2.228138852, 5e-10],
@@ -40,7 +40,7 @@ describe('studentTQuantile', () => {
 });
 
 describe('studentTTwoSidedP', () => {
-  it('returns α at the two-sided critical value (t(0.975,10) from stack.md, tolerance 1e-9)', () => {
+  it('returns α at the two-sided critical value (t(0.975,10) = 2.228138852, memory, see docs/methods.md#student-t; tolerance 1e-9)', () => {
     expect(studentTTwoSidedP(2.228138852, 10)).toBeCloseTo(0.05, 9);
     expect(studentTTwoSidedP(-2.228138852, 10)).toBeCloseTo(0.05, 9);
   });

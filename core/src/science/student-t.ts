@@ -1,4 +1,5 @@
 // Student t distribution: thin wrappers over the maintained @stdlib implementations (no approximation of our own).
+// Check values: docs/methods.md#student-t.
 import tCdf from '@stdlib/stats-base-dists-t-cdf';
 import tQuantile from '@stdlib/stats-base-dists-t-quantile';
 

@@ -116,7 +116,7 @@ describe('fitCurves with too little or degenerate data', () => {
 });
 
 describe('fitRows', () => {
-  it('lists the columns of `export fits` in the order of shared/spec/outputs.md', () => {
+  it('lists the columns of `export fits` in the order of docs/exports.md', () => {
     expect(FIT_COLUMNS.join(', ')).toBe(
       'forest_type, metric, axis, n, model, b0, b1, b2, se_b0, se_b1, se_b2, p_b1, p_b2, r2, adj_r2, aicc, peak_x, peak_ci_low, peak_ci_high, verdict',
     );

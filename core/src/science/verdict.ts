@@ -1,5 +1,6 @@
 // Does tree diversity peak at intermediate disturbance? One forest type's plots in, a fitted
 // straight line and parabola, the hump tests and a plain verdict out.
+// Rules, sources and check values: docs/methods.md#verdict-rules.
 //
 // HOW THE VERDICT IS REACHED (for readers who are not statisticians)
 // Each plot gives one point: x = its disturbance (or another chosen column), y = its diversity.
@@ -316,7 +317,7 @@ export function fitCurves(points: readonly CurvePoint[], options: CurveOptions =
   });
 }
 
-/** The columns of `export fits`, in order (shared/spec/outputs.md). */
+/** The columns of `export fits`, in order (docs/exports.md, "export fits"). */
 export const FIT_COLUMNS = [
   'forest_type',
   'metric',

@@ -2,6 +2,7 @@
 // species value, else the mean of its genus in the reference list, else of its family, else the
 // basal-area-weighted mean of the plot's stems that got one of those, else a regional default.
 // Taxonomic gap-filling of this kind is common practice in tropical biomass work (no single source).
+// Formulas, sources and check values: docs/methods.md#wood-density-fallback.
 
 import { SpeciesIndex, type SpeciesResolution } from './species-names';
 

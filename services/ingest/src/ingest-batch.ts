@@ -4,7 +4,8 @@ import { currentSpeciesVersion, findPlotsAtCoordinates, findStoredPlots, findSto
 import { CROSS, crossMessages, PLAUSIBILITY, PLAUSIBILITY_DEFAULTS, plausibilityMessages, SpeciesIndex, STRUCTURE, structureMessages, type PlausibilityOptions, type ServiceDeps, type SpeciesReference } from '@stemwise/core';
 import { PermanentError, type JobContext } from '@stemwise/platform';
 import { IssueLog } from './issues';
-import { finishLoad, loadPlotsAndVisits, type LoadPlan } from './load/load-batch';
+import { dataRefused, isDataError } from './load/data-refused';
+import { finishLoad, loadPlotsAndVisits, type LoadPlan, type LoadingFile } from './load/load-batch';
 import { copySink, unnestSink } from './load/stem-sink';
 import { ProgressReporter } from './progress';
 import type { TableSource, TableStats } from './read/table';
@@ -24,6 +25,8 @@ export interface IngestOptions {
   job?: JobContext;
   /** Check duplicate tree ids in memory even while loading (always so with skip_invalid). */
   checkDuplicates?: boolean;
+  /** The batch is known to be rejected: check every file (duplicates included) and load nothing. */
+  checkOnly?: boolean;
 }
 
 /** The load met a duplicate (visit, tree) the in-memory checks were told to leave to the database. */
@@ -153,7 +156,7 @@ export async function ingestBatch(deps: ServiceDeps, batch: BatchRow, options: I
     return { state: 'rejected', counts: c };
   };
 
-  if (blocked() || !treesSource) {
+  if (options.checkOnly || blocked() || !treesSource) {
     // Rejected already: check the trees anyway (nothing is loaded), so every problem is reported at once.
     const trees = treesSource ? await validateTrees(ctx, treesSource, { plots, lookupStored: (k) => lookupStored(db, k), sink: null, species: index, plotsReadable: !plotsResult.stats.fatal && !!plotsFile, checkDuplicates: true }) : null;
     reporter.phase = 'done';
@@ -171,25 +174,39 @@ export async function ingestBatch(deps: ServiceDeps, batch: BatchRow, options: I
     speciesSource: `batch ${batch.id}`,
   };
   // Duplicate tree ids: under the default policy the unique constraint finds them during COPY at no
-  // memory cost; only then is the batch checked again with the in-memory set, to name their lines.
+  // memory cost. A batch that turns out to be rejected (a duplicate met by the load, or any other
+  // error of trees.csv) stops loading at once and is checked again from the start without loading,
+  // duplicates included with the in-memory set, so its one report names every problem.
   const checkDuplicates = batch.options.skip_invalid || options.checkDuplicates === true;
+  const recheck = () => ingestBatch(deps, batch, { ...options, checkDuplicates: true, checkOnly: true });
   let trees: TreesResult | null = null;
+  const loading: LoadingFile = { file: 'plots.csv' };
   try {
     const result = await db.transaction(async (tx) => {
       reporter.inTransaction = true;
-      const { regionIds, movedFrom } = await loadPlotsAndVisits(tx, plan);
+      const { regionIds, movedFrom } = await loadPlotsAndVisits(tx, plan, loading);
       reporter.phase = 'loading';
       const sink = tx.kind === 'postgres' ? copySink(tx) : unnestSink(tx);
       // On PostgreSQL the transaction's connection is busy with COPY: look up stored plots on another one.
       const lookup = tx.kind === 'postgres' ? db : tx;
+      loading.file = 'trees.csv';
       try {
-        trees = await validateTrees(ctx, treesSource, { plots, lookupStored: (k) => lookupStored(lookup, k), sink, species: index, plotsReadable: true, checkDuplicates });
+        trees = await validateTrees(ctx, treesSource, {
+          plots,
+          lookupStored: (k) => lookupStored(lookup, k),
+          sink,
+          species: index,
+          plotsReadable: true,
+          checkDuplicates,
+          stopWhenRejected: !checkDuplicates,
+        });
       } finally {
         await sink.finish();
       }
       reporter.tick(true);
       if (trees.stats.fatal || blocked()) throw new Rejected();
-      await finishLoad(tx, plan, regionIds, { storedPlots: trees.storedPlots, movedFrom });
+      await finishLoad(tx, plan, regionIds, { storedPlots: trees.storedPlots, movedFrom }, loading);
+      loading.file = 'the issues of the batch';
       const c = counts(trees, true);
       await insertBatchIssues(tx, batch.id, log.rows());
       reporter.phase = 'done';
@@ -201,11 +218,12 @@ export async function ingestBatch(deps: ServiceDeps, batch: BatchRow, options: I
     return { state: 'loaded', counts: result };
   } catch (err) {
     reporter.inTransaction = false;
-    if (err instanceof Rejected) return reject(trees);
+    if (err instanceof Rejected) return checkDuplicates ? reject(trees) : recheck();
     if (isDuplicateStem(err) && !checkDuplicates) {
       deps.log.info({ batchId: batch.id }, 'duplicate tree ids met during the load; checking again to report their lines');
-      return ingestBatch(deps, batch, { ...options, checkDuplicates: true });
+      return recheck();
     }
+    if (isDataError(err)) throw dataRefused(err, loading.file);
     throw err;
   }
 }

@@ -1,6 +1,11 @@
 import type { BatchIssueRow } from '@stemwise/db';
 import { OMITTED_MARK, type Rule } from '@stemwise/core';
 
+/** Text the database can store: PostgreSQL text refuses U+0000, shown instead as ␀ (U+2400). */
+function storable(s: string | null): string | null {
+  return s !== null && s.includes('\0') ? s.replace(/\0/g, '\u2400') : s;
+}
+
 /**
  * Every issue of a batch is counted; the first `capPerRule` of each rule are kept with their line,
  * column and value. A rule with more gets one extra row (column `*`, value = how many were left out),
@@ -23,7 +28,7 @@ export class IssueLog {
     c.n++;
     if (c.n <= this.capPerRule) {
       const v = value === null ? null : value.length > 200 ? `${value.slice(0, 200)}…` : value;
-      this.stored.push({ severity: rule.severity, rule: rule.code, file, line, column, value: v, message });
+      this.stored.push({ severity: rule.severity, rule: rule.code, file, line, column: storable(column), value: storable(v), message: storable(message)! });
     }
   }
 

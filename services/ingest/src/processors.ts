@@ -2,12 +2,7 @@ import { batchLockKey, getBatch, deleteBatchIssues, markBatchFailed, startBatchV
 import type { ServiceDeps } from '@stemwise/core';
 import { oneLine, parsePayload, PermanentError, type JobContext, type ProcessorMap } from '@stemwise/platform';
 import { ingestBatch, type IngestOptions } from './ingest-batch';
-
-/** PostgreSQL's integrity violations (class 23): the data breaks a constraint no retry will mend. */
-function isIntegrityViolation(err: unknown): boolean {
-  const code = (err as { code?: unknown })?.code;
-  return typeof code === 'string' && /^23\d{3}$/.test(code);
-}
+import { isDataError } from './load/data-refused';
 
 /** Queues the recompute a loaded batch needs (deterministic id: a retry adds nothing). */
 async function queueRecompute(deps: ServiceDeps, batchId: string): Promise<void> {
@@ -46,7 +41,7 @@ async function attempt(deps: ServiceDeps, batchId: string, job: JobContext | und
       await queueRecompute(deps, batchId); // another attempt loaded it meanwhile
       return { state: now.state };
     }
-    const permanent = err instanceof PermanentError || isIntegrityViolation(err);
+    const permanent = err instanceof PermanentError || isDataError(err);
     const lastTry = deps.queue.kind === 'in-process' || (job?.attempt ?? 1) >= (job?.maxAttempts ?? deps.config.jobAttempts);
     if (permanent || lastTry) await markBatchFailed(db, batchId, oneLine(err)).catch(() => {});
     if (permanent && !(err instanceof PermanentError)) throw new PermanentError('ingest_failed', `batch ${batchId} could not be loaded: ${oneLine(err)}`, { cause: err });

@@ -17,7 +17,7 @@ export async function listRegionExportRows(db: Queryable, region?: string | null
 }
 
 /**
- * `stemwise export regions`: the spec columns (shared/spec/outputs.md) from the latest snapshots, as
+ * `stemwise export regions`: the columns of docs/exports.md from the latest snapshots, as
  * CSV (neutralised for spreadsheets) or JSON, to a file or a stream. Regions not summarised yet are
  * absent; `staleVisits` counts plot visits whose figures a recompute has still to bring in.
  */

@@ -15,4 +15,10 @@ export const FIELD = {
   badCharacters: defineRule('field', 'field_bad_characters', 'error', 'A key holds characters other than A-Z a-z 0-9 _ . -.'),
   unknownForestType: defineRule('field', 'field_unknown_forest_type', 'error', 'A forest type code is not in the configured list.'),
   speciesNameForm: defineRule('field', 'field_species_name_form', 'error', 'An accepted name in species.csv is not written "Genus epithet".'),
+  nulCharacter: defineRule('field', 'field_nul_character', 'error', 'A value holds a NUL character (byte 0x00), which no text column of the database can store.'),
 } as const;
+
+export const fieldMessages = {
+  nulCharacter: (column: string | null) =>
+    `${column ?? 'a header name'} holds a NUL character (byte 0x00), which cannot be stored; the file may be damaged or written by a program that pads with zero bytes — remove them and upload again`,
+};

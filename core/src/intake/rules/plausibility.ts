@@ -1,4 +1,6 @@
-import { defineRule } from './rule';
+import { defineRule, shown } from './rule';
+
+const stemCount = (n: number) => `${n.toLocaleString('en-US')} stem${n === 1 ? '' : 's'}`;
 
 // Plausibility: values that are allowed but unlikely. Warnings only: they never block a batch.
 
@@ -7,8 +9,9 @@ export const PLAUSIBILITY = {
   dbhLarge: defineRule('plausibility', 'plausibility_dbh_large', 'warning', 'A diameter is over 250 cm.'),
   heightForDiameter: defineRule('plausibility', 'plausibility_height_for_diameter', 'warning', 'A live stem\'s height/diameter ratio (both in m) is below 20 or above 120.'),
   heightTall: defineRule('plausibility', 'plausibility_height_tall', 'warning', 'A height is above 80 m, which is rare even in tall tropical forest.'),
-  speciesUnknown: defineRule('plausibility', 'plausibility_species_unknown', 'warning', 'A species name is not in the reference list (not even its genus).'),
-  speciesGenusOnly: defineRule('plausibility', 'plausibility_species_genus_only', 'warning', 'A species name resolves only to a genus of the reference list.'),
+  speciesUnknown: defineRule('plausibility', 'plausibility_species_unknown', 'warning', 'A species name is not in the reference list, and neither is its genus.'),
+  speciesGenusKnown: defineRule('plausibility', 'plausibility_species_genus_known', 'warning', 'A species name is not in the reference list, but its genus is (the genus\'s mean wood density is used).'),
+  speciesGenusOnly: defineRule('plausibility', 'plausibility_species_genus_only', 'warning', 'A name identifies a stem only to a genus or family of the reference list (Genus sp., or a genus alone).'),
   speciesNoReference: defineRule('plausibility', 'plausibility_species_no_reference', 'warning', 'No species reference list is loaded, so names were not checked.'),
   sameCoordinates: defineRule('plausibility', 'plausibility_same_coordinates', 'warning', 'Two different plots have exactly the same coordinates.'),
   surveyDateEarly: defineRule('plausibility', 'plausibility_survey_date_early', 'warning', 'A survey date lies before 1950.'),
@@ -16,7 +19,7 @@ export const PLAUSIBILITY = {
 
 /**
  * Bounds of the plausibility warnings. None comes from a measured standard: they are common practice,
- * recalled from memory (see the reference notes of the project), so they are options, not constants.
+ * recalled from memory (docs/methods.md#plausibility-warnings), so they are options, not constants.
  */
 export interface PlausibilityOptions {
   /** A plot whose median diameter exceeds this (cm) probably recorded millimetres. Common practice: tropical
@@ -49,8 +52,12 @@ export const plausibilityMessages = {
   heightForDiameter: (h: number, dbh: number, ratio: number, lo: number, hi: number) =>
     `height ${h} m for a diameter of ${dbh} cm gives a height/diameter ratio of ${Math.round(ratio)}; usual trees lie between ${lo} and ${hi} (common practice)`,
   heightTall: (h: number, bound: number) => `height_m is ${h}, above ${bound} m; please check it`,
-  speciesUnknown: (name: string) => `species ${JSON.stringify(name)} is not in the reference list; stems keep the name but count as unassigned`,
-  speciesGenusOnly: (name: string, genus: string) => `species ${JSON.stringify(name)} is identified only to the genus ${genus}`,
+  speciesUnknown: (name: string, stems: number) =>
+    `species ${shown(name)} is not in the reference list, and neither is its genus; stems keep the name but count as unassigned (${stemCount(stems)})`,
+  speciesGenusKnown: (name: string, genus: string, stems: number) =>
+    `species ${shown(name)} is not in the reference list, but its genus ${genus} is; stems keep the name, count as unassigned to a species and take the genus's mean wood density (${stemCount(stems)})`,
+  speciesGenusOnly: (name: string, known: { rank: 'genus' | 'family'; name: string }, stems: number) =>
+    `species ${shown(name)} is identified only to the ${known.rank} ${known.name} (${stemCount(stems)})`,
   speciesNoReference: () => 'no species reference list is loaded; names were not checked (import one with stemwise species import FILE)',
   sameCoordinates: (plot: string, other: string) => `plot ${plot} has exactly the same coordinates as plot ${other}`,
   surveyDateEarly: (date: string, year: number) => `survey_date ${date} is before ${year}; please check it`,

@@ -29,16 +29,27 @@ export interface LoadPlan {
   speciesSource: string;
 }
 
+/** The file whose rows the database is taking in, to name it when the database refuses a value. */
+export interface LoadingFile {
+  file: string;
+}
+
 /** Before the stems: a new species version (if any), regions, replaced visits, plots and visits. Sets each plot's visitId. */
-export async function loadPlotsAndVisits(tx: Tx, plan: LoadPlan): Promise<{ regionIds: Map<string, number>; movedFrom: string[]; newSpeciesVersion: number | null }> {
+export async function loadPlotsAndVisits(
+  tx: Tx,
+  plan: LoadPlan,
+  loading: LoadingFile = { file: '' },
+): Promise<{ regionIds: Map<string, number>; movedFrom: string[]; newSpeciesVersion: number | null }> {
   let newSpeciesVersion: number | null = null;
   if (plan.species && plan.species.rows.length) {
+    loading.file = 'species.csv';
     const latest = await latestSpeciesVersion(tx);
     if (latest?.contentHash !== plan.species.contentHash) {
       newSpeciesVersion = await insertSpeciesVersion(tx, plan.speciesSource, plan.species.contentHash, plan.species.rows);
       await markVisitsStale(tx, 'all');
     }
   }
+  loading.file = 'plots.csv';
   const regionIds = await upsertRegions(tx, [...new Set([...plan.plots.map((p) => p.region), ...plan.strata.map((s) => s.region)])]);
   const keys = plan.plots.map((p) => p.key);
   const movedFrom = await regionsOfPlots(tx, keys);
@@ -75,7 +86,9 @@ export async function finishLoad(
   plan: LoadPlan,
   regionIds: Map<string, number>,
   touched: { storedPlots: PlotEntry[]; movedFrom: string[] },
+  loading: LoadingFile = { file: '' },
 ): Promise<void> {
+  loading.file = 'strata.csv';
   await upsertStrata(tx, plan.batchId, {
     regionIds: plan.strata.map((s) => regionIds.get(s.region)!),
     forestTypes: plan.strata.map((s) => s.forestType),

@@ -1,7 +1,7 @@
 import type { IssueLog } from '../issues';
 import type { ColumnSpec } from '../rules/columns';
 import { compileFieldCheck, INVALID, type FieldCheckOptions, type Parsed } from '../rules/field-checks';
-import { STRUCTURE, structureMessages } from '@stemwise/core';
+import { FIELD, fieldMessages, STRUCTURE, structureMessages } from '@stemwise/core';
 import { CsvSplitter, type CsvEvent } from './csv-splitter';
 import { FileProblem } from './file-problem';
 import { textChunks } from './text-chunks';
@@ -48,12 +48,20 @@ export async function* readTable(src: TableSource, o: TableOptions, stats: Table
   const splitter = new CsvSplitter(o.delimiter, o.maxLineChars ?? 1 << 20);
   const checks = o.columns.map((c) => compileFieldCheck(c, { ...o, file }));
   let positions: number[] | null = null;
+  let names: string[] = [];
   let width = 0;
   let sawText = false;
+  // PostgreSQL text cannot hold U+0000. Whole chunks are searched for it (one indexOf per 64 KB);
+  // only once one held it are the cells of each row searched, to name the line and column.
+  let nulSeen = false;
   const events: CsvEvent[] = [];
 
   const header = (fields: string[], line: number): boolean => {
-    const names = fields.map((f) => f.trim().toLowerCase());
+    names = fields.map((f) => f.trim().toLowerCase());
+    if (nulSeen && names.some((n) => n.includes('\0'))) {
+      log.add(FIELD.nulCharacter, file, line, null, null, fieldMessages.nulCharacter(null));
+      return false;
+    }
     if (o.delimiter === ',' && names.length === 1 && names[0].includes(';')) {
       log.add(STRUCTURE.semicolonDelimited, file, line, null, null, structureMessages.semicolon());
       return false;
@@ -109,10 +117,19 @@ export async function* readTable(src: TableSource, o: TableOptions, stats: Table
         ok = false;
         log.add(STRUCTURE.quotedNewline, file, e.line, null, null, structureMessages.quotedNewline(e.lines));
       }
+      let withNul: Set<number> | null = null;
+      if (nulSeen) {
+        for (let j = 0; j < f.length; j++) {
+          if (!f[j].includes('\0')) continue;
+          (withNul ??= new Set()).add(j);
+          log.add(FIELD.nulCharacter, file, e.line, names[j] || null, f[j], fieldMessages.nulCharacter(names[j] || `value ${j + 1}`));
+          ok = false;
+        }
+      }
       const values: Array<Parsed | typeof INVALID> = new Array(checks.length);
       for (let i = 0; i < checks.length; i++) {
         const p = positions[i];
-        const v = checks[i](p < 0 ? '' : f[p], e.line);
+        const v = withNul?.has(p) ? INVALID : checks[i](p < 0 ? '' : f[p], e.line);
         if (v === INVALID) ok = false;
         values[i] = v;
       }
@@ -126,6 +143,7 @@ export async function* readTable(src: TableSource, o: TableOptions, stats: Table
   try {
     for await (const text of textChunks(src.path, src.gzip, o.onBytes)) {
       if (!sawText && text.trim() !== '') sawText = true;
+      if (!nulSeen && text.includes('\0')) nulSeen = true;
       splitter.push(text, events);
       const rows = rowsOf();
       if (rows === null) {

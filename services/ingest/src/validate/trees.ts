@@ -22,10 +22,24 @@ export interface TreesInput {
    * constraint on (visit, tree) catches them during the load, and the caller checks again with this on.
    */
   checkDuplicates: boolean;
+  /**
+   * Stop reading once the batch is sure to be rejected (under the default policy, the first error):
+   * the caller then checks the whole batch again without loading, duplicates included.
+   */
+  stopWhenRejected?: boolean;
 }
 
 export interface NameTally {
+  /**
+   * By the resolver's level (the compute service's resolution): `genus` a species not in the list
+   * whose genus is, `unresolved` neither known — these two make the batch's unresolved-names list —
+   * and `unidentified` a name given only to a genus or family the list knows (`Genus sp.`). A name
+   * given only to a genus of which the list knows nothing (`Zzz sp.`, one unknown word) is
+   * `unresolved` here too, but not in that list: its stems declare themselves unidentified.
+   */
   level: 'unresolved' | 'genus' | 'unidentified';
+  /** Genus or family the list knows for the name, or null. */
+  known: { rank: 'genus' | 'family'; name: string } | null;
   stems: number;
   firstLine: number;
 }
@@ -170,14 +184,6 @@ export async function validateTrees(ctx: ValidationContext, src: TableSource, in
       if (typeof height === 'number' && height > pl.tallHeightM) {
         log.add(PLAUSIBILITY.heightTall, file, line, 'height_m', String(height), plausibilityMessages.heightTall(height, pl.tallHeightM));
       }
-      if (species !== null && typeof species === 'string') {
-        let tally = names.get(species);
-        if (tally === undefined) {
-          tally = nameTally(input.species, species, line);
-          if (names.size < MAX_NAMES) names.set(species, tally);
-        }
-        if (tally !== null) tally.stems++;
-      }
       if (seen && typeof plotKey === 'string' && typeof treeId === 'string') {
         const first = seen.add(`${plotKey}\u0000${treeId}`, line);
         if (first !== 0) {
@@ -192,6 +198,16 @@ export async function validateTrees(ctx: ValidationContext, src: TableSource, in
           bad();
         }
       }
+      // Names are counted over the rows without errors, the stems a loaded batch holds: the same
+      // stems the batch's unresolved-names list counts once its plots are computed.
+      if (ok && typeof species === 'string') {
+        let tally = names.get(species);
+        if (tally === undefined) {
+          tally = nameTally(input.species, species, line);
+          if (names.size < MAX_NAMES) names.set(species, tally);
+        }
+        if (tally !== null) tally.stems++;
+      }
       if (ok && sink && !sink.stopped && plot) {
         const wait = sink.add(plot.visitId, treeId as string, species, dbh as number, (height as number | null) ?? null, status as string, cause, v[7] as number, subplot === '1');
         stemsLoaded++;
@@ -202,6 +218,7 @@ export async function validateTrees(ctx: ValidationContext, src: TableSource, in
     }
     if (sink && !sink.stopped && !skipInvalid && log.errors > 0) sink.stop();
     ctx.tick();
+    if (sink?.stopped && input.stopWhenRejected) break;
   }
   if (sink && !sink.stopped && (stats.fatal || (!skipInvalid && log.errors > 0))) sink.stop();
 
@@ -222,28 +239,26 @@ export async function validateTrees(ctx: ValidationContext, src: TableSource, in
     if (t === null) continue;
     unresolved.set(name, t);
     if (input.species === null) continue;
-    const count = ` (${t.stems.toLocaleString('en-US')} stem${t.stems === 1 ? '' : 's'})`;
-    if (t.level === 'unresolved') log.add(PLAUSIBILITY.speciesUnknown, file, t.firstLine, 'species', name, plausibilityMessages.speciesUnknown(name) + count);
-    else if (t.level === 'genus') {
-      const genus = normaliseName(name).split(' ')[0];
-      log.add(PLAUSIBILITY.speciesGenusOnly, file, t.firstLine, 'species', name, plausibilityMessages.speciesGenusOnly(name, genus) + count);
-    }
+    const m = plausibilityMessages;
+    if (t.level === 'unresolved') log.add(PLAUSIBILITY.speciesUnknown, file, t.firstLine, 'species', name, m.speciesUnknown(name, t.stems));
+    else if (t.level === 'genus') log.add(PLAUSIBILITY.speciesGenusKnown, file, t.firstLine, 'species', name, m.speciesGenusKnown(name, t.known!.name, t.stems));
+    else log.add(PLAUSIBILITY.speciesGenusOnly, file, t.firstLine, 'species', name, m.speciesGenusOnly(name, t.known!, t.stems));
   }
   const storedPlots = [...stored.values()].filter((p): p is PlotEntry => p !== null && touchedStored.has(p.key));
   return { stats, stemsLoaded: sink && !sink.stopped ? stemsLoaded : 0, storedPlots, names: unresolved };
 }
 
 /**
- * How a recorded name stands against the reference list: null when it names a species of the list
- * (or declares the stem unidentified: indet, unknown, empty); otherwise a tally to count its stems.
- * `genus` covers a bare genus or `Genus sp.` of a genus the list knows; anything else is `unresolved`.
+ * How a recorded name stands against the reference list, by the resolution the compute service uses:
+ * null when it names a species of the list (or declares the stem unidentified: indet, unknown,
+ * empty); otherwise a tally of the resolver's level and what the list knows of the name.
  */
 function nameTally(index: SpeciesIndex | null, name: string, line: number): NameTally | null {
   const n = normaliseName(name);
   if (n === '' || UNIDENTIFIED_WORD.test(n)) return null;
-  if (index === null) return { level: 'unresolved', stems: 0, firstLine: line };
+  if (index === null) return { level: 'unresolved', known: null, stems: 0, firstLine: line };
   const r = index.resolve(name);
-  if (r.species !== null) return null;
-  if (r.level === 'unidentified') return r.genus !== null ? { level: 'genus', stems: 0, firstLine: line } : { level: 'unresolved', stems: 0, firstLine: line };
-  return { level: 'unresolved', stems: 0, firstLine: line };
+  if (r.species !== null || r.level === 'exact' || r.level === 'synonym' || r.level === 'normalised') return null;
+  const known = r.genus !== null ? ({ rank: 'genus', name: r.genus } as const) : r.family !== null ? ({ rank: 'family', name: r.family } as const) : null;
+  return { level: r.level === 'unidentified' && known === null ? 'unresolved' : r.level, known, stems: 0, firstLine: line };
 }

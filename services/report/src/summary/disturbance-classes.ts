@@ -1,7 +1,7 @@
 import { RegionSummaryInputError } from './input';
 import type { DisturbanceClass } from '@stemwise/core';
 
-/** Our own documented defaults on disturbance_index (0–1), not a published scheme: change per protocol. */
+/** Our own documented defaults on disturbance_index (0–1), not a published scheme: change per protocol (docs/methods.md#disturbance-classes). */
 export const DEFAULT_DISTURBANCE_CLASSES: readonly DisturbanceClass[] = [
   { name: 'very_low', below: 0.1 },
   { name: 'low', below: 0.3 },

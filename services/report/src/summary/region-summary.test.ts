@@ -67,7 +67,7 @@ function assertPlainJson(value: unknown, path = '$'): void {
 }
 
 describe('summariseRegion rows', () => {
-  it('REGION_COLUMNS is the `export regions` column list of outputs.md, and every row has exactly those keys in that order', () => {
+  it('REGION_COLUMNS is the `export regions` column list of docs/exports.md, and every row has exactly those keys in that order', () => {
     expect(REGION_COLUMNS).toEqual(['region', 'forest_type', 'variable', 'n_plots', 'mean', 'se', 'ci_low', 'ci_high', 'sampling_error_pct', 'forest_area_ha', 'total']);
     const s = summariseRegion(base());
     for (const r of s.rows) expect(Object.keys(r)).toEqual([...REGION_COLUMNS]);
@@ -116,7 +116,7 @@ describe('summariseRegion rows', () => {
     expect(s.totals.some((x) => x.variable === 'fisher_alpha')).toBe(false);
   });
 
-  it('reproduces the sources.md constructed example through the summary, fpc from plotAreaHa: SE 2.53645191 (computed), 1e-6 relative', () => {
+  it('reproduces the constructed example of docs/methods.md#stratified-estimator through the summary, fpc from plotAreaHa: SE 2.53645191 (computed), 1e-6 relative', () => {
     const groups: [string, number, number[]][] = [
       ['s1', 400, [152, 170, 188, 141, 163, 177, 159, 166, 181, 149]],
       ['s2', 250, [98, 120, 87, 110, 105, 93, 116, 101]],
