@@ -5,6 +5,7 @@ WORKDIR /app
 COPY package.json package-lock.json ./
 COPY platform/package.json platform/
 COPY db/package.json db/
+COPY core/package.json core/
 COPY services/ingest/package.json services/ingest/
 COPY services/compute/package.json services/compute/
 COPY services/report/package.json services/report/

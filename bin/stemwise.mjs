@@ -28,7 +28,7 @@ function buildIsCurrent() {
   } catch {
     return false;
   }
-  const sources = ['platform', 'db', 'services', 'cli', 'demo-inventory'].map((d) => path.join(root, d)).filter((d) => fs.existsSync(d));
+  const sources = ['platform', 'db', 'core', 'services', 'cli', 'demo-inventory'].map((d) => path.join(root, d)).filter((d) => fs.existsSync(d));
   return sources.every((d) => newestSource(d) <= builtAt);
 }
 

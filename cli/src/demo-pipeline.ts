@@ -1,9 +1,10 @@
 import fs from 'node:fs';
 import path from 'node:path';
 import { InProcessQueue, loadConfig, type Config, type Logger } from '@stemwise/platform';
-import { migrateDatabase, openDatabase, syncForestTypes, type ServiceDeps } from '@stemwise/db';
+import { migrateDatabase, openDatabase, syncForestTypes } from '@stemwise/db';
+import { filesInDir, submitBatch, type ServiceDeps } from '@stemwise/core';
 import { checkOwnFolder, claimOwnFolder } from './own-folder';
-import { availableProcessors } from './processors';
+import { allProcessors } from './processors';
 
 export interface DemoOptions {
   /** Folder holding plots.csv(.gz), trees.csv(.gz), optionally strata and species. */
@@ -64,13 +65,11 @@ export async function runDemo(o: DemoOptions): Promise<DemoResult> {
     await migrateDatabase(db);
     await syncForestTypes(db, config.forestTypes);
     const deps: ServiceDeps = { config, db, log: o.log, queue };
-    const { processors, queues, missing } = await availableProcessors(deps);
-    if (missing.length) throw new Error(`this build lacks the ${missing.join(', ')} service(s)`);
+    const { processors, queues } = await allProcessors(deps);
     await queue.work(processors, { queues });
 
-    const ingest = await import('@stemwise/ingest');
     step(`submitting the batch in ${o.inputDir}`);
-    const submitted = await ingest.submitBatch(deps, ingest.filesInDir(o.inputDir), {}, 'demo');
+    const submitted = await submitBatch(deps, filesInDir(o.inputDir), {}, 'demo');
     step('validating, loading, computing plot metrics, fitting curves, assembling summaries');
     const failures = await queue.drain();
     if (failures.length) throw new Error(`a job failed: ${failures[0].name}: ${failures[0].error}`);

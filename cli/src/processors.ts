@@ -1,82 +1,45 @@
-import type { ServiceDeps } from '@stemwise/db';
-import type { ProcessorMap, QueueName } from '@stemwise/platform';
+import type { ServiceDeps, ServiceDescriptor, ServiceName } from '@stemwise/core';
+import { QUEUE_NAMES, jobNamesOf, type ProcessorMap, type QueueName } from '@stemwise/platform';
 
-export type ServiceName = 'ingest' | 'compute' | 'report';
+export type { ServiceName } from '@stemwise/core';
 
-/** The queues each service serves (compute also runs the maintenance jobs: recompute planning, reconciling). */
-export const SERVICE_QUEUES: Record<ServiceName, QueueName[]> = {
-  ingest: ['ingest'],
-  compute: ['compute', 'maintenance'],
-  report: ['report'],
+/** Every service, in start order; each module is loaded only when its service is run. */
+const SERVICES: Record<ServiceName, () => Promise<ServiceDescriptor>> = {
+  ingest: async () => (await import('@stemwise/ingest')).service,
+  compute: async () => (await import('@stemwise/compute')).service,
+  report: async () => (await import('@stemwise/report')).service,
 };
 
-type ServiceModule = { createProcessors?: (deps: ServiceDeps) => ProcessorMap };
+export const SERVICE_NAMES = Object.keys(SERVICES) as ServiceName[];
 
-async function load(service: ServiceName): Promise<ServiceModule> {
-  switch (service) {
-    case 'ingest':
-      return import('@stemwise/ingest') as Promise<ServiceModule>;
-    case 'compute':
-      return import('@stemwise/compute') as Promise<ServiceModule>;
-    case 'report':
-      return import('@stemwise/report') as Promise<ServiceModule>;
-  }
+/** The descriptors of the given services. */
+export async function loadServices(names: readonly ServiceName[]): Promise<ServiceDescriptor[]> {
+  return Promise.all(names.map((name) => SERVICES[name]()));
 }
 
-/** The processors of the given services, merged, with the queues they cover. */
-export async function processorsFor(deps: ServiceDeps, services: readonly ServiceName[]): Promise<{ processors: ProcessorMap; queues: QueueName[] }> {
+/** The processors of the given services, merged, with the queues they serve. */
+export function processorsOf(deps: ServiceDeps, services: readonly ServiceDescriptor[]): { processors: ProcessorMap; queues: QueueName[] } {
   const processors: ProcessorMap = {};
   const queues: QueueName[] = [];
   for (const service of services) {
-    const mod = await load(service);
-    if (typeof mod.createProcessors !== 'function') throw new Error(`the ${service} service has no processors`);
-    Object.assign(processors, mod.createProcessors(deps));
-    if (service === 'compute') {
-      const { createMaintenanceProcessors } = await import('@stemwise/compute/maintenance/processors');
-      Object.assign(processors, createMaintenanceProcessors(deps));
-    }
-    queues.push(...SERVICE_QUEUES[service]);
+    Object.assign(processors, service.createProcessors(deps));
+    queues.push(...service.queues);
   }
   return { processors, queues };
 }
 
-function isMissingModule(err: unknown): boolean {
-  const e = err as { code?: string; message?: string };
-  return e?.code === 'ERR_MODULE_NOT_FOUND' || /cannot find (module|package)|failed to (load|resolve)/i.test(e?.message ?? '');
+/** The processors of the named services (loaded), merged, with the queues they serve. */
+export async function processorsFor(deps: ServiceDeps, names: readonly ServiceName[]): Promise<{ processors: ProcessorMap; queues: QueueName[] }> {
+  return processorsOf(deps, await loadServices(names));
 }
 
 /**
- * Every processor this build has, for running jobs in-process (the CLI without REDIS_URL: recompute,
- * upload --wait, demo). A service whose package has no processors yet is skipped and named in
- * `missing`; `queues` lists only the queues whose every job has a processor here.
+ * Every service's processors, for running jobs in-process (the CLI without REDIS_URL: recompute,
+ * upload --wait, demo), with every queue.
  */
-export async function availableProcessors(deps: ServiceDeps): Promise<{ processors: ProcessorMap; queues: QueueName[]; missing: ServiceName[] }> {
-  const { QUEUE_NAMES, jobNamesOf } = await import('@stemwise/platform');
-  const processors: ProcessorMap = {};
-  const missing: ServiceName[] = [];
-  for (const service of ['ingest', 'compute', 'report'] as const) {
-    let mod: ServiceModule;
-    try {
-      mod = await load(service);
-    } catch (err) {
-      if (!isMissingModule(err)) throw err;
-      missing.push(service);
-      continue;
-    }
-    if (typeof mod.createProcessors !== 'function') {
-      missing.push(service);
-      continue;
-    }
-    Object.assign(processors, mod.createProcessors(deps));
-    if (service === 'compute') {
-      try {
-        const { createMaintenanceProcessors } = await import('@stemwise/compute/maintenance/processors');
-        Object.assign(processors, createMaintenanceProcessors(deps));
-      } catch (err) {
-        if (!isMissingModule(err)) throw err;
-      }
-    }
-  }
-  const queues = QUEUE_NAMES.filter((q) => jobNamesOf(q).every((name) => typeof processors[name] === 'function'));
-  return { processors, queues, missing };
+export async function allProcessors(deps: ServiceDeps): Promise<{ processors: ProcessorMap; queues: QueueName[] }> {
+  const found = await processorsFor(deps, SERVICE_NAMES);
+  const missing = QUEUE_NAMES.flatMap((q) => jobNamesOf(q)).filter((name) => typeof found.processors[name] !== 'function');
+  if (missing.length) throw new Error(`no service has a processor for ${missing.join(', ')}`);
+  return found;
 }

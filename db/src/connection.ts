@@ -9,6 +9,7 @@ import { migrate as migratePg } from 'drizzle-orm/node-postgres/migrator';
 import type { PgDatabase, PgQueryResultHKT } from 'drizzle-orm/pg-core';
 import pg from 'pg';
 import { ServiceUnavailableError, oneLine, type Config } from '@stemwise/platform';
+import { MIGRATE_LOCK } from './advisory-locks';
 import * as schema from './schema/index';
 
 export const MIGRATIONS_DIR = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '../migrations');
@@ -146,7 +147,7 @@ async function openPglite(dir: string): Promise<Db> {
 
 /** Creates or upgrades the schema (idempotent; concurrent callers on PostgreSQL wait for each other). */
 export async function migrateDatabase(db: Db): Promise<void> {
-  await db.withLock(742_001, async () => {
+  await db.withLock(MIGRATE_LOCK, async () => {
     if (db.kind === 'postgres') await migratePg(db.orm as never, { migrationsFolder: MIGRATIONS_DIR });
     else await migratePglite(db.orm as never, { migrationsFolder: MIGRATIONS_DIR });
   });

@@ -1,8 +1,8 @@
 export * from './connection';
+export * from './advisory-locks';
 export * as schema from './schema/index';
 export * from './queries/forest-types';
 export * from './queries/recompute';
-export type { ServiceDeps } from './deps';
 export * from './queries/reconcile';
 export * from './queries/metrics';
 export * from './queries/fits';

@@ -33,3 +33,5 @@ export const DEMO_DATA_FILES = {
 export const DEMO_DATA_COMMAND = 'npx tsx demo-inventory/src/cli.ts --plots 450 --seed 7 --out demo-inventory/data --gzip --heights 0.2';
 /** The same settings as `generateInventory` options (without the output folder). */
 export const DEMO_DATA_OPTIONS = { plots: 450, seed: 7, gzip: true, heightsFraction: 0.2, badRows: 0 } as const;
+export { crpPartition } from './community';
+export { Rng } from './random';

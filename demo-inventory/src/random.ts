@@ -1,6 +1,8 @@
 // Seeded pseudo-random numbers for the demo inventory: the same seed gives the same inventory on
 // every machine and every run (V8 computes Math.exp/log/sqrt with its own fdlibm port).
 
+import { createRng } from '@stemwise/core/science';
+
 // lowbias32 integer hash (C. Wellons, "Prospecting for hash functions", 2018): two xorshift-multiply rounds.
 export function hash32(x: number): number {
   let h = x >>> 0;
@@ -29,20 +31,17 @@ function stringHash(s: string): number {
 
 /** A seeded random stream with the distributions the generator needs. */
 export class Rng {
-  private state: number;
+  private readonly source: { next(): number };
   private spareNormal: number | null = null;
 
   constructor(seed: number) {
     if (!Number.isFinite(seed)) throw new RangeError(`Rng: seed must be a finite number, got ${seed}`);
-    this.state = Math.trunc(seed) | 0;
+    this.source = createRng(seed);
   }
 
-  // mulberry32 (T. Ettinger, public domain; 32-bit state, period 2^32): state += 0x6D2B79F5, two xorshift-multiply rounds.
+  /** Uniform on [0, 1): the seeded generator of @stemwise/core (mulberry32). */
   next(): number {
-    this.state = (this.state + 0x6d2b79f5) | 0;
-    let t = Math.imul(this.state ^ (this.state >>> 15), 1 | this.state);
-    t = (t + Math.imul(t ^ (t >>> 7), 61 | t)) ^ t;
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
+    return this.source.next();
   }
 
   /** Uniform on [min, max). */

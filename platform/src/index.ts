@@ -2,5 +2,4 @@ export * from './config';
 export * from './errors';
 export * from './logger';
 export * from './queue/index';
-export * from './table-format';
 export * from './terminal-text';

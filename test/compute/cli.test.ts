@@ -5,7 +5,7 @@ import path from 'node:path';
 import { promisify } from 'node:util';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { runMain } from '../support/cli';
-import type { ServiceDeps } from '@stemwise/db';
+import type { ServiceDeps } from '@stemwise/core';
 import { BullQueue } from '@stemwise/platform';
 import { createProcessors } from '@stemwise/compute';
 import { fixtureSpecies, generateInventory, loadInventory, loadSpecies } from './fixtures';

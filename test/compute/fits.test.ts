@@ -2,7 +2,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { listStale, markStale } from '@stemwise/db';
 import { StemwiseError } from '@stemwise/platform';
 import { MIN_REGION_PLOTS, storeFits } from '@stemwise/compute';
-import { fitCurves } from '../../services/compute/src/science/verdict';
+import { fitCurves } from '@stemwise/core';
 import { fixtureSpecies, generateInventory, loadInventory, loadSpecies, REGIONS } from './fixtures';
 import { fitsText, plotsText, recomputeInProcess } from './support';
 import { useServices, type TestServices } from '../support/services';

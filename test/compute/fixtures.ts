@@ -1,4 +1,5 @@
 import crypto from 'node:crypto';
+import { createRng } from '@stemwise/core';
 import type { ComputeStemRow, Db, Queryable } from '@stemwise/db';
 
 // A small invented inventory (the made-up country of the demo: invented regions and species) and
@@ -36,16 +37,9 @@ export interface FixturePlot {
   visits: FixtureVisit[];
 }
 
-/** Small deterministic generator (mulberry32) — test data only. */
+/** The seeded generator of @stemwise/core (mulberry32) as a function — test data only. */
 export function rng(seed: number): () => number {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
+  return createRng(seed).next;
 }
 
 const GENERA: Array<[string, string, FixtureSpecies['guild']]> = [

@@ -1,5 +1,5 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import type { ServiceDeps } from '@stemwise/db';
+import type { ServiceDeps } from '@stemwise/core';
 import { BullQueue, type ProcessorMap } from '@stemwise/platform';
 import { createProcessors } from '@stemwise/compute';
 import { expectedUnresolved, fixtureSpecies, generateInventory, loadInventory, loadSpecies } from './fixtures';

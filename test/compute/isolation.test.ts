@@ -3,7 +3,8 @@ import { listStale, markStale, markVisitsStale, type Db } from '@stemwise/db';
 import type { Config } from '@stemwise/platform';
 import { MIN_REGION_PLOTS } from '@stemwise/compute';
 import { createProcessors as reportProcessors } from '@stemwise/report';
-import { batchReport, formatBatchReport } from '@stemwise/ingest';
+import { batchReport } from '@stemwise/core';
+import { formatBatchReport } from '@stemwise/ingest';
 import { DEMO_DATA_DIR } from '@stemwise/demo-inventory';
 import { renderRegionPage } from '../../services/report/src/page/region-page';
 import { listRegionProblems, problemView, getSummarySnapshot } from '@stemwise/db';
@@ -19,8 +20,8 @@ const POISON_Y = 777.125; // a fisher_alpha no plot has: the wrapped fitCurves t
 const POISON_DBH = 444.4; // a stem diameter no plot has: the wrapped computePlotMetrics throws on it
 const POISON_REGION = 'Poisonmere'; // the wrapped summariseRegion throws for this region
 
-vi.mock('../../services/compute/src/science/verdict', async (importOriginal) => {
-  const real = await importOriginal<typeof import('../../services/compute/src/science/verdict')>();
+vi.mock('../../core/src/science/verdict', async (importOriginal) => {
+  const real = await importOriginal<typeof import('../../core/src/science/verdict')>();
   return {
     ...real,
     fitCurves: (points: Parameters<typeof real.fitCurves>[0], options?: Parameters<typeof real.fitCurves>[1]) => {
@@ -29,8 +30,8 @@ vi.mock('../../services/compute/src/science/verdict', async (importOriginal) => 
     },
   };
 });
-vi.mock('../../services/compute/src/science/plot-metrics', async (importOriginal) => {
-  const real = await importOriginal<typeof import('../../services/compute/src/science/plot-metrics')>();
+vi.mock('../../core/src/science/plot-metrics', async (importOriginal) => {
+  const real = await importOriginal<typeof import('../../core/src/science/plot-metrics')>();
   return {
     ...real,
     computePlotMetrics: (...args: Parameters<typeof real.computePlotMetrics>) => {

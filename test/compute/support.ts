@@ -2,9 +2,10 @@ import fs from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
 import { PassThrough } from 'node:stream';
-import { clearStale, finishRecomputeRun, listStaleMarks, migrateDatabase, openDatabase, syncForestTypes, type Db, type ServiceDeps } from '@stemwise/db';
+import { clearStale, finishRecomputeRun, listStaleMarks, migrateDatabase, openDatabase, syncForestTypes, type Db } from '@stemwise/db';
+import { planRecompute, type RecomputePlan, type ServiceDeps } from '@stemwise/core';
 import { InProcessQueue, loadConfig, parsePayload, type Config, type JobQueue, type ProcessorMap } from '@stemwise/platform';
-import { createProcessors, exportFits, exportPlots, planRecompute, type PlotExportFormat, type RecomputePlan } from '@stemwise/compute';
+import { createProcessors, exportFits, exportPlots, type PlotExportFormat } from '@stemwise/compute';
 import { testLogger } from '../support/services';
 
 /** Stand-in for the report service's `report.summaries` (tests only): ends the run as the real one does. */

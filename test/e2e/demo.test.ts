@@ -4,9 +4,7 @@ import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { generateInventory } from '@stemwise/demo-inventory';
 import { createLogger } from '@stemwise/platform';
-import { runDemo, type DemoResult } from '../../cli/src/demo-pipeline';
-import { demoTable } from '../../cli/src/commands/demo';
-import { OWN_FOLDER_MARKER } from '../../cli/src/own-folder';
+import { demoTable, OWN_FOLDER_MARKER, runDemo, type DemoResult } from '@stemwise/cli';
 
 // The demo pipeline end to end, exactly as `stemwise demo` runs it (embedded PGlite, in-process jobs),
 // on a freshly generated inventory with a seed other than the committed set's: the planted shapes

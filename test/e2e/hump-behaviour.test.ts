@@ -1,10 +1,7 @@
 import { describe, expect, it } from 'vitest';
-import { PLANTED_CURVES, plantedAlpha } from '@stemwise/demo-inventory';
-import { crpPartition } from '@stemwise/demo-inventory/community';
-import { Rng } from '@stemwise/demo-inventory/random';
+import { crpPartition, PLANTED_CURVES, plantedAlpha, Rng } from '@stemwise/demo-inventory';
 import type { ForestType } from '@stemwise/demo-inventory';
-import { fisherAlphaFromTotals } from '@stemwise/compute/science/diversity';
-import { fitCurves } from '@stemwise/compute/science/verdict';
+import { fisherAlphaFromTotals, fitCurves } from '@stemwise/core';
 
 // Statistical behaviour of the verdicts on data simulated the demo generator's way, with its known
 // truth: each plot's target alpha is the generator's planted curve at the plot's disturbance index,

@@ -1,7 +1,7 @@
-import type { Db, ServiceDeps } from '@stemwise/db';
+import type { Db } from '@stemwise/db';
+import { createMaintenanceProcessors, planRecompute, type ServiceDeps } from '@stemwise/core';
 import { BullQueue, InProcessQueue, type Config, type JobQueue, type ProcessorMap } from '@stemwise/platform';
-import { createProcessors as computeProcessors, planRecompute } from '@stemwise/compute';
-import { createMaintenanceProcessors } from '@stemwise/compute/maintenance/processors';
+import { createProcessors as computeProcessors } from '@stemwise/compute';
 import { createProcessors as reportProcessors } from '@stemwise/report';
 import { fixtureSpecies, generateInventory, loadInventory, loadSpecies, type FixturePlot } from '../compute/fixtures';
 import { testLogger, useServices } from '../support/services';

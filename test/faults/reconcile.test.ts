@@ -1,10 +1,8 @@
 import crypto from 'node:crypto';
 import { Redis } from 'ioredis';
 import { afterAll, beforeAll, beforeEach, describe, expect, it } from 'vitest';
-import type { ServiceDeps } from '@stemwise/db';
+import { NIGHTLY_SCHEDULE, reconcile, reconcileJobId, type ServiceDeps } from '@stemwise/core';
 import { BullQueue, PermanentError } from '@stemwise/platform';
-import { reconcile, reconcileJobId } from '@stemwise/compute/maintenance/reconcile';
-import { NIGHTLY_SCHEDULE } from '@stemwise/compute/maintenance/schedules';
 import { testLogger, useServices, type TestServices } from '../support/services';
 import { until } from './processes';
 

@@ -1,7 +1,6 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import type { ServiceDeps } from '@stemwise/db';
+import { reconcile, type ServiceDeps } from '@stemwise/core';
 import type { BullQueue } from '@stemwise/platform';
-import { reconcile } from '@stemwise/compute/maintenance/reconcile';
 import { envFor, testLogger, useServices, type TestServices } from '../support/services';
 import { resultsDigest, type ResultsDigest } from './checksum';
 import { FAULT_ENV, faultInventory, latestRun, openBull, seedInventory, undisturbedDigest, visitCount } from './pipeline';

@@ -5,7 +5,7 @@ import pg from 'pg';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { getBatch } from '@stemwise/db';
 import { generateInventory } from '@stemwise/demo-inventory';
-import { filesInDir, submitBatch } from '@stemwise/ingest';
+import { filesInDir, submitBatch } from '@stemwise/core';
 import type { BullQueue } from '@stemwise/platform';
 import { loadInventory } from '../compute/fixtures';
 import { createToken } from '../report/tokens';

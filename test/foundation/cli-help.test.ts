@@ -4,7 +4,7 @@ import os from 'node:os';
 import path from 'node:path';
 import { promisify } from 'node:util';
 import { afterAll, describe, expect, it } from 'vitest';
-import { COMMAND_NAMES, loadCommand } from '../../cli/src/main';
+import { COMMAND_NAMES, loadCommand } from '@stemwise/cli';
 import { runMain } from '../support/cli';
 
 // Every command and subcommand answers --help without acting, and refuses an unknown option with one

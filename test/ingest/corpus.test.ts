@@ -1,5 +1,5 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import type { ServiceDeps } from '@stemwise/db';
+import type { ServiceDeps } from '@stemwise/core';
 import { useServices, type TestServices } from '../support/services';
 import { CORPUS } from './corpus';
 import { counts, depsFor, ingestDir, PLOTS, tempDir, TREES, writeUpload } from './support';

@@ -1,5 +1,5 @@
 import { gzipSync } from 'node:zlib';
-import type { SubmitOptions } from '@stemwise/ingest';
+import type { SubmitOptions } from '@stemwise/core';
 import { PLOTS, PLOTS_HEADER, SPECIES, STRATA, TREES, TREES_HEADER } from './support';
 
 // The corpus of malformed inputs: each case is a whole upload that must be rejected with nothing

@@ -1,7 +1,8 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { BullQueue, type ProcessorMap } from '@stemwise/platform';
 import { getBatch } from '@stemwise/db';
-import { batchReport, createProcessors, processBatch, submitBatch } from '@stemwise/ingest';
+import { batchReport, submitBatch } from '@stemwise/core';
+import { createProcessors, processBatch } from '@stemwise/ingest';
 import { testLogger, useServices, type TestServices } from '../support/services';
 import { counts, depsFor, PLOTS, STRATA, tempDir, TREES, until, uploadFiles, writeUpload } from './support';
 

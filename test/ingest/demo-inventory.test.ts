@@ -2,7 +2,7 @@ import fs from 'node:fs';
 import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { generateInventory } from '@stemwise/demo-inventory';
-import type { ServiceDeps } from '@stemwise/db';
+import type { ServiceDeps } from '@stemwise/core';
 import { useServices, type TestServices } from '../support/services';
 import { counts, depsFor, ingestDir, tempDir } from './support';
 

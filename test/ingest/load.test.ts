@@ -2,8 +2,8 @@ import fs from 'node:fs';
 import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { InProcessQueue } from '@stemwise/platform';
-import type { ServiceDeps } from '@stemwise/db';
-import { batchIssuesCsv, batchReport, processBatch, submitBatch } from '@stemwise/ingest';
+import { batchIssuesCsv, batchReport, submitBatch, type ServiceDeps } from '@stemwise/core';
+import { processBatch } from '@stemwise/ingest';
 import { testLogger, useServices, type TestServices } from '../support/services';
 import { counts, depsFor, ingestDir, PLOTS, PLOTS_HEADER, SPECIES, STRATA, tempDir, TREES, TREES_HEADER, uploadFiles, writeUpload } from './support';
 

@@ -1,6 +1,5 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import type { ServiceDeps } from '@stemwise/db';
-import { batchReport } from '@stemwise/ingest';
+import { batchReport, type ServiceDeps } from '@stemwise/core';
 import { recomputeInProcess } from '../compute/support';
 import { useServices, type TestServices } from '../support/services';
 import { depsFor, ingestDir, PLOTS, SPECIES, tempDir, TREES, writeUpload } from './support';

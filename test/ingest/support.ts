@@ -3,8 +3,9 @@ import os from 'node:os';
 import path from 'node:path';
 import { gzipSync } from 'node:zlib';
 import { InProcessQueue, type Config, type JobQueue } from '@stemwise/platform';
-import { loadedRowCounts, type Db, type ServiceDeps } from '@stemwise/db';
-import { batchReport, processBatch, submitBatch, type SubmitOptions, type SubmittedFile } from '@stemwise/ingest';
+import { loadedRowCounts, type Db } from '@stemwise/db';
+import { batchReport, submitBatch, type ServiceDeps, type SubmitOptions, type SubmittedFile } from '@stemwise/core';
+import { processBatch } from '@stemwise/ingest';
 import { testLogger } from '../support/services';
 
 // Fixtures of an invented inventory (the republic of Marrowind; its regions and species are made up).

@@ -5,7 +5,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { BullQueue } from '@stemwise/platform';
 import { getBatch } from '@stemwise/db';
 import { generateInventory } from '@stemwise/demo-inventory';
-import { submitBatch } from '@stemwise/ingest';
+import { submitBatch } from '@stemwise/core';
 import { envFor, testLogger, useServices, type TestServices } from '../support/services';
 import { tempDir, until, uploadFiles } from './support';
 

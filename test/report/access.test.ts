@@ -1,6 +1,7 @@
 import type { FastifyInstance } from 'fastify';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { listAuditEntries, markStale, type ServiceDeps } from '@stemwise/db';
+import { listAuditEntries, markStale } from '@stemwise/db';
+import type { ServiceDeps } from '@stemwise/core';
 import { InProcessQueue } from '@stemwise/platform';
 import { buildServer, createProcessors } from '@stemwise/report';
 import { testLogger, useServices, type TestServices } from '../support/services';

@@ -1,9 +1,9 @@
 import type { FastifyInstance } from 'fastify';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { listCurveFits, markStale, recordProblems, upsertCurveFits, type ServiceDeps } from '@stemwise/db';
+import { listCurveFits, markStale, recordProblems, upsertCurveFits } from '@stemwise/db';
+import type { ServiceDeps } from '@stemwise/core';
 import { BullQueue, InProcessQueue } from '@stemwise/platform';
-import { buildServer, createProcessors } from '@stemwise/report';
-import { NationalResponse, SummaryResponse } from '../../services/report/src/routes/schemas';
+import { buildServer, createProcessors, NationalResponse, SummaryResponse } from '@stemwise/report';
 import { testLogger, useServices, type TestServices } from '../support/services';
 import { ensureRegion, jobContext, seedPlots, seedRun } from './fixture';
 import { seedScenario } from './seed-scenario';

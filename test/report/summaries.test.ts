@@ -1,11 +1,9 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import tQuantile from '@stdlib/stats-base-dists-t-quantile';
-import { getNationalSnapshot, getSummarySnapshot, listNationalVersions, listStale, listSummaryVersions, markStale, type ServiceDeps } from '@stemwise/db';
+import { getNationalSnapshot, getSummarySnapshot, listNationalVersions, listStale, listSummaryVersions, markStale } from '@stemwise/db';
+import type { RegionRow, ServiceDeps } from '@stemwise/core';
 import { InProcessQueue } from '@stemwise/platform';
-import { createProcessors } from '@stemwise/report';
-import type { NationalPayload } from '../../services/report/src/national-snapshot';
-import type { SnapshotPayload } from '../../services/report/src/snapshot-payload';
-import type { RegionRow } from '../../services/report/src/summary/types';
+import { createProcessors, type NationalPayload, type SnapshotPayload } from '@stemwise/report';
 import { testLogger, useServices, type TestServices } from '../support/services';
 import { jobContext, seedPlots, seedRun } from './fixture';
 import { seedScenario } from './seed-scenario';

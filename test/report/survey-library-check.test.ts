@@ -1,7 +1,7 @@
 import fs from 'node:fs';
 import path from 'node:path';
 import { describe, expect, it } from 'vitest';
-import { stratifiedEstimate } from '@stemwise/report/estimators/stratified';
+import { stratifiedEstimate } from '@stemwise/core';
 
 // Our stratified estimator against a general-purpose survey-statistics library on an open data set:
 // the R package `survey` 4.1.1 (Lumley), data set `apistrat` (a stratified random sample of 200

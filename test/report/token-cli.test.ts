@@ -5,9 +5,7 @@ import { findAccessTokenByHash, listAuditEntries } from '@stemwise/db';
 import { hashToken } from '@stemwise/report';
 import { envFor, useServices, type TestServices } from '../support/services';
 import { ensureRegion } from './fixture';
-import { runCommand } from '../../cli/src/command';
-import { command as tokenCommand } from '../../cli/src/commands/token';
-import { Runtime } from '../../cli/src/runtime';
+import { runCommand, Runtime, tokenCommand } from '@stemwise/cli';
 
 // `stemwise token` as a person runs it (a real process against this file's database), and its other
 // subcommands and argument checks through the command module in this process (faster).

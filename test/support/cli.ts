@@ -1,5 +1,5 @@
 import { vi } from 'vitest';
-import { main } from '../../cli/src/main';
+import { main } from '@stemwise/cli';
 
 /** main() in this process (what bin/stemwise.mjs runs), its stdout and stderr captured: quicker than a process. */
 export async function runMain(args: string[], env: Record<string, string | undefined>): Promise<{ code: number; stdout: string; stderr: string }> {

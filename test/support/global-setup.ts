@@ -3,7 +3,7 @@ import fs from 'node:fs';
 import path from 'node:path';
 import pg from 'pg';
 import type { TestProject } from 'vitest/node';
-import { MIGRATIONS_DIR } from '../../db/src/connection';
+import { MIGRATIONS_DIR } from '@stemwise/db';
 import { resolveServices, type ServiceUrls } from './resolve';
 
 declare module 'vitest' {

@@ -1,5 +1,6 @@
 import fs from 'node:fs';
-import { batchIssuesCsv, batchReport, formatBatchReport } from '@stemwise/ingest';
+import { batchIssuesCsv, batchReport } from '@stemwise/core';
+import { formatBatchReport } from '@stemwise/ingest';
 import { StemwiseError } from '@stemwise/platform';
 import { defineCommand, usageError, type CommandGroup } from '../command';
 import { printOut } from '../output';

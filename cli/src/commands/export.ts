@@ -1,25 +1,10 @@
-import type { ServiceDeps } from '@stemwise/db';
+import { checkFitColumn, type ExportTarget } from '@stemwise/core';
 import { StemwiseError } from '@stemwise/platform';
 import { defineCommand, usageError } from '../command';
 import { printErr } from '../output';
 
 const KINDS = ['plots', 'fits', 'regions'] as const;
 const FORMATS: Record<(typeof KINDS)[number], readonly string[]> = { plots: ['csv', 'json', 'geojson'], fits: ['csv', 'json'], regions: ['csv', 'json'] };
-
-type Target = { file: string } | { stream: NodeJS.WritableStream };
-
-/** The report service's export (issue of the report engineer); loaded only when asked for. */
-type RegionsExport = (deps: ServiceDeps, options: { format: 'csv' | 'json'; region?: string | null }, target: Target) => Promise<{ rows: number; staleVisits?: number }>;
-
-async function loadRegionsExport(): Promise<RegionsExport | null> {
-  const specifier = '@stemwise/report';
-  try {
-    const mod = (await import(specifier)) as { exportRegions?: RegionsExport };
-    return typeof mod.exportRegions === 'function' ? mod.exportRegions : null;
-  } catch {
-    return null;
-  }
-}
 
 export const command = defineCommand({
   summary: 'writes results: export plots|fits|regions [--format csv|json|geojson] [--out FILE] [--axis A] [--metric M] [--region R]',
@@ -52,24 +37,22 @@ Writes results to FILE, or to stdout (the data as stored, byte for byte: see doc
       throw new StemwiseError('usage', 'export fits: --region does not apply (fits are per forest type; region × forest type fits are in the report)');
     }
     if (values.out === '') throw new StemwiseError('usage', 'export: --out needs a file name');
-    const target: Target = values.out ? { file: values.out } : { stream: process.stdout };
+    const target: ExportTarget = values.out ? { file: values.out } : { stream: process.stdout };
 
     const compute = await import('@stemwise/compute');
     let written: { rows: number; staleVisits?: number };
     if (kind === 'fits') {
       // Names are checked before the database is opened: a typo is a usage error at once.
-      if (values.axis !== undefined) compute.checkFitColumn('axis', values.axis);
-      if (values.metric !== undefined) compute.checkFitColumn('metric', values.metric);
+      if (values.axis !== undefined) checkFitColumn('axis', values.axis);
+      if (values.metric !== undefined) checkFitColumn('metric', values.metric);
       const db = await rt.db();
-      written = await compute.exportFits({ db, config: rt.config, log: rt.log }, { format: format as 'csv' | 'json', axis: values.axis, metric: values.metric }, target as never);
+      written = await compute.exportFits({ db, config: rt.config, log: rt.log }, { format: format as 'csv' | 'json', axis: values.axis, metric: values.metric }, target);
     } else if (kind === 'plots') {
       const db = await rt.db();
-      written = await compute.exportPlots(db, { format: format as 'csv' | 'json' | 'geojson', region: values.region ?? null }, target as never);
+      written = await compute.exportPlots(db, { format: format as 'csv' | 'json' | 'geojson', region: values.region ?? null }, target);
     } else {
-      const exportRegions = await loadRegionsExport();
-      if (!exportRegions) throw new StemwiseError('not_yet', "'stemwise export regions' is not available yet in this version");
-      const deps: ServiceDeps = { config: rt.config, db: await rt.db(), log: rt.log, queue: await rt.queue() };
-      written = await exportRegions(deps, { format: format as 'csv' | 'json', region: values.region ?? null }, target);
+      const { exportRegions } = await import('@stemwise/report');
+      written = await exportRegions({ db: await rt.db() }, { format: format as 'csv' | 'json', region: values.region ?? null }, target);
     }
     if (values.out) printErr(`stemwise: ${written.rows} row${written.rows === 1 ? '' : 's'} written to ${values.out}\n`);
     if (written.staleVisits) {

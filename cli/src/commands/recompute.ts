@@ -1,6 +1,7 @@
-import { getRecomputeRun, type ServiceDeps } from '@stemwise/db';
+import { getRecomputeRun } from '@stemwise/db';
+import { liveRecompute, planRecompute, type ServiceDeps } from '@stemwise/core';
 import { StemwiseError, type JobName } from '@stemwise/platform';
-import { availableProcessors } from '../processors';
+import { allProcessors } from '../processors';
 import { defineCommand, type Parsed } from '../command';
 import { printErr, printOut } from '../output';
 import type { Runtime } from '../runtime';
@@ -30,26 +31,22 @@ Without REDIS_URL the run happens in this process, to completion.
 async function recompute({ values }: Parsed<typeof options>, rt: Runtime): Promise<number> {
   const all = values.all === true;
   const deps: ServiceDeps = { config: rt.config, db: await rt.db(), log: rt.log, queue: await rt.queue() };
-  const { planRecompute } = await import('@stemwise/compute');
 
   if (deps.queue.kind === 'in-process') {
-    const { processors, queues, missing } = await availableProcessors(deps);
+    const { processors, queues } = await allProcessors(deps);
     await deps.queue.work(processors, { queues });
     const plan = await planRecompute(deps, 'manual', all);
     if (!plan) return nothingStale(deps);
     const failures = await deps.queue.drain();
     await printRun(deps, plan.runId);
-    const noSummaries = failures.filter((f) => f.name === 'report.summaries' && /no processor/.test(f.error));
-    if (noSummaries.length && missing.includes('report')) printOut('summaries: not available in this build (no report service yet)\n');
-    const real = failures.filter((f) => !noSummaries.includes(f));
-    for (const f of real) printErr(`stemwise: job ${f.jobId} failed: ${f.error}\n`);
+    for (const f of failures) printErr(`stemwise: job ${f.jobId} failed: ${f.error}\n`);
     // A job that failed before this process started waiting is not in `failures`: the root's state tells.
     const root = await deps.queue.state(plan.rootJobId, 'report.summaries');
-    if (!real.length && !noSummaries.length && root !== 'completed') {
+    if (!failures.length && root !== 'completed') {
       printErr(`stemwise: run ${plan.runId} did not complete (its last stage is ${root}); see the log above\n`);
       return 1;
     }
-    return real.length ? 1 : 0;
+    return failures.length ? 1 : 0;
   }
 
   if (!values.now) {
@@ -95,7 +92,6 @@ async function recompute({ values }: Parsed<typeof options>, rt: Runtime): Promi
 
 /** No run was planned: nothing is stale, or a run is in progress and the run after it takes what is stale now. */
 async function nothingStale(deps: ServiceDeps): Promise<number> {
-  const { liveRecompute } = await import('@stemwise/compute/maintenance/live-run');
   const running = await liveRecompute(deps);
   printOut(running ? `run ${running} is in progress; what is stale now is recomputed by the run that follows it\n` : 'nothing stale\n');
   return 0;

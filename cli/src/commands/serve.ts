@@ -1,5 +1,5 @@
-import type { ServiceDeps } from '@stemwise/db';
-import { processorsFor, type ServiceName } from '../processors';
+import type { ServiceDeps, StartedService } from '@stemwise/core';
+import { loadServices, processorsOf, SERVICE_NAMES, type ServiceName } from '../processors';
 import { defineCommand, usageError, type Parsed } from '../command';
 import type { Runtime } from '../runtime';
 
@@ -30,7 +30,7 @@ const EXIT_DEADLINE_MS = 5000;
 async function serve({ positionals }: Parsed<typeof options>, rt: Runtime): Promise<number> {
   const which = (positionals[0] ?? 'all') as (typeof CHOICES)[number];
   if (!CHOICES.includes(which) || positionals.length > 1) throw usageError('serve', `takes one of ${CHOICES.join(', ')}, not '${positionals.join(' ')}'`);
-  const services: ServiceName[] = which === 'all' ? ['ingest', 'compute', 'report'] : [which];
+  const services: ServiceName[] = which === 'all' ? SERVICE_NAMES : [which];
 
   // Listen for the stop signal from the start: a SIGTERM while starting up stops right after.
   const stopRequested = new Promise<string>((resolve) => {
@@ -42,30 +42,19 @@ async function serve({ positionals }: Parsed<typeof options>, rt: Runtime): Prom
   const { config, log, queue } = deps;
   if (queue.kind === 'in-process') log.warn('REDIS_URL is not set: jobs run in this process only and are not durable (fine for one machine, not for production)');
 
-  const { processors, queues } = await processorsFor(deps, services);
+  const descriptors = await loadServices(services);
+  const { processors, queues } = processorsOf(deps, descriptors);
   await queue.work(processors, {
     queues,
     concurrency: { ingest: config.ingestConcurrency, compute: config.computeConcurrency, report: 1, maintenance: 1 },
   });
 
-  let timer: NodeJS.Timeout | null = null;
-  if (services.includes('compute')) {
-    // Work that PostgreSQL says is due but no queued job covers is queued again, and the nightly schedule
-    // registered again if Redis lost it, at start and every few minutes. The timer lives in the process
-    // (not in Redis) so that it survives Redis losing its data; every compute worker runs it, which is safe.
-    const { reconcile } = await import('@stemwise/compute/maintenance/reconcile');
-    await reconcile(deps);
-    timer = setInterval(() => void reconcile(deps).catch((err) => log.error({ err }, 'reconcile failed')), config.reconcileMinutes * 60_000);
-    if (queue.kind === 'bullmq') log.info({ cron: config.nightlyCron, timezone: config.timezone }, 'nightly recompute scheduled');
-  }
-
-  let server: { url: string; close(): Promise<unknown> } | null = null;
-  if (services.includes('report')) {
-    const { startReportServer } = await import('@stemwise/report');
-    server = await startReportServer(deps);
-  }
-  log.info({ services, queues, queue: queue.kind, url: server?.url }, 'serving');
-  process.stderr.write(`stemwise: serving ${services.join(', ')} (queues: ${queues.join(', ')}; ${queue.kind})${server ? ` at ${server.url}` : ''}\n`);
+  // What each service runs beside its workers (compute: the reconciler; report: the HTTP server).
+  const running: StartedService[] = [];
+  for (const d of descriptors) if (d.start) running.push(await d.start(deps));
+  const url = running.find((s) => s.url)?.url;
+  log.info({ services, queues, queue: queue.kind, url }, 'serving');
+  process.stderr.write(`stemwise: serving ${services.join(', ')} (queues: ${queues.join(', ')}; ${queue.kind})${url ? ` at ${url}` : ''}\n`);
 
   // Graceful stop: take no new jobs, let running ones finish for STEMWISE_STOP_GRACE_SECONDS, hand back
   // (to the queue, for another worker) those still running, close. A second signal ends the process at
@@ -79,8 +68,7 @@ async function serve({ positionals }: Parsed<typeof options>, rt: Runtime): Prom
   };
   process.once('SIGTERM', again);
   process.once('SIGINT', again);
-  if (timer) clearInterval(timer);
-  const [{ handedBack }] = await Promise.all([queue.stop(config.stopGraceSeconds * 1000), server?.close()]);
+  const [{ handedBack }] = await Promise.all([queue.stop(config.stopGraceSeconds * 1000), ...running.map((s) => s.stop())]);
   log.info({ handedBack, ms: Date.now() - started }, 'stopped');
   process.stderr.write(`stemwise: stopped${handedBack.length ? ` (handed back ${handedBack.join(', ')})` : ''}\n`);
   // A handed-back job's processor may still hold a database connection; ending the process rolls it back.

@@ -3,6 +3,7 @@ import { importSpeciesFile } from '@stemwise/ingest';
 import { StemwiseError } from '@stemwise/platform';
 import { defineCommand, usageError, type CommandGroup } from '../command';
 import { printErr, printOut } from '../output';
+import { delimiterOption } from '../delimiter-option';
 
 const importCommand = defineCommand({
   summary: 'loads a species reference list as a new version',

@@ -1,7 +1,7 @@
 import crypto from 'node:crypto';
 import { StemwiseError } from '@stemwise/platform';
 import { appendAuditEntries, insertAccessToken, listAccessTokens, listRegionNames, revokeAccessToken, type TokenRole } from '@stemwise/db';
-import { newToken, TOKEN_ROLES } from '@stemwise/report/access';
+import { newToken, TOKEN_ROLES } from '@stemwise/report';
 import { defineCommand, usageError, type CommandGroup } from '../command';
 import { field, printErr, printOut } from '../output';
 

@@ -1,20 +1,11 @@
 import fs from 'node:fs';
 import path from 'node:path';
-import { getBatch, type ServiceDeps } from '@stemwise/db';
+import { getBatch } from '@stemwise/db';
+import { batchReport, filesInDir, SubmissionError, submitBatch, type ServiceDeps, type SubmittedFile } from '@stemwise/core';
 import { StemwiseError, type ProcessorMap, type QueueName } from '@stemwise/platform';
-import {
-  batchReport,
-  filesInDir,
-  formatBatchReport,
-  ingestEvents,
-  progressBars,
-  progressLine,
-  submitBatch,
-  SubmissionError,
-  type IngestProgress,
-  type SubmittedFile,
-} from '@stemwise/ingest';
-import { processorsFor, type ServiceName } from '../processors';
+import { formatBatchReport, ingestEvents, progressBars, progressLine, type IngestProgress } from '@stemwise/ingest';
+import { processorsFor, SERVICE_NAMES, type ServiceName } from '../processors';
+import { delimiterOption } from '../delimiter-option';
 import { defineCommand, type Parsed } from '../command';
 import { printErr, printOut } from '../output';
 import type { Runtime } from '../runtime';
@@ -66,23 +57,6 @@ function fileArg(value: string | undefined, kind: SubmittedFile['kind']): Submit
   return { kind, name: path.basename(value), source: value };
 }
 
-/** Registers every service's processors that this build has on the in-process queue (ingest at least). */
-async function workInProcess(deps: ServiceDeps, services: readonly ServiceName[]): Promise<void> {
-  const processors: ProcessorMap = {};
-  const queues: QueueName[] = [];
-  for (const service of services) {
-    try {
-      const found = await processorsFor(deps, [service]);
-      Object.assign(processors, found.processors);
-      queues.push(...found.queues);
-    } catch (err) {
-      if (service === 'ingest') throw err;
-      deps.log.warn({ service, err: String(err) }, 'service not available in this build; its jobs stay queued');
-    }
-  }
-  await deps.queue.work(processors, { queues });
-}
-
 /** Shows progress: bars redrawn in place on a terminal, a plain line every few seconds otherwise. */
 function progressPrinter(): { show(p: Omit<IngestProgress, 'batchId' | 'phase'>): void; end(): void } {
   const tty = process.stderr.isTTY === true;
@@ -122,20 +96,22 @@ async function upload({ values, positionals }: Parsed<typeof options>, rt: Runti
     if (!values.plots || !values.trees) throw new StemwiseError('usage', `give an upload folder, or --plots FILE and --trees FILE`);
     files = (['plots', 'trees', 'strata', 'species'] as const).map((k) => fileArg(values[k], k)).filter((f): f is SubmittedFile => f !== null);
   }
-  const delimiter = values.delimiter;
-  if (delimiter !== undefined && delimiter !== ',' && delimiter !== ';') throw new StemwiseError('usage', `--delimiter takes ',' or ';', not ${JSON.stringify(delimiter)}`);
+  const delimiter = delimiterOption(values.delimiter);
 
   const deps: ServiceDeps = { config: rt.config, db: await rt.db(), log: rt.log, queue: await rt.queue() };
   const inProcess = deps.queue.kind === 'in-process';
   // Without Redis nothing outlives this process: the ingest job runs here, and with --wait the compute and report jobs too.
-  if (inProcess) await workInProcess(deps, values.wait ? ['ingest', 'compute', 'report'] : ['ingest']);
+  if (inProcess) {
+    const { processors, queues } = await processorsFor(deps, values.wait ? SERVICE_NAMES : ['ingest']);
+    await deps.queue.work(processors, { queues });
+  }
 
   let result;
   try {
     result = await submitBatch(
       deps,
       files,
-      { skipInvalid: values['skip-invalid'], replace: values.replace, delimiter: delimiter as ',' | ';' | undefined, decimalComma: values['decimal-comma'] },
+      { skipInvalid: values['skip-invalid'], replace: values.replace, delimiter, decimalComma: values['decimal-comma'] },
       'cli',
     );
   } catch (err) {

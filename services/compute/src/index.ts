@@ -1,10 +1,6 @@
 export { createProcessors } from './processors';
-export { planRecompute, recomputeFlow, finishPlotsStage, PLAN_LOCK, type RecomputePlan, type RecomputeTrigger, type PlotsStage } from './recompute';
 export { computePlotChunk, type ChunkCounts } from './plot-chunk';
-export { refitHeightModels, HEIGHT_MODEL_FORM, type HeightModelChange } from './height-models';
 export { storeFits, refreshStaleFits, fitForestType, MIN_REGION_PLOTS, type FitSettings } from './fits';
-export { FITTABLE_COLUMNS, checkFitColumn } from './fit-columns';
-export { currentSpecies } from './species-cache';
-export { writeExport, type ExportTarget } from './export/sink';
 export { exportPlots, plotExportItems, PLOT_EXPORT_COLUMNS, PLOT_EXPORT_FORMATS, type PlotExportFormat, type ExportSummary } from './export/plots';
 export { exportFits, FIT_EXPORT_FORMATS, type FitExportFormat } from './export/fits';
+export { service } from './service';

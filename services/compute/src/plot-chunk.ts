@@ -14,13 +14,9 @@ import {
   type ComputeVisitRow,
   type PlotMetricsWrite,
   type UnresolvedNameCount,
-  type ServiceDeps,
 } from '@stemwise/db';
+import { computePlotMetrics, currentSpecies, heightModelFromRow, PLOT_METRIC_COLUMNS, type HeightDiameterModel, type PlotDiagnostics, type PlotMetrics, type ServiceDeps } from '@stemwise/core';
 import { isInfrastructureError, PermanentError, type Logger } from '@stemwise/platform';
-import { heightModelFromRow } from './height-models';
-import { computePlotMetrics, PLOT_METRIC_COLUMNS, type PlotDiagnostics, type PlotMetrics } from './science/plot-metrics';
-import type { HeightDiameterModel } from './science/height-diameter';
-import { currentSpecies } from './species-cache';
 
 // The science's column list and the stored one must be the same columns in the same order.
 const METRIC_KEYS: ReadonlyArray<keyof PlotMetrics> = PLOT_METRIC_COLUMNS.map((c, i) => {

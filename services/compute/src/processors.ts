@@ -1,21 +1,17 @@
-import { mergeRunDetails, type ServiceDeps } from '@stemwise/db';
+import { mergeRunDetails } from '@stemwise/db';
+import { createMaintenanceProcessors, finishPlotsStage, type ServiceDeps } from '@stemwise/core';
 import { parsePayload, type ProcessorMap } from '@stemwise/platform';
 import { refreshStaleFits } from './fits';
 import { computePlotChunk } from './plot-chunk';
-import { finishPlotsStage, planRecompute } from './recompute';
 
 /**
- * The compute service's processors: `compute.*` and the recompute planner `maintenance.recompute`
- * (`maintenance.reconcile` lives in maintenance/processors.ts). Each parses its payload first; the
+ * The compute service's processors: `compute.*`, and the maintenance jobs (the recompute planner and
+ * the reconciler, from the recompute lifecycle in @stemwise/core). Each parses its payload first; the
  * context's logger carries { queue, jobId, jobName }.
  */
 export function createProcessors(deps: ServiceDeps): ProcessorMap {
   return {
-    'maintenance.recompute': async (data, ctx) => {
-      const { trigger, all } = parsePayload('maintenance.recompute', data);
-      const plan = await planRecompute({ ...deps, log: ctx.log }, trigger, all);
-      return plan ? { runId: plan.runId, visits: plan.visits, chunks: plan.chunks } : null;
-    },
+    ...createMaintenanceProcessors(deps),
     'compute.plot-chunk': async (data, ctx) => {
       const { runId, visitIds } = parsePayload('compute.plot-chunk', data);
       const counts = await computePlotChunk({ ...deps, log: ctx.log }, runId, visitIds, ctx.jobId);

@@ -1,10 +1,8 @@
 export { createProcessors, processBatch } from './processors';
-export { submitBatch, batchOptions, SubmissionError, type SubmitOptions, type SubmitResult, type SubmittedFile } from './submit';
-export { filesInDir } from './storage';
-export { batchReport, batchIssuesCsv, type BatchReport, type RuleGroup, type IssueExample } from './report';
 export { importSpeciesFile, type SpeciesImportResult } from './species-import';
 export { ingestEvents, type IngestProgress } from './progress';
-export { ALL_RULES, ruleByCode } from './rules/catalogue';
-export { PLAUSIBILITY_DEFAULTS, type PlausibilityOptions } from './rules/plausibility';
-export type { Rule, Severity, RuleFamily } from './rules/rule';
 export { formatBatchReport, formatBytes, progressBars, progressLine } from './report-text';
+export { PLOT_COLUMNS, TREE_COLUMNS, type ColumnSpec } from './rules/columns';
+export { compileFieldCheck, INVALID } from './rules/field-checks';
+export { IssueLog } from './issues';
+export { service } from './service';

@@ -1,31 +1,14 @@
 import path from 'node:path';
 import fs from 'node:fs';
-import {
-  currentSpeciesVersion,
-  findPlotsAtCoordinates,
-  findStoredPlots,
-  findStoredVisits,
-  finishBatch,
-  insertBatchIssues,
-  loadSpeciesReference,
-  stemTreeIdsOfVisits,
-  type BatchCounts,
-  type BatchFile,
-  type BatchRow,
-  type Queryable,
-  type ServiceDeps,
-} from '@stemwise/db';
+import { currentSpeciesVersion, findPlotsAtCoordinates, findStoredPlots, findStoredVisits, finishBatch, insertBatchIssues, loadSpeciesReference, stemTreeIdsOfVisits, type BatchCounts, type BatchFile, type BatchRow, type Queryable } from '@stemwise/db';
+import { CROSS, crossMessages, PLAUSIBILITY, PLAUSIBILITY_DEFAULTS, plausibilityMessages, SpeciesIndex, STRUCTURE, structureMessages, type PlausibilityOptions, type ServiceDeps, type SpeciesReference } from '@stemwise/core';
 import { PermanentError, type JobContext } from '@stemwise/platform';
-import { SpeciesIndex, type SpeciesReference } from '@stemwise/compute/science/species-names';
 import { IssueLog } from './issues';
 import { dataRefused, isDataError } from './load/data-refused';
 import { finishLoad, loadPlotsAndVisits, type LoadPlan, type LoadingFile } from './load/load-batch';
 import { copySink, unnestSink } from './load/stem-sink';
 import { ProgressReporter } from './progress';
 import type { TableSource, TableStats } from './read/table';
-import { CROSS, crossMessages } from './rules/cross';
-import { PLAUSIBILITY, plausibilityMessages, PLAUSIBILITY_DEFAULTS, type PlausibilityOptions } from './rules/plausibility';
-import { STRUCTURE, structureMessages } from './rules/structure';
 import { latestAllowedDate, type ValidationContext } from './validate/context';
 import { validatePlots, type PlotEntry } from './validate/plots';
 import { validateSpecies, type SpeciesResult } from './validate/species';

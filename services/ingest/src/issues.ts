@@ -1,8 +1,5 @@
 import type { BatchIssueRow } from '@stemwise/db';
-import type { Rule } from './rules/rule';
-
-/** The `column` of the row that stands for issues counted but not stored (see IssueLog). */
-export const OMITTED_MARK = '*';
+import { OMITTED_MARK, type Rule } from '@stemwise/core';
 
 /** Text the database can store: PostgreSQL text refuses U+0000, shown instead as ␀ (U+2400). */
 function storable(s: string | null): string | null {

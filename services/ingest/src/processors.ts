@@ -1,4 +1,5 @@
-import { getBatch, deleteBatchIssues, markBatchFailed, startBatchValidation, type ServiceDeps } from '@stemwise/db';
+import { batchLockKey, getBatch, deleteBatchIssues, markBatchFailed, startBatchValidation } from '@stemwise/db';
+import type { ServiceDeps } from '@stemwise/core';
 import { oneLine, parsePayload, PermanentError, type JobContext, type ProcessorMap } from '@stemwise/platform';
 import { ingestBatch, type IngestOptions } from './ingest-batch';
 import { isDataError } from './load/data-refused';
@@ -17,11 +18,6 @@ export async function processBatch(deps: ServiceDeps, batchId: string, job?: Job
   // One attempt at a time per batch: a job handed back by a stopping worker may be taken again while
   // the first attempt is still rolling back; the second waits here, then sees the batch's real state.
   return deps.db.withLock(batchLockKey(batchId), () => attempt(deps, batchId, job, options));
-}
-
-/** An advisory lock key of a batch: 48 bits of its uuid, above the small keys other locks use. */
-export function batchLockKey(batchId: string): number {
-  return 2 ** 40 + parseInt(batchId.replace(/-/g, '').slice(0, 12), 16);
 }
 
 async function attempt(deps: ServiceDeps, batchId: string, job: JobContext | undefined, options: Omit<IngestOptions, 'job'>): Promise<{ state: string }> {

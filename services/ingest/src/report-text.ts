@@ -1,5 +1,5 @@
 import { problemLine } from '@stemwise/db';
-import type { BatchReport } from './report';
+import type { BatchReport } from '@stemwise/core';
 
 const n = (x: number) => x.toLocaleString('en-US');
 

@@ -1,10 +1,9 @@
 import fs from 'node:fs';
 import { insertSpeciesVersion, latestSpeciesVersion, markVisitsStale, type Db } from '@stemwise/db';
 import { IssueLog } from './issues';
-import { batchOptions, type SubmitOptions } from './submit';
+import { batchOptions, PLAUSIBILITY_DEFAULTS, type SubmitOptions } from '@stemwise/core';
 import { latestAllowedDate } from './validate/context';
 import { validateSpecies } from './validate/species';
-import { PLAUSIBILITY_DEFAULTS } from './rules/plausibility';
 
 export interface SpeciesImportResult {
   /** The new version, or the current one when the list is identical to it. */

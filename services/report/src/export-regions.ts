@@ -1,10 +1,8 @@
-import { countStaleVisits, listLatestSnapshots, listRegionNames, regionExists, type Queryable, type ServiceDeps } from '@stemwise/db';
+import { countStaleVisits, listLatestSnapshots, listRegionNames, regionExists, type Queryable } from '@stemwise/db';
+import { encodeTable, NATIONAL, REGION_COLUMNS, writeExport, type ExportTarget, type RegionRow, type Row, type ServiceDeps } from '@stemwise/core';
 import { StemwiseError } from '@stemwise/platform';
-import { encodeTable, type Row } from '@stemwise/platform';
-import { writeExport, type ExportTarget } from '@stemwise/compute/export/sink';
 import type { SnapshotPayload } from './snapshot-payload';
 import { readNationalSnapshot } from './national-snapshot';
-import { NATIONAL, REGION_COLUMNS, type RegionRow } from './summary/types';
 
 export interface ExportRegionsOptions {
   format: 'csv' | 'json';

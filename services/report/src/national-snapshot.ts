@@ -6,12 +6,11 @@ import {
   listRegionLatestPlots,
   listRegionNames,
   type Queryable,
-  type ServiceDeps,
 } from '@stemwise/db';
+import type { NationalSummary, ServiceDeps } from '@stemwise/core';
+import { renderMeansChartSvg } from '@stemwise/core/charts';
 import type { Logger } from '@stemwise/platform';
-import { renderMeansChartSvg } from './charts/means-chart';
 import { summariseNation, type NationalRegionInput } from './summary/national-summary';
-import type { NationalSummary } from './summary/types';
 import type { SnapshotData, SnapshotMethod } from './snapshot-payload';
 import { payloadEtag, samplingErrorMultiplier } from './snapshots';
 

@@ -1,5 +1,5 @@
 import { listRegionLatestPlots, PLOT_METRIC_DB_COLUMNS, type Queryable } from '@stemwise/db';
-import { encodeFeatureCollection, type Row } from '@stemwise/platform';
+import { encodeFeatureCollection, type Row } from '@stemwise/core';
 
 /** Properties of each plot feature: identity, then the `export plots` metric columns. */
 export const PLOT_PROPERTY_COLUMNS = ['plot_id', 'survey_date', 'region', 'forest_type', 'elevation_m', ...PLOT_METRIC_DB_COLUMNS.map(([c]) => c)];

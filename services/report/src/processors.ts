@@ -1,13 +1,9 @@
-import { clearProblems, finishRecomputeRun, mergeRunDetails, problemLine, recordProblems, type ServiceDeps } from '@stemwise/db';
-import { parsePayload, type ProcessorMap } from '@stemwise/platform';
-import { queueFollowUp } from '@stemwise/compute/maintenance/follow-up';
+import { clearProblems, failRecomputeRun, finishRecomputeRun, mergeRunDetails, problemLine, recordProblems, SUMMARIES_LOCK } from '@stemwise/db';
+import { NATIONAL, queueFollowUp, type ServiceDeps } from '@stemwise/core';
+import { parsePayload, PermanentError, type ProcessorMap } from '@stemwise/platform';
 import { refreshNationalSummary } from './national-snapshot';
 import { RegionSummaryInputError } from './summary/input';
-import { NATIONAL } from './summary/types';
 import { refreshStaleSummaries } from './snapshots';
-
-/** Advisory lock key: one summaries job at a time across all report workers (they write versions). */
-export const SUMMARIES_LOCK = 742_010;
 
 /**
  * The report service's jobs. `report.summaries {runId}` is the last stage (the root) of a recompute

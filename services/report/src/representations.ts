@@ -1,5 +1,4 @@
-import { csvHeader, csvLine, type Row } from '@stemwise/platform';
-import { REGION_COLUMNS } from './summary/types';
+import { csvHeader, csvLine, REGION_COLUMNS, type Row } from '@stemwise/core';
 import type { NationalSnapshot } from './national-snapshot';
 import type { Snapshot } from './snapshot-payload';
 

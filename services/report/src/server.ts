@@ -5,7 +5,7 @@ import fastifySwagger from '@fastify/swagger';
 import fastifySwaggerUi from '@fastify/swagger-ui';
 import Fastify, { LogController, type FastifyBaseLogger, type FastifyError, type FastifyInstance } from 'fastify';
 import { hasZodFastifySchemaValidationErrors, jsonSchemaTransform, serializerCompiler, validatorCompiler } from 'fastify-type-provider-zod';
-import type { ServiceDeps } from '@stemwise/db';
+import type { ServiceDeps } from '@stemwise/core';
 import { TokenVerifier } from './access';
 import { AuditWriter } from './audit';
 import { auditTokenUse, type AuthFailureLimit, type RouteContext } from './routes/auth';

@@ -1,4 +1,4 @@
-import type { RegionSummary } from './summary/types';
+import type { RegionSummary } from '@stemwise/core';
 
 // What one region_summaries.payload holds (format 1). The API serves it without `charts`; the page
 // draws the charts from it. Plain JSON; null where a value cannot be computed.

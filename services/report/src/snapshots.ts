@@ -11,18 +11,11 @@ import {
   listStaleMarks,
   recordProblems,
   regionExists,
-  type ServiceDeps,
 } from '@stemwise/db';
-import { isInfrastructureError, type Config, type Logger } from '@stemwise/platform';
-import { renderFitChartSvg } from '@stemwise/compute/charts/fit-chart';
-import { pointsOf, toFitRow } from '@stemwise/compute/fits';
-import { currentSpecies } from '@stemwise/compute/species-cache';
-import { IPCC_2006_CARBON_FRACTION } from '@stemwise/compute/science/allometry';
-import { fitCurves, type CurveResult } from '@stemwise/compute/science/verdict';
-import { renderGuildChartSvg } from './charts/guild-chart';
-import { renderMeansChartSvg } from './charts/means-chart';
-import { summariseRegion, type PlotMetrics } from './summary/region-summary';
-import type { SamplingErrorT } from './estimators/stratified';
+import { currentSpecies, fitCurves, IPCC_2006_CARBON_FRACTION, pointsOf, toFitRow, type CurveResult, type SamplingErrorT, type ServiceDeps } from '@stemwise/core';
+import { isInfrastructureError, PermanentError, type Config, type Logger } from '@stemwise/platform';
+import { renderFitChartSvg, renderGuildChartSvg, renderMeansChartSvg } from '@stemwise/core/charts';
+import { RegionSummaryInputError, summariseRegion, type PlotMetrics } from './summary/region-summary';
 import { SNAPSHOT_FORMAT, type FitChart, type SnapshotFitRow, type SnapshotMethod, type SnapshotPayload } from './snapshot-payload';
 
 type Deps = Pick<ServiceDeps, 'db' | 'config'> & { log?: Logger };

@@ -1,8 +1,8 @@
 import crypto from 'node:crypto';
 import fs from 'node:fs';
 import path from 'node:path';
-import { listLatestSnapshots, listNationalVersions, listRegionHeads, listSummaryVersions, type ServiceDeps } from '@stemwise/db';
-import { IPCC_2006_CARBON_FRACTION } from '@stemwise/compute/science/allometry';
+import { listLatestSnapshots, listNationalVersions, listRegionHeads, listSummaryVersions } from '@stemwise/db';
+import { IPCC_2006_CARBON_FRACTION, type ServiceDeps } from '@stemwise/core';
 import { readNationalSnapshot } from './national-snapshot';
 import { renderIndexPage } from './page/index-page';
 import { renderNationalPage } from './page/national-page';

@@ -1,10 +1,7 @@
-import { countStaleVisits, forestTypesWithPlots, listCurveFits, listStale, type ServiceDeps } from '@stemwise/db';
+import { countStaleVisits, forestTypesWithPlots, listCurveFits, listStale } from '@stemwise/db';
+import { checkFitColumn, encodeTable, FIT_COLUMNS, fitRows, toFitRow, writeExport, type ExportTarget, type FitRow, type ServiceDeps } from '@stemwise/core';
 import type { Logger } from '@stemwise/platform';
-import { checkFitColumn } from '../fit-columns';
-import { fitForestType, storeFits, toFitRow } from '../fits';
-import { FIT_COLUMNS, fitRows, type FitRow } from '../science/verdict';
-import { encodeTable } from '@stemwise/platform';
-import { writeExport, type ExportTarget } from './sink';
+import { fitForestType, storeFits } from '../fits';
 
 export const FIT_EXPORT_FORMATS = ['csv', 'json'] as const;
 export type FitExportFormat = (typeof FIT_EXPORT_FORMATS)[number];

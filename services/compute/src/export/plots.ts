@@ -1,8 +1,6 @@
 import { countStaleVisits, listRegionNames, pagePlotExport, regionExists, type Queryable } from '@stemwise/db';
 import { StemwiseError } from '@stemwise/platform';
-import { PLOT_METRIC_COLUMNS } from '../science/plot-metrics';
-import { encodeFeatureCollection, encodeTable, type Row } from '@stemwise/platform';
-import { writeExport, type ExportTarget } from './sink';
+import { encodeFeatureCollection, encodeTable, PLOT_METRIC_COLUMNS, writeExport, type ExportTarget, type Row } from '@stemwise/core';
 
 /** The columns of `export plots`, in the order of docs/exports.md. */
 export const PLOT_EXPORT_COLUMNS: readonly string[] = ['plot_id', 'survey_date', 'region', 'forest_type', ...PLOT_METRIC_COLUMNS.map((c) => c.column)];

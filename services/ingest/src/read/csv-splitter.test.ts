@@ -2,6 +2,7 @@ import { parse } from 'csv-parse/sync';
 import { describe, expect, it } from 'vitest';
 import { CsvSplitter, type CsvEvent, type CsvRecord } from './csv-splitter';
 import { FileProblem } from './file-problem';
+import { createRng } from '@stemwise/core/science';
 
 function split(text: string, chunkSize = text.length || 1, delimiter = ','): CsvEvent[] {
   const s = new CsvSplitter(delimiter, 1000);
@@ -12,15 +13,8 @@ function split(text: string, chunkSize = text.length || 1, delimiter = ','): Csv
 }
 const records = (events: CsvEvent[]) => events.filter((e): e is CsvRecord => 'fields' in e);
 
-// A small deterministic generator (mulberry32) so the differential test is reproducible.
-function rng(seed: number) {
-  return () => {
-    seed = (seed + 0x6d2b79f5) | 0;
-    let t = Math.imul(seed ^ (seed >>> 15), 1 | seed);
-    t = (t + Math.imul(t ^ (t >>> 7), 61 | t)) ^ t;
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
+// The seeded generator of @stemwise/core, so the differential test is reproducible.
+const rng = (seed: number) => createRng(seed).next;
 
 describe('CsvSplitter', () => {
   it('splits exactly like csv-parse on well-formed CSV with quotes, escaped quotes, delimiters and line breaks in values, in any chunking', () => {

@@ -1,4 +1,4 @@
-import { STRUCTURE, structureMessages } from '../rules/structure';
+import { STRUCTURE, structureMessages } from '@stemwise/core';
 import { FileProblem } from './file-problem';
 
 // An RFC 4180 splitter written for line-exact reporting: every record carries the physical line it

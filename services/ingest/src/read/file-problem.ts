@@ -1,4 +1,4 @@
-import type { Rule } from '../rules/rule';
+import type { Rule } from '@stemwise/core';
 
 /** A problem that stops the reading of a whole file (corrupt gzip, wrong encoding, a line over 1 MB…). */
 export class FileProblem extends Error {

@@ -1,8 +1,7 @@
 import type { IssueLog } from '../issues';
 import type { ColumnSpec } from '../rules/columns';
 import { compileFieldCheck, INVALID, type FieldCheckOptions, type Parsed } from '../rules/field-checks';
-import { FIELD, fieldMessages } from '../rules/fields';
-import { STRUCTURE, structureMessages } from '../rules/structure';
+import { FIELD, fieldMessages, STRUCTURE, structureMessages } from '@stemwise/core';
 import { CsvSplitter, type CsvEvent } from './csv-splitter';
 import { FileProblem } from './file-problem';
 import { textChunks } from './text-chunks';

@@ -1,6 +1,6 @@
 import fs from 'node:fs';
 import { createGunzip } from 'node:zlib';
-import { STRUCTURE, structureMessages } from '../rules/structure';
+import { STRUCTURE, structureMessages } from '@stemwise/core';
 import { FileProblem } from './file-problem';
 
 /** Offset of the first byte that breaks UTF-8 in `buf` (from `from`), or -1. */

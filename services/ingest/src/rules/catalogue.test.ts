@@ -1,7 +1,7 @@
 import fs from 'node:fs';
 import path from 'node:path';
 import { describe, expect, it } from 'vitest';
-import { ALL_RULES } from './catalogue';
+import { ALL_RULES } from '@stemwise/core';
 
 describe('the rules catalogue', () => {
   it('has unique lower_snake_case codes, each prefixed by its family', () => {

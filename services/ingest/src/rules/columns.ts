@@ -1,9 +1,11 @@
 // The columns of each file of an inventory batch, version 1 of the format: the single source of the
 // field rules. Field checks are compiled from these tables (see field-checks.ts) rather than written as
-// zod schemas, because a zod schema built from them takes 13–15 times as long (scripts/bench-validate.ts)
+// zod schemas, because a zod schema built from them takes 13–15 times as long (scripts/bench/validate.ts)
 // and a batch holds millions of rows; the tables are plain data, so RULES.md and tests read them too.
 
-export type FileKind = 'plots' | 'trees' | 'strata' | 'species';
+import type { FileKind } from '@stemwise/core';
+
+export type { FileKind };
 
 interface Base {
   readonly name: string;

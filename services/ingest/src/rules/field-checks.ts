@@ -1,7 +1,6 @@
 import type { IssueLog } from '../issues';
 import type { ColumnSpec, NumberColumn } from './columns';
-import { FIELD } from './fields';
-import { shown } from './rule';
+import { FIELD, shown } from '@stemwise/core';
 
 /** What a check returns for a bad value (the issue is already logged). */
 export const INVALID: unique symbol = Symbol('invalid');

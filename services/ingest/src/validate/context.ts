@@ -1,6 +1,6 @@
 import type { BatchOptions } from '@stemwise/db';
 import type { IssueLog } from '../issues';
-import type { PlausibilityOptions } from '../rules/plausibility';
+import type { PlausibilityOptions } from '@stemwise/core';
 import type { TableOptions } from '../read/table';
 
 /** What every file validator shares while one batch is checked. */

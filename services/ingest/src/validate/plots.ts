@@ -1,7 +1,5 @@
 import { PLOT_COLUMNS } from '../rules/columns';
-import { CROSS, crossMessages } from '../rules/cross';
-import { PLAUSIBILITY, plausibilityMessages } from '../rules/plausibility';
-import { ROW, rowMessages } from '../rules/rows';
+import { CROSS, crossMessages, PLAUSIBILITY, plausibilityMessages, ROW, rowMessages } from '@stemwise/core';
 import { readTable, type TableSource, type TableStats } from '../read/table';
 import { tableOptions, type ValidationContext } from './context';
 

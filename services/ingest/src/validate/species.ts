@@ -1,9 +1,7 @@
 import crypto from 'node:crypto';
 import type { SpeciesRow } from '@stemwise/db';
-import { normaliseName } from '@stemwise/compute/science/species-names';
+import { CROSS, crossMessages, FIELD, normaliseName } from '@stemwise/core';
 import { SPECIES_COLUMNS } from '../rules/columns';
-import { CROSS, crossMessages } from '../rules/cross';
-import { FIELD } from '../rules/fields';
 import { readTable, type TableSource, type TableStats } from '../read/table';
 import { tableOptions, type ValidationContext } from './context';
 

@@ -1,5 +1,5 @@
 import { STRATA_COLUMNS } from '../rules/columns';
-import { CROSS, crossMessages } from '../rules/cross';
+import { CROSS, crossMessages } from '@stemwise/core';
 import { readTable, type TableSource, type TableStats } from '../read/table';
 import { tableOptions, type ValidationContext } from './context';
 

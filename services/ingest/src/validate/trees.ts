@@ -1,10 +1,7 @@
 import type { StoredPlot } from '@stemwise/db';
-import { normaliseName, type SpeciesIndex } from '@stemwise/compute/science/species-names';
+import { CROSS, crossMessages, normaliseName, PLAUSIBILITY, plausibilityMessages, ROW, rowMessages, type SpeciesIndex } from '@stemwise/core';
 import type { StemSink } from '../load/stem-sink';
 import { TREE_COLUMNS } from '../rules/columns';
-import { CROSS, crossMessages } from '../rules/cross';
-import { PLAUSIBILITY, plausibilityMessages } from '../rules/plausibility';
-import { ROW, rowMessages } from '../rules/rows';
 import { readTable, type TableSource, type TableStats } from '../read/table';
 import { tableOptions, type ValidationContext } from './context';
 import { KeySet } from './key-set';

@@ -1,5 +1,5 @@
 import type { NationalSnapshot } from '../national-snapshot';
-import { HEADLINE_VARIABLES, variableLabel } from '../variables';
+import { HEADLINE_VARIABLES, variableLabel } from '@stemwise/core';
 import { cautions, visitsSentence } from './region-page';
 import { figure, interval, isoMinute, samplingError } from './figures';
 import { html, type Markup } from './html';

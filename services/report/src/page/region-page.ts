@@ -1,7 +1,6 @@
 import { problemLine, type ProblemView } from '@stemwise/db';
 import type { Snapshot } from '../snapshot-payload';
-import type { DisturbanceRow, RegionRow, TotalRow } from '../summary/types';
-import { HEADLINE_VARIABLES, totalUnit, variableLabel } from '../variables';
+import { HEADLINE_VARIABLES, totalUnit, variableLabel, type DisturbanceRow, type RegionRow, type TotalRow } from '@stemwise/core';
 import { figure, interval, isoMinute, percentOfShare, samplingError } from './figures';
 import { html, safeSvg, type Markup } from './html';
 import { pageShell } from './shell';

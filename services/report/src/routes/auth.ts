@@ -1,5 +1,5 @@
 import type { FastifyInstance, FastifyReply, FastifyRequest, preValidationAsyncHookHandler } from 'fastify';
-import type { ServiceDeps } from '@stemwise/db';
+import type { ServiceDeps } from '@stemwise/core';
 import { hashToken, type Principal, type TokenVerifier, type Verification } from '../access';
 import type { AuditWriter } from '../audit';
 import type { SummaryCache } from '../summary-cache';

@@ -6,7 +6,7 @@ import type { FastifyInstance, FastifyReply, FastifyRequest } from 'fastify';
 import type { ZodTypeProvider } from 'fastify-type-provider-zod';
 import { z } from 'zod';
 import { batchSubmitter } from '@stemwise/db';
-import { batchIssuesCsv, batchReport, SubmissionError, submitBatch, type SubmitOptions, type SubmittedFile } from '@stemwise/ingest';
+import { batchIssuesCsv, batchReport, checkDelimiter, SubmissionError, submitBatch, type SubmitOptions, type SubmittedFile } from '@stemwise/core';
 import { canReadBatch, canSubmitBatches, type Principal } from '../access';
 import { multipartBoundary, MultipartError, readMultipart } from '../multipart';
 import { denyJson, requireToken, type RouteContext } from './auth';
@@ -33,8 +33,7 @@ function flag(fields: Record<string, string>, name: string): boolean {
 
 function submitOptions(fields: Record<string, string>): SubmitOptions {
   const delimiter = fields.delimiter;
-  if (delimiter !== undefined && delimiter !== ',' && delimiter !== ';') throw new SubmissionError(`delimiter must be ',' or ';', not '${delimiter}'`);
-  return { skipInvalid: flag(fields, 'skip_invalid'), replace: flag(fields, 'replace'), delimiter: delimiter as SubmitOptions['delimiter'], decimalComma: flag(fields, 'decimal_comma') };
+  return { skipInvalid: flag(fields, 'skip_invalid'), replace: flag(fields, 'replace'), delimiter: checkDelimiter(delimiter), decimalComma: flag(fields, 'decimal_comma') };
 }
 
 /** A client that went away in the middle of its upload (the body stream ended with an error). */

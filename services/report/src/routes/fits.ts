@@ -1,8 +1,7 @@
 import type { FastifyInstance } from 'fastify';
 import type { ZodTypeProvider } from 'fastify-type-provider-zod';
 import { listCurveFits, listRegionNames, listStageProblems, problemView, WHOLE_FOREST_TYPE_SCOPE, type FitScope } from '@stemwise/db';
-import { toFitRow } from '@stemwise/compute/fits';
-import { csvHeader, csvLine, type Row } from '@stemwise/platform';
+import { csvHeader, csvLine, toFitRow, type Row } from '@stemwise/core';
 import { canSeeRegion, readsRegions, type Principal } from '../access';
 import type { SnapshotFitRow } from '../snapshot-payload';
 import { denyJson, requireToken, type RouteContext } from './auth';

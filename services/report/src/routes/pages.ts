@@ -1,7 +1,7 @@
 import type { FastifyInstance, FastifyReply, FastifyRequest } from 'fastify';
 import type { ZodTypeProvider } from 'fastify-type-provider-zod';
 import { z } from 'zod';
-import { IPCC_2006_CARBON_FRACTION } from '@stemwise/compute/science/allometry';
+import { IPCC_2006_CARBON_FRACTION } from '@stemwise/core';
 import { listNationalVersions, listRegionHeads, listRegionProblems, listSummaryVersions, problemView } from '@stemwise/db';
 import { canSeeNational, readsRegions, type Principal } from '../access';
 import { readNationalSnapshot } from '../national-snapshot';

@@ -1,5 +1,5 @@
 import { RegionSummaryInputError } from './input';
-import type { DisturbanceClass } from './types';
+import type { DisturbanceClass } from '@stemwise/core';
 
 /** Our own documented defaults on disturbance_index (0–1), not a published scheme: change per protocol (docs/methods.md#disturbance-classes). */
 export const DEFAULT_DISTURBANCE_CLASSES: readonly DisturbanceClass[] = [

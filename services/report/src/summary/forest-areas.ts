@@ -1,6 +1,5 @@
-import type { Weighting } from '../estimators/stratified';
+import type { SummaryNote, Weighting } from '@stemwise/core';
 import { fmtHa, note } from './notes';
-import type { SummaryNote } from './types';
 
 export interface ResolvedAreas {
   readonly weighting: Weighting;

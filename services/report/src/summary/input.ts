@@ -1,6 +1,4 @@
-import type { SamplingErrorT } from '../estimators/stratified';
-import type { DisturbanceClass } from './types';
-import { WHOLE_REGION } from './types';
+import { WHOLE_REGION, type DisturbanceClass, type SamplingErrorT } from '@stemwise/core';
 
 /** One plot's figures, as in `export plots` (numeric columns; null where not computable). */
 export interface PlotMetrics {

@@ -3,7 +3,7 @@ import { describe, expect, it } from 'vitest';
 import { summariseNation, type NationalRegionInput } from './national-summary';
 import { RegionSummaryInputError, type PlotMetrics } from './input';
 import { summariseRegion } from './region-summary';
-import { REGION_COLUMNS, type NationalSummary } from './types';
+import { REGION_COLUMNS, type NationalSummary } from '@stemwise/core';
 
 // Invented scenario: the (invented) Republic of Oskeland with the regions Ardel, Brisk and Corvan and
 // the forest types ridge and valley. Values are chosen for hand computation or drawn from a seeded

@@ -1,9 +1,9 @@
-import { assertStratifiedOptions, stratifiedEstimate, type StratifiedEstimate, type StratifiedOptions, type StratumInput } from '../estimators/stratified';
+import { assertStratifiedOptions, stratifiedEstimate, type StratifiedEstimate, type StratifiedOptions, type StratumInput } from '@stemwise/core';
 import { resolveForestAreas } from './forest-areas';
 import { RegionSummaryInputError, validateInput, type PlotMetrics, type RegionSummaryOptions } from './input';
 import { fmtHa, note } from './notes';
 import { DEFAULT_REGION_VARIABLES, estimateDetail, isPerHectare, regionRow } from './region-summary';
-import { NATIONAL, WHOLE_REGION, type EstimateDetail, type NationalStratum, type NationalSummary, type RegionRow, type SummaryNote, type TotalRow } from './types';
+import { NATIONAL, WHOLE_REGION, type EstimateDetail, type NationalStratum, type NationalSummary, type RegionRow, type SummaryNote, type TotalRow } from '@stemwise/core';
 
 // The national estimate: every region together, with region × forest type as the strata of one
 // stratified random sample (Cochran 1977, Sampling Techniques 3rd ed., ch. 5; docs/methods.md#national-estimates).

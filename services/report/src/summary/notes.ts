@@ -1,4 +1,4 @@
-import type { NoteCode, SummaryNote } from './types';
+import type { NoteCode, SummaryNote } from '@stemwise/core';
 
 export function note(code: NoteCode, message: string, forestType: string | null = null, variable: string | null = null): SummaryNote {
   return { code, message, forest_type: forestType, variable };

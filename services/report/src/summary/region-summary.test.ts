@@ -1,11 +1,9 @@
 import { describe, expect, it } from 'vitest';
-import { tMultiplier } from '../estimators/student-t';
+import { REGION_COLUMNS, tMultiplier, type RegionSummary } from '@stemwise/core';
 import {
-  REGION_COLUMNS,
   RegionSummaryInputError,
   summariseRegion,
   type PlotMetrics,
-  type RegionSummary,
   type RegionSummaryInput,
 } from './region-summary';
 

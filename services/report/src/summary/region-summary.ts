@@ -1,23 +1,10 @@
-import { assertStratifiedOptions, stratifiedEstimate, type StratifiedEstimate, type StratifiedOptions } from '../estimators/stratified';
+import { assertStratifiedOptions, stratifiedEstimate, WHOLE_REGION, type DisturbanceSummary, type EstimateDetail, type GuildRow, type RegionRow, type RegionSummary, type StratifiedEstimate, type StratifiedOptions, type SummaryGuild, type SummaryNote, type TotalRow } from '@stemwise/core';
 import { DEFAULT_DISTURBANCE_CLASSES, assertDisturbanceClasses, disturbanceClassIndex } from './disturbance-classes';
 import { resolveForestAreas } from './forest-areas';
 import { validateInput, type PlotMetrics, type RegionSummaryInput } from './input';
 import { note } from './notes';
 import { countSpecies } from './species-counts';
-import {
-  WHOLE_REGION,
-  type DisturbanceSummary,
-  type EstimateDetail,
-  type Guild,
-  type GuildRow,
-  type RegionRow,
-  type RegionSummary,
-  type SummaryNote,
-  type TotalRow,
-} from './types';
 
-export { REGION_COLUMNS, WHOLE_REGION } from './types';
-export type * from './types';
 export { DEFAULT_DISTURBANCE_CLASSES } from './disturbance-classes';
 export { RegionSummaryInputError, type PlotMetrics, type RegionSummaryInput, type RegionSummaryOptions } from './input';
 
@@ -38,7 +25,7 @@ export const DEFAULT_REGION_VARIABLES: readonly string[] = [
   'fire_score',
 ];
 
-export const GUILD_VARIABLES: Readonly<Record<Guild, string>> = {
+export const GUILD_VARIABLES: Readonly<Record<SummaryGuild, string>> = {
   pioneer: 'pioneer_ba_share',
   light_demander: 'light_demander_ba_share',
   shade_tolerant: 'shade_tolerant_ba_share',
@@ -121,7 +108,7 @@ export function summariseRegion(input: RegionSummaryInput): RegionSummary {
   }
 
   const guild_composition: GuildRow[] = [];
-  for (const [guild, variable] of Object.entries(GUILD_VARIABLES) as [Guild, string][]) {
+  for (const [guild, variable] of Object.entries(GUILD_VARIABLES) as [SummaryGuild, string][]) {
     const e = types.length === 0 ? null : estimateOf(variable);
     if (e === null) continue;
     guild_composition.push({ forest_type: WHOLE_REGION, guild, n_plots: e.n, mean_share: e.mean, se: e.se });

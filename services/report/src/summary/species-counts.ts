@@ -1,6 +1,5 @@
 import type { PlotMetrics } from './input';
-import type { SpeciesCountRow } from './types';
-import { WHOLE_REGION } from './types';
+import { WHOLE_REGION, type SpeciesCountRow } from '@stemwise/core';
 
 // S = |⋃ names| per forest type and for the region: observed species counts (names trimmed; empty names ignored).
 export function countSpecies(plots: readonly PlotMetrics[], forestTypes: readonly string[]): SpeciesCountRow[] | null {

@@ -1,0 +1,28 @@
+import { describe, expect, it } from 'vitest';
+import type { RegionRow } from '../region-summary/types';
+import { buildMeansChartSpec } from './means-chart';
+
+const row = (forest_type: string, variable: string, mean: number, ci_low: number, ci_high: number): RegionRow => ({
+  region: 'Northvale', forest_type, variable, n_plots: 3, mean, se: 1, ci_low, ci_high, sampling_error_pct: 10, forest_area_ha: null, total: null,
+});
+
+describe('means chart', () => {
+  it('draws one panel per variable whose y axis spans every interval (whiskers are never clipped)', () => {
+    const spec = buildMeansChartSpec([
+      row('all', 'carbon_mg_ha', 94.5, 59.5, 130),
+      row('wet', 'carbon_mg_ha', 110, 60.3, 159.7),
+      row('dry', 'carbon_mg_ha', 48, -53.6, 149.6),
+      row('all', 'basal_area_m2_ha', 21, 14.2, 27.8),
+      row('all', 'fisher_alpha', 8, 5, 11), // not a panel of this chart
+    ]) as unknown as { hconcat: Array<{ title: { text: string }; layer: Array<{ encoding: { y: { scale: { domain: [number, number] } } } }> }> };
+    expect(spec.hconcat.map((p) => p.title.text)).toEqual(['Basal area (m²/ha)', 'Carbon (Mg C/ha)']);
+    const [lo, hi] = spec.hconcat[1].layer[0].encoding.y.scale.domain;
+    expect(lo).toBeLessThan(-53.6);
+    expect(hi).toBeGreaterThan(159.7);
+    expect(spec.hconcat[0].layer[0].encoding.y.scale.domain[0]).toBe(0); // bars start at zero when every interval is positive
+  });
+
+  it('has nothing to draw without means', () => {
+    expect(buildMeansChartSpec([])).toBeNull();
+  });
+});
