@@ -19,11 +19,13 @@ export interface Queryable {
   query<T = Record<string, unknown>>(text: string, params?: readonly unknown[]): Promise<T[]>;
 }
 
+export type CopyChunks = AsyncIterable<string | Uint8Array> | Iterable<string | Uint8Array>;
+
 /** A transaction: parameterised SQL plus bulk COPY where the engine allows streaming it. */
 export interface Tx extends Queryable {
   readonly kind: Db['kind'];
-  /** COPY … FROM STDIN on PostgreSQL: writes the CSV text chunks the iterator yields. */
-  copyFrom(copySql: string, chunks: AsyncIterable<string> | Iterable<string>): Promise<void>;
+  /** COPY … FROM STDIN on PostgreSQL: writes the chunks the iterator yields (text, or text already encoded as UTF-8). */
+  copyFrom(copySql: string, chunks: CopyChunks): Promise<void>;
 }
 
 export interface Db extends Queryable {
@@ -106,12 +108,12 @@ async function openPostgres(url: string, poolSize: number): Promise<Db> {
   };
 }
 
-async function copyIntoPostgres(client: pg.PoolClient, copySql: string, chunks: AsyncIterable<string> | Iterable<string>): Promise<void> {
+async function copyIntoPostgres(client: pg.PoolClient, copySql: string, chunks: CopyChunks): Promise<void> {
   const { from } = await import('pg-copy-streams');
   const { pipeline } = await import('node:stream/promises');
   const { Readable } = await import('node:stream');
   const stream = client.query(from(copySql));
-  await pipeline(Readable.from(chunks as AsyncIterable<string>), stream);
+  await pipeline(Readable.from(chunks), stream);
 }
 
 async function openPglite(dir: string): Promise<Db> {
@@ -134,8 +136,8 @@ async function openPglite(dir: string): Promise<Db> {
           kind: 'pglite',
           query: async (text, params) => (await t.query(text, params as unknown[])).rows as never[],
           copyFrom: async (copySql, chunks) => {
-            const parts: string[] = [];
-            for await (const c of chunks as AsyncIterable<string>) parts.push(c);
+            const parts: Array<string | Uint8Array> = [];
+            for await (const c of chunks) parts.push(c);
             await t.query(copySql.replace(/from\s+stdin/i, "FROM '/dev/blob'"), [], { blob: new Blob(parts) });
           },
         }),

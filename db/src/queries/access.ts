@@ -1,27 +1,18 @@
 import type { Queryable } from '../connection';
+import type { accessTokens, auditLog } from '../schema/access';
+import type { batches } from '../schema/batches';
+import { int8Row, type Wire } from './rows';
 
 // Access tokens (stored only as SHA-256 hashes) and the audit log.
 
 export type TokenRole = 'admin' | 'uploader' | 'reader';
 
-export interface AccessTokenRow {
-  id: string;
+/** A token as stored (without its hash); `role` is one of the values its check constraint allows. */
+export interface AccessTokenRow extends Pick<typeof accessTokens.$inferSelect, 'id' | 'regions' | 'label' | 'createdAt' | 'revokedAt'> {
   role: TokenRole;
-  regions: string[];
-  label: string | null;
-  createdAt: Date;
-  revokedAt: Date | null;
 }
 
-type RawToken = { id: string; role: TokenRole; regions: string[] | null; label: string | null; created_at: Date; revoked_at: Date | null };
-const toToken = (r: RawToken): AccessTokenRow => ({
-  id: r.id,
-  role: r.role,
-  regions: r.regions ?? [],
-  label: r.label,
-  createdAt: new Date(r.created_at),
-  revokedAt: r.revoked_at === null ? null : new Date(r.revoked_at),
-});
+const TOKEN_COLUMNS = `id, role, regions, label, created_at "createdAt", revoked_at "revokedAt"`;
 
 export async function insertAccessToken(
   db: Queryable,
@@ -38,22 +29,22 @@ export async function insertAccessToken(
 
 /** The token with this hash, revoked or not; null when none has it. */
 export async function findAccessTokenByHash(db: Queryable, tokenHash: string): Promise<AccessTokenRow | null> {
-  const rows = await db.query<RawToken>(`select id, role, regions, label, created_at, revoked_at from access_tokens where token_hash = $1`, [tokenHash]);
-  return rows.length ? toToken(rows[0]) : null;
+  const rows = await db.query<AccessTokenRow>(`select ${TOKEN_COLUMNS} from access_tokens where token_hash = $1`, [tokenHash]);
+  return rows[0] ?? null;
 }
 
 /** The tokens with these hashes (for re-checking many remembered tokens in one query). */
 export async function findAccessTokensByHashes(db: Queryable, tokenHashes: readonly string[]): Promise<Map<string, AccessTokenRow>> {
   if (!tokenHashes.length) return new Map();
-  const rows = await db.query<RawToken & { token_hash: string }>(
-    `select token_hash, id, role, regions, label, created_at, revoked_at from access_tokens where token_hash = any($1::text[])`,
+  const rows = await db.query<AccessTokenRow & { tokenHash: string }>(
+    `select token_hash "tokenHash", ${TOKEN_COLUMNS} from access_tokens where token_hash = any($1::text[])`,
     [tokenHashes],
   );
-  return new Map(rows.map((r) => [r.token_hash, toToken(r)]));
+  return new Map(rows.map(({ tokenHash, ...token }) => [tokenHash, token]));
 }
 
 export async function listAccessTokens(db: Queryable): Promise<AccessTokenRow[]> {
-  return (await db.query<RawToken>(`select id, role, regions, label, created_at, revoked_at from access_tokens order by created_at, id`)).map(toToken);
+  return db.query<AccessTokenRow>(`select ${TOKEN_COLUMNS} from access_tokens order by created_at, id`);
 }
 
 /** Revokes a token; false when no unrevoked token has this id. */
@@ -88,21 +79,24 @@ export async function appendAuditEntries(db: Queryable, entries: readonly AuditE
   );
 }
 
-export async function listAuditEntries(
-  db: Queryable,
-  filter: { actor?: string; action?: string; limit?: number } = {},
-): Promise<Array<Required<AuditEntry> & { id: number }>> {
-  const rows = await db.query<{ id: string; at: Date; actor: string; action: string; target: string | null; details: Record<string, unknown> }>(
+/** An audit entry as stored. */
+export interface AuditLogRow extends Omit<typeof auditLog.$inferSelect, 'details'> {
+  details: Record<string, unknown>;
+}
+const auditLogRow = int8Row<AuditLogRow, 'id'>('id');
+
+export async function listAuditEntries(db: Queryable, filter: { actor?: string; action?: string; limit?: number } = {}): Promise<AuditLogRow[]> {
+  const rows = await db.query<Wire<AuditLogRow, 'id'>>(
     `select id, at, actor, action, target, details from audit_log
       where ($1::text is null or actor = $1) and ($2::text is null or action = $2)
       order by id desc limit $3`,
     [filter.actor ?? null, filter.action ?? null, filter.limit ?? 1000],
   );
-  return rows.map((r) => ({ id: Number(r.id), at: new Date(r.at), actor: r.actor, action: r.action, target: r.target, details: r.details }));
+  return rows.map(auditLogRow);
 }
 
 /** Who submitted a batch (`batches.submitted_by`: a token id, or `cli`); null when no such batch. */
 export async function batchSubmitter(db: Queryable, batchId: string): Promise<string | null> {
-  const rows = await db.query<{ submitted_by: string }>(`select submitted_by from batches where id = $1::uuid`, [batchId]);
-  return rows.length ? rows[0].submitted_by : null;
+  const rows = await db.query<Pick<typeof batches.$inferSelect, 'submittedBy'>>(`select submitted_by "submittedBy" from batches where id = $1::uuid`, [batchId]);
+  return rows.length ? rows[0].submittedBy : null;
 }

@@ -1,4 +1,7 @@
 import type { Queryable } from '../connection';
+import type { batches, batchIssues, batchUnresolvedNames } from '../schema/batches';
+
+type Batch = typeof batches.$inferSelect;
 
 // The batch row is the source of truth of an upload: its state, counts, progress and issues.
 
@@ -21,22 +24,14 @@ export interface BatchOptions {
   decimal_comma: boolean;
 }
 
-export interface BatchRow extends BatchCounts {
-  id: string;
+/** A batch as stored; its state, files and options are typed as the ingest writes them. */
+export interface BatchRow extends Omit<Batch, 'state' | 'files' | 'options'> {
   state: BatchState;
-  contentHash: string;
   files: BatchFile[];
   options: BatchOptions;
-  submittedBy: string;
-  bytesTotal: number;
-  rowsLoaded: number;
-  attempts: number;
-  failureReason: string | null;
-  createdAt: Date;
-  updatedAt: Date;
-  loadedAt: Date | null;
 }
 
+// bytes_total and bytes_read are int8: read as float8, a number on both engines (sizes stay far below 2^53).
 const COLUMNS = `id, state, content_hash "contentHash", files, options, submitted_by "submittedBy",
   plots_rows "plotsRows", trees_rows "treesRows", plots_loaded "plotsLoaded", stems_loaded "stemsLoaded",
   rows_skipped "rowsSkipped", n_errors "nErrors", n_warnings "nWarnings", bytes_total::float8 "bytesTotal",
@@ -51,7 +46,7 @@ export async function insertBatch(
   db: Queryable,
   row: { id: string; contentHash: string; files: BatchFile[]; options: BatchOptions; submittedBy: string; bytesTotal: number },
 ): Promise<string | null> {
-  const rows = await db.query<{ id: string }>(
+  const rows = await db.query<Pick<Batch, 'id'>>(
     `insert into batches (id, state, content_hash, files, options, submitted_by, bytes_total)
      values ($1, 'received', $2, $3::jsonb, $4::jsonb, $5, $6)
      on conflict do nothing returning id`,
@@ -103,14 +98,9 @@ export async function updateBatchProgress(db: Queryable, id: string, p: BatchPro
   );
 }
 
-export interface BatchIssueRow {
+/** An issue as stored (without its batch); `severity` is one its check constraint allows. */
+export interface BatchIssueRow extends Pick<typeof batchIssues.$inferSelect, 'rule' | 'file' | 'line' | 'column' | 'value' | 'message'> {
   severity: 'error' | 'warning';
-  rule: string;
-  file: string;
-  line: number | null;
-  column: string | null;
-  value: string | null;
-  message: string;
 }
 
 export async function deleteBatchIssues(db: Queryable, batchId: string): Promise<void> {
@@ -149,7 +139,7 @@ export async function listBatchIssues(db: Queryable, batchId: string, severity?:
 }
 
 /** Names of a batch that did not resolve (written by the compute service from its metrics). */
-export async function listUnresolvedNames(db: Queryable, batchId: string): Promise<Array<{ name: string; level: string; stems: number }>> {
+export async function listUnresolvedNames(db: Queryable, batchId: string): Promise<Array<Omit<typeof batchUnresolvedNames.$inferSelect, 'batchId'>>> {
   return db.query(`select name, level, stems from batch_unresolved_names where batch_id = $1 order by stems desc, name`, [batchId]);
 }
 

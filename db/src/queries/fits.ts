@@ -1,13 +1,15 @@
 import type { Queryable } from '../connection';
-import { PLOT_METRIC_DB_COLUMNS, type PlotMetricDbColumn } from './metrics';
+import type { curveFits } from '../schema/fits';
+import type { plots } from '../schema/plots';
+import type { regions } from '../schema/regions';
+import { metricsOfRow, PLOT_METRIC_DB_COLUMNS, type MetricColumns, type PlotMetricDbColumn } from './metrics';
 
 // Diversity–disturbance fits: the points they are fitted on, and the stored rows (curve_fits).
 
 const METRIC_SELECT = PLOT_METRIC_DB_COLUMNS.map(([c]) => `m.${c}`).join(', ');
 
-export interface LatestPlotMetrics {
-  plotKey: string;
-  region: string;
+export interface LatestPlotMetrics extends Pick<typeof plots.$inferSelect, 'plotKey'> {
+  region: (typeof regions.$inferSelect)['name'];
   metrics: Record<PlotMetricDbColumn, number | null>;
 }
 
@@ -16,23 +18,19 @@ export interface LatestPlotMetrics {
  * order is part of the result: the bootstrap resamples by position).
  */
 export async function listLatestPlotMetrics(db: Queryable, forestType: string): Promise<LatestPlotMetrics[]> {
-  const rows = await db.query<Record<string, unknown>>(
+  const rows = await db.query<Omit<LatestPlotMetrics, 'metrics'> & MetricColumns>(
     `select * from (
-       select distinct on (v.plot_id) p.plot_key, r.name region, ${METRIC_SELECT}
+       select distinct on (v.plot_id) p.plot_key "plotKey", r.name region, ${METRIC_SELECT}
          from plot_visits v
          join plots p on p.id = v.plot_id
          join regions r on r.id = p.region_id
          join plot_metrics m on m.visit_id = v.id
         where p.forest_type = $1
         order by v.plot_id, v.survey_date desc) latest
-      order by plot_key collate "C"`,
+      order by "plotKey" collate "C"`,
     [forestType],
   );
-  return rows.map((r) => {
-    const metrics = {} as Record<PlotMetricDbColumn, number | null>;
-    for (const [c] of PLOT_METRIC_DB_COLUMNS) metrics[c] = r[c] === null || r[c] === undefined ? null : Number(r[c]);
-    return { plotKey: r.plot_key as string, region: r.region as string, metrics };
-  });
+  return rows.map((r) => ({ plotKey: r.plotKey, region: r.region, metrics: metricsOfRow(r) }));
 }
 
 /** What a fit was fitted on: the forest type as a whole, or the plots of one region (of any name). */
@@ -42,30 +40,10 @@ export const WHOLE_FOREST_TYPE_SCOPE = 'all';
 /** A scope to read: the whole forest type, or a region by name. */
 export type FitScope = { kind: 'forest_type' } | { kind: 'region'; region: string };
 
-export interface CurveFitRow {
+/** A stored fit (`scope`: `all` for the whole forest type, else the region's name); the kinds and models are those its columns allow. */
+export interface CurveFitRow extends Omit<typeof curveFits.$inferSelect, 'scopeKind' | 'model' | 'details' | 'computedAt'> {
   scopeKind: FitScopeKind;
-  /** `all` for the whole forest type, else the region's name. */
-  scope: string;
-  forestType: string;
-  metric: string;
-  axis: string;
   model: 'linear' | 'quadratic';
-  n: number;
-  b0: number | null;
-  b1: number | null;
-  b2: number | null;
-  seB0: number | null;
-  seB1: number | null;
-  seB2: number | null;
-  pB1: number | null;
-  pB2: number | null;
-  r2: number | null;
-  adjR2: number | null;
-  aicc: number | null;
-  peakX: number | null;
-  peakCiLow: number | null;
-  peakCiHigh: number | null;
-  verdict: string;
   details: Record<string, unknown>;
 }
 
@@ -84,7 +62,7 @@ const FIT_FIELDS = [
   ['peakX', 'peak_x'],
   ['peakCiLow', 'peak_ci_low'],
   ['peakCiHigh', 'peak_ci_high'],
-] as const;
+] as const satisfies ReadonlyArray<readonly [keyof CurveFitRow, string]>;
 
 const UPSERT_FITS_SQL = `insert into curve_fits (scope_kind, scope, forest_type, metric, axis, model, n, ${FIT_FIELDS.map(([, c]) => c).join(', ')}, verdict, details, computed_at)
   select t.*, now() from unnest($1::text[], $2::text[], $3::text[], $4::text[], $5::text[], $6::text[], $7::int[],
@@ -123,26 +101,11 @@ export async function deleteCurveFitsExcept(tx: Queryable, forestType: string, m
 export async function listCurveFits(db: Queryable, filter: { scope: FitScope; metric: string; axis: string; forestTypes?: readonly string[] }): Promise<CurveFitRow[]> {
   const { kind } = filter.scope;
   const label = filter.scope.kind === 'region' ? filter.scope.region : WHOLE_FOREST_TYPE_SCOPE;
-  const rows = await db.query<Record<string, unknown>>(
-    `select scope_kind, scope, forest_type, metric, axis, model, n, ${FIT_FIELDS.map(([, c]) => c).join(', ')}, verdict, details
+  return db.query<CurveFitRow>(
+    `select scope_kind "scopeKind", scope, forest_type "forestType", metric, axis, model, n, ${FIT_FIELDS.map(([k, c]) => `${c} "${k}"`).join(', ')}, verdict, details
        from curve_fits
       where scope_kind = $1 and scope = $2 and metric = $3 and axis = $4 and ($5::text[] is null or forest_type = any($5::text[]))
       order by forest_type collate "C", model`,
     [kind, label, filter.metric, filter.axis, filter.forestTypes ?? null],
   );
-  return rows.map((r) => {
-    const out = {
-      scopeKind: r.scope_kind as FitScopeKind,
-      scope: r.scope as string,
-      forestType: r.forest_type as string,
-      metric: r.metric as string,
-      axis: r.axis as string,
-      model: r.model as CurveFitRow['model'],
-      n: Number(r.n),
-      verdict: r.verdict as string,
-      details: r.details as Record<string, unknown>,
-    } as CurveFitRow;
-    for (const [key, c] of FIT_FIELDS) (out as unknown as Record<string, number | null>)[key] = r[c] === null ? null : Number(r[c]);
-    return out;
-  });
 }

@@ -1,4 +1,11 @@
 import type { Queryable, Tx } from '../connection';
+import type { plots, plotVisits, stems } from '../schema/plots';
+import type { regions } from '../schema/regions';
+import { int8, int8Row, type Int8Wire, type Wire } from './rows';
+
+type Plot = typeof plots.$inferSelect;
+type Visit = typeof plotVisits.$inferSelect;
+type Region = typeof regions.$inferSelect;
 
 // Loading a validated batch: regions, plots, visits, stems and strata. Every function takes arrays as
 // single parameters (unnest), so the statement count does not grow with the batch.
@@ -7,22 +14,20 @@ import type { Queryable, Tx } from '../connection';
 export async function upsertRegions(db: Queryable, names: readonly string[]): Promise<Map<string, number>> {
   if (!names.length) return new Map();
   await db.query(`insert into regions (name) select distinct unnest($1::text[]) on conflict (name) do nothing`, [names]);
-  const rows = await db.query<{ id: number; name: string }>(`select id, name from regions where name = any($1::text[])`, [names]);
+  const rows = await db.query<Region>(`select id, name from regions where name = any($1::text[])`, [names]);
   return new Map(rows.map((r) => [r.name, r.id]));
 }
 
-export interface StoredVisit {
-  plotKey: string;
-  surveyDate: string;
-  visitId: number;
-  batchId: string;
-  region: string;
+export interface StoredVisit extends Pick<Plot, 'plotKey'>, Pick<Visit, 'surveyDate' | 'batchId'> {
+  visitId: Visit['id'];
+  region: Region['name'];
 }
+const storedVisit = int8Row<StoredVisit, 'visitId'>('visitId');
 
 /** Visits already stored for these plots on these dates (pairs given as two parallel arrays). */
 export async function findStoredVisits(db: Queryable, plotKeys: readonly string[], dates: readonly string[]): Promise<StoredVisit[]> {
   if (!plotKeys.length) return [];
-  const rows = await db.query<{ plotKey: string; surveyDate: string; visitId: string | number; batchId: string; region: string }>(
+  const rows = await db.query<Wire<StoredVisit, 'visitId'>>(
     `select p.plot_key "plotKey", v.survey_date::text "surveyDate", v.id "visitId", v.batch_id "batchId", r.name region
        from unnest($1::text[], $2::date[]) as k(plot_key, survey_date)
        join plots p on p.plot_key = k.plot_key
@@ -30,24 +35,20 @@ export async function findStoredVisits(db: Queryable, plotKeys: readonly string[
        join regions r on r.id = p.region_id`,
     [plotKeys, dates],
   );
-  return rows.map((r) => ({ ...r, visitId: Number(r.visitId) }));
+  return rows.map(storedVisit);
 }
 
-export interface StoredPlot {
-  plotKey: string;
-  region: string;
+export interface StoredPlot extends Pick<Plot, 'plotKey'>, Pick<Visit, 'surveyDate' | 'dbhMinCm' | 'subplotAreaHa' | 'subplotDbhMinCm'> {
+  region: Region['name'];
   /** The plot's latest visit, which trees of a later batch without a plots row attach to. */
-  visitId: number;
-  surveyDate: string;
-  dbhMinCm: number;
-  subplotAreaHa: number;
-  subplotDbhMinCm: number;
+  visitId: Visit['id'];
 }
+const storedPlot = int8Row<StoredPlot, 'visitId'>('visitId');
 
 /** Stored plots by key, each with its latest visit (plots without any visit are left out). */
 export async function findStoredPlots(db: Queryable, plotKeys: readonly string[]): Promise<StoredPlot[]> {
   if (!plotKeys.length) return [];
-  const rows = await db.query<StoredPlot & { visitId: string | number }>(
+  const rows = await db.query<Wire<StoredPlot, 'visitId'>>(
     `select distinct on (p.plot_key) p.plot_key "plotKey", r.name region, v.id "visitId", v.survey_date::text "surveyDate",
             v.dbh_min_cm "dbhMinCm", v.subplot_area_ha "subplotAreaHa", v.subplot_dbh_min_cm "subplotDbhMinCm"
        from plots p join plot_visits v on v.plot_id = p.id join regions r on r.id = p.region_id
@@ -55,23 +56,26 @@ export async function findStoredPlots(db: Queryable, plotKeys: readonly string[]
       order by p.plot_key, v.survey_date desc`,
     [plotKeys],
   );
-  return rows.map((r) => ({ ...r, visitId: Number(r.visitId) }));
+  return rows.map(storedPlot);
 }
 
+type StemTreeId = Pick<typeof stems.$inferSelect, 'visitId' | 'treeId'>;
+const stemTreeId = int8Row<StemTreeId, 'visitId'>('visitId');
+
 /** Tree ids already stored on these visits (a later batch may add stems to a stored plot's latest visit). */
-export async function stemTreeIdsOfVisits(db: Queryable, visitIds: readonly number[]): Promise<Array<{ visitId: number; treeId: string }>> {
+export async function stemTreeIdsOfVisits(db: Queryable, visitIds: readonly number[]): Promise<StemTreeId[]> {
   if (!visitIds.length) return [];
-  const rows = await db.query<{ visitId: string | number; treeId: string }>(
+  const rows = await db.query<Wire<StemTreeId, 'visitId'>>(
     `select visit_id "visitId", tree_id "treeId" from stems where visit_id = any($1::bigint[])`,
     [visitIds],
   );
-  return rows.map((r) => ({ visitId: Number(r.visitId), treeId: r.treeId }));
+  return rows.map(stemTreeId);
 }
 
 /** Regions the given plots belong to now (before an upsert may move them). */
 export async function regionsOfPlots(db: Queryable, plotKeys: readonly string[]): Promise<string[]> {
   if (!plotKeys.length) return [];
-  const rows = await db.query<{ name: string }>(
+  const rows = await db.query<Pick<Region, 'name'>>(
     `select distinct r.name from plots p join regions r on r.id = p.region_id where p.plot_key = any($1::text[])`,
     [plotKeys],
   );
@@ -84,9 +88,9 @@ export async function findPlotsAtCoordinates(
   latitudes: readonly number[],
   longitudes: readonly number[],
   excludeKeys: readonly string[],
-): Promise<Array<{ plotKey: string; latitude: number; longitude: number }>> {
+): Promise<Array<Pick<Plot, 'plotKey' | 'latitude' | 'longitude'>>> {
   if (!latitudes.length) return [];
-  return db.query(
+  return db.query<Pick<Plot, 'plotKey' | 'latitude' | 'longitude'>>(
     `select p.plot_key "plotKey", p.latitude, p.longitude
        from plots p join (select distinct * from unnest($1::float8[], $2::float8[])) as c(lat, lon)
          on p.latitude = c.lat and p.longitude = c.lon
@@ -107,15 +111,15 @@ export interface PlotColumns {
 /** Inserts new plots and updates stored ones (region, forest type, position); returns key → id. */
 export async function upsertPlots(db: Queryable, p: PlotColumns): Promise<Map<string, number>> {
   if (!p.keys.length) return new Map();
-  const rows = await db.query<{ id: string | number; plot_key: string }>(
+  const rows = await db.query<{ id: Int8Wire; plotKey: Plot['plotKey'] }>(
     `insert into plots (plot_key, region_id, forest_type, latitude, longitude, elevation_m)
      select * from unnest($1::text[], $2::int[], $3::text[], $4::float8[], $5::float8[], $6::float8[])
      on conflict (plot_key) do update set region_id = excluded.region_id, forest_type = excluded.forest_type,
        latitude = excluded.latitude, longitude = excluded.longitude, elevation_m = excluded.elevation_m
-     returning id, plot_key`,
+     returning id, plot_key "plotKey"`,
     [p.keys, p.regionIds, p.forestTypes, p.latitudes, p.longitudes, p.elevations],
   );
-  return new Map(rows.map((r) => [r.plot_key, Number(r.id)]));
+  return new Map(rows.map((r) => [r.plotKey, int8(r.id)]));
 }
 
 /** Deletes visits (their stems and metrics go with them: ON DELETE CASCADE). */
@@ -142,15 +146,15 @@ export interface VisitColumns {
 /** Inserts visits of one batch; returns plot id → visit id. */
 export async function insertVisits(db: Queryable, batchId: string, v: VisitColumns): Promise<Map<number, number>> {
   if (!v.plotIds.length) return new Map();
-  const rows = await db.query<{ id: string | number; plot_id: string | number }>(
+  const rows = await db.query<{ id: Int8Wire; plotId: Int8Wire }>(
     `insert into plot_visits (plot_id, survey_date, batch_id, area_ha, dbh_min_cm, subplot_area_ha, subplot_dbh_min_cm, logging_class, fire_class, stale)
      select p, d, $1::uuid, a, m, sa, sm, l, f, true
        from unnest($2::bigint[], $3::date[], $4::float8[], $5::float8[], $6::float8[], $7::float8[], $8::smallint[], $9::smallint[])
          as t(p, d, a, m, sa, sm, l, f)
-     returning id, plot_id`,
+     returning id, plot_id "plotId"`,
     [batchId, v.plotIds, v.surveyDates, v.areaHa, v.dbhMinCm, v.subplotAreaHa, v.subplotDbhMinCm, v.loggingClass, v.fireClass],
   );
-  return new Map(rows.map((r) => [Number(r.plot_id), Number(r.id)]));
+  return new Map(rows.map((r) => [int8(r.plotId), int8(r.id)]));
 }
 
 /** COPY of stems in PostgreSQL's text format, one line per stem in STEM_COPY_COLUMNS order. */
@@ -159,11 +163,10 @@ export const STEM_COPY_COLUMNS = ['visit_id', 'tree_id', 'species', 'dbh_cm', 'h
 /**
  * Chunks may be bytes: the ingest hands COPY ready-encoded buffers, so its text never waits on the V8
  * heap long enough to be promoted (measured: peak heap 70 instead of 150 MB per million stems). Both
- * engines take bytes (pg-copy-streams writes them, PGlite's Blob joins them); Tx.copyFrom is typed for
- * strings only, hence the cast.
+ * engines take bytes (pg-copy-streams writes them, PGlite's Blob joins them).
  */
 export async function copyStems(tx: Tx, chunks: AsyncIterable<string | Uint8Array>): Promise<void> {
-  await tx.copyFrom(`copy stems (${STEM_COPY_COLUMNS.join(', ')}) from stdin`, chunks as AsyncIterable<string>);
+  await tx.copyFrom(`copy stems (${STEM_COPY_COLUMNS.join(', ')}) from stdin`, chunks);
 }
 
 export interface StemColumns {

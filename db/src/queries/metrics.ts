@@ -1,4 +1,15 @@
+import type { Climate } from '@stemwise/platform';
 import type { Queryable } from '../connection';
+import type { heightModels } from '../schema/metrics';
+import type { plots, plotVisits, stems } from '../schema/plots';
+import type { regions } from '../schema/regions';
+import type { recomputeRuns } from '../schema/work';
+import { int8, int8Row, type Int8Wire, type Wire } from './rows';
+
+type Plot = typeof plots.$inferSelect;
+type Visit = typeof plotVisits.$inferSelect;
+type Stem = typeof stems.$inferSelect;
+type Region = typeof regions.$inferSelect;
 
 // Plot metrics: what the compute workers read (visits and stems, set-based), what they write (one
 // upsert per chunk), height–diameter models per forest type, and the paged read behind `export plots`.
@@ -34,31 +45,35 @@ const METRIC_NAMES = PLOT_METRIC_DB_COLUMNS.map(([c]) => c);
 // Built once from the constant above (never from input): the column lists of the reads and the upsert.
 const METRIC_SELECT = METRIC_NAMES.map((c) => `m.${c}`).join(', ');
 
-const id = (v: unknown): number => Number(v);
+/** The metric columns of a row as read (float8 and int4 arrive as numbers on both engines; null when not computed). */
+export type MetricColumns = Record<PlotMetricDbColumn, number | null>;
 
-export interface ComputeVisitRow {
-  visitId: number;
-  plotKey: string;
-  batchId: string;
-  region: string;
-  forestType: string;
-  climate: 'dry' | 'moist' | 'wet';
-  areaHa: number;
-  dbhMinCm: number;
-  subplotAreaHa: number;
-  subplotDbhMinCm: number;
-  loggingClass: number;
-  fireClass: number;
+/** The metric columns of a row, gathered into their own record (a row without metrics — a left join — gives nulls). */
+export function metricsOfRow(row: Partial<MetricColumns>): MetricColumns {
+  const out: Partial<MetricColumns> = {};
+  for (const c of METRIC_NAMES) out[c] = row[c] ?? null;
+  return out as MetricColumns;
 }
+
+export interface ComputeVisitRow
+  extends Pick<Visit, 'batchId' | 'areaHa' | 'dbhMinCm' | 'subplotAreaHa' | 'subplotDbhMinCm' | 'loggingClass' | 'fireClass'>,
+    Pick<Plot, 'plotKey' | 'forestType'> {
+  visitId: Visit['id'];
+  region: Region['name'];
+  /** One of the climates forest_types allows. */
+  climate: Climate;
+}
+const computeVisitRow = int8Row<ComputeVisitRow, 'visitId'>('visitId');
 
 /**
  * The visits of a chunk with their plot, region and forest-type climate, locked for update until the
  * transaction ends (a concurrent load that marks one of them stale again waits, then wins).
  */
 export async function lockVisitsForCompute(tx: Queryable, visitIds: readonly number[]): Promise<ComputeVisitRow[]> {
-  const rows = await tx.query<Record<string, unknown>>(
-    `select v.id, p.plot_key, v.batch_id::text batch_id, r.name region, p.forest_type, f.climate,
-            v.area_ha, v.dbh_min_cm, v.subplot_area_ha, v.subplot_dbh_min_cm, v.logging_class, v.fire_class
+  const rows = await tx.query<Wire<ComputeVisitRow, 'visitId'>>(
+    `select v.id "visitId", p.plot_key "plotKey", v.batch_id "batchId", r.name region, p.forest_type "forestType", f.climate,
+            v.area_ha "areaHa", v.dbh_min_cm "dbhMinCm", v.subplot_area_ha "subplotAreaHa", v.subplot_dbh_min_cm "subplotDbhMinCm",
+            v.logging_class "loggingClass", v.fire_class "fireClass"
        from plot_visits v
        join plots p on p.id = v.plot_id
        join regions r on r.id = p.region_id
@@ -68,32 +83,15 @@ export async function lockVisitsForCompute(tx: Queryable, visitIds: readonly num
         for update of v`,
     [visitIds],
   );
-  return rows.map((r) => ({
-    visitId: id(r.id),
-    plotKey: r.plot_key as string,
-    batchId: r.batch_id as string,
-    region: r.region as string,
-    forestType: r.forest_type as string,
-    climate: r.climate as ComputeVisitRow['climate'],
-    areaHa: Number(r.area_ha),
-    dbhMinCm: Number(r.dbh_min_cm),
-    subplotAreaHa: Number(r.subplot_area_ha),
-    subplotDbhMinCm: Number(r.subplot_dbh_min_cm),
-    loggingClass: Number(r.logging_class),
-    fireClass: Number(r.fire_class),
-  }));
+  return rows.map(computeVisitRow);
 }
 
-export interface ComputeStemRow {
-  visitId: number;
-  species: string | null;
-  dbhCm: number;
-  heightM: number | null;
+/** A stem as the compute service reads it; the status and stump cause are those its check constraints allow. */
+export interface ComputeStemRow extends Pick<Stem, 'visitId' | 'species' | 'dbhCm' | 'heightM' | 'fireDamage' | 'inSubplot'> {
   status: 'live' | 'dead' | 'stump';
   stumpCause: 'logged' | 'natural' | 'unknown' | null;
-  fireDamage: number;
-  inSubplot: boolean;
 }
+const computeStemRow = int8Row<ComputeStemRow, 'visitId'>('visitId');
 
 const STATUS_OF: Record<string, [ComputeStemRow['status'], ComputeStemRow['stumpCause']]> = {
   l: ['live', null],
@@ -113,7 +111,7 @@ function byContent(a: ComputeStemRow, b: ComputeStemRow): number {
     (a.status < b.status ? -1 : a.status > b.status ? 1 : 0) ||
     ((a.stumpCause ?? '') < (b.stumpCause ?? '') ? -1 : (a.stumpCause ?? '') > (b.stumpCause ?? '') ? 1 : 0) ||
     a.fireDamage - b.fireDamage ||
-    Number(a.inSubplot) - Number(b.inSubplot) ||
+    (a.inSubplot === b.inSubplot ? 0 : a.inSubplot ? 1 : -1) ||
     (a.species === b.species ? 0 : a.species === null ? -1 : b.species === null ? 1 : a.species < b.species ? -1 : 1)
   );
 }
@@ -128,7 +126,7 @@ function byContent(a: ComputeStemRow, b: ComputeStemRow): number {
  */
 export async function loadStemsForVisits(tx: Queryable, visitIds: readonly number[]): Promise<Map<number, ComputeStemRow[]>> {
   await tx.query(`set local extra_float_digits = 1`);
-  const rows = await tx.query<{ v: string | number; n: number; odd: boolean; r: string }>(
+  const rows = await tx.query<{ v: Int8Wire; n: number; odd: boolean; r: string }>(
     `select visit_id v, count(*)::int n, coalesce(bool_or(strpos(species, E'\\x1e') > 0), false) odd,
             string_agg(case status when 'live' then 'l' when 'dead' then 'd'
                          else case stump_cause when 'logged' then 'g' when 'natural' then 'n' else 'u' end end
@@ -143,7 +141,7 @@ export async function loadStemsForVisits(tx: Queryable, visitIds: readonly numbe
   const out = new Map<number, ComputeStemRow[]>();
   const odd: number[] = [];
   for (const row of rows) {
-    const visitId = Number(row.v);
+    const visitId = int8(row.v);
     if (row.odd) {
       odd.push(visitId);
       continue;
@@ -172,15 +170,16 @@ export async function loadStemsForVisits(tx: Queryable, visitIds: readonly numbe
     out.set(visitId, stems.sort(byContent));
   }
   if (odd.length) {
-    const plain = await tx.query<{ v: string | number; s: string | null; d: number; h: number | null; st: ComputeStemRow['status']; c: ComputeStemRow['stumpCause']; f: number; sub: boolean }>(
-      `select visit_id v, species s, dbh_cm d, height_m h, status st, stump_cause c, fire_damage f, in_subplot sub from stems where visit_id = any($1::bigint[])`,
+    const plain = await tx.query<Wire<ComputeStemRow, 'visitId'>>(
+      `select visit_id "visitId", species, dbh_cm "dbhCm", height_m "heightM", status, stump_cause "stumpCause", fire_damage "fireDamage", in_subplot "inSubplot"
+         from stems where visit_id = any($1::bigint[])`,
       [odd],
     );
     for (const r of plain) {
-      const visitId = Number(r.v);
-      const list = out.get(visitId) ?? [];
-      list.push({ visitId, species: r.s, dbhCm: Number(r.d), heightM: r.h === null ? null : Number(r.h), status: r.st, stumpCause: r.c, fireDamage: Number(r.f), inSubplot: r.sub });
-      out.set(visitId, list);
+      const stem = computeStemRow(r);
+      const list = out.get(stem.visitId) ?? [];
+      list.push(stem);
+      out.set(stem.visitId, list);
     }
     for (const id of odd) out.get(id)?.sort(byContent);
   }
@@ -274,11 +273,7 @@ export async function mergeRunDetails(db: Queryable, runId: string, details: Rec
   await db.query(`update recompute_runs set details = details || $2::jsonb where id = $1`, [runId, JSON.stringify(details)]);
 }
 
-export interface RunRow {
-  id: string;
-  trigger: string;
-  state: string;
-  visits: number;
+export interface RunRow extends Pick<typeof recomputeRuns.$inferSelect, 'id' | 'trigger' | 'state' | 'visits'> {
   details: Record<string, unknown>;
 }
 
@@ -308,7 +303,7 @@ export async function markOutdatedSpeciesVisitsStale(db: Queryable, versionId: n
 
 /** Forest types that have at least one stale visit. */
 export async function forestTypesWithStaleVisits(db: Queryable): Promise<string[]> {
-  const rows = await db.query<{ t: string }>(
+  const rows = await db.query<{ t: Plot['forestType'] }>(
     `select p.forest_type t from plot_visits v join plots p on p.id = v.plot_id where v.stale group by p.forest_type order by p.forest_type collate "C"`,
   );
   return rows.map((r) => r.t);
@@ -316,7 +311,7 @@ export async function forestTypesWithStaleVisits(db: Queryable): Promise<string[
 
 /** Forest types that have plots. */
 export async function forestTypesWithPlots(db: Queryable): Promise<string[]> {
-  return (await db.query<{ t: string }>(`select forest_type t from plots group by forest_type order by forest_type collate "C"`)).map((r) => r.t);
+  return (await db.query<{ t: Plot['forestType'] }>(`select forest_type t from plots group by forest_type order by forest_type collate "C"`)).map((r) => r.t);
 }
 
 /**
@@ -352,19 +347,16 @@ export async function loadMeasuredHeights(tx: Queryable, forestTypes: readonly s
   return out;
 }
 
-export interface HeightModelRow {
-  forestType: string;
-  form: string;
+export interface HeightModelRow extends Pick<typeof heightModels.$inferSelect, 'forestType' | 'form'> {
   coefficients: Record<string, number>;
   stats: Record<string, unknown>;
 }
 
 export async function listHeightModels(db: Queryable, forestTypes?: readonly string[]): Promise<HeightModelRow[]> {
-  const rows = await db.query<{ forest_type: string; form: string; coefficients: Record<string, number>; stats: Record<string, unknown> }>(
-    `select forest_type, form, coefficients, stats from height_models where $1::text[] is null or forest_type = any($1::text[]) order by forest_type`,
+  return db.query<HeightModelRow>(
+    `select forest_type "forestType", form, coefficients, stats from height_models where $1::text[] is null or forest_type = any($1::text[]) order by forest_type`,
     [forestTypes ?? null],
   );
-  return rows.map((r) => ({ forestType: r.forest_type, form: r.form, coefficients: r.coefficients, stats: r.stats }));
 }
 
 export async function upsertHeightModel(db: Queryable, m: HeightModelRow): Promise<void> {
@@ -395,17 +387,15 @@ export async function markForestTypeVisitsStale(db: Queryable, forestTypes: read
 
 // ---- export plots -----------------------------------------------------------------------------
 
-export interface PlotExportRow {
-  plot_id: string;
-  survey_date: string;
-  region: string;
-  forest_type: string;
-  latitude: number;
-  longitude: number;
+/** An `export plots` row: named as the export's columns, typed as the schema's. */
+export interface PlotExportRow extends Pick<Plot, 'latitude' | 'longitude'>, Pick<Visit, 'stale'> {
+  plot_id: Plot['plotKey'];
+  survey_date: Visit['surveyDate'];
+  region: Region['name'];
+  forest_type: Plot['forestType'];
   /** false when the visit has no metrics yet (never computed). */
   computed: boolean;
-  stale: boolean;
-  metrics: Record<PlotMetricDbColumn, number | null>;
+  metrics: MetricColumns;
 }
 
 export interface PlotExportPage {
@@ -417,8 +407,8 @@ export interface PlotExportPage {
 
 /** One page of `export plots` rows, ordered by plot_id (byte order) then survey date. */
 export async function pagePlotExport(db: Queryable, page: PlotExportPage): Promise<PlotExportRow[]> {
-  const rows = await db.query<Record<string, unknown>>(
-    `select p.plot_key, v.survey_date::text survey_date, r.name region, p.forest_type, p.latitude, p.longitude,
+  const rows = await db.query<Omit<PlotExportRow, 'metrics'> & Partial<MetricColumns>>(
+    `select p.plot_key plot_id, v.survey_date::text survey_date, r.name region, p.forest_type, p.latitude, p.longitude,
             m.visit_id is not null computed, v.stale, ${METRIC_SELECT}
        from plot_visits v
        join plots p on p.id = v.plot_id
@@ -430,21 +420,17 @@ export async function pagePlotExport(db: Queryable, page: PlotExportPage): Promi
       limit $4`,
     [page.region ?? null, page.after?.plotId ?? null, page.after?.surveyDate ?? null, page.limit],
   );
-  return rows.map((r) => {
-    const metrics = {} as Record<PlotMetricDbColumn, number | null>;
-    for (const c of METRIC_NAMES) metrics[c] = r[c] === null || r[c] === undefined ? null : Number(r[c]);
-    return {
-      plot_id: r.plot_key as string,
-      survey_date: r.survey_date as string,
-      region: r.region as string,
-      forest_type: r.forest_type as string,
-      latitude: Number(r.latitude),
-      longitude: Number(r.longitude),
-      computed: Boolean(r.computed),
-      stale: Boolean(r.stale),
-      metrics,
-    };
-  });
+  return rows.map((r) => ({
+    plot_id: r.plot_id,
+    survey_date: r.survey_date,
+    region: r.region,
+    forest_type: r.forest_type,
+    latitude: r.latitude,
+    longitude: r.longitude,
+    computed: r.computed,
+    stale: r.stale,
+    metrics: metricsOfRow(r),
+  }));
 }
 
 /** Visits (of a region, or all) whose metrics are due or missing. */
@@ -462,13 +448,13 @@ export async function regionExists(db: Queryable, name: string): Promise<boolean
 }
 
 export async function listRegionNames(db: Queryable): Promise<string[]> {
-  return (await db.query<{ name: string }>(`select name from regions order by name collate "C"`)).map((r) => r.name);
+  return (await db.query<Pick<Region, 'name'>>(`select name from regions order by name collate "C"`)).map((r) => r.name);
 }
 
 /** Regions having plots of the given forest types. */
 export async function regionsOfForestTypes(db: Queryable, forestTypes: readonly string[]): Promise<string[]> {
   if (!forestTypes.length) return [];
-  const rows = await db.query<{ name: string }>(
+  const rows = await db.query<Pick<Region, 'name'>>(
     `select r.name from plots p join regions r on r.id = p.region_id where p.forest_type = any($1::text[]) group by r.name order by r.name collate "C"`,
     [forestTypes],
   );

@@ -1,12 +1,16 @@
 import type { Queryable } from '../connection';
-import type { SummarySnapshot } from './summaries';
+import type { nationalSummaries } from '../schema/reports';
+
+type National = typeof nationalSummaries.$inferSelect;
+/** A version of the national summary. */
+export type NationalSnapshot = Pick<National, 'version' | 'etag' | 'payload' | 'createdAt'>;
 
 // The national summary's versions (all regions together): stored by the report job after the region
 // summaries, never updated, served latest or by version.
 
 /** Stores the national summary as its next version unless the latest has the same etag; as insertSummarySnapshot. */
 export async function insertNationalSnapshot(db: Queryable, etag: string, payload: unknown): Promise<{ version: number; created: boolean }> {
-  const rows = await db.query<{ version: number; created: boolean }>(
+  const rows = await db.query<Pick<National, 'version'> & { created: boolean }>(
     `with last as (select version, etag from national_summaries order by version desc limit 1),
           ins as (
             insert into national_summaries (version, etag, payload)
@@ -18,23 +22,20 @@ export async function insertNationalSnapshot(db: Queryable, etag: string, payloa
      select version, false from last where etag = $1`,
     [etag, JSON.stringify(payload)],
   );
-  return { version: Number(rows[0].version), created: rows[0].created };
+  return rows[0];
 }
 
 /** The national summary: the latest, or the given version; null when there is none. */
-export async function getNationalSnapshot(db: Queryable, version?: number): Promise<Omit<SummarySnapshot, 'region'> | null> {
-  const rows = await db.query<{ version: number; etag: string; payload: unknown; created_at: Date }>(
-    `select version, etag, payload, created_at from national_summaries
+export async function getNationalSnapshot(db: Queryable, version?: number): Promise<NationalSnapshot | null> {
+  const rows = await db.query<NationalSnapshot>(
+    `select version, etag, payload, created_at "createdAt" from national_summaries
       where $1::int is null or version = $1 order by version desc limit 1`,
     [version ?? null],
   );
-  if (!rows.length) return null;
-  const r = rows[0];
-  return { version: Number(r.version), etag: r.etag, payload: r.payload, createdAt: new Date(r.created_at) };
+  return rows[0] ?? null;
 }
 
 /** Every version of the national summary, newest first (without payloads). */
-export async function listNationalVersions(db: Queryable): Promise<Array<{ version: number; etag: string; createdAt: Date }>> {
-  const rows = await db.query<{ version: number; etag: string; created_at: Date }>(`select version, etag, created_at from national_summaries order by version desc`);
-  return rows.map((r) => ({ version: Number(r.version), etag: r.etag, createdAt: new Date(r.created_at) }));
+export async function listNationalVersions(db: Queryable): Promise<Array<Omit<NationalSnapshot, 'payload'>>> {
+  return db.query(`select version, etag, created_at "createdAt" from national_summaries order by version desc`);
 }

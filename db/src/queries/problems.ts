@@ -1,21 +1,17 @@
 import type { Queryable } from '../connection';
+import type { computeProblems } from '../schema/work';
+import { int8Row, type Wire } from './rows';
 
 // What a recompute could not compute (compute_problems): one open row per subject, written by the
 // stage that met it and removed by the next success of the same subject.
 
 export type ProblemStage = 'plot' | 'fit' | 'summary';
 
-export interface ComputeProblem {
+/** An open problem (`subject`: the key within the stage, see problemSubject). */
+export interface ComputeProblem extends Omit<typeof computeProblems.$inferSelect, 'stage' | 'recordedAt'> {
   stage: ProblemStage;
-  /** The key within the stage (see problemSubject). */
-  subject: string;
-  runId: string;
-  forestType: string | null;
-  region: string | null;
-  visitId: number | null;
-  plotKey: string | null;
-  reason: string;
 }
+const computeProblem = int8Row<ComputeProblem, 'visitId'>('visitId');
 
 /** The subject key of a problem: a visit id, a forest type, a forest type and a region (unit separator between), a region. */
 export function problemSubject(p: Pick<ComputeProblem, 'stage' | 'forestType' | 'region' | 'visitId'>): string {
@@ -55,8 +51,8 @@ export async function clearProblems(tx: Queryable, stage: ProblemStage, subjects
 const SELECT = `select stage, subject, run_id "runId", forest_type "forestType", region, visit_id "visitId", plot_key "plotKey", reason from compute_problems`;
 const ORDER = `order by array_position(array['plot','fit','summary'], stage), forest_type collate "C" nulls first, region collate "C" nulls first, plot_key collate "C", subject`;
 
-function rows(list: Array<Record<string, unknown>>): ComputeProblem[] {
-  return list.map((r) => ({ ...(r as unknown as ComputeProblem), visitId: r.visitId === null ? null : Number(r.visitId) }));
+function rows(list: Array<Wire<ComputeProblem, 'visitId'>>): ComputeProblem[] {
+  return list.map(computeProblem);
 }
 
 /** The open problems a run recorded. */

@@ -1,6 +1,8 @@
 import crypto from 'node:crypto';
 import type { Db, Queryable } from '../connection';
+import type { staleWork } from '../schema/work';
 import { listRunProblems, problemView, type ProblemView } from './problems';
+import { int8, type Int8Wire } from './rows';
 
 // Stale state lives in PostgreSQL: plot_visits.stale for metrics, stale_work for the fits of a forest
 // type and the summary of a region. Each stage clears its marks and marks the next, in one transaction
@@ -19,8 +21,8 @@ export async function markVisitsStale(db: Queryable, visitIds: readonly number[]
 
 /** Stale visit ids in a stable order (plot, date), for chunking into jobs. */
 export async function listStaleVisits(db: Queryable): Promise<number[]> {
-  const rows = await db.query<{ id: string | number }>(`select id from plot_visits where stale order by id`);
-  return rows.map((r) => Number(r.id));
+  const rows = await db.query<{ id: Int8Wire }>(`select id from plot_visits where stale order by id`);
+  return rows.map((r) => int8(r.id));
 }
 
 /** Marks fits or summaries as due (`since` records when, for people; clearing goes by version). */
@@ -34,12 +36,11 @@ export async function markStale(db: Queryable, kind: StaleKind, keys: readonly s
 }
 
 export async function listStale(db: Queryable, kind: StaleKind): Promise<string[]> {
-  return (await db.query<{ key: string }>(`select key from stale_work where kind = $1 order by key`, [kind])).map((r) => r.key);
+  return (await db.query<Pick<typeof staleWork.$inferSelect, 'key'>>(`select key from stale_work where kind = $1 order by key`, [kind])).map((r) => r.key);
 }
 
 /** A mark as a stage saw it before its work: `version` is the row's xmin, new every time the mark is set again. */
-export interface StaleMark {
-  key: string;
+export interface StaleMark extends Pick<typeof staleWork.$inferSelect, 'key'> {
   version: string;
 }
 

@@ -1,13 +1,15 @@
 import type { Queryable } from '../connection';
+import type { batches } from '../schema/batches';
+import type { recomputeRuns } from '../schema/work';
 
 /** Batches whose ingest is due: received or mid-validation (a worker may have died with them). */
-export async function listUnfinishedBatches(db: Queryable): Promise<Array<{ id: string; state: string }>> {
+export async function listUnfinishedBatches(db: Queryable): Promise<Array<Pick<typeof batches.$inferSelect, 'id' | 'state'>>> {
   return db.query(`select id, state from batches where state in ('received','validating') order by created_at`);
 }
 
 /** Batches loaded but whose recompute never finished (their visits may or may not still be stale). */
 export async function listLoadedBatches(db: Queryable): Promise<string[]> {
-  return (await db.query<{ id: string }>(`select id from batches where state = 'loaded' order by created_at`)).map((r) => r.id);
+  return (await db.query<Pick<typeof batches.$inferSelect, 'id'>>(`select id from batches where state = 'loaded' order by created_at`)).map((r) => r.id);
 }
 
 export async function markBatchFailed(db: Queryable, batchId: string, reason: string): Promise<void> {
@@ -15,7 +17,7 @@ export async function markBatchFailed(db: Queryable, batchId: string, reason: st
 }
 
 export async function listRunningRecomputes(db: Queryable): Promise<string[]> {
-  return (await db.query<{ id: string }>(`select id from recompute_runs where state in ('queued','running') order by started_at`)).map((r) => r.id);
+  return (await db.query<Pick<typeof recomputeRuns.$inferSelect, 'id'>>(`select id from recompute_runs where state in ('queued','running') order by started_at`)).map((r) => r.id);
 }
 
 /** Is anything due: stale visits, or stale fits or summaries? */

@@ -1,5 +1,15 @@
 import type { Queryable } from '../connection';
-import { PLOT_METRIC_DB_COLUMNS, type PlotMetricDbColumn } from './metrics';
+import type { plots, plotVisits, stems } from '../schema/plots';
+import type { regions } from '../schema/regions';
+import type { regionSummaries, strata } from '../schema/reports';
+import type { batches } from '../schema/batches';
+import type { recomputeRuns } from '../schema/work';
+import { metricsOfRow, PLOT_METRIC_DB_COLUMNS, type MetricColumns } from './metrics';
+
+type Plot = typeof plots.$inferSelect;
+type Region = typeof regions.$inferSelect;
+type Summary = typeof regionSummaries.$inferSelect;
+type Run = typeof recomputeRuns.$inferSelect;
 
 // Region summaries: what the report job reads to assemble a region's snapshot (latest computed visit
 // of each plot, forest areas, species names), the snapshots themselves (versioned, never updated),
@@ -19,47 +29,37 @@ const LATEST_VISITS = `
    where r.name = $1
    order by v.plot_id, v.survey_date desc`;
 
-export interface RegionPlotRow {
-  plotKey: string;
-  forestType: string;
-  latitude: number;
-  longitude: number;
-  elevationM: number | null;
-  surveyDate: string;
-  metrics: Record<PlotMetricDbColumn, number | null>;
+export interface RegionPlotRow extends Pick<Plot, 'plotKey' | 'forestType' | 'latitude' | 'longitude' | 'elevationM'>, Pick<typeof plotVisits.$inferSelect, 'surveyDate'> {
+  metrics: MetricColumns;
 }
 
 /** The latest computed visit of every plot of a region with its metrics, by plot key (byte order). */
 export async function listRegionLatestPlots(db: Queryable, region: string): Promise<RegionPlotRow[]> {
-  const rows = await db.query<Record<string, unknown>>(
+  const rows = await db.query<Omit<RegionPlotRow, 'metrics'> & MetricColumns>(
     `with latest as (${LATEST_VISITS})
-     select p.plot_key, p.forest_type, p.latitude, p.longitude, p.elevation_m, l.survey_date::text survey_date, ${METRIC_SELECT}
+     select p.plot_key "plotKey", p.forest_type "forestType", p.latitude, p.longitude, p.elevation_m "elevationM", l.survey_date::text "surveyDate", ${METRIC_SELECT}
        from latest l
        join plots p on p.id = l.plot_id
        join plot_metrics m on m.visit_id = l.visit_id
       order by p.plot_key collate "C"`,
     [region],
   );
-  return rows.map((r) => {
-    const metrics = {} as Record<PlotMetricDbColumn, number | null>;
-    for (const c of METRIC_NAMES) metrics[c] = r[c] === null || r[c] === undefined ? null : Number(r[c]);
-    return {
-      plotKey: r.plot_key as string,
-      forestType: r.forest_type as string,
-      latitude: Number(r.latitude),
-      longitude: Number(r.longitude),
-      elevationM: r.elevation_m === null ? null : Number(r.elevation_m),
-      surveyDate: r.survey_date as string,
-      metrics,
-    };
-  });
+  return rows.map((r) => ({
+    plotKey: r.plotKey,
+    forestType: r.forestType,
+    latitude: r.latitude,
+    longitude: r.longitude,
+    elevationM: r.elevationM,
+    surveyDate: r.surveyDate,
+    metrics: metricsOfRow(r),
+  }));
 }
 
 /** Distinct recorded names of live main-plot stems per plot (latest computed visit), for species counts. */
-export async function listRegionStemNames(db: Queryable, region: string): Promise<Array<{ plotKey: string; name: string }>> {
-  const rows = await db.query<{ plot_key: string; name: string }>(
+export async function listRegionStemNames(db: Queryable, region: string): Promise<Array<Pick<Plot, 'plotKey'> & { name: NonNullable<(typeof stems.$inferSelect)['species']> }>> {
+  return db.query(
     `with latest as (${LATEST_VISITS})
-     select distinct p.plot_key, s.species name
+     select distinct p.plot_key "plotKey", s.species name
        from latest l
        join plots p on p.id = l.plot_id
        join stems s on s.visit_id = l.visit_id
@@ -67,32 +67,22 @@ export async function listRegionStemNames(db: Queryable, region: string): Promis
       order by 1, 2`,
     [region],
   );
-  return rows.map((r) => ({ plotKey: r.plot_key, name: r.name }));
 }
 
 /** Forest area (ha) per forest type of a region, from strata.csv. */
 export async function listRegionForestAreas(db: Queryable, region: string): Promise<Record<string, number>> {
-  const rows = await db.query<{ forest_type: string; forest_area_ha: number }>(
-    `select s.forest_type, s.forest_area_ha from strata s join regions r on r.id = s.region_id where r.name = $1 order by 1`,
+  const rows = await db.query<Pick<typeof strata.$inferSelect, 'forestType' | 'forestAreaHa'>>(
+    `select s.forest_type "forestType", s.forest_area_ha "forestAreaHa" from strata s join regions r on r.id = s.region_id where r.name = $1 order by 1`,
     [region],
   );
-  return Object.fromEntries(rows.map((r) => [r.forest_type, Number(r.forest_area_ha)]));
+  return Object.fromEntries(rows.map((r) => [r.forestType, r.forestAreaHa]));
 }
 
-export interface SummarySnapshot {
-  region: string;
-  version: number;
-  etag: string;
-  payload: unknown;
-  createdAt: Date;
+export interface SummarySnapshot extends Pick<Summary, 'version' | 'etag' | 'payload' | 'createdAt'> {
+  region: Region['name'];
 }
 
-export interface SnapshotHead {
-  region: string;
-  version: number;
-  etag: string;
-  createdAt: Date;
-}
+export type SnapshotHead = Omit<SummarySnapshot, 'payload'>;
 
 /**
  * Stores a region's summary as its next version, unless the latest version has the same etag (the
@@ -100,7 +90,7 @@ export interface SnapshotHead {
  * once: the unique (region, version) constraint makes one of them fail and retry.
  */
 export async function insertSummarySnapshot(db: Queryable, region: string, etag: string, payload: unknown): Promise<{ version: number; created: boolean }> {
-  const rows = await db.query<{ version: number; created: boolean }>(
+  const rows = await db.query<Pick<Summary, 'version'> & { created: boolean }>(
     `with reg as (select id from regions where name = $1),
           last as (select s.version, s.etag from region_summaries s join reg on reg.id = s.region_id order by s.version desc limit 1),
           ins as (
@@ -114,80 +104,74 @@ export async function insertSummarySnapshot(db: Queryable, region: string, etag:
     [region, etag, JSON.stringify(payload)],
   );
   if (!rows.length) throw new Error(`insertSummarySnapshot: no region named ${region}`);
-  return { version: Number(rows[0].version), created: rows[0].created };
+  return rows[0];
 }
 
 /** A region's snapshot: the latest, or the given version; null when there is none. */
 export async function getSummarySnapshot(db: Queryable, region: string, version?: number): Promise<SummarySnapshot | null> {
-  const rows = await db.query<{ version: number; etag: string; payload: unknown; created_at: Date }>(
-    `select s.version, s.etag, s.payload, s.created_at
+  const rows = await db.query<SummarySnapshot>(
+    `select r.name region, s.version, s.etag, s.payload, s.created_at "createdAt"
        from region_summaries s join regions r on r.id = s.region_id
       where r.name = $1 and ($2::int is null or s.version = $2)
       order by s.version desc limit 1`,
     [region, version ?? null],
   );
-  if (!rows.length) return null;
-  const r = rows[0];
-  return { region, version: Number(r.version), etag: r.etag, payload: r.payload, createdAt: new Date(r.created_at) };
+  return rows[0] ?? null;
 }
 
 /** Every version of a region's summary, newest first (without payloads). */
-export async function listSummaryVersions(db: Queryable, region: string): Promise<Array<{ version: number; etag: string; createdAt: Date }>> {
-  const rows = await db.query<{ version: number; etag: string; created_at: Date }>(
-    `select s.version, s.etag, s.created_at from region_summaries s join regions r on r.id = s.region_id
+export async function listSummaryVersions(db: Queryable, region: string): Promise<Array<Pick<Summary, 'version' | 'etag' | 'createdAt'>>> {
+  return db.query(
+    `select s.version, s.etag, s.created_at "createdAt" from region_summaries s join regions r on r.id = s.region_id
       where r.name = $1 order by s.version desc`,
     [region],
   );
-  return rows.map((r) => ({ version: Number(r.version), etag: r.etag, createdAt: new Date(r.created_at) }));
 }
 
 /** Every region with its plot count and latest snapshot head (null fields when it has none yet), by name. */
 export async function listRegionHeads(db: Queryable): Promise<Array<{ region: string; plots: number; head: SnapshotHead | null }>> {
-  const rows = await db.query<{ name: string; plots: number; version: number | null; etag: string | null; created_at: Date | null }>(
-    `select r.name, (select count(*)::int from plots p where p.region_id = r.id) plots, s.version, s.etag, s.created_at
+  // A region without a snapshot has nulls where the head would be (left join).
+  type HeadRow = SnapshotHead | { [K in keyof SnapshotHead]: K extends 'region' ? Region['name'] : null };
+  const rows = await db.query<HeadRow & { plots: number }>(
+    `select r.name region, (select count(*)::int from plots p where p.region_id = r.id) plots, s.version, s.etag, s.created_at "createdAt"
        from regions r
        left join lateral (select version, etag, created_at from region_summaries s where s.region_id = r.id order by version desc limit 1) s on true
       order by r.name collate "C"`,
   );
-  return rows.map((r) => ({
-    region: r.name,
-    plots: Number(r.plots),
-    head: r.version === null ? null : { region: r.name, version: Number(r.version), etag: r.etag as string, createdAt: new Date(r.created_at as Date) },
-  }));
+  return rows.map(({ plots, ...head }) => ({ region: head.region, plots, head: head.version === null ? null : head }));
 }
 
 /** Every region with the version of its latest snapshot (null before the first): one cheap query. */
 export async function listLatestSummaryVersions(db: Queryable): Promise<Map<string, number | null>> {
-  const rows = await db.query<{ name: string; version: number | null }>(
+  const rows = await db.query<Pick<Region, 'name'> & { version: Summary['version'] | null }>(
     `select r.name, (select max(s.version) from region_summaries s where s.region_id = r.id) version from regions r`,
   );
-  return new Map(rows.map((r) => [r.name, r.version === null ? null : Number(r.version)]));
+  return new Map(rows.map((r) => [r.name, r.version]));
 }
 
 /** Latest snapshot of every region that has one (for `export regions`), by region name. */
 export async function listLatestSnapshots(db: Queryable, region?: string | null): Promise<SummarySnapshot[]> {
-  const rows = await db.query<{ name: string; version: number; etag: string; payload: unknown; created_at: Date }>(
-    `select r.name, s.version, s.etag, s.payload, s.created_at
+  return db.query<SummarySnapshot>(
+    `select r.name region, s.version, s.etag, s.payload, s.created_at "createdAt"
        from regions r
        join lateral (select * from region_summaries s where s.region_id = r.id order by version desc limit 1) s on true
       where $1::text is null or r.name = $1
       order by r.name collate "C"`,
     [region ?? null],
   );
-  return rows.map((r) => ({ region: r.name, version: Number(r.version), etag: r.etag, payload: r.payload, createdAt: new Date(r.created_at) }));
 }
 
 // ---- service figures for /metrics --------------------------------------------------------------
 
 export async function countBatchesByState(db: Queryable): Promise<Record<string, number>> {
-  const rows = await db.query<{ state: string; n: number }>(`select state, count(*)::int n from batches group by state order by state`);
-  return Object.fromEntries(rows.map((r) => [r.state, Number(r.n)]));
+  const rows = await db.query<Pick<typeof batches.$inferSelect, 'state'> & { n: number }>(`select state, count(*)::int n from batches group by state order by state`);
+  return Object.fromEntries(rows.map((r) => [r.state, r.n]));
 }
 
 /** The last recompute run that finished (done or failed), or null. */
-export async function lastFinishedRecompute(db: Queryable): Promise<{ id: string; state: string; finishedAt: Date } | null> {
-  const rows = await db.query<{ id: string; state: string; finished_at: Date }>(
-    `select id, state, finished_at from recompute_runs where finished_at is not null order by finished_at desc limit 1`,
+export async function lastFinishedRecompute(db: Queryable): Promise<(Pick<Run, 'id' | 'state'> & { finishedAt: NonNullable<Run['finishedAt']> }) | null> {
+  const rows = await db.query<Pick<Run, 'id' | 'state'> & { finishedAt: NonNullable<Run['finishedAt']> }>(
+    `select id, state, finished_at "finishedAt" from recompute_runs where finished_at is not null order by finished_at desc limit 1`,
   );
-  return rows.length ? { id: rows[0].id, state: rows[0].state, finishedAt: new Date(rows[0].finished_at) } : null;
+  return rows[0] ?? null;
 }
