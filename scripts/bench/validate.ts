@@ -4,6 +4,9 @@
 // other way the format could be checked is a zod schema per row, built here from the same tables with
 // the same rules. Both run over the same rows of a generated trees.csv (already split into cells, so
 // only the checking is timed); the script prints rows per second for each and checks they agree.
+// Then the checks once more with what validateTrees does next for a loadable stem, both ways: reading
+// the parsed cells by column name into one reused stem record and encoding its COPY line (the code),
+// against reading them by position into a nine-argument call (how it was done before).
 
 import fs from 'node:fs';
 import os from 'node:os';
@@ -12,7 +15,7 @@ import { pathToFileURL } from 'node:url';
 import { parseArgs } from 'node:util';
 import { z } from 'zod';
 import { generateInventory } from '@stemwise/demo-inventory';
-import { compileFieldCheck, INVALID, IssueLog, TREE_COLUMNS, type ColumnSpec } from '@stemwise/ingest';
+import { compileFieldCheck, copyLine, emptyStem, fillStem, INVALID, IssueLog, TREE_COLUMNS, type Cell, type ColumnSpec } from '@stemwise/ingest';
 
 const NUMBER = /^[+-]?(?:\d+(?:\.\d*)?|\.\d+)(?:[eE][+-]?\d{1,3})?$/;
 const INTEGER = /^[+-]?\d+$/;
@@ -47,6 +50,15 @@ function zodColumn(c: ColumnSpec): z.ZodType<unknown, string> {
   const fallback = 'fallback' in c && c.fallback !== undefined ? c.fallback : null;
   const empty = c.required ? z.never() : z.literal('').transform(() => fallback);
   return z.string().trim().pipe(z.union([empty, typed]));
+}
+
+function copyText(s: string): string {
+  return /[\\\t\n\r]/.test(s) ? s.replace(/\\/g, '\\\\').replace(/\t/g, '\\t').replace(/\n/g, '\\n').replace(/\r/g, '\\r') : s;
+}
+
+// The COPY line as built from positional arguments before the stem record (kept here for comparison).
+function positionalLine(visitId: number, treeId: string, species: string | null, dbhCm: number, heightM: number | null, status: string, stumpCause: string | null, fireDamage: number, inSubplot: boolean): string {
+  return `${visitId}\t${copyText(treeId)}\t${species === null ? '\\N' : copyText(species)}\t${dbhCm}\t${heightM === null ? '\\N' : heightM}\t${status}\t${stumpCause ?? '\\N'}\t${fireDamage}\t${inSubplot ? 't' : 'f'}\n`;
 }
 
 function time(label: string, rows: string[][], check: (cells: string[]) => boolean): { seconds: number; bad: number } {
@@ -88,6 +100,31 @@ export async function runValidateBench(args: string[] = []): Promise<void> {
     const a = time('compiled checks (what ingest uses)', rows, viaCompiled);
     const b = time('zod schema from the same column table', rows, viaZod);
     console.log(`zod / compiled: ${(b.seconds / a.seconds).toFixed(1)}× the time; rows refused: ${a.bad} and ${b.bad}${a.bad === b.bad ? ' (agree)' : ' — DISAGREE'}`);
+
+    const stem = emptyStem();
+    let chars = 0;
+    const parse = (cells: string[]): Cell[] | null => {
+      const out: Cell[] = new Array(compiled.length);
+      let ok = true;
+      for (let i = 0; i < compiled.length; i++) if ((out[i] = compiled[i](cells[order[i]], 2)) === INVALID) ok = false;
+      return ok ? out : null;
+    };
+    const byName = (cells: string[]) => {
+      const v = parse(cells);
+      if (v === null) return false;
+      chars += copyLine(fillStem(stem, 1, v)).length;
+      return true;
+    };
+    const byPosition = (cells: string[]) => {
+      const v = parse(cells);
+      if (v === null) return false;
+      chars += positionalLine(1, v[1] as string, v[2] as string | null, v[3] as number, v[4] as number | null, v[5] as string, v[6] as string | null, v[7] as number, v[8] === '1').length;
+      return true;
+    };
+    for (const f of [byName, byPosition]) for (let i = 0; i < Math.min(rows.length, 20_000); i++) f(rows[i]);
+    const n = time('checks + named reads + stem record line', rows, byName);
+    const p = time('checks + positional reads + 9-arg line', rows, byPosition);
+    console.log(`named / positional: ${(n.seconds / p.seconds).toFixed(2)}× the time (${chars.toLocaleString('en-US')} characters of COPY text)`);
     // The same comparison on rows with the generator's planted faults: both must refuse the same rows.
     await generateInventory({ outDir: path.join(work, 'bad'), plots: 40, seed: 6, badRows: 400 });
     const badRows = fs.readFileSync(path.join(work, 'bad', 'trees.csv'), 'utf8').split('\n').slice(1).filter((l) => l !== '').map((l) => l.split(','));

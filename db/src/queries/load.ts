@@ -1,5 +1,6 @@
+import { getTableColumns } from 'drizzle-orm';
 import type { Queryable, Tx } from '../connection';
-import type { plots, plotVisits, stems } from '../schema/plots';
+import { stems, type plots, type plotVisits } from '../schema/plots';
 import type { regions } from '../schema/regions';
 import { int8, int8Row, type Int8Wire, type Wire } from './rows';
 
@@ -157,8 +158,14 @@ export async function insertVisits(db: Queryable, batchId: string, v: VisitColum
   return new Map(rows.map((r) => [int8(r.plotId), int8(r.id)]));
 }
 
-/** COPY of stems in PostgreSQL's text format, one line per stem in STEM_COPY_COLUMNS order. */
-export const STEM_COPY_COLUMNS = ['visit_id', 'tree_id', 'species', 'dbh_cm', 'height_m', 'status', 'stump_cause', 'fire_damage', 'in_subplot'] as const;
+/** A stem as loaded: one field per stems column (the ingest's stem sink takes these). */
+export type StemRecord = typeof stems.$inferSelect;
+/** The stems columns in schema order: their record fields, SQL names and SQL types. */
+const STEM_COLUMN_LIST = Object.entries(getTableColumns(stems)).map(([field, c]) => ({ field: field as keyof StemRecord, name: c.name, sqlType: c.getSQLType() }));
+/** The record fields of the stems columns, in STEM_COPY_COLUMNS order. */
+export const STEM_FIELDS: ReadonlyArray<keyof StemRecord> = STEM_COLUMN_LIST.map((c) => c.field);
+/** COPY of stems in PostgreSQL's text format, one line per stem in this column order (the schema's). */
+export const STEM_COPY_COLUMNS: readonly string[] = STEM_COLUMN_LIST.map((c) => c.name);
 
 /**
  * Chunks may be bytes: the ingest hands COPY ready-encoded buffers, so its text never waits on the V8
@@ -169,26 +176,16 @@ export async function copyStems(tx: Tx, chunks: AsyncIterable<string | Uint8Arra
   await tx.copyFrom(`copy stems (${STEM_COPY_COLUMNS.join(', ')}) from stdin`, chunks);
 }
 
-export interface StemColumns {
-  visitIds: number[];
-  treeIds: string[];
-  species: Array<string | null>;
-  dbhCm: number[];
-  heightM: Array<number | null>;
-  status: string[];
-  stumpCause: Array<string | null>;
-  fireDamage: number[];
-  inSubplot: boolean[];
-}
+/** Stems column by column: one array per record field. */
+export type StemColumns = { [K in keyof StemRecord]: Array<StemRecord[K]> };
+
+const INSERT_STEMS_SQL = `insert into stems (${STEM_COPY_COLUMNS.join(', ')})
+  select * from unnest(${STEM_COLUMN_LIST.map((c, i) => `$${i + 1}::${c.sqlType}[]`).join(', ')})`;
 
 /** Batched insert of stems (the engine-neutral path; used on PGlite, where COPY gathers everything in memory). */
 export async function insertStems(db: Queryable, s: StemColumns): Promise<void> {
-  if (!s.visitIds.length) return;
-  await db.query(
-    `insert into stems (${STEM_COPY_COLUMNS.join(', ')})
-     select * from unnest($1::bigint[], $2::text[], $3::text[], $4::float8[], $5::float8[], $6::text[], $7::text[], $8::smallint[], $9::boolean[])`,
-    [s.visitIds, s.treeIds, s.species, s.dbhCm, s.heightM, s.status, s.stumpCause, s.fireDamage, s.inSubplot],
-  );
+  if (!s.visitId.length) return;
+  await db.query(INSERT_STEMS_SQL, STEM_FIELDS.map((f) => s[f]));
 }
 
 /** Forest areas of strata; a later batch's value replaces an earlier one. */

@@ -1,10 +1,15 @@
-import { copyStems, insertStems, type StemColumns, type Tx } from '@stemwise/db';
+import { copyStems, insertStems, STEM_FIELDS, type StemColumns, type StemRecord, type Tx } from '@stemwise/db';
 import { Channel } from './channel';
+
+export type { StemRecord };
 
 /** Where validated stems go inside the load transaction. */
 export interface StemSink {
-  /** Adds a stem; a returned promise must be awaited (backpressure). */
-  add(visitId: number, treeId: string, species: string | null, dbhCm: number, heightM: number | null, status: string, stumpCause: string | null, fireDamage: number, inSubplot: boolean): Promise<void> | undefined;
+  /**
+   * Adds a stem; a returned promise must be awaited (backpressure). The sink reads the record's fields
+   * during the call and keeps no reference to it, so a caller may reuse one record for every stem.
+   */
+  add(stem: Readonly<StemRecord>): Promise<void> | undefined;
   /** Stops loading (the batch will be rejected); later adds are dropped. */
   stop(): void;
   /** Writes what is left and waits until the database has it. */
@@ -15,6 +20,11 @@ export interface StemSink {
 // COPY text format: backslash, tab, line feed and carriage return are escaped; \N is NULL.
 function copyText(s: string): string {
   return /[\\\t\n\r]/.test(s) ? s.replace(/\\/g, '\\\\').replace(/\t/g, '\\t').replace(/\n/g, '\\n').replace(/\r/g, '\\r') : s;
+}
+
+/** One stem as a line of COPY text, its fields in STEM_COPY_COLUMNS order. */
+export function copyLine(s: Readonly<StemRecord>): string {
+  return `${s.visitId}\t${copyText(s.treeId)}\t${s.species === null ? '\\N' : copyText(s.species)}\t${s.dbhCm}\t${s.heightM === null ? '\\N' : s.heightM}\t${s.status}\t${s.stumpCause ?? '\\N'}\t${s.fireDamage}\t${s.inSubplot ? 't' : 'f'}\n`;
 }
 
 // Below V8's large-object size (about 128 KB), so a chunk dies young instead of growing the old generation.
@@ -38,9 +48,9 @@ export function copySink(tx: Tx): StemSink {
     get stopped() {
       return stopped;
     },
-    add(visitId, treeId, species, dbhCm, heightM, status, stumpCause, fireDamage, inSubplot) {
+    add(stem) {
       if (stopped) return undefined;
-      buf += `${visitId}\t${copyText(treeId)}\t${species === null ? '\\N' : copyText(species)}\t${dbhCm}\t${heightM === null ? '\\N' : heightM}\t${status}\t${stumpCause ?? '\\N'}\t${fireDamage}\t${inSubplot ? 't' : 'f'}\n`;
+      buf += copyLine(stem);
       if (buf.length < CHUNK_CHARS) return undefined;
       const chunk = Buffer.from(buf, 'utf8');
       buf = '';
@@ -62,7 +72,11 @@ export function copySink(tx: Tx): StemSink {
 const UNNEST_ROWS = 20_000;
 
 function emptyColumns(): StemColumns {
-  return { visitIds: [], treeIds: [], species: [], dbhCm: [], heightM: [], status: [], stumpCause: [], fireDamage: [], inSubplot: [] };
+  return { visitId: [], treeId: [], species: [], dbhCm: [], heightM: [], status: [], stumpCause: [], fireDamage: [], inSubplot: [] };
+}
+
+function pushField<K extends keyof StemRecord>(cols: StemColumns, stem: Readonly<StemRecord>, field: K): void {
+  cols[field].push(stem[field]);
 }
 
 /** PGlite (or any engine): batched INSERT … SELECT FROM unnest, 20,000 stems a statement. */
@@ -73,18 +87,10 @@ export function unnestSink(tx: Tx): StemSink {
     get stopped() {
       return stopped;
     },
-    add(visitId, treeId, species, dbhCm, heightM, status, stumpCause, fireDamage, inSubplot) {
+    add(stem) {
       if (stopped) return undefined;
-      cols.visitIds.push(visitId);
-      cols.treeIds.push(treeId);
-      cols.species.push(species);
-      cols.dbhCm.push(dbhCm);
-      cols.heightM.push(heightM);
-      cols.status.push(status);
-      cols.stumpCause.push(stumpCause);
-      cols.fireDamage.push(fireDamage);
-      cols.inSubplot.push(inSubplot);
-      if (cols.visitIds.length < UNNEST_ROWS) return undefined;
+      for (const f of STEM_FIELDS) pushField(cols, stem, f);
+      if (cols.visitId.length < UNNEST_ROWS) return undefined;
       const full = cols;
       cols = emptyColumns();
       return insertStems(tx, full);
@@ -94,7 +100,7 @@ export function unnestSink(tx: Tx): StemSink {
       cols = emptyColumns();
     },
     async finish() {
-      if (cols.visitIds.length) await insertStems(tx, cols);
+      if (cols.visitId.length) await insertStems(tx, cols);
       cols = emptyColumns();
     },
   };

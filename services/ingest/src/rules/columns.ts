@@ -4,6 +4,7 @@
 // and a batch holds millions of rows; the tables are plain data, so RULES.md and tests read them too.
 
 import type { FileKind } from '@stemwise/core';
+import type { INVALID, Parsed } from './field-checks';
 
 export type { FileKind };
 
@@ -99,9 +100,31 @@ export const COLUMNS_OF: Record<FileKind, readonly ColumnSpec[]> = {
   species: SPECIES_COLUMNS,
 };
 
-/** Index of a column in its table (typed, so a renamed column is a compile error). */
-export function columnIndex<T extends readonly ColumnSpec[]>(columns: T, name: T[number]['name']): number {
-  const i = columns.findIndex((c) => c.name === name);
-  if (i < 0) throw new Error(`columnIndex: no column ${name}`);
-  return i;
+/** A parsed cell: its value (the fallback where empty), or INVALID where its check failed. */
+export type Cell = Parsed | typeof INVALID;
+
+/** The value a column's check yields: a number, one of an enum's values, or text; null where it may be empty without a fallback. */
+export type ValueOf<C extends ColumnSpec> =
+  | (C extends { kind: 'number' | 'integer' } ? number : C extends { kind: 'enum'; values: ReadonlyArray<infer V> } ? V : string)
+  | (C extends { required: true } ? never : C extends { fallback: number | string } ? never : null);
+
+/** Readers of one table's cells by column name, each bound once to its column's place in the table. */
+export interface TableReaders<T extends readonly ColumnSpec[]> {
+  /** Any row: the column's value, or INVALID where its check failed. */
+  readonly cell: { readonly [C in T[number] as C['name']]: (cells: readonly Cell[]) => ValueOf<C> | typeof INVALID };
+  /** A row with no field error (TableRow.ok): the column's value. */
+  readonly value: { readonly [C in T[number] as C['name']]: (cells: readonly Cell[]) => ValueOf<C> };
+}
+
+/**
+ * The readers of a table, built from its column table: the validators read cells by name, the rows stay
+ * arrays (no object per row), and the place of each name is looked up once, here, not per row.
+ */
+export function tableReaders<T extends readonly ColumnSpec[]>(columns: T): TableReaders<T> {
+  const readers: Record<string, (cells: readonly Cell[]) => Cell> = {};
+  columns.forEach((c, i) => {
+    readers[c.name] = (cells) => cells[i];
+  });
+  // The checks compiled from the same table put in place i exactly the values ValueOf<column i> names.
+  return { cell: readers, value: readers } as unknown as TableReaders<T>;
 }

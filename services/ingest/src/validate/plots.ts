@@ -1,9 +1,13 @@
-import { PLOT_COLUMNS } from '../rules/columns';
+import { tableReaders, PLOT_COLUMNS } from '../rules/columns';
+import { INVALID } from '../rules/field-checks';
 import { CROSS, crossMessages, PLAUSIBILITY, plausibilityMessages, ROW, rowMessages } from '@stemwise/core';
 import { readTable, type TableSource, type TableStats } from '../read/table';
 import { tableOptions, type ValidationContext } from './context';
 
-/** A plot of the batch (one visit) or a stored plot that stems of the batch attach to. */
+/**
+ * A plot of the batch (one visit) or a stored plot that stems of the batch attach to. A plot whose row
+ * has an error is kept (stems naming it are refused by name), with NaN or '' where its cell was invalid.
+ */
 export interface PlotEntry {
   key: string;
   /** False for a stored plot referenced by trees only. */
@@ -30,6 +34,11 @@ export interface PlotEntry {
   stemsOverMm: number;
 }
 
+const { cell } = tableReaders(PLOT_COLUMNS);
+const numberOr = (v: number | typeof INVALID): number => (v === INVALID ? NaN : v);
+const orNull = (v: number | null | typeof INVALID): number | null => (v === INVALID ? null : v);
+const textOr = (v: string | typeof INVALID): string => (v === INVALID ? '' : v);
+
 export interface PlotsResult {
   plots: Map<string, PlotEntry>;
   stats: TableStats;
@@ -51,7 +60,12 @@ export async function validatePlots(ctx: ValidationContext, src: TableSource): P
         if (ok) stats.badRows++;
         ok = false;
       };
-      const [key, region, forestType, latitude, longitude, areaHa, dbhMinCm, subplotAreaHa, subplotDbhMinCm, surveyDate, loggingClass, fireClass, elevationM] = v;
+      const key = cell.plot_id(v);
+      const latitude = cell.latitude(v);
+      const longitude = cell.longitude(v);
+      const areaHa = cell.area_ha(v);
+      const subplotAreaHa = cell.subplot_area_ha(v);
+      const surveyDate = cell.survey_date(v);
       if (typeof subplotAreaHa === 'number' && typeof areaHa === 'number' && subplotAreaHa >= areaHa) {
         log.add(ROW.subplotAreaTooLarge, src.file, line, 'subplot_area_ha', String(subplotAreaHa), rowMessages.subplotAreaTooLarge(subplotAreaHa, areaHa));
         bad();
@@ -77,18 +91,18 @@ export async function validatePlots(ctx: ValidationContext, src: TableSource): P
         inBatch: true,
         ok,
         line,
-        region: region as string,
-        forestType: forestType as string,
-        latitude: latitude as number,
-        longitude: longitude as number,
-        elevationM: (elevationM as number | null) ?? null,
-        areaHa: areaHa as number,
-        dbhMinCm: dbhMinCm as number,
-        subplotAreaHa: subplotAreaHa as number,
-        subplotDbhMinCm: subplotDbhMinCm as number,
-        surveyDate: surveyDate as string,
-        loggingClass: loggingClass as number,
-        fireClass: fireClass as number,
+        region: textOr(cell.region(v)),
+        forestType: textOr(cell.forest_type(v)),
+        latitude: numberOr(latitude),
+        longitude: numberOr(longitude),
+        elevationM: orNull(cell.elevation_m(v)),
+        areaHa: numberOr(areaHa),
+        dbhMinCm: numberOr(cell.dbh_min_cm(v)),
+        subplotAreaHa: numberOr(subplotAreaHa),
+        subplotDbhMinCm: numberOr(cell.subplot_dbh_min_cm(v)),
+        surveyDate: textOr(surveyDate),
+        loggingClass: numberOr(cell.logging_class(v)),
+        fireClass: numberOr(cell.fire_class(v)),
         visitId: 0,
         stems: 0,
         stemsOverMm: 0,

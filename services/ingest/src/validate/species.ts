@@ -1,7 +1,7 @@
 import crypto from 'node:crypto';
 import type { SpeciesRow } from '@stemwise/db';
 import { CROSS, crossMessages, FIELD, normaliseName } from '@stemwise/core';
-import { SPECIES_COLUMNS } from '../rules/columns';
+import { tableReaders, SPECIES_COLUMNS } from '../rules/columns';
 import { readTable, type TableSource, type TableStats } from '../read/table';
 import { tableOptions, type ValidationContext } from './context';
 
@@ -13,6 +13,7 @@ export interface SpeciesResult {
 }
 
 const NAME_FORM = /^\S+ \S+/;
+const { cell, value } = tableReaders(SPECIES_COLUMNS);
 
 /** Reads species.csv: field rules, `Genus epithet` names, duplicate names, conflicting synonyms. */
 export async function validateSpecies(ctx: ValidationContext, src: TableSource): Promise<SpeciesResult> {
@@ -29,7 +30,7 @@ export async function validateSpecies(ctx: ValidationContext, src: TableSource):
         if (ok) stats.badRows++;
         ok = false;
       };
-      const [rawName, family, guild, woodDensity, synonyms] = values;
+      const rawName = cell.name(values);
       if (typeof rawName !== 'string') continue;
       const name = rawName.replace(/\s+/g, ' ');
       if (!NAME_FORM.test(name)) {
@@ -44,13 +45,14 @@ export async function validateSpecies(ctx: ValidationContext, src: TableSource):
       }
       names.set(name, line);
       if (!ok) continue;
-      const syns = typeof synonyms === 'string' ? [...new Set(synonyms.split(';').map((x) => x.trim().replace(/\s+/g, ' ')).filter((x) => x !== '' && x !== name))] : [];
+      const synonyms = value.synonyms(values);
+      const syns = synonyms !== null ? [...new Set(synonyms.split(';').map((x) => x.trim().replace(/\s+/g, ' ')).filter((x) => x !== '' && x !== name))] : [];
       rows.push({
         name,
         genus: normaliseName(name).split(' ')[0],
-        family: family as string,
-        guild: guild as SpeciesRow['guild'],
-        woodDensity: (woodDensity as number | null) ?? null,
+        family: value.family(values),
+        guild: value.guild(values),
+        woodDensity: value.wood_density(values),
         synonyms: syns,
         line,
       });

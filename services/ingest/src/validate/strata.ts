@@ -1,4 +1,4 @@
-import { STRATA_COLUMNS } from '../rules/columns';
+import { tableReaders, STRATA_COLUMNS } from '../rules/columns';
 import { CROSS, crossMessages } from '@stemwise/core';
 import { readTable, type TableSource, type TableStats } from '../read/table';
 import { tableOptions, type ValidationContext } from './context';
@@ -10,6 +10,8 @@ export interface StratumEntry {
   line: number;
 }
 
+const { cell, value } = tableReaders(STRATA_COLUMNS);
+
 /** Reads strata.csv: field rules and duplicate region/forest type pairs. Returns the loadable rows. */
 export async function validateStrata(ctx: ValidationContext, src: TableSource): Promise<{ strata: StratumEntry[]; stats: TableStats }> {
   const stats: TableStats = { rows: 0, badRows: 0, fatal: false };
@@ -19,7 +21,8 @@ export async function validateStrata(ctx: ValidationContext, src: TableSource): 
   for await (const batch of rows) {
     for (const { values, line, ok } of batch) {
       ctx.progress.rowsChecked++;
-      const [region, forestType, forestAreaHa] = values;
+      const region = cell.region(values);
+      const forestType = cell.forest_type(values);
       if (typeof region !== 'string' || typeof forestType !== 'string') continue;
       const key = `${region}\u0000${forestType}`;
       const first = seen.get(key);
@@ -29,7 +32,7 @@ export async function validateStrata(ctx: ValidationContext, src: TableSource): 
         continue;
       }
       seen.set(key, line);
-      if (ok) strata.push({ region, forestType, forestAreaHa: forestAreaHa as number, line });
+      if (ok) strata.push({ region, forestType, forestAreaHa: value.forest_area_ha(values), line });
     }
     ctx.tick();
   }

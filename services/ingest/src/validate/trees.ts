@@ -1,7 +1,7 @@
 import type { StoredPlot } from '@stemwise/db';
 import { CROSS, crossMessages, normaliseName, PLAUSIBILITY, plausibilityMessages, ROW, rowMessages, type SpeciesIndex } from '@stemwise/core';
-import type { StemSink } from '../load/stem-sink';
-import { TREE_COLUMNS } from '../rules/columns';
+import type { StemRecord, StemSink } from '../load/stem-sink';
+import { tableReaders, TREE_COLUMNS, type Cell } from '../rules/columns';
 import { readTable, type TableSource, type TableStats } from '../read/table';
 import { tableOptions, type ValidationContext } from './context';
 import { KeySet } from './key-set';
@@ -54,6 +54,7 @@ export interface TreesResult {
 }
 
 const UNIDENTIFIED_WORD = /^(indet|indeterminate|unknown|unidentified)\b/i;
+const { cell, value } = tableReaders(TREE_COLUMNS);
 
 /**
  * Streams trees.csv through the field, row, cross-row and plausibility rules and hands every loadable
@@ -105,12 +106,14 @@ export async function validateTrees(ctx: ValidationContext, src: TableSource, in
   };
 
   const read = readTable(src, tableOptions(ctx, TREE_COLUMNS, true), stats);
+  // One record, refilled for every loadable stem (the sink copies its fields out and keeps none).
+  const stem = emptyStem();
 
   for await (const batch of read) {
     // Plots named by this chunk that are neither in the batch nor looked up yet: one query for all.
     let unknown: Set<string> | null = null;
     for (const r of batch) {
-      const k = r.values[0];
+      const k = cell.plot_id(r.values);
       if (typeof k === 'string' && !plots.has(k) && !stored.has(k)) (unknown ??= new Set()).add(k);
     }
     if (unknown && input.plotsReadable) await resolveStored([...unknown]);
@@ -124,14 +127,14 @@ export async function validateTrees(ctx: ValidationContext, src: TableSource, in
         ok = false;
       };
       const v = row.values;
-      const plotKey = v[0];
-      const treeId = v[1];
-      const species = v[2] as string | null;
-      const dbh = v[3];
-      const height = v[4];
-      const status = v[5];
-      const cause = v[6] as string | null;
-      const subplot = v[8];
+      const plotKey = cell.plot_id(v);
+      const treeId = cell.tree_id(v);
+      const species = cell.species(v);
+      const dbh = cell.dbh_cm(v);
+      const height = cell.height_m(v);
+      const status = cell.status(v);
+      const cause = cell.stump_cause(v);
+      const subplot = cell.in_subplot(v);
 
       let plot: PlotEntry | null = null;
       if (typeof plotKey === 'string') {
@@ -159,7 +162,8 @@ export async function validateTrees(ctx: ValidationContext, src: TableSource, in
       if (typeof dbh === 'number') {
         if (plot) {
           if (dbh > pl.mmMedianCm) plot.stemsOverMm++;
-          if (typeof plot.dbhMinCm === 'number' && typeof plot.subplotAreaHa === 'number' && typeof subplot === 'string') {
+          // NaN: the plot's own row has this cell invalid (see PlotEntry); its stems are refused already.
+          if (!Number.isNaN(plot.dbhMinCm) && !Number.isNaN(plot.subplotAreaHa) && typeof subplot === 'string') {
             if (subplot === '1') {
               if (!(plot.subplotAreaHa > 0)) {
                 log.add(CROSS.subplotMissing, file, line, 'in_subplot', '1', crossMessages.subplotMissing(plot.key));
@@ -209,7 +213,7 @@ export async function validateTrees(ctx: ValidationContext, src: TableSource, in
         if (tally !== null) tally.stems++;
       }
       if (ok && sink && !sink.stopped && plot) {
-        const wait = sink.add(plot.visitId, treeId as string, species, dbh as number, (height as number | null) ?? null, status as string, cause, v[7] as number, subplot === '1');
+        const wait = sink.add(fillStem(stem, plot.visitId, v));
         stemsLoaded++;
         ctx.progress.rowsLoaded++;
         if (!plot.inBatch) touchedStored.add(plot.key);
@@ -246,6 +250,25 @@ export async function validateTrees(ctx: ValidationContext, src: TableSource, in
   }
   const storedPlots = [...stored.values()].filter((p): p is PlotEntry => p !== null && touchedStored.has(p.key));
   return { stats, stemsLoaded: sink && !sink.stopped ? stemsLoaded : 0, storedPlots, names: unresolved };
+}
+
+/** A stem record to fill (one per validation, reused for every stem). */
+export function emptyStem(): StemRecord {
+  return { visitId: 0, treeId: '', species: null, dbhCm: 0, heightM: null, status: '', stumpCause: null, fireDamage: 0, inSubplot: false };
+}
+
+/** Fills `stem` from a trees.csv row with no field error (TableRow.ok), for the stem sink; returns it. */
+export function fillStem(stem: StemRecord, visitId: number, v: readonly Cell[]): StemRecord {
+  stem.visitId = visitId;
+  stem.treeId = value.tree_id(v);
+  stem.species = value.species(v);
+  stem.dbhCm = value.dbh_cm(v);
+  stem.heightM = value.height_m(v);
+  stem.status = value.status(v);
+  stem.stumpCause = value.stump_cause(v);
+  stem.fireDamage = value.fire_damage(v);
+  stem.inSubplot = value.in_subplot(v) === '1';
+  return stem;
 }
 
 /**
