@@ -63,7 +63,7 @@ async function fitChart(deps: Deps, region: string, forestType: string, charts: 
   const points = stored?.points;
   const at = points ? points.regions.indexOf(region) : -1;
   const base = { forest_type: forestType, metric, axis, points: points?.x.length ?? 0, highlighted: points ? points.region.filter((r) => r === at).length : 0 };
-  if (!stored) return { ...base, svg: null, missing: `no stored fit of ${metric} against ${axis} for ${forestType} yet (the fits stage has not run since)`, drawn_from: null };
+  if (!stored) return { ...base, svg: null, missing: `no stored fit of ${metric} against ${axis} for ${forestType}: the fits stage has not stored its chart`, drawn_from: null };
   if (!stored.points.x.length) return { ...base, svg: null, missing: `no plot of ${forestType} has both ${metric} and ${axis}`, drawn_from: null };
   try {
     const { svg, key } = await draw(buildFitChartSpec({ forestType, metric, axis, points: regionChartPoints(stored.points, region), chart: stored }), drawn);
