@@ -46,7 +46,7 @@ describe('the compiled build', () => {
 
   it('migrates an embedded database from the committed migrations', async () => {
     const { stdout } = await stemwise(['migrate'], { ...(process.env as Record<string, string>), DATABASE_URL: '', STEMWISE_DATA_DIR: path.join(work, 'data') });
-    expect(stdout).toMatch(/5 migrations applied/);
+    expect(stdout).toMatch(/6 migrations applied/);
   });
 
   it('runs the demo on PostgreSQL and reaches the planted verdicts', async () => {
