@@ -1,5 +1,5 @@
 import type { Queryable } from '../connection';
-import type { curveFits } from '../schema/fits';
+import type { curveFits, fitCharts } from '../schema/fits';
 import type { plots } from '../schema/plots';
 import type { regions } from '../schema/regions';
 import { metricsOfRow, PLOT_METRIC_DB_COLUMNS, type MetricColumns, type PlotMetricDbColumn } from './metrics';
@@ -112,7 +112,7 @@ export async function listCurveFits(db: Queryable, filter: { scope: FitScope; me
 
 /** The stored chart of a forest type × metric × axis (fit_charts.chart, a StoredFitChart of @stemwise/core), or null. */
 export async function getFitChart(db: Queryable, forestType: string, metric: string, axis: string): Promise<unknown> {
-  const rows = await db.query<{ chart: unknown }>(`select chart from fit_charts where forest_type = $1 and metric = $2 and axis = $3`, [forestType, metric, axis]);
+  const rows = await db.query<Pick<typeof fitCharts.$inferSelect, 'chart'>>(`select chart from fit_charts where forest_type = $1 and metric = $2 and axis = $3`, [forestType, metric, axis]);
   return rows[0]?.chart ?? null;
 }
 
