@@ -158,7 +158,8 @@ describe('plotChange: gains minus losses is the net change on random plots (prop
   });
   const agb = (d: number, w: number): number => w * 0.1 * Math.pow(d, 2.4); // any positive per-stem biomass will do
 
-  function build(p: fc.infer<typeof plotArb>): [ChangeVisit, ChangeVisit] {
+  type PlotDraw = typeof plotArb extends fc.Arbitrary<infer T> ? T : never;
+  function build(p: PlotDraw): [ChangeVisit, ChangeVisit] {
     const t1: ChangeTree[] = [];
     const t2: ChangeTree[] = [];
     p.trees.forEach((t, i) => {

@@ -227,3 +227,31 @@ export function plotChange(first: ChangeVisit, second: ChangeVisit, carbonFracti
     carbonNetChangeMgHaYr: Math.sign(agbNetChangeMgHaYr) * carbonFromBiomass(Math.abs(agbNetChangeMgHaYr), carbonFraction),
   };
 }
+
+/** The figures of `export change` after the plot, region and dates, snake_case, in column order (docs/exports.md). */
+export const PLOT_CHANGE_COLUMNS = [
+  { column: 'years', key: 'years' },
+  { column: 'dbh_threshold_cm', key: 'dbhThresholdCm' },
+  { column: 'n_start', key: 'nStart' },
+  { column: 'n_survivors', key: 'nSurvivors' },
+  { column: 'n_died', key: 'nDied' },
+  { column: 'n_removed', key: 'nRemoved' },
+  { column: 'n_recruits', key: 'nRecruits' },
+  { column: 'mortality_rate', key: 'mortalityRate' },
+  { column: 'recruitment_rate', key: 'recruitmentRate' },
+  { column: 'mortality_annual', key: 'mortalityAnnual' },
+  { column: 'recruitment_annual', key: 'recruitmentAnnual' },
+  { column: 'dbh_increment_cm_yr', key: 'dbhIncrementCmYr' },
+  { column: 'ba_change_m2_ha_yr', key: 'baChangeM2HaYr' },
+  { column: 'agb_growth_mg_ha_yr', key: 'agbGrowthMgHaYr' },
+  { column: 'agb_recruitment_mg_ha_yr', key: 'agbRecruitmentMgHaYr' },
+  { column: 'agb_loss_mg_ha_yr', key: 'agbLossMgHaYr' },
+  { column: 'agb_net_change_mg_ha_yr', key: 'agbNetChangeMgHaYr' },
+  { column: 'carbon_net_change_mg_ha_yr', key: 'carbonNetChangeMgHaYr' },
+  { column: 'n_absent', key: 'nAbsent' },
+  { column: 'ba_growth_m2_ha_yr', key: 'baGrowthM2HaYr' },
+  { column: 'ba_recruitment_m2_ha_yr', key: 'baRecruitmentM2HaYr' },
+  { column: 'ba_loss_m2_ha_yr', key: 'baLossM2HaYr' },
+  { column: 'agb_died_mg_ha_yr', key: 'agbDiedMgHaYr' },
+  { column: 'agb_removed_mg_ha_yr', key: 'agbRemovedMgHaYr' },
+] as const satisfies readonly { column: string; key: keyof PlotChange }[];
