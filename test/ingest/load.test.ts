@@ -96,6 +96,23 @@ describe('ingest on PostgreSQL', () => {
     expect(audit[0].details.visits[0].plotKey).toBe('MW-200');
   });
 
+  it('refuses a visit dated before the plot\'s latest stored visit (cross_visit_before_latest), and loads it with --replace', async () => {
+    const plots = (date: string) => `${PLOTS_HEADER}\nMW-260,Lowmere,dry,-3.66,28.26,1,10,0,5,${date},0,0,`;
+    const trees = `${TREES_HEADER}\nMW-260,1,Tikka rubra,20,,live,,0,0`;
+    expect((await ingestDir(deps, writeUpload({ plots: plots('2023-04-01'), trees }))).report.state).toBe('loaded');
+    const before = await counts(s.db);
+    const earlier = await ingestDir(deps, writeUpload({ plots: plots('2020-04-01'), trees }));
+    expect(earlier.report.state).toBe('rejected');
+    const issue = earlier.report.issues.find((g) => g.rule === 'cross_visit_before_latest');
+    expect(issue?.severity).toBe('error');
+    expect(issue?.first[0]).toMatchObject({ file: 'plots.csv', line: 2, column: 'survey_date', value: '2020-04-01' });
+    expect(issue?.first[0].message).toMatch(/before its latest stored visit of 2023-04-01/);
+    expect(await counts(s.db)).toEqual(before);
+    expect((await ingestDir(deps, writeUpload({ plots: plots('2020-04-01'), trees }), { replace: true })).report.state).toBe('loaded');
+    const dates = await q<{ d: string }>(`select v.survey_date::text d from plot_visits v join plots p on p.id = v.plot_id where p.plot_key = 'MW-260' order by 1`);
+    expect(dates.map((r) => r.d)).toEqual(['2020-04-01', '2023-04-01']);
+  });
+
   it('attaches stems of a stored plot without a plots row to its latest visit, and refuses a tree id already stored there', async () => {
     const plots = `${PLOTS_HEADER}\nMW-201,Lowmere,dry,-3.61,28.1,1,10,0,5,2022-04-01,0,0,`;
     const own = `${TREES_HEADER}\nMW-201,1,Tikka rubra,20,,live,,0,0`;

@@ -123,6 +123,17 @@ export async function ingestBatch(deps: ServiceDeps, batch: BatchRow, options: I
       plotsResult.stats.badRows++;
     }
   }
+  // A re-measurement comes after the visits stored: an earlier date is refused unless --replace says so
+  // (its plot's change between visits is then recomputed with the visit in its place).
+  if (!batch.options.replace) {
+    for (const stored of await findStoredPlots(db, okPlots.filter((p) => p.ok).map((p) => p.key))) {
+      const p = plots.get(stored.plotKey)!;
+      if (!p.ok || p.surveyDate >= stored.surveyDate) continue;
+      log.add(CROSS.visitBeforeLatest, 'plots.csv', p.line, 'survey_date', p.surveyDate, crossMessages.visitBeforeLatest(p.key, p.surveyDate, stored.surveyDate));
+      p.ok = false;
+      plotsResult.stats.badRows++;
+    }
+  }
   const coords = await findPlotsAtCoordinates(db, okPlots.map((p) => p.latitude), okPlots.map((p) => p.longitude), okPlots.map((p) => p.key));
   if (coords.length) {
     const byPlace = new Map(coords.map((c) => [`${c.latitude},${c.longitude}`, c.plotKey]));
