@@ -115,7 +115,7 @@ describe('ingest on PostgreSQL', () => {
 
   it('checks a re-measurement tree by tree against the previous visit: revived trees refused, shrinking, fast growth and a new name warned', async () => {
     const plots = (date: string) => `${PLOTS_HEADER}\nMW-261,Lowmere,dry,-3.67,28.27,1,10,0,5,${date},0,0,`;
-    const first = `${TREES_HEADER}\nMW-261,1,Tikka rubra,20,,live,,0,0\nMW-261,2,Ossara lumen,30,,dead,,0,0\nMW-261,3,Tikka rubra,12,,live,,0,0\nMW-261,4,Ossara lumen,25,,stump,logged,0,0`;
+    const first = `${TREES_HEADER}\nMW-261,1,Tikka rubra,20,,live,,0,0\nMW-261,2,Ossara lumen,30,,dead,,0,0\nMW-261,3,Tikka rubra,12,,live,,0,0\nMW-261,4,Ossara lumen,25,,stump,logged,0,0\nMW-261,5,Tikka rubra,15,,live,,0,0`;
     expect((await ingestDir(deps, writeUpload({ plots: plots('2019-05-01'), trees: first }))).report.state).toBe('loaded');
     // 5 years later (1827 days): tree 1 lost 2 cm and changed name, tree 2 (dead) is live, tree 3 grew 48 cm (9.6 cm/yr), tree 4 (a stump) is live
     const second = `${TREES_HEADER}\nMW-261,1,Ossara lumen,18,,live,,0,0\nMW-261,2,Ossara lumen,30,,live,,0,0\nMW-261,3,Tikka rubra,60,,live,,0,0\nMW-261,4,Ossara lumen,25,,live,,0,0`;
@@ -137,7 +137,15 @@ describe('ingest on PostgreSQL', () => {
     const ok = await ingestDir(deps, writeUpload({ plots: plots('2024-05-01'), trees: fixed }));
     expect(ok.report.state).toBe('loaded');
     // (plausibility_species_no_reference too when this test runs alone, before any species list is loaded)
-    expect(ok.report.issues.map((g) => g.rule).filter((r) => r !== 'plausibility_species_no_reference').sort()).toEqual(['plausibility_dbh_growth_fast', 'plausibility_dbh_shrank', 'plausibility_species_changed']);
+    expect(ok.report.issues.map((g) => g.rule).filter((r) => r !== 'plausibility_species_no_reference').sort()).toEqual([
+      'plausibility_dbh_growth_fast',
+      'plausibility_dbh_shrank',
+      'plausibility_species_changed',
+      'plausibility_trees_absent',
+    ]);
+    // Tree 5 (live in 2019) is missing in 2024; 2 and 4 were dead or a stump, so their absence is no news.
+    expect(ok.report.issues.find((g) => g.rule === 'plausibility_trees_absent')?.first[0]).toMatchObject({ file: 'plots.csv', line: 2 });
+    expect(ok.report.issues.find((g) => g.rule === 'plausibility_trees_absent')?.first[0].message).toMatch(/1 tree live at the previous visit \(2019-05-01\) is not in trees\.csv \(tree_id 5\)/);
   });
 
   it('attaches stems of a stored plot without a plots row to its latest visit, and refuses a tree id already stored there', async () => {

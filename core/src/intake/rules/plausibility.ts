@@ -16,6 +16,7 @@ export const PLAUSIBILITY = {
   sameCoordinates: defineRule('plausibility', 'plausibility_same_coordinates', 'warning', 'Two different plots have exactly the same coordinates.'),
   dbhShrank: defineRule('plausibility', 'plausibility_dbh_shrank', 'warning', 'A tree live at both visits of a re-measured plot lost more than 1 cm of diameter.'),
   dbhGrowthFast: defineRule('plausibility', 'plausibility_dbh_growth_fast', 'warning', 'A tree live at both visits of a re-measured plot grew more than 5 cm a year in diameter.'),
+  treesAbsent: defineRule('plausibility', 'plausibility_trees_absent', 'warning', 'Trees live at the previous visit of a re-measured plot are not in trees.csv (they count as died).'),
   speciesChanged: defineRule('plausibility', 'plausibility_species_changed', 'warning', 'A tree of a re-measured plot is recorded under another species name than at the previous visit.'),
   surveyDateEarly: defineRule('plausibility', 'plausibility_survey_date_early', 'warning', 'A survey date lies before 1950.'),
 } as const;
@@ -61,6 +62,8 @@ export const plausibilityMessages = {
     `tree ${tree} has dbh_cm ${dbh}, but ${before} at the previous visit (${date}): it lost more than ${bound} cm (common practice); please check both measurements`,
   dbhGrowthFast: (tree: string, dbh: number, before: number, date: string, perYear: number, bound: number) =>
     `tree ${tree} grew from ${before} cm (${date}) to ${dbh} cm, ${perYear.toFixed(1)} cm a year, more than ${bound} (common practice); please check the tree_id and both measurements`,
+  treesAbsent: (plot: string, n: number, date: string, examples: string) =>
+    `plot ${plot}: ${n} tree${n === 1 ? '' : 's'} live at the previous visit (${date}) ${n === 1 ? 'is' : 'are'} not in trees.csv (tree_id ${examples}); ${n === 1 ? 'it counts' : 'they count'} as died in the change between visits — list them as dead or as stumps if they were found`,
   speciesChanged: (tree: string, name: string, before: string, date: string) => `tree ${tree} is recorded as ${name}, but as ${before} at the previous visit (${date})`,
   dbhLooksMm: (plot: string, over: number, n: number, bound: number) =>
     `plot ${plot}: ${over} of ${n} stems have dbh_cm above ${bound}, so the median diameter is above ${bound} cm; were diameters written in millimetres?`,

@@ -78,6 +78,7 @@ export async function validateTrees(ctx: ValidationContext, src: TableSource, in
   const plotOf = (key: string): PlotEntry | null => plots.get(key) ?? stored.get(key) ?? null;
   // The previous visit of each re-measured plot of the batch, looked up chunk by chunk (null: none).
   const previous = new Map<string, PreviousVisit | null>();
+  const remeasured = new Map<string, Set<string>>(); // tree ids of this batch on plots with a previous visit
 
   const resolveStored = async (keys: string[]) => {
     const found = await input.lookupStored(keys);
@@ -202,6 +203,11 @@ export async function validateTrees(ctx: ValidationContext, src: TableSource, in
       }
       // Re-measured plots: the same tree at the previous visit (docs/methods.md#change-between-visits).
       const before = typeof plotKey === 'string' && typeof treeId === 'string' && plot?.inBatch ? previous.get(plotKey)?.stems.get(treeId) : undefined;
+      if (plot?.inBatch && typeof treeId === 'string' && previous.get(plot.key)) {
+        let ids = remeasured.get(plot.key);
+        if (!ids) remeasured.set(plot.key, (ids = new Set()));
+        ids.add(treeId);
+      }
       if (before && plot) {
         const prev = previous.get(plot.key)!;
         if (status === 'live' && before.status !== 'live') {
@@ -265,6 +271,17 @@ export async function validateTrees(ctx: ValidationContext, src: TableSource, in
     if (p.stems === 0) log.add(CROSS.plotWithoutStems, 'plots.csv', p.line, 'plot_id', p.key, crossMessages.plotWithoutStems(p.key));
     else if (p.stemsOverMm * 2 > p.stems) {
       log.add(PLAUSIBILITY.dbhLooksMm, file, null, 'dbh_cm', p.key, plausibilityMessages.dbhLooksMm(p.key, p.stemsOverMm, p.stems, pl.mmMedianCm));
+    }
+  }
+  // Re-measured plots: trees live at the previous visit and absent now (counted as died), one warning per plot.
+  for (const [key, prev] of previous) {
+    const p = plots.get(key);
+    if (!prev || !p || !p.ok || stats.fatal) continue;
+    const ids = remeasured.get(key);
+    const absent = [...prev.stems.values()].filter((t) => t.status === 'live' && !ids?.has(t.treeId)).map((t) => t.treeId);
+    if (absent.length) {
+      const examples = absent.slice(0, 5).join(', ') + (absent.length > 5 ? ', …' : '');
+      log.add(PLAUSIBILITY.treesAbsent, 'plots.csv', p.line, 'plot_id', key, plausibilityMessages.treesAbsent(key, absent.length, prev.surveyDate, examples));
     }
   }
   // Species: one warning per distinct name, with its stem count and first line.
