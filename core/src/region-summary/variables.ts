@@ -25,6 +25,14 @@ const LABELS: Readonly<Record<string, VariableLabel>> = {
   logging_score: { name: 'Logging score (0–1)', short: 'Logging score', unit: '' },
   fire_score: { name: 'Fire score (0–1)', short: 'Fire score', unit: '' },
   shannon: { name: 'Shannon index', short: 'Shannon', unit: '' },
+  carbon_net_change_mg_ha_yr: { name: 'Net carbon change between visits', short: 'Net carbon change (Mg C/ha/yr)', unit: 'Mg C/ha/yr' },
+  agb_net_change_mg_ha_yr: { name: 'Net biomass change between visits', short: 'Net biomass change (Mg/ha/yr)', unit: 'Mg/ha/yr' },
+  agb_growth_mg_ha_yr: { name: 'Biomass gained by survivor growth', short: 'Growth (Mg/ha/yr)', unit: 'Mg/ha/yr' },
+  agb_recruitment_mg_ha_yr: { name: 'Biomass gained by recruits', short: 'Recruitment (Mg/ha/yr)', unit: 'Mg/ha/yr' },
+  agb_loss_mg_ha_yr: { name: 'Biomass lost by death and removal', short: 'Losses (Mg/ha/yr)', unit: 'Mg/ha/yr' },
+  mortality_annual: { name: 'Annual mortality (share of trees per year)', short: 'Mortality per year', unit: '' },
+  recruitment_annual: { name: 'Annual recruitment (share of trees per year)', short: 'Recruitment per year', unit: '' },
+  dbh_increment_cm_yr: { name: 'Diameter growth of survivors', short: 'Diameter growth (cm/yr)', unit: 'cm/yr' },
 };
 
 /** Total units of per-hectare variables (mean × forest area). */

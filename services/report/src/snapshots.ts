@@ -15,7 +15,7 @@ import {
 import { currentSpecies, fitCurves, IPCC_2006_CARBON_FRACTION, pointsOf, toFitRow, type CurveResult, type SamplingErrorT, type ServiceDeps } from '@stemwise/core';
 import { isInfrastructureError, PermanentError, type Config, type Logger } from '@stemwise/platform';
 import { renderFitChartSvg, renderGuildChartSvg, renderMeansChartSvg } from '@stemwise/core/charts';
-import { RegionSummaryInputError, summariseRegion, type PlotMetrics } from './summary/region-summary';
+import { RegionSummaryInputError, summariseRegion, summaryVariables, type PlotMetrics } from './summary/region-summary';
 import { SNAPSHOT_FORMAT, type FitChart, type SnapshotFitRow, type SnapshotMethod, type SnapshotPayload } from './snapshot-payload';
 
 type Deps = Pick<ServiceDeps, 'db' | 'config'> & { log?: Logger };
@@ -108,10 +108,10 @@ export async function assembleRegionSnapshot(deps: Deps, region: string, curves:
   const inputPlots: PlotMetrics[] = plots.map((p) => ({
     plotId: p.plotKey,
     forestType: p.forestType,
-    values: p.metrics,
+    values: { ...p.metrics, ...p.change },
     speciesNames: accepted.get(p.plotKey) ?? [],
   }));
-  const summary = summariseRegion({ region, plots: inputPlots, forestAreas: areas, options: { samplingErrorT: samplingErrorMultiplier(config) } });
+  const summary = summariseRegion({ region, plots: inputPlots, forestAreas: areas, variables: summaryVariables(inputPlots), options: { samplingErrorT: samplingErrorMultiplier(config) } });
 
   const fits: SnapshotFitRow[] = [];
   for (const scope of [{ kind: 'forest_type' }, { kind: 'region', region }] as const) {

@@ -25,6 +25,27 @@ export const DEFAULT_REGION_VARIABLES: readonly string[] = [
   'fire_score',
 ];
 
+/**
+ * Change between visits, estimated like the other variables over the plots whose latest visit has a
+ * previous one (docs/methods.md#change-between-visits); added to the rows only where such plots exist.
+ */
+export const CHANGE_VARIABLES: readonly string[] = [
+  'carbon_net_change_mg_ha_yr',
+  'agb_net_change_mg_ha_yr',
+  'agb_growth_mg_ha_yr',
+  'agb_recruitment_mg_ha_yr',
+  'agb_loss_mg_ha_yr',
+  'mortality_annual',
+  'recruitment_annual',
+  'dbh_increment_cm_yr',
+];
+
+/** The default variables, and those of change when any plot has a change value (a plot measured twice). */
+export function summaryVariables(plots: ReadonlyArray<{ readonly values: Readonly<Record<string, number | null | undefined>> }>): readonly string[] {
+  const change = plots.some((p) => CHANGE_VARIABLES.some((v) => p.values[v] !== undefined && p.values[v] !== null));
+  return change ? [...DEFAULT_REGION_VARIABLES, ...CHANGE_VARIABLES] : DEFAULT_REGION_VARIABLES;
+}
+
 export const GUILD_VARIABLES: Readonly<Record<SummaryGuild, string>> = {
   pioneer: 'pioneer_ba_share',
   light_demander: 'light_demander_ba_share',
