@@ -1,3 +1,4 @@
+import { REGION_CHANGE_COLUMNS } from '@stemwise/db';
 import { assertStratifiedOptions, stratifiedEstimate, WHOLE_REGION, type DisturbanceSummary, type EstimateDetail, type GuildRow, type RegionRow, type RegionSummary, type StratifiedEstimate, type StratifiedOptions, type SummaryGuild, type SummaryNote, type TotalRow } from '@stemwise/core';
 import { DEFAULT_DISTURBANCE_CLASSES, assertDisturbanceClasses, disturbanceClassIndex } from './disturbance-classes';
 import { resolveForestAreas } from './forest-areas';
@@ -29,16 +30,7 @@ export const DEFAULT_REGION_VARIABLES: readonly string[] = [
  * Change between visits, estimated like the other variables over the plots whose latest visit has a
  * previous one (docs/methods.md#change-between-visits); added to the rows only where such plots exist.
  */
-export const CHANGE_VARIABLES: readonly string[] = [
-  'carbon_net_change_mg_ha_yr',
-  'agb_net_change_mg_ha_yr',
-  'agb_growth_mg_ha_yr',
-  'agb_recruitment_mg_ha_yr',
-  'agb_loss_mg_ha_yr',
-  'mortality_annual',
-  'recruitment_annual',
-  'dbh_increment_cm_yr',
-];
+export const CHANGE_VARIABLES: readonly string[] = REGION_CHANGE_COLUMNS;
 
 /** The default variables, and those of change when any plot has a change value (a plot measured twice). */
 export function summaryVariables(plots: ReadonlyArray<{ readonly values: Readonly<Record<string, number | null | undefined>> }>): readonly string[] {
