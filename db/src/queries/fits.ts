@@ -2,11 +2,12 @@ import type { Queryable } from '../connection';
 import type { curveFits, fitCharts } from '../schema/fits';
 import type { plots } from '../schema/plots';
 import type { regions } from '../schema/regions';
-import { metricsOfRow, PLOT_METRIC_DB_COLUMNS, type MetricColumns, type PlotMetricDbColumn } from './metrics';
+import { numericColumns, PLOT_METRIC_DB_COLUMNS, type MetricColumns, type PlotMetricDbColumn } from './metrics';
 
 // Diversity–disturbance fits: the points they are fitted on, and the stored rows (curve_fits).
 
-const METRIC_SELECT = PLOT_METRIC_DB_COLUMNS.map(([c]) => `m.${c}`).join(', ');
+const METRIC_NAMES = PLOT_METRIC_DB_COLUMNS.map(([c]) => c);
+const METRIC_SELECT = METRIC_NAMES.map((c) => `m.${c}`).join(', ');
 
 export interface LatestPlotMetrics extends Pick<typeof plots.$inferSelect, 'plotKey'> {
   region: (typeof regions.$inferSelect)['name'];
@@ -30,7 +31,7 @@ export async function listLatestPlotMetrics(db: Queryable, forestType: string): 
       order by "plotKey" collate "C"`,
     [forestType],
   );
-  return rows.map((r) => ({ plotKey: r.plotKey, region: r.region, metrics: metricsOfRow(r) }));
+  return rows.map((r) => ({ plotKey: r.plotKey, region: r.region, metrics: numericColumns(r, METRIC_NAMES) }));
 }
 
 /** What a fit was fitted on: the forest type as a whole, or the plots of one region (of any name). */

@@ -212,3 +212,34 @@ export async function loadedRowCounts(db: Queryable): Promise<Record<'regions' |
   );
   return r;
 }
+
+export type PreviousStem = Pick<StemRecord, 'treeId' | 'status' | 'stumpCause' | 'dbhCm' | 'species'>;
+
+export interface PreviousVisit extends Pick<Plot, 'plotKey'>, Pick<Visit, 'surveyDate' | 'batchId'> {
+  stems: Map<string, PreviousStem>;
+}
+
+/** Of each plot, its latest stored visit before the given date, with that visit's stems by tree id (re-measurement checks). */
+export async function findPreviousVisits(db: Queryable, plotKeys: readonly string[], dates: readonly string[]): Promise<PreviousVisit[]> {
+  if (!plotKeys.length) return [];
+  // A visit without stems gives one row of nulls in the stem fields (left join).
+  const rows = await db.query<Omit<PreviousVisit, 'stems'> & (PreviousStem | { [K in keyof PreviousStem]: null })>(
+    `with prev as (
+       select distinct on (p.plot_key) p.plot_key, v.id, v.survey_date, v.batch_id
+         from unnest($1::text[], $2::date[]) as k(plot_key, survey_date)
+         join plots p on p.plot_key = k.plot_key
+         join plot_visits v on v.plot_id = p.id and v.survey_date < k.survey_date
+        order by p.plot_key, v.survey_date desc)
+     select prev.plot_key "plotKey", prev.survey_date::text "surveyDate", prev.batch_id "batchId",
+            s.tree_id "treeId", s.status, s.stump_cause "stumpCause", s.dbh_cm "dbhCm", s.species
+       from prev left join stems s on s.visit_id = prev.id`,
+    [plotKeys, dates],
+  );
+  const out = new Map<string, PreviousVisit>();
+  for (const { plotKey, surveyDate, batchId, ...stem } of rows) {
+    let v = out.get(plotKey);
+    if (!v) out.set(plotKey, (v = { plotKey, surveyDate, batchId, stems: new Map() }));
+    if (stem.treeId !== null) v.stems.set(stem.treeId, stem);
+  }
+  return [...out.values()];
+}

@@ -26,11 +26,14 @@ const METRIC_SELECT = METRIC_NAMES.map((c) => `m.${c}`).join(', ');
 /** The metric columns of a row as read (float8 and int4 arrive as numbers on both engines; null when not computed). */
 export type MetricColumns = Record<PlotMetricDbColumn, number | null>;
 
-/** The metric columns of a row, gathered into their own record (a row without metrics — a left join — gives nulls). */
-export function metricsOfRow(row: Partial<MetricColumns>): MetricColumns {
-  const out: Partial<MetricColumns> = {};
-  for (const c of METRIC_NAMES) out[c] = row[c] ?? null;
-  return out as MetricColumns;
+/**
+ * The named numeric columns of a row (metrics, change), gathered into their own record; null where empty
+ * (a left join without a match gives nulls). float8 and int4 arrive as numbers on both engines.
+ */
+export function numericColumns<C extends string>(row: Partial<Record<C, number | null>>, names: readonly C[]): Record<C, number | null> {
+  const out: Partial<Record<C, number | null>> = {};
+  for (const c of names) out[c] = row[c] ?? null;
+  return out as Record<C, number | null>;
 }
 
 export interface ComputeVisitRow
@@ -42,6 +45,10 @@ export interface ComputeVisitRow
   climate: Climate;
 }
 const computeVisitRow = int8Row<ComputeVisitRow, 'visitId'>('visitId');
+/** The select list of a ComputeVisitRow over plot_visits v, plots p, regions r and forest_types f. */
+export const COMPUTE_VISIT_SELECT = `v.id "visitId", p.plot_key "plotKey", v.batch_id "batchId", r.name region, p.forest_type "forestType", f.climate,
+            v.area_ha "areaHa", v.dbh_min_cm "dbhMinCm", v.subplot_area_ha "subplotAreaHa", v.subplot_dbh_min_cm "subplotDbhMinCm",
+            v.logging_class "loggingClass", v.fire_class "fireClass"`;
 
 /**
  * The visits of a chunk with their plot, region and forest-type climate, locked for update until the
@@ -49,9 +56,7 @@ const computeVisitRow = int8Row<ComputeVisitRow, 'visitId'>('visitId');
  */
 export async function lockVisitsForCompute(tx: Queryable, visitIds: readonly number[]): Promise<ComputeVisitRow[]> {
   const rows = await tx.query<Wire<ComputeVisitRow, 'visitId'>>(
-    `select v.id "visitId", p.plot_key "plotKey", v.batch_id "batchId", r.name region, p.forest_type "forestType", f.climate,
-            v.area_ha "areaHa", v.dbh_min_cm "dbhMinCm", v.subplot_area_ha "subplotAreaHa", v.subplot_dbh_min_cm "subplotDbhMinCm",
-            v.logging_class "loggingClass", v.fire_class "fireClass"
+    `select ${COMPUTE_VISIT_SELECT}
        from plot_visits v
        join plots p on p.id = v.plot_id
        join regions r on r.id = p.region_id
@@ -407,7 +412,7 @@ export async function pagePlotExport(db: Queryable, page: PlotExportPage): Promi
     longitude: r.longitude,
     computed: r.computed,
     stale: r.stale,
-    metrics: metricsOfRow(r),
+    metrics: numericColumns(r, METRIC_NAMES),
   }));
 }
 

@@ -4,7 +4,8 @@ import type { regions } from '../schema/regions';
 import type { regionSummaries, strata } from '../schema/reports';
 import type { batches } from '../schema/batches';
 import type { recomputeRuns } from '../schema/work';
-import { metricsOfRow, PLOT_METRIC_DB_COLUMNS, type MetricColumns } from './metrics';
+import type { PlotChangeDbColumn } from './change';
+import { numericColumns, PLOT_METRIC_DB_COLUMNS, type MetricColumns } from './metrics';
 
 type Plot = typeof plots.$inferSelect;
 type Region = typeof regions.$inferSelect;
@@ -31,16 +32,33 @@ const LATEST_VISITS = `
 
 export interface RegionPlotRow extends Pick<Plot, 'plotKey' | 'forestType' | 'latitude' | 'longitude' | 'elevationM'>, Pick<typeof plotVisits.$inferSelect, 'surveyDate'> {
   metrics: MetricColumns;
+  /** Change from the previous visit to this one (docs/methods.md#change-between-visits); every value null when the plot has no earlier visit. */
+  change: Record<RegionChangeColumn, number | null>;
 }
 
-/** The latest computed visit of every plot of a region with its metrics, by plot key (byte order). */
+/** The per-plot change columns the region and national estimates of change use. */
+export const REGION_CHANGE_COLUMNS = [
+  'carbon_net_change_mg_ha_yr',
+  'agb_net_change_mg_ha_yr',
+  'agb_growth_mg_ha_yr',
+  'agb_recruitment_mg_ha_yr',
+  'agb_loss_mg_ha_yr',
+  'mortality_annual',
+  'recruitment_annual',
+  'dbh_increment_cm_yr',
+] as const satisfies readonly PlotChangeDbColumn[];
+export type RegionChangeColumn = (typeof REGION_CHANGE_COLUMNS)[number];
+
+/** The latest computed visit of every plot of a region with its metrics and its change from the visit before, by plot key (byte order). */
 export async function listRegionLatestPlots(db: Queryable, region: string): Promise<RegionPlotRow[]> {
-  const rows = await db.query<Omit<RegionPlotRow, 'metrics'> & MetricColumns>(
+  const rows = await db.query<Omit<RegionPlotRow, 'metrics' | 'change'> & MetricColumns & Partial<Record<RegionChangeColumn, number | null>>>(
     `with latest as (${LATEST_VISITS})
-     select p.plot_key "plotKey", p.forest_type "forestType", p.latitude, p.longitude, p.elevation_m "elevationM", l.survey_date::text "surveyDate", ${METRIC_SELECT}
+     select p.plot_key "plotKey", p.forest_type "forestType", p.latitude, p.longitude, p.elevation_m "elevationM", l.survey_date::text "surveyDate", ${METRIC_SELECT},
+            ${REGION_CHANGE_COLUMNS.map((x) => `c.${x}`).join(', ')}
        from latest l
        join plots p on p.id = l.plot_id
        join plot_metrics m on m.visit_id = l.visit_id
+       left join plot_change c on c.visit_to_id = l.visit_id
       order by p.plot_key collate "C"`,
     [region],
   );
@@ -51,7 +69,8 @@ export async function listRegionLatestPlots(db: Queryable, region: string): Prom
     longitude: r.longitude,
     elevationM: r.elevationM,
     surveyDate: r.surveyDate,
-    metrics: metricsOfRow(r),
+    metrics: numericColumns(r, METRIC_NAMES),
+    change: numericColumns(r, REGION_CHANGE_COLUMNS),
   }));
 }
 
