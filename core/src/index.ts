@@ -6,6 +6,7 @@ export type { ServiceDescriptor, ServiceName, StartedService } from './service';
 export * from './science/index';
 export * from './fits/fit-columns';
 export * from './fits/stored-fits';
+export * from './fits/left-out';
 export * from './export/table-format';
 export * from './export/sink';
 export * from './species/species-cache';

@@ -128,6 +128,7 @@ export type NoteCode =
   | 'single_plot_stratum'
   | 'stratum_without_values'
   | 'no_values'
+  | 'plots_left_out'
   | 'totals_per_hectare_only'
   | 'species_names_partial'
   | 'caution'

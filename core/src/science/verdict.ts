@@ -349,6 +349,8 @@ export const FIT_COLUMNS = [
   'peak_ci_low',
   'peak_ci_high',
   'verdict',
+  'plots_left_out',
+  'left_out_reasons',
 ] as const;
 
 export type FitColumn = (typeof FIT_COLUMNS)[number];
@@ -361,8 +363,16 @@ export interface FitLabels {
   readonly axis: string;
 }
 
-// The two `export fits` rows of a result: linear then quadratic; the peak columns are on the quadratic row only, the verdict on both.
-export function fitRows(result: CurveResult, labels: FitLabels): [FitRow, FitRow] {
+/** Plots without a value of the metric or the axis, left out of the fit. */
+export interface FitLeftOut {
+  /** Plots left out in all; null when not known (fits stored before this was counted). */
+  readonly total: number | null;
+  /** `<column>:<reason>=<count>` joined by `;` (docs/exports.md); null when none or not known. */
+  readonly reasons: string | null;
+}
+
+// The two `export fits` rows of a result: linear then quadratic; the peak columns are on the quadratic row only, the verdict and the plots left out on both.
+export function fitRows(result: CurveResult, labels: FitLabels, leftOut: FitLeftOut = { total: null, reasons: null }): [FitRow, FitRow] {
   const row = (model: 'linear' | 'quadratic', m: ModelFit | null): FitRow => {
     const peak = model === 'quadratic' ? result.peak : null;
     return {
@@ -386,6 +396,8 @@ export function fitRows(result: CurveResult, labels: FitLabels): [FitRow, FitRow
       peak_ci_low: peak?.ciLow ?? null,
       peak_ci_high: peak?.ciHigh ?? null,
       verdict: result.verdict,
+      plots_left_out: leftOut.total,
+      left_out_reasons: leftOut.reasons,
     };
   };
   return [row('linear', result.linear), row('quadratic', result.quadratic)];

@@ -19,7 +19,7 @@ import {
 } from '@stemwise/db';
 import { isInfrastructureError, PermanentError, type Logger } from '@stemwise/platform';
 import { renderFitChartSvg } from '@stemwise/core/charts';
-import { FITTABLE_COLUMNS, fitCurves, fitDetails, fitRows, pointsOf, toStoredRow, type CurvePoint, type CurveResult, type ServiceDeps } from '@stemwise/core';
+import { FITTABLE_COLUMNS, fitCurves, fitDetails, fitRows, fitLeftOut, leftOutOf, pointsOf, toStoredRow, type CurvePoint, type CurveResult, type ServiceDeps } from '@stemwise/core';
 
 /**
  * Fewest plots for a region × forest type fit (scope = region name): 30, stemwise's choice (common
@@ -43,6 +43,8 @@ export interface ForestTypeFits {
   regions: Array<{ region: string; points: CurvePoint[]; result: CurveResult }>;
   /** Regions whose fit threw (the others are fitted all the same), with the reason. */
   failedRegions: Array<{ region: string; reason: string }>;
+  /** Plots of the forest type without the metric or the axis, counted per reason (left out of every fit). */
+  leftOut?: Record<string, number>;
 }
 
 /** Fits of one forest type: as a whole, and per region with enough plots. */
@@ -51,7 +53,7 @@ export async function fitForestType(db: Pick<Db, 'query'>, forestType: string, s
     if (!FITTABLE_COLUMNS.includes(c)) throw new PermanentError('fit_column_unknown', `cannot fit on '${c}': not a numeric column of export plots`);
   }
   const plots = await listLatestPlotMetrics(db, forestType);
-  return fitPoints(forestType, pointsOf(plots, settings.axis, settings.metric), settings, options);
+  return { ...fitPoints(forestType, pointsOf(plots, settings.axis, settings.metric), settings, options), leftOut: leftOutOf(plots, settings.axis, settings.metric) };
 }
 
 /**
@@ -124,8 +126,13 @@ export async function storeFits(deps: Pick<ServiceDeps, 'db' | 'config'> & { log
     try {
       fits = fitPoints(forestType, pointsOf(plots, settings.axis, settings.metric), settings, { regions: true });
       const chart = await chartFor(fits, settings, deps.log);
-      for (const row of fitRows(fits.all, labels)) rows.push(toStoredRow({ kind: 'forest_type' }, row, { ...fitDetails(fits.all), ...chart }));
-      for (const r of fits.regions) for (const row of fitRows(r.result, labels)) rows.push(toStoredRow({ kind: 'region', region: r.region }, row, fitDetails(r.result)));
+      const leftOut = (region?: string) => leftOutOf(region === undefined ? plots : plots.filter((p) => p.region === region), settings.axis, settings.metric);
+      const all = leftOut();
+      for (const row of fitRows(fits.all, labels, fitLeftOut(all))) rows.push(toStoredRow({ kind: 'forest_type' }, row, { ...fitDetails(fits.all), ...chart, left_out: all }));
+      for (const r of fits.regions) {
+        const mine = leftOut(r.region);
+        for (const row of fitRows(r.result, labels, fitLeftOut(mine))) rows.push(toStoredRow({ kind: 'region', region: r.region }, row, { ...fitDetails(r.result), left_out: mine }));
+      }
     } catch (err) {
       if (isInfrastructureError(err)) throw err;
       // The science met data it cannot handle: keep the stored fits, say why, go on with the next type.

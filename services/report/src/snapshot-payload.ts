@@ -28,6 +28,9 @@ export interface SnapshotFitRow {
   readonly peak_ci_low: number | null;
   readonly peak_ci_high: number | null;
   readonly verdict: string;
+  /** Plots without the metric or the axis (absent in snapshots made before it was counted). */
+  readonly plots_left_out?: number | null;
+  readonly left_out_reasons?: string | null;
 }
 
 export interface FitChart {

@@ -1,6 +1,6 @@
 import { problemLine, type ProblemView } from '@stemwise/db';
 import type { Snapshot } from '../snapshot-payload';
-import { HEADLINE_VARIABLES, totalUnit, variableLabel, type DisturbanceRow, type RegionRow, type TotalRow } from '@stemwise/core';
+import { HEADLINE_VARIABLES, leftOutSentence, totalUnit, variableLabel, type DisturbanceRow, type RegionRow, type TotalRow } from '@stemwise/core';
 import { figure, interval, isoMinute, percentOfShare, samplingError } from './figures';
 import { html, safeSvg, type Markup } from './html';
 import { pageShell } from './shell';
@@ -141,7 +141,16 @@ function fitsSection(s: Snapshot): Markup {
       )}</tbody></table>
 <p class="muted">A verdict summarises survey plots; it is not proof of cause (soil, altitude or history can make or hide a pattern).</p>`
     : html`<p class="muted">No fits stored yet for these forest types.</p>`;
-  return html`${figures}${table}`;
+  return html`${figures}${table}${leftOutList(fits)}`;
+}
+
+// Plots without the metric or the axis are not in a fit: how many, and why (one line per fit).
+function leftOutList(fits: Snapshot['payload']['fits']): Markup | null {
+  const lines = fits
+    .filter((f) => f.model === 'quadratic' && f.left_out_reasons)
+    .map((f) => html`<li>${f.scope === WHOLE ? `${f.forest_type} as a whole` : `${f.forest_type}, plots of ${f.scope}`}: ${plots(f.plots_left_out ?? 0)} left out — ${leftOutSentence(f.left_out_reasons)}.</li>`);
+  if (!lines.length) return null;
+  return html`<div id="fits-left-out"><p>Plots left out of the fits because the value is undefined for them:</p><ul>${lines}</ul></div>`;
 }
 
 // A short note of what could not be computed: the figures shown leave these parts out or are older for them.

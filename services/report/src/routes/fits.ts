@@ -11,6 +11,7 @@ import { ErrorBody, FitList, FitsQuery } from './schemas';
 const FIT_CSV_COLUMNS = [
   'scope', 'forest_type', 'metric', 'axis', 'n', 'model', 'b0', 'b1', 'b2', 'se_b0', 'se_b1', 'se_b2',
   'p_b1', 'p_b2', 'r2', 'adj_r2', 'aicc', 'peak_x', 'peak_ci_low', 'peak_ci_high', 'verdict',
+  'plots_left_out', 'left_out_reasons',
 ];
 
 /**

@@ -142,6 +142,8 @@ export const FitRowSchema = z.object({
   peak_ci_low: num,
   peak_ci_high: num,
   verdict: z.enum(['hump', 'increasing', 'decreasing', 'u_shape', 'none']).or(z.string()),
+  plots_left_out: z.number().int().nullable().optional().describe('plots without the metric or the axis, left out of the fit (absent in summaries made before it was counted)'),
+  left_out_reasons: z.string().nullable().optional().describe('`<column>:<reason>=<count>` joined by `;` (docs/exports.md)'),
 });
 
 export const SummaryResponse = z.object({

@@ -289,3 +289,21 @@ describe('summariseRegion output and input', () => {
     expect(() => summariseRegion(base({ options: { samplingErrorT: 2, confidence: 0.9 } }))).toThrow(/95 % convention/);
   });
 });
+
+describe('plots left out of the estimates', () => {
+  it('notes per variable how many plots had no value, and why', () => {
+    const plots = [
+      plot('VM-101', 'ridge', { stems_ha: 2, n_identified: 0, richness: 0, fisher_alpha: null }),
+      plot('VM-102', 'ridge', { stems_ha: 4, n_identified: 5, richness: 5, fisher_alpha: null }),
+      plot('VM-103', 'ridge', { stems_ha: 6, n_identified: 9, richness: 3, fisher_alpha: 1.6 }),
+      plot('VM-104', 'valley', { stems_ha: 8, n_identified: 0, richness: 0, fisher_alpha: null }),
+    ];
+    const s = summariseRegion({ region: 'Varenmoor', plots, variables: ['stems_ha', 'fisher_alpha', 'richness'] });
+    const notes = s.notes.filter((n) => n.code === 'plots_left_out');
+    expect(notes.map((n) => n.variable)).toEqual(['fisher_alpha']);
+    expect(notes[0].message).toMatch(/^fisher_alpha: 3 of 4 plots left out of the estimates/);
+    expect(notes[0].message).toContain('1 (fisher_alpha) with every identified species with a single stem');
+    expect(notes[0].message).toContain('2 (fisher_alpha) with no live stem identified to species');
+    expect(s.rows.find((r) => r.forest_type === 'all' && r.variable === 'fisher_alpha')?.n_plots).toBe(1);
+  });
+});

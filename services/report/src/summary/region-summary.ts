@@ -1,4 +1,4 @@
-import { assertStratifiedOptions, stratifiedEstimate, WHOLE_REGION, type DisturbanceSummary, type EstimateDetail, type GuildRow, type RegionRow, type RegionSummary, type StratifiedEstimate, type StratifiedOptions, type SummaryGuild, type SummaryNote, type TotalRow } from '@stemwise/core';
+import { assertStratifiedOptions, countLeftOut, leftOutSentence, leftOutText, stratifiedEstimate, WHOLE_REGION, type DisturbanceSummary, type EstimateDetail, type GuildRow, type RegionRow, type RegionSummary, type StratifiedEstimate, type StratifiedOptions, type SummaryGuild, type SummaryNote, type TotalRow } from '@stemwise/core';
 import { DEFAULT_DISTURBANCE_CLASSES, assertDisturbanceClasses, disturbanceClassIndex } from './disturbance-classes';
 import { resolveForestAreas } from './forest-areas';
 import { validateInput, type PlotMetrics, type RegionSummaryInput } from './input';
@@ -122,6 +122,7 @@ export function summariseRegion(input: RegionSummaryInput): RegionSummary {
     ...resolved.notes,
     ...methodNotes(opts.plotAreaHa, fpc, opts.confidence ?? 0.95, opts.samplingErrorT ?? 't', opts.df ?? 'satterthwaite'),
     ...coverageNotes(types, [...estimates.entries()].filter(([v]) => variables.includes(v))),
+    ...leftOutNotes(input.plots, variables),
     ...(species !== null && species[0].n_plots_with_names < input.plots.length
       ? [note('species_names_partial', `Species counts use the ${species[0].n_plots_with_names} of ${input.plots.length} plots that came with names.`)]
       : []),
@@ -145,6 +146,18 @@ export function summariseRegion(input: RegionSummaryInput): RegionSummary {
     species,
     notes,
   };
+}
+
+// Plots without a value of a variable are left out of its estimates: say how many, and why.
+function leftOutNotes(plots: readonly PlotMetrics[], variables: readonly string[]): SummaryNote[] {
+  const out: SummaryNote[] = [];
+  for (const variable of variables) {
+    const counts = countLeftOut(plots.map((p) => p.values), [variable]);
+    const n = Object.values(counts).reduce((a, b) => a + b, 0);
+    if (n === 0) continue;
+    out.push(note('plots_left_out', `${variable}: ${n} of ${plots.length} plots left out of the estimates, having no value: ${leftOutSentence(leftOutText(counts))}.`, null, variable));
+  }
+  return out;
 }
 
 /** How a stratified estimate of one variable was made (df, t, strata covered). */
