@@ -66,8 +66,10 @@ describe('region page in a browser', () => {
       expect(box?.height, id).toBeGreaterThan(100);
     }
     const ba = page.locator('#headline .card[data-variable="basal_area_m2_ha"]');
-    await expect.poll(() => ba.locator('.value').innerText()).toMatch(/^21 m²\/ha$/);
-    expect(await ba.locator('.ci').innerText()).toMatch(/^95 % CI: \d+(\.\d+)? – \d+(\.\d+)?$/);
+    // rounded to the SE's second significant digit (an SE between 1 and 10 here: one decimal), a trailing zero kept
+    await expect.poll(() => ba.locator('.value').innerText()).toMatch(/^21\.0 m²\/ha$/);
+    expect(await ba.locator('.ci').innerText()).toMatch(/^95 % CI: \d+\.\d – \d+\.\d$/);
+    expect(await ba.locator('.se').innerText()).toMatch(/SE \d\.\d$/);
     expect(await ba.locator('.se').innerText()).toMatch(/sampling error: ±\d+\.\d %/);
     expect(await page.locator('.caution').first().innerText()).toMatch(/not a census[\s\S]*national greenhouse-gas reporting method[\s\S]*licensed foresters/);
     expect(await page.locator('#estimates tbody tr').count()).toBeGreaterThan(20);

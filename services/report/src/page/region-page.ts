@@ -1,7 +1,7 @@
 import { problemLine, type ProblemView } from '@stemwise/db';
 import type { Snapshot } from '../snapshot-payload';
 import { HEADLINE_VARIABLES, leftOutSentence, totalUnit, variableLabel, type DisturbanceRow, type RegionRow, type TotalRow } from '@stemwise/core';
-import { figure, interval, isoMinute, percentOfShare, samplingError } from './figures';
+import { estimate, estimateInterval, figure, interval, isoMinute, samplingError, sharePercent, standardError } from './figures';
 import { html, safeSvg, type Markup } from './html';
 import { pageShell } from './shell';
 
@@ -36,6 +36,7 @@ export function cautions(carbonFraction: number): Markup {
   <ul>
     <li>These are estimates from a sample of plots, not a census. Every figure is shown with its standard error, 95 % confidence interval and sampling error: read the interval, not only the mean.</li>
     <li>Biomass and carbon follow the method stated on this page (Chave et al. 2014, or Chave et al. 2005 where heights are missing; carbon = ${carbonFraction} × biomass, IPCC 2006). The intervals cover sampling error only, not the error of the biomass models. These figures do not replace the national greenhouse-gas reporting method.</li>
+    <li>Figures are rounded to the precision their standard error supports: the SE to two significant digits, the estimate and its interval to the same decimal place (common practice, as advised in the GUM, JCGM 100:2008). The downloads keep full precision.</li>
     <li>This page is no logging plan: decisions on harvesting rest with local regulations and licensed foresters.</li>
   </ul>
 </section>`;
@@ -56,15 +57,18 @@ export function headlineCards(rows: readonly RegionRow[], totals: readonly Total
     const t = totals.find((x) => x.forest_type === WHOLE && x.variable === v);
     return html`<div class="card" data-variable="${v}">
   <div class="label">${label.name}</div>
-  <div class="value">${figure(r.mean)} <span class="unit">${label.unit}</span></div>
-  <div class="ci">95 % CI: ${interval(r.ci_low, r.ci_high)}</div>
-  <div class="se">sampling error: ${samplingError(r.sampling_error_pct)} · SE ${figure(r.se)}</div>
+  <div class="value">${estimate(r.mean, r.se)} <span class="unit">${label.unit}</span></div>
+  <div class="ci">95 % CI: ${estimateInterval(r.ci_low, r.ci_high, r.se)}</div>
+  <div class="se">sampling error: ${samplingError(r.sampling_error_pct)} · SE ${standardError(r.se)}</div>
   <div class="n muted">${plots(r.n_plots)}</div>
-  ${t ? html`<div class="total">total ${figure(t.total)} ${totalUnit(v)} (95 % CI ${interval(t.ci_low, t.ci_high)}) on ${figure(t.forest_area_ha)} ha</div>` : null}
+  ${t ? html`<div class="total">total ${estimate(t.total, t.se)} ${totalUnit(v)} (95 % CI ${estimateInterval(t.ci_low, t.ci_high, t.se)}) on ${figure(t.forest_area_ha)} ha</div>` : null}
 </div>`;
   });
   return html`<div class="cards" id="headline">${cards}</div>`;
 }
+
+// SE of mean × area with the area known without error: SE × area (Cochran 1977 ch. 5)
+const totalSe = (r: RegionRow): number | null => (r.se !== null && r.forest_area_ha !== null ? r.se * r.forest_area_ha : null);
 
 export function estimatesTable(rows: readonly RegionRow[], whole?: string): Markup {
   const variables = [...new Set(rows.map((r) => r.variable))];
@@ -74,9 +78,9 @@ export function estimatesTable(rows: readonly RegionRow[], whole?: string): Mark
     return group.map(
       (r, i) => html`<tr class="${r.forest_type === WHOLE ? 'whole' : ''}">
   ${i === 0 ? html`<td rowspan="${group.length}">${label.name}${label.unit ? html` <span class="muted">(${label.unit})</span>` : null}</td>` : null}
-  <td>${stratumName(r.forest_type, whole)}</td><td class="num">${r.n_plots}</td><td class="num">${figure(r.mean)}</td><td class="num">${figure(r.se)}</td>
-  <td class="num">${interval(r.ci_low, r.ci_high)}</td><td class="num">${samplingError(r.sampling_error_pct)}</td>
-  <td class="num">${figure(r.forest_area_ha)}</td><td class="num">${figure(r.total)}</td>
+  <td>${stratumName(r.forest_type, whole)}</td><td class="num">${r.n_plots}</td><td class="num">${estimate(r.mean, r.se)}</td><td class="num">${standardError(r.se)}</td>
+  <td class="num">${estimateInterval(r.ci_low, r.ci_high, r.se)}</td><td class="num">${samplingError(r.sampling_error_pct)}</td>
+  <td class="num">${figure(r.forest_area_ha)}</td><td class="num">${estimate(r.total, totalSe(r))}</td>
 </tr>`,
     );
   });
@@ -91,7 +95,7 @@ function guildTable(s: Snapshot): Markup | null {
   return html`<table id="guilds"><thead><tr><th>Stratum</th>${guilds.map((g) => html`<th class="num">${GUILD_NAMES[g] ?? g}</th>`)}</tr></thead><tbody>${strata.map(
     (t) => html`<tr class="${t === WHOLE ? 'whole' : ''}"><td>${stratumName(t)}</td>${guilds.map((g) => {
       const r = rows.find((x) => x.forest_type === t && x.guild === g);
-      return html`<td class="num">${percentOfShare(r?.mean_share)}${r?.se != null ? html` <span class="muted">± ${percentOfShare(r.se)}</span>` : null}</td>`;
+      return html`<td class="num">${sharePercent(r?.mean_share, r?.se)}${r?.se != null ? html` <span class="muted">± ${standardError(100 * r.se)} %</span>` : null}</td>`;
     })}</tr>`,
   )}</tbody></table>`;
 }
@@ -113,7 +117,7 @@ function disturbanceTable(s: Snapshot): Markup | null {
     const first = rows.find((r) => r.class === c) as DisturbanceRow;
     return html`<tr><td>${c.replace(/_/g, ' ')}</td><td>${classRange(first)}</td>${strata.map((t) => {
       const r = rows.find((x) => x.forest_type === t && x.class === c);
-      return html`<td class="num">${r ? html`${plots(r.n_plots)} · ${percentOfShare(r.share)}` : '–'}</td>`;
+      return html`<td class="num">${r ? html`${plots(r.n_plots)} · ${sharePercent(r.share, r.share_se)}` : '–'}</td>`;
     })}</tr>`;
   })}</tbody></table>
 <p class="muted">Shares per forest type are shares of its plots; the whole-region share is the stratified estimate (of forest area when areas are known).${missing.length ? ` Plots without a disturbance index: ${missing.map((m) => `${m.forest_type} ${m.n_plots}`).join(', ')}.` : ''}</p>`;
