@@ -12,6 +12,7 @@ export * from './export/sink';
 export * from './species/species-cache';
 export * from './region-summary/types';
 export * from './region-summary/variables';
+export * from './region-summary/caution-flag';
 export * from './intake/rules/rule';
 export * from './intake/rules/catalogue';
 export * from './intake/rules/structure';

@@ -12,7 +12,7 @@ import {
   recordProblems,
   regionExists,
 } from '@stemwise/db';
-import { currentSpecies, fitCurves, IPCC_2006_CARBON_FRACTION, pointsOf, toFitRow, type CurveResult, type SamplingErrorT, type ServiceDeps } from '@stemwise/core';
+import { cautionSettings, currentSpecies, fitCurves, IPCC_2006_CARBON_FRACTION, pointsOf, toFitRow, type CurveResult, type SamplingErrorT, type ServiceDeps } from '@stemwise/core';
 import { isInfrastructureError, PermanentError, type Config, type Logger } from '@stemwise/platform';
 import { renderFitChartSvg, renderGuildChartSvg, renderMeansChartSvg } from '@stemwise/core/charts';
 import { RegionSummaryInputError, summariseRegion, type PlotMetrics } from './summary/region-summary';
@@ -111,7 +111,7 @@ export async function assembleRegionSnapshot(deps: Deps, region: string, curves:
     values: p.metrics,
     speciesNames: accepted.get(p.plotKey) ?? [],
   }));
-  const summary = summariseRegion({ region, plots: inputPlots, forestAreas: areas, options: { samplingErrorT: samplingErrorMultiplier(config) } });
+  const summary = summariseRegion({ region, plots: inputPlots, forestAreas: areas, options: { samplingErrorT: samplingErrorMultiplier(config), caution: cautionSettings(config) } });
 
   const fits: SnapshotFitRow[] = [];
   for (const scope of [{ kind: 'forest_type' }, { kind: 'region', region }] as const) {

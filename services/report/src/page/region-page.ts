@@ -1,6 +1,6 @@
 import { problemLine, type ProblemView } from '@stemwise/db';
 import type { Snapshot } from '../snapshot-payload';
-import { HEADLINE_VARIABLES, leftOutSentence, totalUnit, variableLabel, type DisturbanceRow, type RegionRow, type TotalRow } from '@stemwise/core';
+import { CAUTION_WORDS, HEADLINE_VARIABLES, leftOutSentence, totalUnit, variableLabel, type CautionSettings, type DisturbanceRow, type RegionRow, type TotalRow } from '@stemwise/core';
 import { estimate, estimateInterval, figure, interval, isoMinute, samplingError, sharePercent, standardError } from './figures';
 import { html, safeSvg, type Markup } from './html';
 import { pageShell } from './shell';
@@ -49,6 +49,19 @@ export function visitsSentence(first: string | null, last: string | null): strin
   return `Uses the latest visit of each plot, surveyed ${a === b ? a : `${a}–${b}`}.`;
 }
 
+/** The visible mark of an estimate to read with care (few plots, wide error); null for the others. */
+export function cautionMark(r: RegionRow): Markup | null {
+  const flag = r.caution_flag;
+  if (flag === undefined || flag === 'none') return null;
+  return html`<span class="flag" data-flag="${flag}">${CAUTION_WORDS[flag]}</span>`;
+}
+
+/** The sentence that explains the marks, with the thresholds the summary used; null for a summary made before them. */
+export function cautionLegend(caution: CautionSettings | undefined): Markup | null {
+  if (!caution) return null;
+  return html`<p class="muted caution-legend">Marked <span class="flag">few plots</span>: from fewer than ${caution.min_plots} plots; <span class="flag">wide error</span>: a sampling error above ${caution.max_sampling_error_pct} %; <span class="flag">no error estimate</span>: no sampling error could be computed. Read marked figures with particular care: they can move a lot with a few more plots (thresholds of common practice, set in the configuration).</p>`;
+}
+
 export function headlineCards(rows: readonly RegionRow[], totals: readonly TotalRow[]): Markup {
   const cards = HEADLINE_VARIABLES.map((v) => {
     const r = rows.find((x) => x.forest_type === WHOLE && x.variable === v);
@@ -60,7 +73,7 @@ export function headlineCards(rows: readonly RegionRow[], totals: readonly Total
   <div class="value">${estimate(r.mean, r.se)} <span class="unit">${label.unit}</span></div>
   <div class="ci">95 % CI: ${estimateInterval(r.ci_low, r.ci_high, r.se)}</div>
   <div class="se">sampling error: ${samplingError(r.sampling_error_pct)} · SE ${standardError(r.se)}</div>
-  <div class="n muted">${plots(r.n_plots)}</div>
+  <div class="n muted">${plots(r.n_plots)}${cautionMark(r)}</div>
   ${t ? html`<div class="total">total ${estimate(t.total, t.se)} ${totalUnit(v)} (95 % CI ${estimateInterval(t.ci_low, t.ci_high, t.se)}) on ${figure(t.forest_area_ha)} ha</div>` : null}
 </div>`;
   });
@@ -78,7 +91,7 @@ export function estimatesTable(rows: readonly RegionRow[], whole?: string): Mark
     return group.map(
       (r, i) => html`<tr class="${r.forest_type === WHOLE ? 'whole' : ''}">
   ${i === 0 ? html`<td rowspan="${group.length}">${label.name}${label.unit ? html` <span class="muted">(${label.unit})</span>` : null}</td>` : null}
-  <td>${stratumName(r.forest_type, whole)}</td><td class="num">${r.n_plots}</td><td class="num">${estimate(r.mean, r.se)}</td><td class="num">${standardError(r.se)}</td>
+  <td>${stratumName(r.forest_type, whole)}</td><td class="num">${r.n_plots}</td><td class="num">${estimate(r.mean, r.se)}${cautionMark(r)}</td><td class="num">${standardError(r.se)}</td>
   <td class="num">${estimateInterval(r.ci_low, r.ci_high, r.se)}</td><td class="num">${samplingError(r.sampling_error_pct)}</td>
   <td class="num">${figure(r.forest_area_ha)}</td><td class="num">${estimate(r.total, totalSe(r))}</td>
 </tr>`,
@@ -207,6 +220,7 @@ export function renderRegionPage(input: RegionPageInput): string {
   <h2 id="headline-figures">Headline figures for the whole region</h2>
   <p class="muted">Stratified estimates over the forest types; 95 % intervals use Student t (degrees of freedom in the notes below).</p>
   ${headlineCards(summary.rows, summary.totals)}
+  ${cautionLegend(summary.caution)}
   <h2>Charts</h2>
   ${means ? html`<figure id="means-chart">${means}<figcaption>Means per hectare with their 95 % confidence intervals: the whole region (dark) and each forest type. Wide intervals come from few plots.</figcaption></figure>` : null}
   ${guilds ? html`<figure id="guild-chart">${guilds}<figcaption>Guild composition: the mean share of live basal area per plot.</figcaption></figure>` : null}
@@ -214,6 +228,7 @@ export function renderRegionPage(input: RegionPageInput): string {
   ${fitsSection(s)}
   <h2>Estimates by forest type</h2>
   ${estimatesTable(summary.rows)}
+  ${cautionLegend(summary.caution)}
   <h2>Guild composition</h2>
   ${guildTable(s) ?? html`<p class="muted">No guild shares.</p>`}
   <h2>Plots by disturbance class</h2>

@@ -35,6 +35,7 @@ tr.whole td { font-weight: 600; }
 .muted { color: var(--muted); }
 footer { margin: 40px auto 30px; color: var(--muted); font-size: .85rem; }
 .regions td a { font-weight: 600; }
+.flag { display: inline-block; margin-left: 6px; padding: 0 5px; border: 1px solid var(--warn); border-radius: 3px; color: var(--warn); background: var(--warn-soft); font-size: .75rem; font-weight: 600; white-space: nowrap; }
 @media print {
   html { font-size: 10pt; }
   body { background: #fff; }

@@ -59,7 +59,10 @@ export const RegionRowSchema = z.object({
   sampling_error_pct: num.describe('half-width of the 95 % interval over the mean, in percent'),
   forest_area_ha: num,
   total: num.describe('mean × forest area, for per-hectare variables with known areas'),
+  caution_flag: z.enum(['none', 'few_plots', 'wide_error', 'few_plots_wide_error', 'no_error_estimate']).optional().describe('few plots or a wide sampling error (docs/exports.md); absent in summaries made before it existed'),
 });
+
+const CautionSchema = z.object({ min_plots: z.number().int(), max_sampling_error_pct: z.number() }).optional().describe('thresholds of caution_flag');
 
 const TotalRowSchema = z.object({ forest_type: z.string(), variable: z.string(), forest_area_ha: z.number(), total: z.number(), se: num, ci_low: num, ci_high: num });
 const EstimateDetailSchema = z.object({
@@ -97,6 +100,7 @@ export const RegionSummarySchema = z.object({
   confidence: z.number(),
   sampling_error_t: z.union([z.literal('t'), z.number()]),
   fpc_applied: z.boolean(),
+  caution: CautionSchema,
   rows: z.array(RegionRowSchema),
   totals: z.array(TotalRowSchema),
   estimate_details: z.array(EstimateDetailSchema),
@@ -114,6 +118,7 @@ export const NationalSummarySchema = z.object({
   weighting: z.enum(['area', 'plot_count']).describe('W_h from forest areas of every stratum, or from plot counts when one is missing'),
   confidence: z.number(),
   sampling_error_t: z.union([z.literal('t'), z.number()]),
+  caution: CautionSchema,
   rows: z.array(RegionRowSchema).describe('`export regions` rows with region `national`: `all` (every region × forest type), then each forest type nationally'),
   totals: z.array(TotalRowSchema),
   estimate_details: z.array(EstimateDetailSchema.extend({ forest_type: z.string() })),

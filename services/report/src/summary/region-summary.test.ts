@@ -68,7 +68,7 @@ function assertPlainJson(value: unknown, path = '$'): void {
 
 describe('summariseRegion rows', () => {
   it('REGION_COLUMNS is the `export regions` column list of docs/exports.md, and every row has exactly those keys in that order', () => {
-    expect(REGION_COLUMNS).toEqual(['region', 'forest_type', 'variable', 'n_plots', 'mean', 'se', 'ci_low', 'ci_high', 'sampling_error_pct', 'forest_area_ha', 'total']);
+    expect(REGION_COLUMNS).toEqual(['region', 'forest_type', 'variable', 'n_plots', 'mean', 'se', 'ci_low', 'ci_high', 'sampling_error_pct', 'forest_area_ha', 'total', 'caution_flag']);
     const s = summariseRegion(base());
     for (const r of s.rows) expect(Object.keys(r)).toEqual([...REGION_COLUMNS]);
   });
@@ -305,5 +305,16 @@ describe('plots left out of the estimates', () => {
     expect(notes[0].message).toContain('1 (fisher_alpha) with every identified species with a single stem');
     expect(notes[0].message).toContain('2 (fisher_alpha) with no live stem identified to species');
     expect(s.rows.find((r) => r.forest_type === 'all' && r.variable === 'fisher_alpha')?.n_plots).toBe(1);
+  });
+});
+
+describe('caution flags of the rows', () => {
+  it('flags every row of the hand case: 2–5 plots are fewer than 20; with a minimum of 2 only wide errors remain', () => {
+    const s = summariseRegion(base());
+    expect(s.caution).toEqual({ min_plots: 20, max_sampling_error_pct: 20 });
+    for (const r of s.rows) expect(r.caution_flag, `${r.forest_type} ${r.variable}`).toMatch(/^few_plots/);
+    const loose = summariseRegion(base({ options: { caution: { min_plots: 2, max_sampling_error_pct: 20 } } }));
+    // ridge stems_ha 2 4 6: mean 4, SE 2/√3 = 1.1547, t(2) = 4.3027 → sampling error 124 % (by hand) → wide
+    expect(loose.rows.find((r) => r.forest_type === 'ridge' && r.variable === 'stems_ha')?.caution_flag).toBe('wide_error');
   });
 });

@@ -1,4 +1,4 @@
-import { assertStratifiedOptions, countLeftOut, leftOutSentence, leftOutText, stratifiedEstimate, WHOLE_REGION, type DisturbanceSummary, type EstimateDetail, type GuildRow, type RegionRow, type RegionSummary, type StratifiedEstimate, type StratifiedOptions, type SummaryGuild, type SummaryNote, type TotalRow } from '@stemwise/core';
+import { assertCautionSettings, assertStratifiedOptions, cautionFlag, countLeftOut, DEFAULT_CAUTION, type CautionSettings, leftOutSentence, leftOutText, stratifiedEstimate, WHOLE_REGION, type DisturbanceSummary, type EstimateDetail, type GuildRow, type RegionRow, type RegionSummary, type StratifiedEstimate, type StratifiedOptions, type SummaryGuild, type SummaryNote, type TotalRow } from '@stemwise/core';
 import { DEFAULT_DISTURBANCE_CLASSES, assertDisturbanceClasses, disturbanceClassIndex } from './disturbance-classes';
 import { resolveForestAreas } from './forest-areas';
 import { validateInput, type PlotMetrics, type RegionSummaryInput } from './input';
@@ -47,6 +47,8 @@ export function summariseRegion(input: RegionSummaryInput): RegionSummary {
   const opts = input.options ?? {};
   const classes = opts.disturbanceClasses ?? DEFAULT_DISTURBANCE_CLASSES;
   assertDisturbanceClasses(classes);
+  const caution = opts.caution ?? DEFAULT_CAUTION;
+  assertCautionSettings(caution);
 
   const byType = new Map<string, PlotMetrics[]>();
   for (const p of input.plots) {
@@ -90,7 +92,7 @@ export function summariseRegion(input: RegionSummaryInput): RegionSummary {
     const e = types.length === 0 ? null : estimateOf(variable);
     if (e === null) continue;
     const perHa = isPerHectare(variable);
-    rows.push(regionRow(input.region, WHOLE_REGION, variable, e.n, e, e.size, perHa ? e.total : null));
+    rows.push(regionRow(input.region, WHOLE_REGION, variable, e.n, e, e.size, perHa ? e.total : null, caution));
     if (perHa && e.size !== null && e.total !== null) {
       totals.push({ forest_type: WHOLE_REGION, variable, forest_area_ha: e.size, total: e.total, se: e.totalSe, ci_low: e.totalCiLow, ci_high: e.totalCiHigh });
     }
@@ -100,7 +102,7 @@ export function summariseRegion(input: RegionSummaryInput): RegionSummary {
     for (const variable of variables) {
       const s = estimateOf(variable).strata[h];
       const perHa = isPerHectare(variable);
-      rows.push(regionRow(input.region, t, variable, s.n, s, s.size, perHa ? s.total : null));
+      rows.push(regionRow(input.region, t, variable, s.n, s, s.size, perHa ? s.total : null, caution));
       if (perHa && s.size !== null && s.total !== null) {
         totals.push({ forest_type: t, variable, forest_area_ha: s.size, total: s.total, se: s.totalSe, ci_low: s.totalCiLow, ci_high: s.totalCiHigh });
       }
@@ -138,6 +140,7 @@ export function summariseRegion(input: RegionSummaryInput): RegionSummary {
     confidence: opts.confidence ?? 0.95,
     sampling_error_t: opts.samplingErrorT ?? 't',
     fpc_applied: fpc,
+    caution,
     rows,
     totals,
     estimate_details: details,
@@ -183,7 +186,7 @@ export interface Estimated {
   readonly samplingErrorPct: number | null;
 }
 
-export function regionRow(region: string, forestType: string, variable: string, n: number, e: Estimated, area: number | null, total: number | null): RegionRow {
+export function regionRow(region: string, forestType: string, variable: string, n: number, e: Estimated, area: number | null, total: number | null, caution: CautionSettings): RegionRow {
   // Key order is REGION_COLUMNS order.
   return {
     region,
@@ -197,6 +200,7 @@ export function regionRow(region: string, forestType: string, variable: string, 
     sampling_error_pct: e.samplingErrorPct,
     forest_area_ha: area,
     total,
+    caution_flag: cautionFlag(n, e.samplingErrorPct, caution),
   };
 }
 
