@@ -2,14 +2,16 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { listStale, markStale } from '@stemwise/db';
 import { StemwiseError } from '@stemwise/platform';
 import { MIN_REGION_PLOTS, storeFits } from '@stemwise/compute';
-import { fitCurves } from '@stemwise/core';
+import { EVIDENCE_COLUMNS, fitCurves, fitRows } from '@stemwise/core';
 import { fixtureSpecies, generateInventory, loadInventory, loadSpecies, REGIONS } from './fixtures';
 import { fitsText, plotsText, recomputeInProcess } from './support';
 import { useServices, type TestServices } from '../support/services';
 
 // The columns of `export fits` exactly as in docs/exports.md.
-const SPEC_COLUMNS =
-  'forest_type, metric, axis, n, model, b0, b1, b2, se_b0, se_b1, se_b2, p_b1, p_b2, r2, adj_r2, aicc, peak_x, peak_ci_low, peak_ci_high, verdict, plots_left_out, left_out_reasons'.split(', ');
+const SPEC_COLUMNS = (
+  'forest_type, metric, axis, n, model, b0, b1, b2, se_b0, se_b1, se_b2, p_b1, p_b2, r2, adj_r2, aicc, peak_x, peak_ci_low, peak_ci_high, verdict, plots_left_out, left_out_reasons, ' +
+  'delta_aicc, curvature_p, mos_turn_x, mos_turn_inside, mos_result, two_lines_break_x, two_lines_slope_1, two_lines_p_1, two_lines_slope_2, two_lines_p_2, two_lines_result, peak_boot_low, peak_boot_high'
+).split(', ');
 const VERDICTS = ['hump', 'increasing', 'decreasing', 'u_shape', 'none'];
 
 type PlotRow = Record<string, string | number | null>;
@@ -70,6 +72,10 @@ describe('diversity–disturbance fits', () => {
       expect(quad.b2).toBe(direct.quadratic!.b2);
       expect(quad.aicc).toBe(direct.quadratic!.aicc);
       expect(quad.verdict).toBe(direct.verdict);
+      // the evidence read back from the stored details is what the fit itself found
+      const [, directQuad] = fitRows(direct, { forestType: type, metric: 'fisher_alpha', axis: 'disturbance_index' });
+      for (const c of EVIDENCE_COLUMNS) expect(quad[c], `${type} ${c}`).toBe(directQuad[c]);
+      expect(quad.mos_result).not.toBeNull();
     }
   });
 

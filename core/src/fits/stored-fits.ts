@@ -1,7 +1,7 @@
 // Curve fits as stored rows and `export fits` rows, and the points a fit is made from: shared by the
 // fits job (compute), the fits export and the report's fit tables and charts.
 import { WHOLE_FOREST_TYPE_SCOPE, type CurveFitRow, type FitScope, type LatestPlotMetrics, type PlotMetricDbColumn } from '@stemwise/db';
-import type { CurvePoint, CurveResult, FitLeftOut, FitRow } from '../science/verdict';
+import { verdictEvidence, type CurvePoint, type CurveResult, type CurveTests, type FitLeftOut, type FitRow, type PeakEstimate } from '../science/verdict';
 import { countLeftOut, leftOutText, leftOutTotal } from './left-out';
 
 /** Points (x = axis, y = metric) of the latest visit of each plot, where both are known. */
@@ -95,6 +95,7 @@ export function toFitRow(r: CurveFitRow): FitRow {
     peak_ci_high: r.peakCiHigh,
     verdict: r.verdict,
     ...leftOutCells(r.details),
+    ...(r.model === 'quadratic' ? verdictEvidence(r.details.tests as CurveTests | undefined, r.details.peak as PeakEstimate | undefined) : verdictEvidence(null, null)),
   };
 }
 

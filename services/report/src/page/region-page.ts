@@ -1,9 +1,10 @@
 import { problemLine, type ProblemView } from '@stemwise/db';
 import type { Snapshot } from '../snapshot-payload';
-import { CAUTION_WORDS, HEADLINE_VARIABLES, leftOutSentence, totalUnit, variableLabel, type CautionSettings, type DisturbanceRow, type RegionRow, type TotalRow } from '@stemwise/core';
-import { estimate, estimateInterval, figure, interval, isoMinute, samplingError, sharePercent, standardError } from './figures';
+import { CAUTION_WORDS, HEADLINE_VARIABLES, totalUnit, variableLabel, type CautionSettings, type DisturbanceRow, type RegionRow, type TotalRow } from '@stemwise/core';
+import { estimate, estimateInterval, figure, isoMinute, samplingError, sharePercent, standardError } from './figures';
 import { html, safeSvg, type Markup } from './html';
 import { pageShell } from './shell';
+import { fitsSection } from './fits-section';
 
 export interface RegionPageLinks {
   index: string;
@@ -143,31 +144,6 @@ function speciesTable(s: Snapshot): Markup | null {
     (r) => html`<tr class="${r.forest_type === WHOLE ? 'whole' : ''}"><td>${stratumName(r.forest_type)}</td><td class="num">${r.n_species}</td><td class="num">${r.n_plots_with_names}</td></tr>`,
   )}</tbody></table>
 <p class="muted">Species counted among live stems of the main plots identified to species (synonyms counted as their accepted name). Observed counts grow with the number of plots: compare strata with care.</p>`;
-}
-
-function fitsSection(s: Snapshot): Markup {
-  const { charts, fits } = s.payload;
-  const figures = charts.fits.map((c) => {
-    const svg = safeSvg(c.svg);
-    return html`<figure class="fit-chart" data-forest-type="${c.forest_type}">${svg ?? html`<p class="muted">No chart for ${c.forest_type}: ${c.missing ?? 'not available'}.</p>`}
-<figcaption>${c.forest_type}: ${c.metric} against ${c.axis} for all ${c.points} plots of this forest type in the inventory; the ${c.highlighted} plots of ${s.region} are drawn highlighted. The curve and the verdict are those of the forest type as a whole.</figcaption></figure>`;
-  });
-  const table = fits.length
-    ? html`<table id="fits"><thead><tr><th>Fitted on</th><th>Forest type</th><th>Model</th><th class="num">Plots</th><th class="num">R²</th><th class="num">AICc</th><th class="num">Peak (95 % CI)</th><th>Verdict</th></tr></thead><tbody>${fits.map(
-        (f) => html`<tr><td>${f.scope === WHOLE ? 'whole forest type' : `plots of ${f.scope}`}</td><td>${f.forest_type}</td><td>${f.model}</td><td class="num">${f.n}</td><td class="num">${figure(f.r2)}</td><td class="num">${figure(f.aicc)}</td><td class="num">${f.peak_x === null ? '–' : html`${figure(f.peak_x)} (${interval(f.peak_ci_low, f.peak_ci_high)})`}</td><td>${f.verdict.replace('_', ' ')}</td></tr>`,
-      )}</tbody></table>
-<p class="muted">A verdict summarises survey plots; it is not proof of cause (soil, altitude or history can make or hide a pattern).</p>`
-    : html`<p class="muted">No fits stored yet for these forest types.</p>`;
-  return html`${figures}${table}${leftOutList(fits)}`;
-}
-
-// Plots without the metric or the axis are not in a fit: how many, and why (one line per fit).
-function leftOutList(fits: Snapshot['payload']['fits']): Markup | null {
-  const lines = fits
-    .filter((f) => f.model === 'quadratic' && f.left_out_reasons)
-    .map((f) => html`<li>${f.scope === WHOLE ? `${f.forest_type} as a whole` : `${f.forest_type}, plots of ${f.scope}`}: ${plots(f.plots_left_out ?? 0)} left out — ${leftOutSentence(f.left_out_reasons)}.</li>`);
-  if (!lines.length) return null;
-  return html`<div id="fits-left-out"><p>Plots left out of the fits because the value is undefined for them:</p><ul>${lines}</ul></div>`;
 }
 
 // A short note of what could not be computed: the figures shown leave these parts out or are older for them.

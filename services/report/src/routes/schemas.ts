@@ -149,6 +149,19 @@ export const FitRowSchema = z.object({
   verdict: z.enum(['hump', 'increasing', 'decreasing', 'u_shape', 'none']).or(z.string()),
   plots_left_out: z.number().int().nullable().optional().describe('plots without the metric or the axis, left out of the fit (absent in summaries made before it was counted)'),
   left_out_reasons: z.string().nullable().optional().describe('`<column>:<reason>=<count>` joined by `;` (docs/exports.md)'),
+  delta_aicc: num.optional().describe('AICc(line) − AICc(parabola); positive favours the parabola (quadratic row)'),
+  curvature_p: num.optional().describe('two-sided p of the curvature b2 in the Mitchell-Olds & Shaw test'),
+  mos_turn_x: num.optional().describe("the parabola's turning point"),
+  mos_turn_inside: z.enum(['yes', 'no']).nullable().optional().describe('whether the turning point lies inside the observed x range'),
+  mos_result: z.enum(['pass', 'fail', 'not_testable']).nullable().optional().describe('Mitchell-Olds & Shaw test: significant curvature of the right sign and the turn inside the range'),
+  two_lines_break_x: num.optional(),
+  two_lines_slope_1: num.optional().describe('slope of the line below the break'),
+  two_lines_p_1: num.optional(),
+  two_lines_slope_2: num.optional().describe('slope of the line above the break'),
+  two_lines_p_2: num.optional(),
+  two_lines_result: z.enum(['pass', 'fail', 'not_testable']).nullable().optional().describe('two-lines test: a significant rise then fall (hump) or fall then rise (U)'),
+  peak_boot_low: num.optional().describe('percentile bootstrap interval of the peak (hump or U verdicts)'),
+  peak_boot_high: num.optional(),
 });
 
 export const SummaryResponse = z.object({
