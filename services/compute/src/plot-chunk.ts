@@ -1,5 +1,4 @@
 import {
-  PLOT_METRIC_DB_COLUMNS,
   listHeightModels,
   loadStemsForVisits,
   lockVisitsForCompute,
@@ -15,15 +14,8 @@ import {
   type PlotMetricsWrite,
   type UnresolvedNameCount,
 } from '@stemwise/db';
-import { computePlotMetrics, currentSpecies, heightModelFromRow, PLOT_METRIC_COLUMNS, type HeightDiameterModel, type PlotDiagnostics, type PlotMetrics, type ServiceDeps } from '@stemwise/core';
+import { computePlotMetrics, currentSpecies, heightModelFromRow, PLOT_METRICS, type HeightDiameterModel, type PlotDiagnostics, type ServiceDeps } from '@stemwise/core';
 import { isInfrastructureError, PermanentError, type Logger } from '@stemwise/platform';
-
-// The science's column list and the stored one must be the same columns in the same order.
-const METRIC_KEYS: ReadonlyArray<keyof PlotMetrics> = PLOT_METRIC_COLUMNS.map((c, i) => {
-  if (PLOT_METRIC_DB_COLUMNS[i]?.[0] !== c.column) throw new Error(`plot-chunk: metric column ${i} is ${c.column} in the science but ${PLOT_METRIC_DB_COLUMNS[i]?.[0]} in the database`);
-  return c.key;
-});
-if (PLOT_METRIC_DB_COLUMNS.length !== METRIC_KEYS.length) throw new Error('plot-chunk: the science and the database list different metric columns');
 
 export interface ChunkCounts {
   visits: number;
@@ -121,11 +113,12 @@ function computeVisit(
     }
     throw err;
   }
-  const m = result.metrics as unknown as Record<string, number | null>;
+  const { metrics } = result;
   return {
     visitId: visit.visitId,
     speciesVersionId,
-    values: METRIC_KEYS.map((k) => m[k]),
+    // In catalogue order: the order of PLOT_METRIC_DB_COLUMNS, which the upsert's columns follow.
+    values: PLOT_METRICS.map((c) => metrics[c.key]),
     diagnostics: { ...result.diagnostics, heightModelHeights: heightModel?.n ?? null },
   };
 }
