@@ -54,6 +54,8 @@ const envSchema = z.object({
   STEMWISE_DEFAULT_WOOD_DENSITY: num().pipe(z.number().min(0.1).max(1.5)).default(0.58),
   STEMWISE_MIN_HEIGHTS: intIn(3, 100_000).default(30),
   STEMWISE_SAMPLING_ERROR_T: z.enum(['t', '1.96', '2']).default('t'),
+  STEMWISE_CAUTION_MIN_PLOTS: intIn(1, 1_000_000).default(20),
+  STEMWISE_CAUTION_MAX_SAMPLING_ERROR_PCT: num().pipe(z.number().gt(0).max(1000)).default(20),
   STEMWISE_FIT_METRIC: z.string().min(1).default('fisher_alpha'),
   STEMWISE_FIT_AXIS: z.string().min(1).default('disturbance_index'),
   STEMWISE_BOOTSTRAP: intIn(0, 100_000).default(1000),
@@ -108,6 +110,10 @@ export interface Config {
   defaultWoodDensity: number;
   minHeights: number;
   samplingErrorT: 't' | '1.96' | '2';
+  /** Estimates from fewer plots are flagged `few_plots` (caution_flag). */
+  cautionMinPlots: number;
+  /** Estimates with a larger sampling error (percent) are flagged `wide_error` (caution_flag). */
+  cautionMaxSamplingErrorPct: number;
   fitMetric: string;
   fitAxis: string;
   bootstrap: number;
@@ -149,6 +155,8 @@ export const SETTINGS: ReadonlyArray<{ name: string; default: string; meaning: s
   { name: 'STEMWISE_DEFAULT_WOOD_DENSITY', default: '0.58', meaning: 'regional default wood density (g/cm³) when nothing better is known' },
   { name: 'STEMWISE_MIN_HEIGHTS', default: '30', meaning: 'measured heights a forest type needs before a height–diameter model is fitted' },
   { name: 'STEMWISE_SAMPLING_ERROR_T', default: 't', meaning: 'multiplier of the sampling error %: Student t, 1.96 or 2' },
+  { name: 'STEMWISE_CAUTION_MIN_PLOTS', default: '20', meaning: 'estimates from fewer plots are marked on the pages and flagged `few_plots` in `caution_flag` (common practice, no single source)' },
+  { name: 'STEMWISE_CAUTION_MAX_SAMPLING_ERROR_PCT', default: '20', meaning: 'estimates with a larger sampling error (%) are marked on the pages and flagged `wide_error` in `caution_flag` (common practice, no single source)' },
   { name: 'STEMWISE_FIT_METRIC', default: 'fisher_alpha', meaning: 'diversity column of the nightly curve fits' },
   { name: 'STEMWISE_FIT_AXIS', default: 'disturbance_index', meaning: 'disturbance column of the nightly curve fits' },
   { name: 'STEMWISE_BOOTSTRAP', default: '1000', meaning: 'bootstrap resamples for the vertex interval' },
@@ -213,6 +221,8 @@ export function loadConfig(env: Readonly<Record<string, string | undefined>> = p
     defaultWoodDensity: e.STEMWISE_DEFAULT_WOOD_DENSITY,
     minHeights: e.STEMWISE_MIN_HEIGHTS,
     samplingErrorT: e.STEMWISE_SAMPLING_ERROR_T,
+    cautionMinPlots: e.STEMWISE_CAUTION_MIN_PLOTS,
+    cautionMaxSamplingErrorPct: e.STEMWISE_CAUTION_MAX_SAMPLING_ERROR_PCT,
     fitMetric: e.STEMWISE_FIT_METRIC,
     fitAxis: e.STEMWISE_FIT_AXIS,
     bootstrap: e.STEMWISE_BOOTSTRAP,
