@@ -15,7 +15,6 @@ const WAIT_LIMIT_MS = 60 * 60_000;
 const options = { now: { type: 'boolean', default: false }, all: { type: 'boolean', default: false } } as const;
 
 export const command = defineCommand({
-  summary: 'recomputes what new plots made stale: recompute [--now] [--all]',
   usage: `usage: stemwise recompute [--now] [--all]
 
 Recomputes the plot figures, curve fits and region summaries that new or changed plots made stale.

@@ -8,7 +8,6 @@ const CHOICES = ['ingest', 'compute', 'report', 'all'] as const;
 const options = {} as const;
 
 export const command = defineCommand({
-  summary: 'runs services and workers: serve [ingest|compute|report|all]',
   usage: `usage: stemwise serve [ingest|compute|report|all]
 
 Runs until SIGTERM or SIGINT (then lets running jobs finish for STEMWISE_STOP_GRACE_SECONDS).

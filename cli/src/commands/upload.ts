@@ -44,7 +44,6 @@ const options = {
 } as const;
 
 export const command = defineCommand({
-  summary: 'submits a batch: upload DIR | --plots F --trees F [--strata F] [--species F] [--wait]',
   usage: USAGE,
   options,
   positionals: true,
