@@ -1,5 +1,5 @@
 import { getRecomputeRun } from '@stemwise/db';
-import { liveRecompute, planRecompute, type ServiceDeps } from '@stemwise/core';
+import { liveRecompute, planRecompute, stageTimeLines, type ServiceDeps, type StageTime } from '@stemwise/core';
 import { StemwiseError, type JobName } from '@stemwise/platform';
 import { allProcessors } from '../processors';
 import { defineCommand, type Parsed } from '../command';
@@ -104,6 +104,7 @@ async function printRun(deps: ServiceDeps, runId: string): Promise<void> {
     plan?: { visits: number; chunks: number; outdatedSpecies: number; heightModels: Array<{ forestType: string; heights: number; outcome: string }> };
     metrics?: { visits: number; stems: number; chunks: number };
     fits?: Array<{ forestType: string; n: number; verdict: string; regions: number }>;
+    stages?: Record<string, StageTime>;
   };
   const lines = [`run ${run.id} (${run.trigger}): ${run.state}`];
   if (d.metrics) lines.push(`plot metrics: ${d.metrics.visits} plot visits, ${d.metrics.stems} stems, ${d.metrics.chunks} chunk${d.metrics.chunks === 1 ? '' : 's'}`);
@@ -114,5 +115,6 @@ async function printRun(deps: ServiceDeps, runId: string): Promise<void> {
     lines.push(`height model ${h.forestType}: ${what}, ${h.heights} measured heights`);
   }
   for (const f of d.fits ?? []) lines.push(`fits ${f.forestType}: ${f.verdict} (n = ${f.n}${f.regions ? `, ${f.regions} region fits` : ''})`);
+  lines.push(...stageTimeLines(d.stages));
   printOut(lines.join('\n') + '\n');
 }

@@ -32,6 +32,8 @@ export interface ChunkCounts {
   missing: number;
   /** Visits whose metrics could not be computed (recorded in compute_problems; the others are written). */
   failed: number;
+  /** When the chunk started (epoch ms) and how long it took: the run's stage times come from these. */
+  start: number;
   ms: number;
 }
 
@@ -43,6 +45,7 @@ export interface ChunkCounts {
  * same rows and counts.
  */
 export async function computePlotChunk(deps: Pick<ServiceDeps, 'db' | 'config'> & { log?: Logger }, runId: string, visitIds: readonly number[], jobId: string): Promise<ChunkCounts> {
+  const start = Date.now();
   const started = performance.now();
   const { db, config, log } = deps;
   const species = await currentSpecies(db);
@@ -85,7 +88,7 @@ export async function computePlotChunk(deps: Pick<ServiceDeps, 'db' | 'config'> 
     await markVisitsComputed(tx, ids);
     await markStale(tx, 'fits', forestTypes);
     await markStale(tx, 'summary', [...new Set(visits.map((v) => v.region))].sort());
-    const counts: ChunkCounts = { visits: visits.length, stems: nStems, missing: visitIds.length - visits.length, failed: failed.length, ms: Math.round(performance.now() - started) };
+    const counts: ChunkCounts = { visits: visits.length, stems: nStems, missing: visitIds.length - visits.length, failed: failed.length, start, ms: Math.round(performance.now() - started) };
     await recordChunkInRun(tx, runId, jobId, { ...counts });
     return counts;
   });
