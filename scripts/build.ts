@@ -13,6 +13,7 @@ import { build, type Plugin } from 'esbuild';
 
 export const ROOT = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '..');
 export const BUNDLE = path.join(ROOT, 'dist', 'stemwise.mjs');
+const METRICS_WORKER = path.join(ROOT, 'services', 'compute', 'src', 'metrics-worker.ts');
 
 /** Bare imports outside our workspace stay imports of node_modules. */
 const externalDependencies: Plugin = {
@@ -46,7 +47,8 @@ function sourceUrls(outfile: string): Plugin {
 export async function bundle(entry: string, outfile: string, { split = false } = {}): Promise<void> {
   const outdir = path.dirname(outfile);
   const result = await build({
-    entryPoints: { [path.basename(outfile, '.mjs')]: entry },
+    // The metrics worker thread's own file is beside every bundle (it is small), for those that start one.
+    entryPoints: { [path.basename(outfile, '.mjs')]: entry, 'metrics-worker': METRICS_WORKER },
     outdir,
     outExtension: { '.js': '.mjs' },
     splitting: split,
@@ -60,7 +62,8 @@ export async function bundle(entry: string, outfile: string, { split = false } =
     logLevel: 'warning',
     plugins: [externalDependencies, sourceUrls(outfile)],
     // Bundled code that calls require() (none of ours; kept for dependencies' interop helpers).
-    banner: { js: "import { createRequire as __stemwiseCreateRequire } from 'node:module'; const require = __stemwiseCreateRequire(import.meta.url);" },
+    // `__stemwiseBuildUrl`: where the compiled file is, for code that starts a worker thread from a file beside it (metrics-pool.ts).
+    banner: { js: "import { createRequire as __stemwiseCreateRequire } from 'node:module'; const require = __stemwiseCreateRequire(import.meta.url); const __stemwiseBuildUrl = import.meta.url;" },
   });
   // Chunks of an earlier build that this one no longer writes.
   const written = new Set(Object.keys(result.metafile.outputs).map((f) => path.resolve(f)));

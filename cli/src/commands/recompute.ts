@@ -32,8 +32,8 @@ async function recompute({ values }: Parsed<typeof options>, rt: Runtime): Promi
   const deps: ServiceDeps = { config: rt.config, db: await rt.db(), log: rt.log, queue: await rt.queue() };
 
   if (deps.queue.kind === 'in-process') {
-    const { processors, queues } = await allProcessors(deps);
-    await deps.queue.work(processors, { queues });
+    const { processors, ...work } = await allProcessors(deps);
+    await deps.queue.work(processors, work);
     const plan = await planRecompute(deps, 'manual', all);
     if (!plan) return nothingStale(deps);
     const failures = await deps.queue.drain();

@@ -4,3 +4,4 @@ export { storeFits, refreshStaleFits, fitForestType, MIN_REGION_PLOTS, type FitS
 export { exportPlots, plotExportItems, PLOT_EXPORT_COLUMNS, PLOT_EXPORT_FORMATS, type PlotExportFormat, type ExportSummary } from './export/plots';
 export { exportFits, FIT_EXPORT_FORMATS, type FitExportFormat } from './export/fits';
 export { service } from './service';
+export { metricsPool, closeMetricsPool } from './metrics-pool';

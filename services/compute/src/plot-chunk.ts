@@ -11,19 +11,20 @@ import {
   recordProblems,
   upsertPlotMetrics,
   type ComputeStemRow,
-  type ComputeVisitRow,
   type PlotMetricsWrite,
   type UnresolvedNameCount,
 } from '@stemwise/db';
-import { computePlotMetrics, currentSpecies, heightModelFromRow, PLOT_METRIC_COLUMNS, type HeightDiameterModel, type PlotDiagnostics, type PlotMetrics, type ServiceDeps } from '@stemwise/core';
-import { isInfrastructureError, PermanentError, type Logger } from '@stemwise/platform';
+import { currentSpecies, heightModelFromRow, PLOT_METRIC_COLUMNS, type HeightDiameterModel, type ServiceDeps } from '@stemwise/core';
+import type { Logger } from '@stemwise/platform';
+import { computeVisits, type ChunkTask } from './chunk-metrics';
+import { metricsPool } from './metrics-pool';
 
-// The science's column list and the stored one must be the same columns in the same order.
-const METRIC_KEYS: ReadonlyArray<keyof PlotMetrics> = PLOT_METRIC_COLUMNS.map((c, i) => {
+// The science's column list (the order of the values chunk-metrics.ts computes) and the stored one must
+// be the same columns in the same order.
+PLOT_METRIC_COLUMNS.forEach((c, i) => {
   if (PLOT_METRIC_DB_COLUMNS[i]?.[0] !== c.column) throw new Error(`plot-chunk: metric column ${i} is ${c.column} in the science but ${PLOT_METRIC_DB_COLUMNS[i]?.[0]} in the database`);
-  return c.key;
 });
-if (PLOT_METRIC_DB_COLUMNS.length !== METRIC_KEYS.length) throw new Error('plot-chunk: the science and the database list different metric columns');
+if (PLOT_METRIC_DB_COLUMNS.length !== PLOT_METRIC_COLUMNS.length) throw new Error('plot-chunk: the science and the database list different metric columns');
 
 export interface ChunkCounts {
   visits: number;
@@ -56,28 +57,28 @@ export async function computePlotChunk(deps: Pick<ServiceDeps, 'db' | 'config'> 
     // Read after the visits are locked, so a concurrent refit (which marks these visits stale) is either seen or waits.
     const models = new Map<string, HeightDiameterModel>((await listHeightModels(tx, forestTypes)).map((m) => [m.forestType, heightModelFromRow(m)]));
 
+    const stems = visits.map((v) => stemsOf.get(v.visitId) ?? []);
+    // The CPU-bound part, in the worker threads when there are any (see metrics-pool.ts); the same code either way.
+    const task: ChunkTask = { visits, stems, species: species.index, models: [...models], defaultWoodDensity: config.defaultWoodDensity, speciesVersionId: species.versionId };
+    const outcomes = config.computeThreads > 0 ? await metricsPool(config.computeThreads).compute(task) : computeVisits(task);
+
     const writes: PlotMetricsWrite[] = [];
     const unresolved: UnresolvedNameCount[] = [];
     const failed: Parameters<typeof recordProblems>[2][number][] = [];
-    let nStems = 0;
-    for (const visit of visits) {
-      const stems = stemsOf.get(visit.visitId) ?? [];
-      nStems += stems.length;
-      let write;
-      try {
-        write = computeVisit(visit, stems, species.index, models.get(visit.forestType) ?? null, config.defaultWoodDensity, species.versionId);
-      } catch (err) {
-        if (isInfrastructureError(err)) throw err;
+    const nStems = stems.reduce((a, s) => a + s.length, 0);
+    outcomes.forEach((outcome, i) => {
+      const visit = visits[i];
+      if ('reason' in outcome) {
         // One plot that cannot be computed does not hold back the others: its reason is recorded, its
         // stale mark cleared (no run retries it until its data change), its earlier metrics left as they were.
-        const reason = (err as Error).message;
+        const { reason } = outcome;
         log?.error({ runId, plotKey: visit.plotKey, visitId: visit.visitId, forestType: visit.forestType, reason }, 'plot metrics could not be computed; the other plots go on');
         failed.push({ stage: 'plot', forestType: visit.forestType, region: visit.region, visitId: visit.visitId, plotKey: visit.plotKey, reason });
-        continue;
+        return;
       }
-      for (const u of write.diagnostics.unresolvedNames) unresolved.push({ batchId: visit.batchId, name: u.name, level: u.level, stems: u.stems });
-      writes.push(write);
-    }
+      for (const u of outcome.write.diagnostics.unresolvedNames) unresolved.push({ batchId: visit.batchId, name: u.name, level: u.level, stems: u.stems });
+      writes.push(outcome.write);
+    });
 
     const ids = visits.map((v) => v.visitId);
     const computed = writes.map((w) => w.visitId);
@@ -92,43 +93,4 @@ export async function computePlotChunk(deps: Pick<ServiceDeps, 'db' | 'config'> 
     await recordChunkInRun(tx, runId, jobId, { ...counts });
     return counts;
   });
-}
-
-function computeVisit(
-  visit: ComputeVisitRow,
-  stems: readonly ComputeStemRow[],
-  index: Parameters<typeof computePlotMetrics>[2],
-  heightModel: HeightDiameterModel | null,
-  defaultWoodDensity: number,
-  speciesVersionId: number | null,
-): PlotMetricsWrite & { diagnostics: PlotDiagnostics & { heightModelHeights: number | null } } {
-  let result;
-  try {
-    result = computePlotMetrics(
-      {
-        areaHa: visit.areaHa,
-        dbhMinCm: visit.dbhMinCm,
-        subplotAreaHa: visit.subplotAreaHa,
-        subplotDbhMinCm: visit.subplotDbhMinCm,
-        loggingClass: visit.loggingClass,
-        fireClass: visit.fireClass,
-        climate: visit.climate,
-      },
-      stems,
-      index,
-      { heightModel, defaultWoodDensity },
-    );
-  } catch (err) {
-    if (err instanceof RangeError) {
-      throw new PermanentError('plot_invalid', `plot ${visit.plotKey} (visit ${visit.visitId}): ${err.message}`, { cause: err });
-    }
-    throw err;
-  }
-  const m = result.metrics as unknown as Record<string, number | null>;
-  return {
-    visitId: visit.visitId,
-    speciesVersionId,
-    values: METRIC_KEYS.map((k) => m[k]),
-    diagnostics: { ...result.diagnostics, heightModelHeights: heightModel?.n ?? null },
-  };
 }
