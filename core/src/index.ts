@@ -4,8 +4,11 @@
 export type { ServiceDeps } from './deps';
 export type { ServiceDescriptor, ServiceName, StartedService } from './service';
 export * from './science/index';
+// The plot-metric catalogue (its home is @stemwise/db, whose schema derives from it).
+export * from '@stemwise/db/catalogue';
 export * from './fits/fit-columns';
 export * from './fits/stored-fits';
+export * from './fits/chart-data';
 export * from './export/table-format';
 export * from './export/sink';
 export * from './species/species-cache';

@@ -1,6 +1,7 @@
 export * from './connection';
 export * from './advisory-locks';
 export * as schema from './schema/index';
+export * from './catalogue/plot-metrics';
 export * from './queries/forest-types';
 export * from './queries/recompute';
 export * from './queries/reconcile';

@@ -1,9 +1,11 @@
 // Benchmark of the metrics stage on PostgreSQL: generates and loads (straight into the tables with
 // COPY, not through ingest) about 250k, 1M and, with --big, 4M stems in plots of ~125 stems, then
 // plans a recompute and runs every plot-chunk job (the processor's own function, as many at once as
-// STEMWISE_COMPUTE_CONCURRENCY) and prints the wall time and µs per stem of each size. With --in-process
-// the run goes through the in-process queue with the services' own processors instead (as `stemwise
-// recompute` without REDIS_URL runs it: metrics, fits, summaries) and its stage times are printed.
+// STEMWISE_COMPUTE_CONCURRENCY) and prints the wall time and µs per stem of each size, then the fits
+// stage and the region summaries stage (twice: after the fits, and again with every region marked
+// stale but no fit changed, which draws no chart anew). With --in-process the run goes through the
+// in-process queue with the services' own processors instead (as `stemwise recompute` without
+// REDIS_URL runs it: metrics, fits, summaries) and its stage times are printed.
 //
 //   DATABASE_URL=postgres://postgres@127.0.0.1:5432/postgres npx tsx scripts/bench/compute.ts [--big] [--sizes 250000,1000000] [--in-process]
 //
@@ -11,9 +13,9 @@
 import crypto from 'node:crypto';
 import { parseArgs } from 'node:util';
 import { createLogger, InProcessQueue, loadConfig, type JobQueue } from '@stemwise/platform';
-import { getRecomputeRun, migrateDatabase, openDatabase, syncForestTypes, type Db } from '@stemwise/db';
+import { getRecomputeRun, markStale, migrateDatabase, openDatabase, syncForestTypes, type Db } from '@stemwise/db';
 import { computePlotChunk, refreshStaleFits, service as computeService } from '@stemwise/compute';
-import { service as reportService } from '@stemwise/report';
+import { refreshStaleSummaries, service as reportService } from '@stemwise/report';
 import { finishPlotsStage, planRecompute, stageTimeLines, type StageTime } from '@stemwise/core';
 import { fixtureSpecies, loadSpecies, rng } from '../../test/compute/fixtures';
 
@@ -130,12 +132,25 @@ async function benchOne(nStems: number): Promise<void> {
     t = performance.now();
     await refreshStaleFits(deps);
     const fitsMs = performance.now() - t;
+    t = performance.now();
+    let cpu = process.cpuUsage();
+    await refreshStaleSummaries(deps);
+    const summariesMs = performance.now() - t;
+    const summariesCpuMs = process.cpuUsage(cpu).user / 1000;
+    await markStale(db, 'summary', REGIONS);
+    t = performance.now();
+    cpu = process.cpuUsage();
+    await refreshStaleSummaries(deps);
+    const summariesAgainMs = performance.now() - t;
+    const summariesAgainCpuMs = process.cpuUsage(cpu).user / 1000;
     const metricsMs = planMs + chunkMs;
     const [{ n }] = await db.query<{ n: number }>(`select count(*)::int n from plot_metrics`);
     process.stdout.write(
       `${String(stems).padStart(9)} stems ${String(n).padStart(6)} plots | load ${(loadMs / 1000).toFixed(1)} s | ` +
         `metrics ${(metricsMs / 1000).toFixed(2)} s (plan + height models ${(planMs / 1000).toFixed(2)} s, ${chunks.length} chunks ${(chunkMs / 1000).toFixed(2)} s) ` +
-        `= ${((metricsMs * 1000) / stems).toFixed(2)} µs/stem | fits ${(fitsMs / 1000).toFixed(2)} s\n`,
+        `= ${((metricsMs * 1000) / stems).toFixed(2)} µs/stem | fits ${(fitsMs / 1000).toFixed(2)} s | ` +
+        `summaries ${(summariesMs / 1000).toFixed(2)} s (${(summariesCpuMs / 1000).toFixed(2)} s CPU here), ` +
+        `again with no fit changed ${(summariesAgainMs / 1000).toFixed(2)} s (${(summariesAgainCpuMs / 1000).toFixed(2)} s CPU here)\n`,
     );
   } finally {
     await db.close();

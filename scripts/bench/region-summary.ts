@@ -1,5 +1,6 @@
 // `npm run bench -- --only region-summary`: speed of summariseRegion on a large invented region (no database).
-import { DEFAULT_REGION_VARIABLES, summariseRegion, type PlotMetrics } from '@stemwise/report';
+import { DEFAULT_REGION_VARIABLES } from '@stemwise/core';
+import { summariseRegion, type PlotMetrics } from '@stemwise/report';
 
 function invented(nPlots: number, nTypes: number): PlotMetrics[] {
   let seed = 12345;

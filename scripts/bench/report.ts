@@ -10,7 +10,7 @@
 // The server runs in a child process (so the load loop does not share its event loop) on its own
 // database: a scratch database created on the PostgreSQL server of DATABASE_URL (dropped at the end),
 // or an embedded PGlite in a temporary folder when DATABASE_URL is unset. It is seeded with an
-// invented region of `--plots` plots over three forest types and one summaries run.
+// invented region of `--plots` plots over three forest types, their fits and one summaries run.
 import { spawn, spawnSync } from 'node:child_process';
 import crypto from 'node:crypto';
 import fs from 'node:fs';
@@ -23,6 +23,7 @@ import pg from 'pg';
 import { createLogger, InProcessQueue, loadConfig } from '@stemwise/platform';
 import { markStale, migrateDatabase, openDatabase, syncForestTypes } from '@stemwise/db';
 import { createRng, type ServiceDeps } from '@stemwise/core';
+import { storeFits } from '@stemwise/compute';
 import { buildServer, createProcessors } from '@stemwise/report';
 import { jobContext, seedForestArea, seedPlots, seedRun, seedSpecies, type FixturePlot } from '../../test/report/fixture';
 import { createToken } from '../../test/report/tokens';
@@ -101,6 +102,7 @@ async function serve(plots: number): Promise<void> {
   for (const [t, ha] of [['wet', 52_000], ['moist', 31_000], ['dry', 17_500]] as const) await seedForestArea(db, REGION, t, ha);
   await markStale(db, 'summary', [REGION]);
   const deps: ServiceDeps = { config, db, log, queue: new InProcessQueue(log) };
+  await storeFits(deps, ['wet', 'moist', 'dry']); // the charts of the page are drawn from the stored fits
   await createProcessors(deps)['report.summaries']!({ runId: await seedRun(db) }, jobContext(log));
   const token = (await createToken(db, 'reader', [REGION], 'bench')).token;
   const app = await buildServer(deps);

@@ -1,14 +1,17 @@
+import { PLOT_METRICS } from '@stemwise/db';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { generateInventory, fixtureSpecies, loadInventory, loadSpecies } from './fixtures';
 import { plotsText, recomputeInProcess } from './support';
 import { useServices, type TestServices } from '../support/services';
 
-// The `export plots` columns exactly as in docs/exports.md (copied here on purpose: the test
-// must fail if the code's list drifts from the contract).
-const SPEC_COLUMNS =
+// The `export plots` columns of version 1 exactly as in docs/exports.md (copied here on purpose: the
+// test must fail if the code's list drifts from the contract), then the columns appended since: the
+// metrics the catalogue lists after them (a column is added at the end, never renamed or moved).
+const SPEC_COLUMNS_V1 =
   'plot_id, survey_date, region, forest_type, stems_ha, basal_area_m2_ha, qmd_cm, agb_mg_ha, carbon_mg_ha, n_identified, richness, shannon, simpson, inv_simpson, pielou, fisher_alpha, rarefied_50, chao1, pioneer_ba_share, light_demander_ba_share, shade_tolerant_ba_share, unassigned_ba_share, logging_removed_ba_frac, logging_score, fire_score, disturbance_index'.split(
     ', ',
   );
+const SPEC_COLUMNS = [...SPEC_COLUMNS_V1, ...PLOT_METRICS.slice(SPEC_COLUMNS_V1.length - 4).map((m) => m.column)];
 
 describe('export plots', () => {
   let s: TestServices;

@@ -2,7 +2,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { listStale, markStale } from '@stemwise/db';
 import { StemwiseError } from '@stemwise/platform';
 import { MIN_REGION_PLOTS, storeFits } from '@stemwise/compute';
-import { fitCurves } from '@stemwise/core';
+import { asStoredFitChart, fitCurves } from '@stemwise/core';
 import { fixtureSpecies, generateInventory, loadInventory, loadSpecies, REGIONS } from './fixtures';
 import { fitsText, plotsText, recomputeInProcess } from './support';
 import { useServices, type TestServices } from '../support/services';
@@ -62,6 +62,17 @@ describe('diversity–disturbance fits', () => {
       expect(quad.b2).toBe(direct.quadratic!.b2);
       expect(quad.aicc).toBe(direct.quadratic!.aicc);
       expect(quad.verdict).toBe(direct.verdict);
+      // what the region pages' chart shows is stored with the fit: the same points, in order, with their region
+      const [row] = await s.db.query<{ chart: unknown }>(`select chart from fit_charts where forest_type = $1 and metric = 'fisher_alpha' and axis = 'disturbance_index'`, [type]);
+      const chart = asStoredFitChart(row?.chart)!;
+      expect(chart).not.toBeNull();
+      expect(chart.points.x).toEqual(points.map((p) => p.x));
+      expect(chart.points.y).toEqual(points.map((p) => p.y));
+      const regionOf = new Map([...latest.values()].map((p) => [p.plot_id as string, p.region as string]));
+      const keys = [...latest.values()].filter((p) => p.forest_type === type && p.fisher_alpha !== null && p.disturbance_index !== null).map((p) => p.plot_id as string).sort((a, b) => (a < b ? -1 : 1));
+      expect(chart.points.region.map((i) => chart.points.regions[i])).toEqual(keys.map((k) => regionOf.get(k)));
+      expect({ n: chart.n, verdict: chart.verdict }).toEqual({ n: direct.n, verdict: direct.verdict });
+      expect(chart.curve.x[0]).toBe(direct.xMin);
     }
   });
 

@@ -1,4 +1,5 @@
-import { upsertCurveFits, type CurveFitRow, type Db } from '@stemwise/db';
+import { upsertCurveFits, upsertFitChart, type CurveFitRow, type Db } from '@stemwise/db';
+import { fitChartData, fitChartPoints, fitCurves } from '@stemwise/core';
 import { seedForestArea, seedPlots, seedSpecies, type FixturePlot } from './fixture';
 
 // The invented scenario of the report tests. Tessaly has three regions:
@@ -39,6 +40,13 @@ function fitRow(scope: string, forestType: string, model: 'linear' | 'quadratic'
   };
 }
 
+/** What the fits job stores for a forest type's chart, from the scenario's plots in plot-key order. */
+export function scenarioChart(forestType: string): object {
+  const plots = [...NORTHVALE, ...SOUTHMERE, ...OSTMARK].filter((p) => p.forestType === forestType).sort((a, b) => (a.key < b.key ? -1 : 1));
+  const points = plots.map((p) => ({ x: p.metrics.disturbance_index!, y: p.metrics.fisher_alpha!, region: p.region }));
+  return { ...fitChartData(fitCurves(points.map(({ x, y }) => ({ x, y })))), points: fitChartPoints(points) };
+}
+
 export async function seedScenario(db: Db): Promise<void> {
   await seedSpecies(db);
   await seedPlots(db, [...NORTHVALE, ...SOUTHMERE, ...OSTMARK]);
@@ -51,4 +59,5 @@ export async function seedScenario(db: Db): Promise<void> {
     fitRow('Northvale', 'wet', 'linear', 3, 'none'),
     fitRow('Southmere', 'moist', 'linear', 5, 'increasing'),
   ]);
+  for (const t of ['wet', 'moist', 'dry']) await upsertFitChart(db, t, 'fisher_alpha', 'disturbance_index', scenarioChart(t));
 }

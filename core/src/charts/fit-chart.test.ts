@@ -1,7 +1,8 @@
 import { describe, expect, it } from 'vitest';
 import { simulateCurve } from '../../test/random-test-data';
 import { fitCurves } from '../science/verdict';
-import { buildFitChartSpec, chartModel, fitChartCaption, renderFitChartSvg } from './fit-chart';
+import { chartModel, fitChartData } from '../fits/chart-data';
+import { buildFitChartSpec, fitChartCaption, renderFitChartSvg } from './fit-chart';
 
 // The symbols drawn by one named layer: vega writes a <g class="mark-symbol role-mark NAME_marks">
 // holding one <path> per point.
@@ -29,7 +30,7 @@ const humpFit = fitCurves(humpPoints, { bootstrapN: 100 });
 
 describe('renderFitChartSvg', () => {
   it('returns well-formed SVG with one mark per plot, highlighted plots drawn apart', async () => {
-    const svg = await renderFitChartSvg({ forestType: 'Lowland moist', metric: 'fisher_alpha', axis: 'disturbance_index', points: humpPoints, fit: humpFit });
+    const svg = await renderFitChartSvg({ forestType: 'Lowland moist', metric: 'fisher_alpha', axis: 'disturbance_index', points: humpPoints, chart: fitChartData(humpFit) });
     expect(svg.startsWith('<svg')).toBe(true);
     expect(svg.trimEnd().endsWith('</svg>')).toBe(true);
     expect(isBalanced(svg)).toBe(true);
@@ -38,9 +39,9 @@ describe('renderFitChartSvg', () => {
   });
 
   it('shows the caption with R², n and verdict, the curve, its band, and the peak with its interval for a hump', async () => {
-    const svg = await renderFitChartSvg({ forestType: 'Lowland moist', metric: 'fisher_alpha', axis: 'disturbance_index', points: humpPoints, fit: humpFit });
+    const svg = await renderFitChartSvg({ forestType: 'Lowland moist', metric: 'fisher_alpha', axis: 'disturbance_index', points: humpPoints, chart: fitChartData(humpFit) });
     expect(humpFit.verdict).toBe('hump');
-    const caption = fitChartCaption(humpFit);
+    const caption = fitChartCaption(fitChartData(humpFit));
     expect(caption).toMatch(/^R² = 0\.\d+ \(quadratic\) · n = 300 · verdict: hump · band: 95 % CI of the fitted mean · peak at 0\.\d+ \(95 % CI/);
     expect(svg).toContain(caption);
     expect(svg).toContain('Lowland moist: fisher_alpha against disturbance_index');
@@ -55,7 +56,7 @@ describe('renderFitChartSvg', () => {
     const fit = fitCurves(pts, { bootstrapN: 0 });
     expect(fit.verdict).toBe('increasing');
     expect(chartModel(fit)?.model).toBe('linear');
-    const svg = await renderFitChartSvg({ forestType: 'Ridge dry', metric: 'richness', axis: 'fire_score', points: pts, fit });
+    const svg = await renderFitChartSvg({ forestType: 'Ridge dry', metric: 'richness', axis: 'fire_score', points: pts, chart: fitChartData(fit) });
     expect(markPaths(svg, 'plots')).toBe(120);
     expect(markPaths(svg, 'highlighted')).toBe(-1);
     expect(svg).toMatch(/role-mark curve_marks/);
@@ -65,14 +66,14 @@ describe('renderFitChartSvg', () => {
 
   it('draws only the points when too few plots were fitted', async () => {
     const pts = simulateCurve(6, (x) => x, 1, 63);
-    const svg = await renderFitChartSvg({ forestType: 'Swamp', metric: 'shannon', axis: 'logging_score', points: pts, fit: fitCurves(pts) });
+    const svg = await renderFitChartSvg({ forestType: 'Swamp', metric: 'shannon', axis: 'logging_score', points: pts, chart: fitChartData(fitCurves(pts)) });
     expect(markPaths(svg, 'plots')).toBe(6);
     expect(svg).not.toMatch(/curve_marks/);
     expect(svg).toContain('no fit · n = 6 · verdict: none');
   });
 
   it('escapes text from the data', async () => {
-    const svg = await renderFitChartSvg({ forestType: 'Dry <ridge> & hills', metric: 'm', axis: 'a', points: humpPoints, fit: humpFit });
+    const svg = await renderFitChartSvg({ forestType: 'Dry <ridge> & hills', metric: 'm', axis: 'a', points: humpPoints, chart: fitChartData(humpFit) });
     expect(svg).toContain('Dry &lt;ridge&gt; &amp; hills');
     expect(isBalanced(svg)).toBe(true);
   });
@@ -80,7 +81,7 @@ describe('renderFitChartSvg', () => {
 
 describe('buildFitChartSpec', () => {
   it('evaluates the band as ŷ ± t·SE around the curve, and uses the requested size', () => {
-    const spec = buildFitChartSpec({ forestType: 'f', metric: 'm', axis: 'a', points: humpPoints, fit: humpFit, width: 300, height: 200 }) as {
+    const spec = buildFitChartSpec({ forestType: 'f', metric: 'm', axis: 'a', points: humpPoints, chart: fitChartData(humpFit), width: 300, height: 200 }) as {
       width: number;
       height: number;
       layer: { name: string; data: { values: { x: number; y: number; low: number; high: number }[] } }[];

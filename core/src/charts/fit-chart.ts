@@ -1,11 +1,9 @@
 // SVG chart of one diversity–disturbance fit: the plots as points, the better model's curve with its
 // 95 % confidence band for the mean, and for a hump (or U) the turning point with its interval.
 // Built as a vega-lite spec, compiled to vega and rendered headless to SVG (no canvas needed).
-import * as vega from 'vega';
-import { compile, type TopLevelSpec } from 'vega-lite';
-import { predictPolynomial } from '../science/regression';
-import { studentTQuantile } from '../science/student-t';
-import type { CurveResult, ModelFit } from '../science/verdict';
+import type { TopLevelSpec } from 'vega-lite';
+import type { FitChartData, FitChartPoints } from '../fits/chart-data';
+import { renderVegaLiteSvg } from './render';
 
 export interface ChartPoint {
   readonly x: number;
@@ -19,7 +17,8 @@ export interface FitChartInput {
   readonly metric: string;
   readonly axis: string;
   readonly points: readonly ChartPoint[];
-  readonly fit: CurveResult;
+  /** The fit as drawn (fitChartData of a result, or as stored by the fits job). */
+  readonly chart: FitChartData;
   /** Plot area width in pixels. Default 560. */
   readonly width?: number;
   /** Plot area height in pixels. Default 340. */
@@ -38,61 +37,45 @@ export const FIT_CHART_COLOURS = {
   text: '#333333',
 } as const;
 
-/** Number of x positions at which the curve and its band are evaluated. */
-export const CURVE_STEPS = 120;
-
-const BAND_LEVEL = 0.95;
-
 type LayerItem = Extract<TopLevelSpec, { layer: unknown }>['layer'][number];
-
-/** The model drawn: the parabola when it has the lower AICc, else the straight line. */
-export function chartModel(fit: CurveResult): ModelFit | null {
-  if (fit.quadratic && (fit.tests.quadraticPreferred || !fit.linear)) return fit.quadratic;
-  return fit.linear;
-}
 
 const num = (v: number): string => (Math.abs(v) >= 1e-3 && Math.abs(v) < 1e5 ? String(Number(v.toPrecision(3))) : v.toExponential(2));
 
 /** The caption under the title: R², n and the verdict (with the turning point when there is one). */
-export function fitChartCaption(fit: CurveResult): string {
-  const model = chartModel(fit);
-  const parts = [model ? `R² = ${num(model.r2)} (${model.model})` : 'no fit', `n = ${fit.n}`, `verdict: ${fit.verdict}`];
+export function fitChartCaption(chart: FitChartData): string {
+  const { model, peak } = chart;
+  const parts = [model ? `R² = ${num(model.r2)} (${model.name})` : 'no fit', `n = ${chart.n}`, `verdict: ${chart.verdict}`];
   if (model) parts.push('band: 95 % CI of the fitted mean');
-  if (fit.peak) {
-    const what = fit.verdict === 'u_shape' ? 'trough' : 'peak';
-    parts.push(`${what} at ${num(fit.peak.x)} (${Math.round(100 * (1 - fit.alpha))} % CI ${num(fit.peak.ciLow)} to ${num(fit.peak.ciHigh)})`);
+  if (peak) {
+    const what = chart.verdict === 'u_shape' ? 'trough' : 'peak';
+    parts.push(`${what} at ${num(peak.x)} (${Math.round(100 * (1 - chart.alpha))} % CI ${num(peak.ciLow)} to ${num(peak.ciHigh)})`);
   }
   return parts.join(' · ');
 }
 
-// Curve ŷ(x) with the band ŷ ± t_{0.975, df}·SE(ŷ) for the mean, on an even grid over the observed x range.
-function curveRows(fit: CurveResult, model: ModelFit): { x: number; y: number; low: number; high: number }[] {
-  if (fit.xMin === null || fit.xMax === null) return [];
-  const t = studentTQuantile(1 - (1 - BAND_LEVEL) / 2, model.df);
-  const span = fit.xMax - fit.xMin;
-  return Array.from({ length: CURVE_STEPS + 1 }, (_, i) => {
-    const x = fit.xMin! + (span * i) / CURVE_STEPS;
-    const { mean, se } = predictPolynomial(model.fit, x);
-    return { x, y: mean, low: mean - t * se, high: mean + t * se };
-  });
+/** The stored points of a forest type, those of `region` highlighted (in their stored order). */
+export function regionChartPoints(points: FitChartPoints, region: string | null): ChartPoint[] {
+  const at = region === null ? -1 : points.regions.indexOf(region);
+  return points.x.map((x, i) => ({ x, y: points.y[i], highlight: points.region[i] === at }));
 }
 
 /** The vega-lite specification of the chart (exported for inspection and tests). */
 export function buildFitChartSpec(input: FitChartInput): TopLevelSpec {
-  const { forestType, metric, axis, points, fit, width = 560, height = 340 } = input;
+  const { forestType, metric, axis, points, chart, width = 560, height = 340 } = input;
   const C = FIT_CHART_COLOURS;
   const x = { field: 'x', type: 'quantitative' as const, title: axis, scale: { zero: false, nice: false } };
   const y = { field: 'y', type: 'quantitative' as const, title: metric, scale: { zero: false } };
   const plain = points.filter((p) => !p.highlight).map((p) => ({ x: p.x, y: p.y }));
   const highlighted = points.filter((p) => p.highlight).map((p) => ({ x: p.x, y: p.y }));
-  const model = chartModel(fit);
-  const curve = model ? curveRows(fit, model) : [];
+  const { x: cx, y: cy, low, high } = chart.curve;
+  const curve = cx.map((v, i) => ({ x: v, y: cy[i], low: low[i], high: high[i] }));
   const layer: LayerItem[] = [];
-  const showPeak = fit.peak !== null && (fit.verdict === 'hump' || fit.verdict === 'u_shape');
+  const peak = chart.peak;
+  const showPeak = peak !== null && (chart.verdict === 'hump' || chart.verdict === 'u_shape');
   if (showPeak) {
     layer.push({
       name: 'peak_interval',
-      data: { values: [{ x: fit.peak!.ciLow, x2: fit.peak!.ciHigh }] },
+      data: { values: [{ x: peak!.ciLow, x2: peak!.ciHigh }] },
       mark: { type: 'rect', color: C.peakInterval, opacity: 0.5, aria: false },
       encoding: { x: { ...x, field: 'x' }, x2: { field: 'x2' } },
     });
@@ -130,7 +113,7 @@ export function buildFitChartSpec(input: FitChartInput): TopLevelSpec {
   if (showPeak) {
     layer.push({
       name: 'peak',
-      data: { values: [{ x: fit.peak!.x }] },
+      data: { values: [{ x: peak!.x }] },
       mark: { type: 'rule', color: C.peakRule, strokeWidth: 1.5, strokeDash: [6, 3], aria: false },
       encoding: { x },
     });
@@ -141,7 +124,7 @@ export function buildFitChartSpec(input: FitChartInput): TopLevelSpec {
     height,
     background: 'white',
     padding: 8,
-    title: { text: `${forestType}: ${metric} against ${axis}`, subtitle: fitChartCaption(fit), anchor: 'start' },
+    title: { text: `${forestType}: ${metric} against ${axis}`, subtitle: fitChartCaption(chart), anchor: 'start' },
     config: {
       font: 'sans-serif',
       view: { stroke: '#cccccc' },
@@ -153,12 +136,7 @@ export function buildFitChartSpec(input: FitChartInput): TopLevelSpec {
 }
 
 /** Renders the chart to an SVG string (vega-lite → vega → headless SVG renderer). */
-export async function renderFitChartSvg(input: FitChartInput): Promise<string> {
-  const vgSpec = compile(buildFitChartSpec(input)).spec;
-  const view = new vega.View(vega.parse(vgSpec), { renderer: 'none' });
-  try {
-    return await view.toSVG();
-  } finally {
-    view.finalize();
-  }
+export function renderFitChartSvg(input: FitChartInput): Promise<string> {
+  return renderVegaLiteSvg(buildFitChartSpec(input));
 }
+

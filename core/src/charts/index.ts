@@ -4,3 +4,4 @@ export * from './render';
 export * from './fit-chart';
 export * from './means-chart';
 export * from './guild-chart';
+export type { TopLevelSpec } from 'vega-lite';

@@ -1,5 +1,9 @@
+import crypto from 'node:crypto';
 import * as vega from 'vega';
-import { compile, type TopLevelSpec } from 'vega-lite';
+import { compile, version as vegaLiteVersion, type TopLevelSpec } from 'vega-lite';
+
+// vega exports its version at run time; its typings do not declare it.
+const VEGA_VERSION = (vega as unknown as { version: string }).version;
 
 /** Renders a vega-lite specification to an SVG string, headless (no canvas). */
 export async function renderVegaLiteSvg(spec: TopLevelSpec): Promise<string> {
@@ -9,6 +13,14 @@ export async function renderVegaLiteSvg(spec: TopLevelSpec): Promise<string> {
   } finally {
     view.finalize();
   }
+}
+
+/**
+ * A key of the picture a specification draws: SHA-256 of the spec with the chart libraries' versions.
+ * Equal keys draw equal SVG, so a chart whose key is unchanged need not be drawn again.
+ */
+export function chartSpecKey(spec: TopLevelSpec): string {
+  return crypto.createHash('sha256').update(`vega ${VEGA_VERSION} vega-lite ${vegaLiteVersion}\n`).update(JSON.stringify(spec)).digest('base64url');
 }
 
 /** Shared look of the report's own charts: plain, our own palette. */

@@ -1,8 +1,8 @@
 import { StemwiseError } from '@stemwise/platform';
-import { PLOT_METRIC_COLUMNS } from '../science/plot-metrics';
+import { FITTABLE_METRIC_COLUMNS } from '@stemwise/db/catalogue';
 
-/** The numeric `export plots` columns a fit may use as its metric or axis. */
-export const FITTABLE_COLUMNS: readonly string[] = PLOT_METRIC_COLUMNS.map((c) => c.column);
+/** The numeric `export plots` columns a fit may use as its metric or axis (the catalogue's fittable ones). */
+export const FITTABLE_COLUMNS: readonly string[] = FITTABLE_METRIC_COLUMNS;
 
 /** Checks a metric or axis name; a bad one is a usage error listing the valid names. */
 export function checkFitColumn(kind: 'axis' | 'metric', name: string): string {

@@ -1,4 +1,6 @@
-// How the summary's variables (columns of `export plots`) are named for people on the page and in charts.
+// How the summary's variables (columns of `export plots`) are named for people on the page and in
+// charts, and which of them a region summary estimates: all read from the plot-metric catalogue.
+import { HEADLINE_METRIC_COLUMNS, plotMetricByColumn, REGION_METRIC_COLUMNS } from '@stemwise/db/catalogue';
 
 export interface VariableLabel {
   /** Full name for tables. */
@@ -9,39 +11,21 @@ export interface VariableLabel {
   readonly unit: string;
 }
 
-const LABELS: Readonly<Record<string, VariableLabel>> = {
-  stems_ha: { name: 'Stem density', short: 'Stems per ha', unit: 'stems/ha' },
-  basal_area_m2_ha: { name: 'Basal area', short: 'Basal area (m²/ha)', unit: 'm²/ha' },
-  qmd_cm: { name: 'Quadratic mean diameter', short: 'QMD (cm)', unit: 'cm' },
-  agb_mg_ha: { name: 'Above-ground biomass', short: 'Biomass (Mg/ha)', unit: 'Mg/ha' },
-  carbon_mg_ha: { name: 'Carbon in above-ground biomass', short: 'Carbon (Mg C/ha)', unit: 'Mg C/ha' },
-  fisher_alpha: { name: "Fisher's alpha (per plot)", short: "Fisher's alpha", unit: '' },
-  richness: { name: 'Species per plot', short: 'Species per plot', unit: 'species' },
-  disturbance_index: { name: 'Disturbance index (0 none – 1 severe)', short: 'Disturbance index', unit: '' },
-  pioneer_ba_share: { name: 'Pioneer share of basal area', short: 'Pioneer share', unit: '' },
-  light_demander_ba_share: { name: 'Light-demanding share of basal area', short: 'Light-demanding share', unit: '' },
-  shade_tolerant_ba_share: { name: 'Shade-tolerant share of basal area', short: 'Shade-tolerant share', unit: '' },
-  unassigned_ba_share: { name: 'Unassigned share of basal area', short: 'Unassigned share', unit: '' },
-  logging_score: { name: 'Logging score (0–1)', short: 'Logging score', unit: '' },
-  fire_score: { name: 'Fire score (0–1)', short: 'Fire score', unit: '' },
-  shannon: { name: 'Shannon index', short: 'Shannon', unit: '' },
-};
-
-/** Total units of per-hectare variables (mean × forest area). */
-const TOTAL_UNITS: Readonly<Record<string, string>> = {
-  stems_ha: 'stems',
-  basal_area_m2_ha: 'm²',
-  agb_mg_ha: 'Mg',
-  carbon_mg_ha: 'Mg C',
-};
-
 export function variableLabel(variable: string): VariableLabel {
-  return LABELS[variable] ?? { name: variable, short: variable, unit: '' };
+  const m = plotMetricByColumn(variable);
+  return m === undefined ? { name: variable, short: variable, unit: '' } : { name: m.label, short: m.short, unit: m.unit };
 }
 
+/** Unit of a total (mean × forest area) of a per-hectare variable; '' for any other variable. */
 export function totalUnit(variable: string): string {
-  return TOTAL_UNITS[variable] ?? '';
+  return plotMetricByColumn(variable)?.totalUnit ?? '';
 }
+
+/** Totals are meaningful for densities only: the per-hectare variables (those with a total unit). */
+export const isPerHectare = (variable: string): boolean => totalUnit(variable) !== '';
+
+/** Variables a region (and the nation) is summarised on by default, in row order. */
+export const DEFAULT_REGION_VARIABLES: readonly string[] = REGION_METRIC_COLUMNS;
 
 /** The figures shown as headline cards, in order. */
-export const HEADLINE_VARIABLES = ['stems_ha', 'basal_area_m2_ha', 'agb_mg_ha', 'carbon_mg_ha', 'fisher_alpha', 'richness', 'disturbance_index'] as const;
+export const HEADLINE_VARIABLES: readonly string[] = HEADLINE_METRIC_COLUMNS;

@@ -1,10 +1,10 @@
+import { PLOT_METRICS } from '@stemwise/db/catalogue';
 import { describe, expect, it } from 'vitest';
 import { agbChave2005, agbChave2014 } from './allometry';
 import { fisherAlphaFromTotals, rarefiedRichness } from './diversity';
 import { fitHeightDiameter, predictHeight } from './height-diameter';
 import {
   computePlotMetrics,
-  PLOT_METRIC_COLUMNS,
   type PlotVisitInput,
   type StemInput,
 } from './plot-metrics';
@@ -257,17 +257,24 @@ describe('computePlotMetrics edge cases', () => {
   });
 });
 
-describe('PLOT_METRIC_COLUMNS', () => {
-  it('lists the numeric columns of `export plots` in the order of docs/exports.md (version 1)', () => {
-    expect(PLOT_METRIC_COLUMNS.map((c) => c.column)).toEqual([
-      'stems_ha', 'basal_area_m2_ha', 'qmd_cm', 'agb_mg_ha', 'carbon_mg_ha', 'n_identified', 'richness', 'shannon',
-      'simpson', 'inv_simpson', 'pielou', 'fisher_alpha', 'rarefied_50', 'chao1', 'pioneer_ba_share',
-      'light_demander_ba_share', 'shade_tolerant_ba_share', 'unassigned_ba_share', 'logging_removed_ba_frac',
-      'logging_score', 'fire_score', 'disturbance_index',
-    ]);
+describe('computePlotMetrics and the plot-metric catalogue', () => {
+  // A full plot, an empty one and one identified stem (below the diversity minimum): the nullable
+  // columns are null on the last two, the others never.
+  const results = [STEMS, [], [stem('Ostra lenta', 30)]].map((stems) => computePlotMetrics(VISIT, stems, index).metrics);
+
+  it('produces every catalogue key, and no key the catalogue lacks', () => {
+    for (const metrics of results) expect(Object.keys(metrics).sort()).toEqual(PLOT_METRICS.map((m) => m.key).sort());
   });
-  it('maps every key of the result and no other', () => {
-    const { metrics } = computePlotMetrics(VISIT, STEMS, index);
-    expect(PLOT_METRIC_COLUMNS.map((c) => c.key).sort()).toEqual(Object.keys(metrics).sort());
+
+  it('gives a finite number to every entry not marked nullable, an integer to every int column', () => {
+    for (const metrics of results) {
+      for (const m of PLOT_METRICS) {
+        const v = metrics[m.key];
+        if (!m.nullable || v !== null) expect(Number.isFinite(v), `${m.column} is ${v}`).toBe(true);
+        if (m.sqlType === 'int' && v !== null) expect(Number.isInteger(v), `${m.column} is ${v}`).toBe(true);
+      }
+    }
+    // The nullable marks are needed: the empty plot leaves the diversity columns and the shares null.
+    expect(PLOT_METRICS.filter((m) => m.nullable && results[1][m.key] === null).map((m) => m.column)).toContain('fisher_alpha');
   });
 });

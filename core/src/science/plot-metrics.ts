@@ -11,6 +11,7 @@
 //  - heights: measured, else the local height–diameter model, else the Chave et al. 2005 no-height model.
 // AGB and carbon are model estimates with their own uncertainty (see allometry.ts).
 
+import type { PlotMetricValues } from '@stemwise/db/catalogue';
 import { agbChave2005, agbChave2014, carbonFromBiomass, type Climate, IPCC_2006_CARBON_FRACTION } from './allometry';
 import {
   basalAreaWeightedFireDamage,
@@ -83,57 +84,11 @@ export const DEFAULT_MIN_STEMS_FOR_DIVERSITY = 2;
 /** Sample size of the `rarefied_50` column. */
 export const RAREFACTION_SIZE = 50;
 
-/** The numeric columns of `export plots`, camelCase; null where a value cannot be computed. */
-export interface PlotMetrics {
-  stemsHa: number;
-  basalAreaM2Ha: number;
-  qmdCm: number | null;
-  agbMgHa: number;
-  carbonMgHa: number;
-  nIdentified: number;
-  richness: number | null;
-  shannon: number | null;
-  simpson: number | null;
-  invSimpson: number | null;
-  pielou: number | null;
-  fisherAlpha: number | null;
-  rarefied50: number | null;
-  chao1: number | null;
-  pioneerBaShare: number | null;
-  lightDemanderBaShare: number | null;
-  shadeTolerantBaShare: number | null;
-  unassignedBaShare: number | null;
-  loggingRemovedBaFrac: number | null;
-  loggingScore: number;
-  fireScore: number;
-  disturbanceIndex: number;
-}
-
-/** Mapping of PlotMetrics keys to the snake_case column names of `export plots`, in column order. */
-export const PLOT_METRIC_COLUMNS = [
-  { column: 'stems_ha', key: 'stemsHa' },
-  { column: 'basal_area_m2_ha', key: 'basalAreaM2Ha' },
-  { column: 'qmd_cm', key: 'qmdCm' },
-  { column: 'agb_mg_ha', key: 'agbMgHa' },
-  { column: 'carbon_mg_ha', key: 'carbonMgHa' },
-  { column: 'n_identified', key: 'nIdentified' },
-  { column: 'richness', key: 'richness' },
-  { column: 'shannon', key: 'shannon' },
-  { column: 'simpson', key: 'simpson' },
-  { column: 'inv_simpson', key: 'invSimpson' },
-  { column: 'pielou', key: 'pielou' },
-  { column: 'fisher_alpha', key: 'fisherAlpha' },
-  { column: 'rarefied_50', key: 'rarefied50' },
-  { column: 'chao1', key: 'chao1' },
-  { column: 'pioneer_ba_share', key: 'pioneerBaShare' },
-  { column: 'light_demander_ba_share', key: 'lightDemanderBaShare' },
-  { column: 'shade_tolerant_ba_share', key: 'shadeTolerantBaShare' },
-  { column: 'unassigned_ba_share', key: 'unassignedBaShare' },
-  { column: 'logging_removed_ba_frac', key: 'loggingRemovedBaFrac' },
-  { column: 'logging_score', key: 'loggingScore' },
-  { column: 'fire_score', key: 'fireScore' },
-  { column: 'disturbance_index', key: 'disturbanceIndex' },
-] as const satisfies readonly { column: string; key: keyof PlotMetrics }[];
+/**
+ * The numeric columns of `export plots` by catalogue key (`@stemwise/db/catalogue`, pure data); null
+ * where a value cannot be computed. computePlotMetrics fills every key, and only those.
+ */
+export type PlotMetrics = PlotMetricValues;
 
 export interface PlotDiagnostics {
   /** Share of live basal area by the level that gave the stem its wood density; null without live basal area. */

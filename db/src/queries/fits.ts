@@ -146,3 +146,23 @@ export async function listCurveFits(db: Queryable, filter: { scope: FitScope; me
     return out;
   });
 }
+
+/** The stored chart of a forest type × metric × axis (fit_charts.chart, a StoredFitChart of @stemwise/core), or null. */
+export async function getFitChart(db: Queryable, forestType: string, metric: string, axis: string): Promise<unknown> {
+  const rows = await db.query<{ chart: unknown }>(`select chart from fit_charts where forest_type = $1 and metric = $2 and axis = $3`, [forestType, metric, axis]);
+  return rows[0]?.chart ?? null;
+}
+
+/** Stores (or replaces) the chart of a forest type × metric × axis. */
+export async function upsertFitChart(tx: Queryable, forestType: string, metric: string, axis: string, chart: object): Promise<void> {
+  await tx.query(
+    `insert into fit_charts (forest_type, metric, axis, chart, computed_at) values ($1, $2, $3, $4::jsonb, now())
+     on conflict (forest_type, metric, axis) do update set chart = excluded.chart, computed_at = excluded.computed_at`,
+    [forestType, metric, axis, JSON.stringify(chart)],
+  );
+}
+
+/** Removes the chart of a forest type × metric × axis (its whole-type fit was removed). */
+export async function deleteFitChart(tx: Queryable, forestType: string, metric: string, axis: string): Promise<void> {
+  await tx.query(`delete from fit_charts where forest_type = $1 and metric = $2 and axis = $3`, [forestType, metric, axis]);
+}

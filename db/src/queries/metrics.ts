@@ -1,35 +1,13 @@
+import { PLOT_METRICS, type PlotMetricColumn, type PlotMetricSpec } from '../catalogue/plot-metrics';
 import type { Queryable } from '../connection';
 
 // Plot metrics: what the compute workers read (visits and stems, set-based), what they write (one
 // upsert per chunk), height–diameter models per forest type, and the paged read behind `export plots`.
 
-/** The numeric `export plots` columns as stored in plot_metrics, in spec order, with their SQL type. */
-export const PLOT_METRIC_DB_COLUMNS = [
-  ['stems_ha', 'float8'],
-  ['basal_area_m2_ha', 'float8'],
-  ['qmd_cm', 'float8'],
-  ['agb_mg_ha', 'float8'],
-  ['carbon_mg_ha', 'float8'],
-  ['n_identified', 'int'],
-  ['richness', 'int'],
-  ['shannon', 'float8'],
-  ['simpson', 'float8'],
-  ['inv_simpson', 'float8'],
-  ['pielou', 'float8'],
-  ['fisher_alpha', 'float8'],
-  ['rarefied_50', 'float8'],
-  ['chao1', 'float8'],
-  ['pioneer_ba_share', 'float8'],
-  ['light_demander_ba_share', 'float8'],
-  ['shade_tolerant_ba_share', 'float8'],
-  ['unassigned_ba_share', 'float8'],
-  ['logging_removed_ba_frac', 'float8'],
-  ['logging_score', 'float8'],
-  ['fire_score', 'float8'],
-  ['disturbance_index', 'float8'],
-] as const;
+/** The numeric `export plots` columns as stored in plot_metrics, in export order, with their SQL type (from the catalogue). */
+export const PLOT_METRIC_DB_COLUMNS: readonly (readonly [PlotMetricColumn, PlotMetricSpec['sqlType']])[] = PLOT_METRICS.map((m) => [m.column, m.sqlType] as const);
 
-export type PlotMetricDbColumn = (typeof PLOT_METRIC_DB_COLUMNS)[number][0];
+export type PlotMetricDbColumn = PlotMetricColumn;
 const METRIC_NAMES = PLOT_METRIC_DB_COLUMNS.map(([c]) => c);
 // Built once from the constant above (never from input): the column lists of the reads and the upsert.
 const METRIC_SELECT = METRIC_NAMES.map((c) => `m.${c}`).join(', ');

@@ -40,3 +40,20 @@ export const curveFits = pgTable(
     check('curve_fits_scope_kind_chk', sql`${t.scopeKind} in ('forest_type','region')`),
   ],
 );
+
+/**
+ * What the chart of a forest type's fit shows (its points with their region, the drawn curve and band,
+ * the turning point and interval), stored by the fits job with the fit so the report never fits again.
+ * One row per forest type × metric × axis; `chart` is a StoredFitChart (@stemwise/core).
+ */
+export const fitCharts = pgTable(
+  'fit_charts',
+  {
+    forestType: text('forest_type').notNull(),
+    metric: text('metric').notNull(),
+    axis: text('axis').notNull(),
+    chart: jsonb('chart').notNull(),
+    computedAt: timestamp('computed_at', { withTimezone: true }).notNull().defaultNow(),
+  },
+  (t) => [primaryKey({ name: 'fit_charts_pk', columns: [t.forestType, t.metric, t.axis] })],
+);

@@ -1,6 +1,27 @@
-import { bigint, doublePrecision, integer, jsonb, pgTable, text, timestamp } from 'drizzle-orm/pg-core';
+import {
+  bigint,
+  doublePrecision,
+  integer,
+  jsonb,
+  pgTable,
+  text,
+  timestamp,
+  type PgDoublePrecisionBuilderInitial,
+  type PgIntegerBuilderInitial,
+} from 'drizzle-orm/pg-core';
+import { PLOT_METRICS, type PlotMetricEntry } from '../catalogue/plot-metrics';
 import { plotVisits } from './plots';
 import { speciesVersions } from './species';
+
+/** One column builder per catalogue entry, typed by its SQL type and named by its column. */
+type PlotMetricColumnBuilders = {
+  [E in PlotMetricEntry as E['key']]: E['sqlType'] extends 'int' ? PgIntegerBuilderInitial<E['column']> : PgDoublePrecisionBuilderInitial<E['column']>;
+};
+
+// The metric columns of plot_metrics come from the catalogue (nullable: a visit's row is written whole).
+function plotMetricColumns(): PlotMetricColumnBuilders {
+  return Object.fromEntries(PLOT_METRICS.map((m) => [m.key, m.sqlType === 'int' ? integer(m.column) : doublePrecision(m.column)])) as PlotMetricColumnBuilders;
+}
 
 /** Per-visit figures (the `export plots` columns) and their diagnostics; a rerun overwrites the row. */
 export const plotMetrics = pgTable('plot_metrics', {
@@ -8,28 +29,7 @@ export const plotMetrics = pgTable('plot_metrics', {
     .primaryKey()
     .references(() => plotVisits.id, { onDelete: 'cascade' }),
   speciesVersionId: integer('species_version_id').references(() => speciesVersions.id, { onDelete: 'set null' }),
-  stemsHa: doublePrecision('stems_ha'),
-  basalAreaM2Ha: doublePrecision('basal_area_m2_ha'),
-  qmdCm: doublePrecision('qmd_cm'),
-  agbMgHa: doublePrecision('agb_mg_ha'),
-  carbonMgHa: doublePrecision('carbon_mg_ha'),
-  nIdentified: integer('n_identified'),
-  richness: integer('richness'),
-  shannon: doublePrecision('shannon'),
-  simpson: doublePrecision('simpson'),
-  invSimpson: doublePrecision('inv_simpson'),
-  pielou: doublePrecision('pielou'),
-  fisherAlpha: doublePrecision('fisher_alpha'),
-  rarefied50: doublePrecision('rarefied_50'),
-  chao1: doublePrecision('chao1'),
-  pioneerBaShare: doublePrecision('pioneer_ba_share'),
-  lightDemanderBaShare: doublePrecision('light_demander_ba_share'),
-  shadeTolerantBaShare: doublePrecision('shade_tolerant_ba_share'),
-  unassignedBaShare: doublePrecision('unassigned_ba_share'),
-  loggingRemovedBaFrac: doublePrecision('logging_removed_ba_frac'),
-  loggingScore: doublePrecision('logging_score'),
-  fireScore: doublePrecision('fire_score'),
-  disturbanceIndex: doublePrecision('disturbance_index'),
+  ...plotMetricColumns(),
   /** Wood-density level shares, height sources, unresolved names. */
   diagnostics: jsonb('diagnostics').notNull().default({}),
   computedAt: timestamp('computed_at', { withTimezone: true }).notNull().defaultNow(),

@@ -1,5 +1,6 @@
 import type { ComputeStemRow, ComputeVisitRow, PlotMetricsWrite } from '@stemwise/db';
-import { computePlotMetrics, PLOT_METRIC_COLUMNS, type HeightDiameterModel, type PlotDiagnostics, type SpeciesIndex } from '@stemwise/core/science';
+import { PLOT_METRICS } from '@stemwise/db/catalogue';
+import { computePlotMetrics, type HeightDiameterModel, type PlotDiagnostics, type SpeciesIndex } from '@stemwise/core/science';
 
 // The CPU-bound part of a plot chunk: the metrics of each visit from its stems. Pure (no I/O, no
 // packages beyond the science), so that it runs the same in a worker thread (metrics-worker.ts) as in
@@ -20,8 +21,6 @@ export type VisitWrite = PlotMetricsWrite & { diagnostics: PlotDiagnostics & { h
 
 /** A visit's metrics row, or why it could not be computed. */
 export type VisitOutcome = { write: VisitWrite } | { reason: string };
-
-const METRIC_KEYS = PLOT_METRIC_COLUMNS.map((c) => c.key);
 
 /** The outcome of every visit of the task, in the order of its visits. */
 export function computeVisits(task: ChunkTask): VisitOutcome[] {
@@ -59,11 +58,12 @@ function computeVisit(
     index,
     { heightModel, defaultWoodDensity },
   );
-  const m = result.metrics as unknown as Record<string, number | null>;
+  const { metrics } = result;
   return {
     visitId: visit.visitId,
     speciesVersionId,
-    values: METRIC_KEYS.map((k) => m[k]),
+    // In catalogue order: the order of PLOT_METRIC_DB_COLUMNS, which the upsert's columns follow.
+    values: PLOT_METRICS.map((c) => metrics[c.key]),
     diagnostics: { ...result.diagnostics, heightModelHeights: heightModel?.n ?? null },
   };
 }

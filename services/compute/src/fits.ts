@@ -2,6 +2,7 @@ import {
   clearProblems,
   clearStale,
   deleteCurveFitsExcept,
+  deleteFitChart,
   listLatestPlotMetrics,
   listStale,
   listStaleMarks,
@@ -10,6 +11,7 @@ import {
   recordProblems,
   regionsOfForestTypes,
   upsertCurveFits,
+  upsertFitChart,
   WHOLE_FOREST_TYPE_SCOPE,
   type CurveFitRow,
   type Db,
@@ -19,7 +21,20 @@ import {
 } from '@stemwise/db';
 import { isInfrastructureError, PermanentError, type Logger } from '@stemwise/platform';
 import { renderFitChartSvg } from '@stemwise/core/charts';
-import { FITTABLE_COLUMNS, fitCurves, fitDetails, fitRows, pointsOf, toStoredRow, type CurvePoint, type CurveResult, type ServiceDeps } from '@stemwise/core';
+import {
+  FITTABLE_COLUMNS,
+  fitChartData,
+  fitChartPoints,
+  fitCurves,
+  fitDetails,
+  fitRows,
+  pointsOf,
+  toStoredRow,
+  type CurvePoint,
+  type CurveResult,
+  type ServiceDeps,
+  type StoredFitChart,
+} from '@stemwise/core';
 
 /**
  * Fewest plots for a region × forest type fit (scope = region name): 30, stemwise's choice (common
@@ -82,9 +97,9 @@ export function fitPoints(forestType: string, points: ReadonlyArray<CurvePoint &
   return { forestType, points: points.map(({ x, y }) => ({ x, y })), all, regions, failedRegions };
 }
 
-async function chartFor(fits: ForestTypeFits, settings: FitSettings, log?: Logger): Promise<Record<string, unknown>> {
+async function chartFor(fits: ForestTypeFits, chart: StoredFitChart, settings: FitSettings, log?: Logger): Promise<Record<string, unknown>> {
   try {
-    const svg = await renderFitChartSvg({ forestType: fits.forestType, metric: settings.metric, axis: settings.axis, points: fits.points, fit: fits.all });
+    const svg = await renderFitChartSvg({ forestType: fits.forestType, metric: settings.metric, axis: settings.axis, points: fits.points, chart });
     return { chart_svg: svg };
   } catch (err) {
     // The numbers stand without their picture: keep them, say why the chart is missing.
@@ -105,7 +120,8 @@ export interface StoredFits {
 /**
  * Fits the given forest types with the configured metric and axis and stores them: rows for the whole
  * forest type (scope kind `forest_type`, with the chart SVG in details.chart_svg) and per region with
- * enough plots; clears the types' `fits` marks and marks the summaries of their regions stale — per
+ * enough plots, and what the region pages' charts show (fit_charts: the points with their region, the
+ * curve, the turning point), so the report draws them without fitting again; clears the types' `fits` marks and marks the summaries of their regions stale — per
  * forest type, in one transaction. A forest type or region whose fit throws is recorded in
  * compute_problems (with `runId`), logged, and its mark cleared so no run retries it until its data
  * change; the other forest types are fitted all the same. Read and write errors still fail the job.
@@ -120,11 +136,14 @@ export async function storeFits(deps: Pick<ServiceDeps, 'db' | 'config'> & { log
     const plots = await listLatestPlotMetrics(db, forestType);
     const labels = { forestType, metric: settings.metric, axis: settings.axis };
     let fits: ForestTypeFits;
+    let chart: StoredFitChart;
     const rows: CurveFitRow[] = [];
     try {
-      fits = fitPoints(forestType, pointsOf(plots, settings.axis, settings.metric), settings, { regions: true });
-      const chart = await chartFor(fits, settings, deps.log);
-      for (const row of fitRows(fits.all, labels)) rows.push(toStoredRow({ kind: 'forest_type' }, row, { ...fitDetails(fits.all), ...chart }));
+      const points = pointsOf(plots, settings.axis, settings.metric);
+      fits = fitPoints(forestType, points, settings, { regions: true });
+      chart = { ...fitChartData(fits.all), points: fitChartPoints(points) };
+      const svg = await chartFor(fits, chart, settings, deps.log);
+      for (const row of fitRows(fits.all, labels)) rows.push(toStoredRow({ kind: 'forest_type' }, row, { ...fitDetails(fits.all), ...svg }));
       for (const r of fits.regions) for (const row of fitRows(r.result, labels)) rows.push(toStoredRow({ kind: 'region', region: r.region }, row, fitDetails(r.result)));
     } catch (err) {
       if (isInfrastructureError(err)) throw err;
@@ -142,7 +161,10 @@ export async function storeFits(deps: Pick<ServiceDeps, 'db' | 'config'> & { log
     const regions = await regionsOfForestTypes(db, [forestType]);
     await db.transaction(async (tx) => {
       await deleteCurveFitsExcept(tx, forestType, settings.metric, settings.axis, { whole: regions.length > 0, regions: [...fits.regions, ...fits.failedRegions].map((r) => r.region) });
-      if (regions.length) await upsertCurveFits(tx, rows);
+      if (regions.length) {
+        await upsertCurveFits(tx, rows);
+        await upsertFitChart(tx, forestType, settings.metric, settings.axis, chart);
+      } else await deleteFitChart(tx, forestType, settings.metric, settings.axis);
       const fitted = [{ region: null }, ...fits.regions].map((r) => problemSubject({ stage: 'fit', forestType, region: r.region, visitId: null }));
       await clearProblems(tx, 'fit', fitted);
       await recordProblems(tx, runId, fits.failedRegions.map((f) => ({ stage: 'fit' as const, forestType, region: f.region, visitId: null, plotKey: null, reason: f.reason })));

@@ -1,5 +1,4 @@
 import {
-  PLOT_METRIC_DB_COLUMNS,
   listHeightModels,
   loadStemsForVisits,
   lockVisitsForCompute,
@@ -14,17 +13,10 @@ import {
   type PlotMetricsWrite,
   type UnresolvedNameCount,
 } from '@stemwise/db';
-import { currentSpecies, heightModelFromRow, PLOT_METRIC_COLUMNS, type HeightDiameterModel, type ServiceDeps } from '@stemwise/core';
+import { currentSpecies, heightModelFromRow, type HeightDiameterModel, type ServiceDeps } from '@stemwise/core';
 import type { Logger } from '@stemwise/platform';
 import { computeVisits, type ChunkTask } from './chunk-metrics';
 import { metricsPool } from './metrics-pool';
-
-// The science's column list (the order of the values chunk-metrics.ts computes) and the stored one must
-// be the same columns in the same order.
-PLOT_METRIC_COLUMNS.forEach((c, i) => {
-  if (PLOT_METRIC_DB_COLUMNS[i]?.[0] !== c.column) throw new Error(`plot-chunk: metric column ${i} is ${c.column} in the science but ${PLOT_METRIC_DB_COLUMNS[i]?.[0]} in the database`);
-});
-if (PLOT_METRIC_DB_COLUMNS.length !== PLOT_METRIC_COLUMNS.length) throw new Error('plot-chunk: the science and the database list different metric columns');
 
 export interface ChunkCounts {
   visits: number;

@@ -9,4 +9,4 @@ export { NationalResponse, SummaryResponse } from './routes/schemas';
 export type { NationalPayload } from './national-snapshot';
 export type { SnapshotPayload } from './snapshot-payload';
 export { service } from './service';
-export { DEFAULT_REGION_VARIABLES, summariseRegion, type PlotMetrics } from './summary/region-summary';
+export { summariseRegion, type PlotMetrics } from './summary/region-summary';

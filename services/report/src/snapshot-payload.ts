@@ -38,8 +38,10 @@ export interface FitChart {
   readonly points: number;
   readonly highlighted: number;
   readonly svg: string | null;
-  /** Why there is no chart (too few plots, rendering failed). */
+  /** Why there is no chart (too few plots, no stored fit, rendering failed). */
   readonly missing: string | null;
+  /** Key of the specification the SVG was drawn from (chartSpecKey): a later snapshot with the same key reuses the SVG. */
+  readonly drawn_from: string | null;
 }
 
 export interface SnapshotMethod {
@@ -69,6 +71,8 @@ export interface SnapshotPayload {
     readonly means: string | null;
     readonly guilds: string | null;
     readonly fits: readonly FitChart[];
+    /** Keys of the specifications the means and guild charts were drawn from (see FitChart.drawn_from). */
+    readonly drawn_from: { readonly means: string | null; readonly guilds: string | null };
   };
 }
 

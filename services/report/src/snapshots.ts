@@ -2,9 +2,10 @@ import crypto from 'node:crypto';
 import {
   clearProblems,
   clearStale,
+  getFitChart,
   insertSummarySnapshot,
   listCurveFits,
-  listLatestPlotMetrics,
+  listLatestChartSvgs,
   listRegionForestAreas,
   listRegionLatestPlots,
   listRegionStemNames,
@@ -12,21 +13,16 @@ import {
   recordProblems,
   regionExists,
 } from '@stemwise/db';
-import { currentSpecies, fitCurves, IPCC_2006_CARBON_FRACTION, pointsOf, toFitRow, type CurveResult, type SamplingErrorT, type ServiceDeps } from '@stemwise/core';
+import { asStoredFitChart, currentSpecies, IPCC_2006_CARBON_FRACTION, toFitRow, type SamplingErrorT, type ServiceDeps, type StoredFitChart } from '@stemwise/core';
 import { isInfrastructureError, PermanentError, type Config, type Logger } from '@stemwise/platform';
-import { renderFitChartSvg, renderGuildChartSvg, renderMeansChartSvg } from '@stemwise/core/charts';
+import { buildFitChartSpec, buildGuildChartSpec, buildMeansChartSpec, chartSpecKey, regionChartPoints, renderVegaLiteSvg, type TopLevelSpec } from '@stemwise/core/charts';
 import { RegionSummaryInputError, summariseRegion, type PlotMetrics } from './summary/region-summary';
 import { SNAPSHOT_FORMAT, type FitChart, type SnapshotFitRow, type SnapshotMethod, type SnapshotPayload } from './snapshot-payload';
 
 type Deps = Pick<ServiceDeps, 'db' | 'config'> & { log?: Logger };
 
-/** Chart inputs of one forest type, computed once per summaries run and shared by its regions. */
-interface ForestTypeCurve {
-  points: Array<{ x: number; y: number; region: string }>;
-  result: CurveResult | null;
-  error: string | null;
-}
-export type CurveCache = Map<string, Promise<ForestTypeCurve>>;
+/** The stored charts of the forest types (fit_charts), read once per summaries run and shared by their regions. */
+export type StoredChartCache = Map<string, Promise<StoredFitChart | null>>;
 
 export function samplingErrorMultiplier(config: Pick<Config, 'samplingErrorT'>): SamplingErrorT {
   return config.samplingErrorT === 't' ? 't' : config.samplingErrorT === '1.96' ? 1.96 : 2;
@@ -44,57 +40,59 @@ export function methodOf(config: Pick<Config, 'fitMetric' | 'fitAxis'>): Snapsho
   };
 }
 
-// The forest type's fit recomputed with the stored settings (deterministic: same points, same seed);
-// the bootstrap is skipped because the chart draws the delta-method interval only.
-async function forestTypeCurve(deps: Deps, forestType: string): Promise<ForestTypeCurve> {
-  const plots = await listLatestPlotMetrics(deps.db, forestType);
-  const points = pointsOf(plots, deps.config.fitAxis, deps.config.fitMetric);
-  if (!points.length) return { points, result: null, error: `no plot of ${forestType} has both ${deps.config.fitMetric} and ${deps.config.fitAxis}` };
-  try {
-    return { points, result: fitCurves(points.map(({ x, y }) => ({ x, y })), { bootstrapN: 0, seed: deps.config.seed }), error: null };
-  } catch (err) {
-    return { points, result: null, error: (err as Error).message };
-  }
+async function storedChart(deps: Deps, forestType: string, charts: StoredChartCache): Promise<StoredFitChart | null> {
+  let chart = charts.get(forestType);
+  if (!chart) charts.set(forestType, (chart = getFitChart(deps.db, forestType, deps.config.fitMetric, deps.config.fitAxis).then(asStoredFitChart)));
+  return chart;
 }
 
-async function fitChart(deps: Deps, region: string, forestType: string, curves: CurveCache): Promise<FitChart> {
-  let curve = curves.get(forestType);
-  if (!curve) curves.set(forestType, (curve = forestTypeCurve(deps, forestType)));
-  const { points, result, error } = await curve;
-  const base = { forest_type: forestType, metric: deps.config.fitMetric, axis: deps.config.fitAxis, points: points.length, highlighted: points.filter((p) => p.region === region).length };
-  if (!result) return { ...base, svg: null, missing: error };
+/** The SVG of the region's latest snapshot by the key of the specification each was drawn from. */
+type DrawnCharts = ReadonlyMap<string, string>;
+
+// A chart's SVG with the key of its specification: the SVG of the latest snapshot when the key is
+// unchanged (the same picture), else drawn now.
+async function draw(spec: TopLevelSpec, drawn: DrawnCharts): Promise<{ svg: string; key: string }> {
+  const key = chartSpecKey(spec);
+  return { svg: drawn.get(key) ?? (await renderVegaLiteSvg(spec)), key };
+}
+
+// The region's chart of a forest type, from what the fits job stored (never fitted here).
+async function fitChart(deps: Deps, region: string, forestType: string, charts: StoredChartCache, drawn: DrawnCharts): Promise<FitChart> {
+  const { fitMetric: metric, fitAxis: axis } = deps.config;
+  const stored = await storedChart(deps, forestType, charts);
+  const points = stored?.points;
+  const at = points ? points.regions.indexOf(region) : -1;
+  const base = { forest_type: forestType, metric, axis, points: points?.x.length ?? 0, highlighted: points ? points.region.filter((r) => r === at).length : 0 };
+  if (!stored) return { ...base, svg: null, missing: `no stored fit of ${metric} against ${axis} for ${forestType}: the fits stage has not stored its chart`, drawn_from: null };
+  if (!stored.points.x.length) return { ...base, svg: null, missing: `no plot of ${forestType} has both ${metric} and ${axis}`, drawn_from: null };
   try {
-    const svg = await renderFitChartSvg({
-      forestType,
-      metric: deps.config.fitMetric,
-      axis: deps.config.fitAxis,
-      points: points.map((p) => ({ x: p.x, y: p.y, highlight: p.region === region })),
-      fit: result,
-    });
-    return { ...base, svg, missing: null };
+    const { svg, key } = await draw(buildFitChartSpec({ forestType, metric, axis, points: regionChartPoints(stored.points, region), chart: stored }), drawn);
+    return { ...base, svg, missing: null, drawn_from: key };
   } catch (err) {
     deps.log?.error({ err, region, forestType }, 'fit chart could not be rendered');
-    return { ...base, svg: null, missing: `the chart could not be drawn (${(err as Error).message})` };
+    return { ...base, svg: null, missing: `the chart could not be drawn (${(err as Error).message})`, drawn_from: null };
   }
 }
 
-async function optionalChart(deps: Deps, what: string, render: () => Promise<string | null>): Promise<string | null> {
+async function optionalChart(deps: Deps, what: string, spec: () => TopLevelSpec | null, drawn: DrawnCharts): Promise<{ svg: string | null; key: string | null }> {
   try {
-    return await render();
+    const s = spec();
+    return s ? await draw(s, drawn) : { svg: null, key: null };
   } catch (err) {
     deps.log?.error({ err, chart: what }, 'chart could not be rendered');
-    return null;
+    return { svg: null, key: null };
   }
 }
 
 /** Assembles a region's snapshot payload from the database (no write). */
-export async function assembleRegionSnapshot(deps: Deps, region: string, curves: CurveCache = new Map()): Promise<SnapshotPayload> {
+export async function assembleRegionSnapshot(deps: Deps, region: string, charts: StoredChartCache = new Map()): Promise<SnapshotPayload> {
   const { db, config } = deps;
-  const [plots, areas, names, species] = await Promise.all([
+  const [plots, areas, names, species, drawnBefore] = await Promise.all([
     listRegionLatestPlots(db, region),
     listRegionForestAreas(db, region),
     listRegionStemNames(db, region),
     currentSpecies(db),
+    listLatestChartSvgs(db, region),
   ]);
   // Species counts use accepted names (synonyms and spelling variants count as their species), like richness.
   const accepted = new Map<string, string[]>();
@@ -121,7 +119,11 @@ export async function assembleRegionSnapshot(deps: Deps, region: string, curves:
     for (const r of rows) fits.push({ scope: r.scope, ...(toFitRow(r) as Omit<SnapshotFitRow, 'scope'>) });
   }
   const fitCharts: FitChart[] = [];
-  for (const t of summary.forest_types) fitCharts.push(await fitChart(deps, region, t, curves));
+  const drawn = new Map(drawnBefore.map((c) => [c.key, c.svg]));
+  for (const t of summary.forest_types) fitCharts.push(await fitChart(deps, region, t, charts, drawn));
+
+  const means = await optionalChart(deps, 'means', () => buildMeansChartSpec(summary.rows), drawn);
+  const guilds = await optionalChart(deps, 'guilds', () => buildGuildChartSpec(summary.guild_composition), drawn);
 
   const dates = plots.map((p) => p.surveyDate).sort();
   return {
@@ -131,11 +133,7 @@ export async function assembleRegionSnapshot(deps: Deps, region: string, curves:
     method: methodOf(config),
     summary,
     fits,
-    charts: {
-      means: await optionalChart(deps, 'means', () => renderMeansChartSvg(summary.rows)),
-      guilds: await optionalChart(deps, 'guilds', () => renderGuildChartSvg(summary.guild_composition)),
-      fits: fitCharts,
-    },
+    charts: { means: means.svg, guilds: guilds.svg, fits: fitCharts, drawn_from: { means: means.key, guilds: guilds.key } },
   };
 }
 
@@ -159,7 +157,7 @@ export interface RefreshedRegion {
  */
 export async function refreshStaleSummaries(deps: Deps & { runId?: string }): Promise<{ regions: RefreshedRegion[]; rejected: Array<{ region: string; reason: string }> }> {
   const { db } = deps;
-  const curves: CurveCache = new Map();
+  const charts: StoredChartCache = new Map();
   const regions: RefreshedRegion[] = [];
   const rejected: Array<{ region: string; reason: string }> = [];
   for (const mark of await listStaleMarks(db, 'summary')) {
@@ -170,7 +168,7 @@ export async function refreshStaleSummaries(deps: Deps & { runId?: string }): Pr
     }
     let payload: SnapshotPayload;
     try {
-      payload = await assembleRegionSnapshot(deps, region, curves);
+      payload = await assembleRegionSnapshot(deps, region, charts);
     } catch (err) {
       if (isInfrastructureError(err)) throw err;
       // This region's summary cannot be built from its data: the latest snapshot stays, the reason is

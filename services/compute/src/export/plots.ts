@@ -1,9 +1,9 @@
 import { countStaleVisits, listRegionNames, pagePlotExport, regionExists, type Queryable } from '@stemwise/db';
 import { StemwiseError } from '@stemwise/platform';
-import { encodeFeatureCollection, encodeTable, PLOT_METRIC_COLUMNS, writeExport, type ExportTarget, type Row } from '@stemwise/core';
+import { encodeFeatureCollection, encodeTable, PLOT_METRICS, writeExport, type ExportTarget, type Row } from '@stemwise/core';
 
 /** The columns of `export plots`, in the order of docs/exports.md. */
-export const PLOT_EXPORT_COLUMNS: readonly string[] = ['plot_id', 'survey_date', 'region', 'forest_type', ...PLOT_METRIC_COLUMNS.map((c) => c.column)];
+export const PLOT_EXPORT_COLUMNS: readonly string[] = ['plot_id', 'survey_date', 'region', 'forest_type', ...PLOT_METRICS.map((m) => m.column)];
 
 export const PLOT_EXPORT_FORMATS = ['csv', 'json', 'geojson'] as const;
 export type PlotExportFormat = (typeof PLOT_EXPORT_FORMATS)[number];

@@ -1,8 +1,8 @@
-import { assertStratifiedOptions, stratifiedEstimate, type StratifiedEstimate, type StratifiedOptions, type StratumInput } from '@stemwise/core';
+import { assertStratifiedOptions, DEFAULT_REGION_VARIABLES, isPerHectare, stratifiedEstimate, type StratifiedEstimate, type StratifiedOptions, type StratumInput } from '@stemwise/core';
 import { resolveForestAreas } from './forest-areas';
 import { RegionSummaryInputError, validateInput, type PlotMetrics, type RegionSummaryOptions } from './input';
 import { fmtHa, note } from './notes';
-import { DEFAULT_REGION_VARIABLES, estimateDetail, isPerHectare, regionRow } from './region-summary';
+import { estimateDetail, regionRow } from './region-summary';
 import { NATIONAL, WHOLE_REGION, type EstimateDetail, type NationalStratum, type NationalSummary, type RegionRow, type SummaryNote, type TotalRow } from '@stemwise/core';
 
 // The national estimate: every region together, with region × forest type as the strata of one

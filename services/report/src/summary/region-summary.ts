@@ -1,4 +1,4 @@
-import { assertStratifiedOptions, stratifiedEstimate, WHOLE_REGION, type DisturbanceSummary, type EstimateDetail, type GuildRow, type RegionRow, type RegionSummary, type StratifiedEstimate, type StratifiedOptions, type SummaryGuild, type SummaryNote, type TotalRow } from '@stemwise/core';
+import { assertStratifiedOptions, DEFAULT_REGION_VARIABLES, isPerHectare, stratifiedEstimate, WHOLE_REGION, type DisturbanceSummary, type EstimateDetail, type GuildRow, type RegionRow, type RegionSummary, type StratifiedEstimate, type StratifiedOptions, type SummaryGuild, type PlotMetricColumn, type SummaryNote, type TotalRow } from '@stemwise/core';
 import { DEFAULT_DISTURBANCE_CLASSES, assertDisturbanceClasses, disturbanceClassIndex } from './disturbance-classes';
 import { resolveForestAreas } from './forest-areas';
 import { validateInput, type PlotMetrics, type RegionSummaryInput } from './input';
@@ -8,34 +8,14 @@ import { countSpecies } from './species-counts';
 export { DEFAULT_DISTURBANCE_CLASSES } from './disturbance-classes';
 export { RegionSummaryInputError, type PlotMetrics, type RegionSummaryInput, type RegionSummaryOptions } from './input';
 
-/** Variables estimated by default, in row order (numeric columns of `export plots`). */
-export const DEFAULT_REGION_VARIABLES: readonly string[] = [
-  'stems_ha',
-  'basal_area_m2_ha',
-  'agb_mg_ha',
-  'carbon_mg_ha',
-  'fisher_alpha',
-  'richness',
-  'disturbance_index',
-  'pioneer_ba_share',
-  'light_demander_ba_share',
-  'shade_tolerant_ba_share',
-  'unassigned_ba_share',
-  'logging_score',
-  'fire_score',
-];
-
-export const GUILD_VARIABLES: Readonly<Record<SummaryGuild, string>> = {
+export const GUILD_VARIABLES: Readonly<Record<SummaryGuild, PlotMetricColumn>> = {
   pioneer: 'pioneer_ba_share',
   light_demander: 'light_demander_ba_share',
   shade_tolerant: 'shade_tolerant_ba_share',
   unassigned: 'unassigned_ba_share',
 };
 
-const DISTURBANCE_VARIABLE = 'disturbance_index';
-
-/** Totals are meaningful for densities only: a variable whose name ends in `_ha` (stems, m², Mg per ha). */
-export const isPerHectare = (variable: string): boolean => variable.endsWith('_ha');
+const DISTURBANCE_VARIABLE: PlotMetricColumn = 'disturbance_index';
 
 type Estimator = (valueOf: (p: PlotMetrics) => number | null) => StratifiedEstimate;
 
