@@ -7,18 +7,16 @@
 // each with its ratio to the \copy. The commands run compiled (dist/stemwise.mjs, built first).
 //
 //   npm run bench -- --only pipeline [--stems 1360000 | --plots N] [--seed 7]
-import { execFileSync, spawnSync } from 'node:child_process';
-import crypto from 'node:crypto';
+import { spawnSync } from 'node:child_process';
 import fs from 'node:fs';
-import os from 'node:os';
 import path from 'node:path';
 import { parseArgs } from 'node:util';
 import pg from 'pg';
 import { generateInventory } from '@stemwise/demo-inventory';
 import { bundle, BUNDLE, ROOT } from '../build';
+import { psql, STEMS_PER_DEMO_PLOT, withScratch } from './support/scratch';
 
 const { values } = parseArgs({ options: { stems: { type: 'string', default: '1360000' }, plots: { type: 'string' }, seed: { type: 'string', default: '7' } } });
-const STEMS_PER_DEMO_PLOT = 585; // the demo generator's average (as in ingest.ts)
 const plots = values.plots ? Number(values.plots) : Math.max(1, Math.round(Number(values.stems) / STEMS_PER_DEMO_PLOT));
 const adminUrl = process.env.DATABASE_URL ?? 'postgres://postgres@127.0.0.1:5432/postgres';
 const BIN = path.join(ROOT, 'bin', 'stemwise.mjs');
@@ -34,28 +32,18 @@ function stemwise(args: string[], env: Record<string, string>): { s: number; std
   return { s, stdout: r.stdout };
 }
 
-const work = fs.mkdtempSync(path.join(os.tmpdir(), 'stemwise-bench-pipeline-'));
-const dbName = `stemwise_bench_${crypto.randomBytes(4).toString('hex')}`;
-const admin = new pg.Client({ connectionString: adminUrl });
-await admin.connect();
-const url = new URL(adminUrl);
-url.pathname = `/${dbName}`;
-const dbUrl = url.toString();
-try {
+await withScratch(adminUrl, 'pipeline', async ({ work, dbUrl }) => {
   await bundle(path.join(ROOT, 'cli', 'src', 'main.ts'), BUNDLE, { split: true });
   const dir = path.join(work, 'batch');
   let t0 = performance.now();
   await generateInventory({ outDir: dir, plots, seed: Number(values.seed) });
   fs.rmSync(path.join(dir, 'truth.json'));
   process.stdout.write(`generated ${plots} plots in ${seconds(t0).toFixed(1)} s\n`);
-  await admin.query(`create database "${dbName}"`);
 
   const trees = path.join(dir, 'trees.csv');
   const header = fs.readFileSync(trees, 'utf8').slice(0, 4096).split('\n')[0].split(',');
-  execFileSync('psql', ['-q', '-v', 'ON_ERROR_STOP=1', dbUrl, '-c', `create table bench_plain (${header.map((c) => `"${c}" text`).join(', ')})`]);
-  t0 = performance.now();
-  execFileSync('psql', ['-q', '-v', 'ON_ERROR_STOP=1', dbUrl, '-c', `\\copy bench_plain from '${trees}' csv header`], { stdio: ['ignore', 'ignore', 'inherit'] });
-  const copy = seconds(t0);
+  psql(dbUrl, `create table bench_plain (${header.map((c) => `"${c}" text`).join(', ')})`);
+  const copy = psql(dbUrl, `\\copy bench_plain from '${trees}' csv header`);
   const counter = new pg.Client({ connectionString: dbUrl });
   await counter.connect();
   const n = (await counter.query<{ n: number }>(`select count(*)::int n from bench_plain`)).rows[0].n;
@@ -67,7 +55,7 @@ try {
 
   const row = (step: string, s: number) => `| ${step} | ${s.toFixed(2)} s | ${(s / copy).toFixed(2)}× |`;
   const lines = [
-    `${n.toLocaleString('en')} stems, ${plots} plots; PostgreSQL of ${url.host}, jobs in-process, compiled`,
+    `${n.toLocaleString('en')} stems, ${plots} plots; PostgreSQL of ${new URL(dbUrl).host}, jobs in-process, compiled`,
     '',
     '| step | time | ÷ plain \\copy |',
     '|---|---|---|',
@@ -80,8 +68,4 @@ try {
     if (m) lines.push(row(`of which ${m[1]}`, Number(m[2])));
   }
   process.stdout.write(lines.join('\n') + '\n');
-} finally {
-  await admin.query(`drop database if exists "${dbName}" with (force)`).catch(() => {});
-  await admin.end();
-  fs.rmSync(work, { recursive: true, force: true });
-}
+});
