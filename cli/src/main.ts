@@ -14,7 +14,7 @@ const COMMANDS: Record<string, { summary: string; load: () => Promise<Command> }
   batch: { summary: 'shows a batch: batch show ID [--format text|json] [--errors-csv FILE]', load: async () => (await import('./commands/batch')).command },
   recompute: { summary: 'recomputes what new plots made stale: recompute [--now] [--all]', load: async () => (await import('./commands/recompute')).command },
   export: {
-    summary: 'writes results: export plots|fits|regions [--format csv|json|geojson] [--out FILE] [--axis A] [--metric M] [--region R]',
+    summary: 'writes results: export plots|change|fits|regions [--format csv|json|geojson] [--out FILE] [--axis A] [--metric M] [--region R]',
     load: async () => (await import('./commands/export')).command,
   },
   serve: { summary: 'runs services and workers: serve [ingest|compute|report|all]', load: async () => (await import('./commands/serve')).command },

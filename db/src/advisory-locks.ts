@@ -15,3 +15,11 @@ export const PLAN_LOCK = 742_020;
 export function batchLockKey(batchId: string): number {
   return 2 ** 40 + parseInt(batchId.replace(/-/g, '').slice(0, 12), 16);
 }
+
+/**
+ * The change lock of a plot (transaction-scoped): 2^39 + its id, between the small keys and the batch
+ * keys, so two plot chunks that share a plot write its pairs of visits one after the other.
+ */
+export function plotChangeLockKey(plotId: number): number {
+  return 2 ** 39 + plotId;
+}

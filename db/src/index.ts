@@ -15,3 +15,4 @@ export * from './queries/access';
 export * from './queries/batches';
 export * from './queries/load';
 export * from './queries/species-reference';
+export * from './queries/change';

@@ -1,6 +1,6 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { fixtureSpecies, generateInventory, loadInventory, loadSpecies } from './fixtures';
-import { fitsText, openPglite, plotsText, recomputeInProcess } from './support';
+import { changeText, fitsText, openPglite, plotsText, recomputeInProcess } from './support';
 import { useServices, type TestServices } from '../support/services';
 
 // The same generated inventory computed on PostgreSQL and on the embedded PGlite must give the same
@@ -57,6 +57,15 @@ describe('metrics and fits on PostgreSQL and PGlite', () => {
     const header = lines[0].split(',');
     const rows = lines.slice(1).map((l) => l.split(','));
     for (let c = 4; c < header.length; c++) expect(rows.some((r) => r[c] !== ''), header[c]).toBe(true);
+  });
+
+  it('exports identical change between visits on both engines, one row per plot measured twice', async () => {
+    await recomputed();
+    for (const format of ['csv', 'json', 'geojson'] as const) {
+      const a = await changeText(pg.db, format);
+      expect(await changeText(lite.db, format)).toBe(a);
+    }
+    expect((await changeText(pg.db, 'csv')).trim().split('\n')).toHaveLength(1 + inventory.filter((p) => p.visits.length === 2).length);
   });
 
   it('exports identical fits on both engines, two rows per forest type', async () => {

@@ -279,3 +279,53 @@ export function expectedUnresolved(plots: readonly FixturePlot[]): Record<string
       }
   return out;
 }
+
+export interface RemeasureOptions {
+  seed?: number;
+  /** Years between the visits (whole years, same day of the year). */
+  years?: number;
+  /** Yearly probabilities of a live tree dying (dead), being logged (logged stump) and not being found. */
+  death?: number;
+  logging?: number;
+  absence?: number;
+  /** New trees per plot at the second visit, live, at or above 10 cm. */
+  recruits?: number;
+}
+
+/**
+ * A re-measurement of every plot: a visit `years` after its last one with the same tree ids. Live
+ * trees die, are logged or go missing at the given yearly rates, or grow 0–1 cm a year; dead trees
+ * and stumps stay; new trees recruit. Test data (the demo's invented scenario), deterministic.
+ */
+export function remeasure(plots: readonly FixturePlot[], options: RemeasureOptions = {}): FixturePlot[] {
+  const r = rng(options.seed ?? 11);
+  const years = options.years ?? 5;
+  const over = (p: number): number => 1 - Math.pow(1 - p, years);
+  const pDie = over(options.death ?? 0.02);
+  const pLog = over(options.logging ?? 0.01);
+  const pAbsent = over(options.absence ?? 0.005);
+  return plots.map((plot) => {
+    const last = plot.visits[plot.visits.length - 1];
+    const stems: FixtureStem[] = [];
+    for (const s of last.stems) {
+      if (s.status !== 'live') {
+        stems.push({ ...s });
+        continue;
+      }
+      const u = r();
+      if (u < pAbsent) continue;
+      if (u < pAbsent + pDie) stems.push({ ...s, status: 'dead', heightM: null, fireDamage: 0 });
+      else if (u < pAbsent + pDie + pLog) stems.push({ ...s, status: 'stump', stumpCause: 'logged', heightM: null, fireDamage: 0 });
+      else {
+        const dbhCm = Math.round((s.dbhCm + r() * years) * 10) / 10;
+        stems.push({ ...s, dbhCm, inSubplot: s.inSubplot && dbhCm < last.dbhMinCm, heightM: s.heightM === null ? null : Math.min(60, Math.round((s.heightM + r() * 0.5 * years) * 10) / 10) });
+      }
+    }
+    const n = options.recruits ?? 3;
+    for (let j = 0; j < n; j++) {
+      stems.push({ treeId: `R${plot.visits.length}-${j + 1}`, species: last.stems.find((s) => s.species !== null)?.species ?? null, dbhCm: Math.round((10 + r() * 3) * 10) / 10, heightM: null, status: 'live', stumpCause: null, fireDamage: 0, inSubplot: false });
+    }
+    const surveyDate = `${Number(last.surveyDate.slice(0, 4)) + years}${last.surveyDate.slice(4)}`;
+    return { ...plot, visits: [...plot.visits, { ...last, surveyDate, stems }] };
+  });
+}

@@ -158,16 +158,18 @@ describe('a forest type, a plot and a region that cannot be computed', () => {
   it('records each with its reason; the run ends done and the rest is fresh', async () => {
     const [run] = await s.db.query<{ state: string; details: { problems: number } }>(`select state, details from recompute_runs where id = $1`, [runId]);
     expect(run.state).toBe('done');
-    expect(run.details.problems).toBe(3);
+    // P0020 has two visits: with its metrics, its change between visits cannot be computed either.
+    expect(run.details.problems).toBe(4);
     const problems = await s.db.query<{ stage: string; forest_type: string | null; region: string | null; plot_key: string | null; reason: string; run_id: string }>(
       `select stage, forest_type, region, plot_key, reason, run_id from compute_problems order by stage`,
     );
     expect(problems.map((p) => [p.stage, p.forest_type, p.region, p.plot_key])).toEqual([
+      ['change', 'moist', expect.any(String), 'P0020'],
       ['fit', 'dry', null, null],
       ['plot', 'moist', expect.any(String), 'P0020'],
       ['summary', null, POISON_REGION, null],
     ]);
-    expect(problems.map((p) => p.reason)).toEqual(['poisoned fit input (test)', 'poisoned plot input (test)', 'poisoned region input (test)']);
+    expect(problems.map((p) => p.reason)).toEqual(['poisoned plot input (test)', 'poisoned fit input (test)', 'poisoned plot input (test)', 'poisoned region input (test)']);
     expect(problems.every((p) => p.run_id === runId)).toBe(true);
     // everything else fresh: no stale marks or visits; the other forest types fitted in this run; the other regions summarised
     expect(await listStale(s.db, 'fits')).toEqual([]);
@@ -184,11 +186,12 @@ describe('a forest type, a plot and a region that cannot be computed', () => {
 
   it('shows the reasons in the batch report (batch show, text and JSON; GET /v1/batches/:id)', async () => {
     const report = (await batchReport(s.db, batchId))!;
-    expect(report.computeProblems.map((p) => p.stage)).toEqual(['plot', 'fit', 'summary']);
+    expect(report.computeProblems.map((p) => p.stage)).toEqual(['plot', 'change', 'fit', 'summary']);
     expect(report.computeProblems[0]).toMatchObject({ plot_id: 'P0020', run_id: runId, reason: 'poisoned plot input (test)' });
     const text = formatBatchReport({ ...report, files: [] }); // the fixture's batch has no file list
     expect(text).toMatch(/not computed/);
     expect(text).toMatch(/fit of forest type dry not computed .*poisoned fit input/);
+    expect(text).toMatch(/change between visits of plot P0020 not computed .*poisoned plot input/);
     expect(text).toMatch(new RegExp(`summary of region ${POISON_REGION} not computed`));
   });
 

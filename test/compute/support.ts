@@ -5,7 +5,7 @@ import { PassThrough } from 'node:stream';
 import { clearStale, finishRecomputeRun, listStaleMarks, migrateDatabase, openDatabase, syncForestTypes, type Db } from '@stemwise/db';
 import { planRecompute, type RecomputePlan, type ServiceDeps } from '@stemwise/core';
 import { InProcessQueue, loadConfig, parsePayload, type Config, type JobQueue, type ProcessorMap } from '@stemwise/platform';
-import { createProcessors, exportFits, exportPlots, type PlotExportFormat } from '@stemwise/compute';
+import { createProcessors, exportChange, exportFits, exportPlots, type PlotExportFormat } from '@stemwise/compute';
 import { testLogger } from '../support/services';
 
 /** Stand-in for the report service's `report.summaries` (tests only): ends the run as the real one does. */
@@ -69,6 +69,11 @@ async function collect(write: (stream: PassThrough) => Promise<unknown>): Promis
 /** `export plots` as text. */
 export function plotsText(db: Db, format: PlotExportFormat = 'csv', region?: string, pageSize?: number): Promise<string> {
   return collect((stream) => exportPlots(db, { format, region, pageSize }, { stream }));
+}
+
+/** `export change` as text. */
+export function changeText(db: Db, format: PlotExportFormat = 'csv'): Promise<string> {
+  return collect((stream) => exportChange(db, { format }, { stream }));
 }
 
 /** `export fits` as text. */

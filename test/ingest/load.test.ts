@@ -96,6 +96,58 @@ describe('ingest on PostgreSQL', () => {
     expect(audit[0].details.visits[0].plotKey).toBe('MW-200');
   });
 
+  it('refuses a visit dated before the plot\'s latest stored visit (cross_visit_before_latest), and loads it with --replace', async () => {
+    const plots = (date: string) => `${PLOTS_HEADER}\nMW-260,Lowmere,dry,-3.66,28.26,1,10,0,5,${date},0,0,`;
+    const trees = `${TREES_HEADER}\nMW-260,1,Tikka rubra,20,,live,,0,0`;
+    expect((await ingestDir(deps, writeUpload({ plots: plots('2023-04-01'), trees }))).report.state).toBe('loaded');
+    const before = await counts(s.db);
+    const earlier = await ingestDir(deps, writeUpload({ plots: plots('2020-04-01'), trees }));
+    expect(earlier.report.state).toBe('rejected');
+    const issue = earlier.report.issues.find((g) => g.rule === 'cross_visit_before_latest');
+    expect(issue?.severity).toBe('error');
+    expect(issue?.first[0]).toMatchObject({ file: 'plots.csv', line: 2, column: 'survey_date', value: '2020-04-01' });
+    expect(issue?.first[0].message).toMatch(/before its latest stored visit of 2023-04-01/);
+    expect(await counts(s.db)).toEqual(before);
+    expect((await ingestDir(deps, writeUpload({ plots: plots('2020-04-01'), trees }), { replace: true })).report.state).toBe('loaded');
+    const dates = await q<{ d: string }>(`select v.survey_date::text d from plot_visits v join plots p on p.id = v.plot_id where p.plot_key = 'MW-260' order by 1`);
+    expect(dates.map((r) => r.d)).toEqual(['2020-04-01', '2023-04-01']);
+  });
+
+  it('checks a re-measurement tree by tree against the previous visit: revived trees refused, shrinking, fast growth and a new name warned', async () => {
+    const plots = (date: string) => `${PLOTS_HEADER}\nMW-261,Lowmere,dry,-3.67,28.27,1,10,0,5,${date},0,0,`;
+    const first = `${TREES_HEADER}\nMW-261,1,Tikka rubra,20,,live,,0,0\nMW-261,2,Ossara lumen,30,,dead,,0,0\nMW-261,3,Tikka rubra,12,,live,,0,0\nMW-261,4,Ossara lumen,25,,stump,logged,0,0\nMW-261,5,Tikka rubra,15,,live,,0,0`;
+    expect((await ingestDir(deps, writeUpload({ plots: plots('2019-05-01'), trees: first }))).report.state).toBe('loaded');
+    // 5 years later (1827 days): tree 1 lost 2 cm and changed name, tree 2 (dead) is live, tree 3 grew 48 cm (9.6 cm/yr), tree 4 (a stump) is live
+    const second = `${TREES_HEADER}\nMW-261,1,Ossara lumen,18,,live,,0,0\nMW-261,2,Ossara lumen,30,,live,,0,0\nMW-261,3,Tikka rubra,60,,live,,0,0\nMW-261,4,Ossara lumen,25,,live,,0,0`;
+    const before = await counts(s.db);
+    const { report } = await ingestDir(deps, writeUpload({ plots: plots('2024-05-01'), trees: second }));
+    expect(report.state).toBe('rejected');
+    expect(await counts(s.db)).toEqual(before);
+    const byRule = (rule: string) => report.issues.find((g) => g.rule === rule);
+    expect(byRule('cross_tree_revived')?.severity).toBe('error');
+    expect(byRule('cross_tree_revived')?.first.map((i) => i.line)).toEqual([3, 5]);
+    expect(byRule('cross_tree_revived')?.first[0].message).toMatch(/tree 2 of plot MW-261 is live, but was recorded dead at the previous visit \(2019-05-01, batch /);
+    expect(byRule('cross_tree_revived')?.first[1].message).toMatch(/recorded a stump \(logged\)/);
+    expect(byRule('plausibility_dbh_shrank')?.first[0]).toMatchObject({ line: 2, column: 'dbh_cm', value: '18' });
+    expect(byRule('plausibility_dbh_growth_fast')?.first[0]).toMatchObject({ line: 4, column: 'dbh_cm', value: '60' });
+    expect(byRule('plausibility_dbh_growth_fast')?.first[0].message).toMatch(/9\.6 cm a year/);
+    expect(byRule('plausibility_species_changed')?.first[0]).toMatchObject({ line: 2, column: 'species', value: 'Ossara lumen' });
+    // Without the revived trees the re-measurement loads, with its warnings.
+    const fixed = second.split('\n').filter((l) => !/^MW-261,[24],/.test(l)).join('\n');
+    const ok = await ingestDir(deps, writeUpload({ plots: plots('2024-05-01'), trees: fixed }));
+    expect(ok.report.state).toBe('loaded');
+    // (plausibility_species_no_reference too when this test runs alone, before any species list is loaded)
+    expect(ok.report.issues.map((g) => g.rule).filter((r) => r !== 'plausibility_species_no_reference').sort()).toEqual([
+      'plausibility_dbh_growth_fast',
+      'plausibility_dbh_shrank',
+      'plausibility_species_changed',
+      'plausibility_trees_absent',
+    ]);
+    // Tree 5 (live in 2019) is missing in 2024; 2 and 4 were dead or a stump, so their absence is no news.
+    expect(ok.report.issues.find((g) => g.rule === 'plausibility_trees_absent')?.first[0]).toMatchObject({ file: 'plots.csv', line: 2 });
+    expect(ok.report.issues.find((g) => g.rule === 'plausibility_trees_absent')?.first[0].message).toMatch(/1 tree live at the previous visit \(2019-05-01\) is not in trees\.csv \(tree_id 5\)/);
+  });
+
   it('attaches stems of a stored plot without a plots row to its latest visit, and refuses a tree id already stored there', async () => {
     const plots = `${PLOTS_HEADER}\nMW-201,Lowmere,dry,-3.61,28.1,1,10,0,5,2022-04-01,0,0,`;
     const own = `${TREES_HEADER}\nMW-201,1,Tikka rubra,20,,live,,0,0`;

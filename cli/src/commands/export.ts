@@ -3,14 +3,16 @@ import { StemwiseError } from '@stemwise/platform';
 import { defineCommand, usageError } from '../command';
 import { printErr } from '../output';
 
-const KINDS = ['plots', 'fits', 'regions'] as const;
-const FORMATS: Record<(typeof KINDS)[number], readonly string[]> = { plots: ['csv', 'json', 'geojson'], fits: ['csv', 'json'], regions: ['csv', 'json'] };
+const KINDS = ['plots', 'change', 'fits', 'regions'] as const;
+const FORMATS: Record<(typeof KINDS)[number], readonly string[]> = { plots: ['csv', 'json', 'geojson'], change: ['csv', 'json', 'geojson'], fits: ['csv', 'json'], regions: ['csv', 'json'] };
 
 export const command = defineCommand({
-  usage: `usage: stemwise export plots|fits|regions [--format F] [--out FILE] [--axis A] [--metric M] [--region R]
+  usage: `usage: stemwise export plots|change|fits|regions [--format F] [--out FILE] [--axis A] [--metric M] [--region R]
 
 Writes results to FILE, or to stdout (the data as stored, byte for byte: see docs/exports.md).
   plots     one row per plot visit; --format csv, json or geojson; --region R for one region
+  change    one row per plot and pair of consecutive visits: mortality, recruitment, growth, carbon
+            change; --format csv, json or geojson; --region R for one region
   fits      the diversity–disturbance curve fits; --format csv or json; --axis and --metric for one pair
   regions   the per-region estimates; --format csv or json; --region R for one region
 `,
@@ -46,9 +48,10 @@ Writes results to FILE, or to stdout (the data as stored, byte for byte: see doc
       if (values.metric !== undefined) checkFitColumn('metric', values.metric);
       const db = await rt.db();
       written = await compute.exportFits({ db, config: rt.config, log: rt.log }, { format: format as 'csv' | 'json', axis: values.axis, metric: values.metric }, target);
-    } else if (kind === 'plots') {
+    } else if (kind === 'plots' || kind === 'change') {
       const db = await rt.db();
-      written = await compute.exportPlots(db, { format: format as 'csv' | 'json' | 'geojson', region: values.region ?? null }, target);
+      const write = kind === 'plots' ? compute.exportPlots : compute.exportChange;
+      written = await write(db, { format: format as 'csv' | 'json' | 'geojson', region: values.region ?? null }, target);
     } else {
       const { exportRegions } = await import('@stemwise/report');
       written = await exportRegions({ db: await rt.db() }, { format: format as 'csv' | 'json', region: values.region ?? null }, target);

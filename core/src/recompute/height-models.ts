@@ -48,8 +48,10 @@ export function heightModelFromRow(row: HeightModelRow): HeightDiameterModel {
   return { a: c.a, b: c.b, c: c.c, biasCorrection: c.biasCorrection, n: s.n, rse: s.rse, r2: s.r2, dbhMinCm: s.dbhMinCm, dbhMaxCm: s.dbhMaxCm };
 }
 
+// Keys sorted: a stored model comes back from jsonb with its keys in jsonb's order, not the order written.
+const canonical = (o: Record<string, unknown>): string => JSON.stringify(Object.keys(o).sort().map((k) => [k, o[k]]));
 const same = (a: HeightModelRow | undefined, b: HeightModelRow | null): boolean =>
-  a === undefined ? b === null : b !== null && JSON.stringify([a.form, a.coefficients, a.stats]) === JSON.stringify([b.form, b.coefficients, b.stats]);
+  a === undefined ? b === null : b !== null && a.form === b.form && canonical(a.coefficients) === canonical(b.coefficients) && canonical(a.stats) === canonical(b.stats);
 
 /** Refits the models of the given forest types; see the note at the top of this file. */
 export async function refitHeightModels(db: Db, forestTypes: readonly string[], minHeights: number): Promise<HeightModelChange[]> {

@@ -11,9 +11,21 @@ export interface VariableLabel {
   readonly unit: string;
 }
 
+/** Labels of the change-between-visits variables (not plot metrics: docs/methods.md#change-between-visits). */
+const CHANGE_LABELS: Readonly<Record<string, VariableLabel>> = {
+  carbon_net_change_mg_ha_yr: { name: 'Net carbon change between visits', short: 'Net carbon change (Mg C/ha/yr)', unit: 'Mg C/ha/yr' },
+  agb_net_change_mg_ha_yr: { name: 'Net biomass change between visits', short: 'Net biomass change (Mg/ha/yr)', unit: 'Mg/ha/yr' },
+  agb_growth_mg_ha_yr: { name: 'Biomass gained by survivor growth', short: 'Growth (Mg/ha/yr)', unit: 'Mg/ha/yr' },
+  agb_recruitment_mg_ha_yr: { name: 'Biomass gained by recruits', short: 'Recruitment (Mg/ha/yr)', unit: 'Mg/ha/yr' },
+  agb_loss_mg_ha_yr: { name: 'Biomass lost by death and removal', short: 'Losses (Mg/ha/yr)', unit: 'Mg/ha/yr' },
+  mortality_annual: { name: 'Annual mortality (share of trees per year)', short: 'Mortality per year', unit: '' },
+  recruitment_annual: { name: 'Annual recruitment (share of trees per year)', short: 'Recruitment per year', unit: '' },
+  dbh_increment_cm_yr: { name: 'Diameter growth of survivors', short: 'Diameter growth (cm/yr)', unit: 'cm/yr' },
+};
+
 export function variableLabel(variable: string): VariableLabel {
   const m = plotMetricByColumn(variable);
-  return m === undefined ? { name: variable, short: variable, unit: '' } : { name: m.label, short: m.short, unit: m.unit };
+  return m === undefined ? (CHANGE_LABELS[variable] ?? { name: variable, short: variable, unit: '' }) : { name: m.label, short: m.short, unit: m.unit };
 }
 
 /** Unit of a total (mean × forest area) of a per-hectare variable; '' for any other variable. */

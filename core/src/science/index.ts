@@ -19,3 +19,4 @@ export * from './verdict';
 export * from './stratified';
 export * from './sample-moments';
 export * from './estimator-errors';
+export * from './change';

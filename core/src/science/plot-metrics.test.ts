@@ -76,6 +76,26 @@ describe('computePlotMetrics on a small plot (every expected value computed by h
     expect(rel(m.carbonMgHa, 0.47 * want)).toBeLessThan(1e-13);
   });
 
+  it('with stemAgb, gives the biomass of every live stem (below the minimum too, stem 12: Ostra lenta ρ 0.8) and the same figures', () => {
+    const withStems = computePlotMetrics(VISIT, STEMS, index, { stemAgb: true });
+    expect(withStems.metrics).toEqual(m);
+    expect(withStems.stemAgbKg).toEqual([
+      agbChave2014(0.4, 20, 15),
+      agbChave2005(0.4, 30, 'moist'),
+      agbChave2014(0.8, 40, 25),
+      agbChave2005(0.6, 10, 'moist'),
+      agbChave2005(rhoPlot, 20, 'moist'),
+      agbChave2005(0.6, 8, 'moist'),
+      agbChave2005(rhoPlot, 6, 'moist'),
+      null,
+      null,
+      null,
+      null,
+      agbChave2005(0.8, 8, 'moist'),
+    ].map((x) => (x === null ? null : expect.closeTo(x, 9))));
+    expect(computePlotMetrics(VISIT, STEMS, index).stemAgbKg).toBeUndefined();
+  });
+
   it('diversity on main-plot identified stems: counts 2 (incl. the synonym), 1, 1; N = 4', () => {
     expect(m.nIdentified).toBe(4);
     expect(m.richness).toBe(3);

@@ -78,6 +78,11 @@ export interface PlotMetricOptions {
   readonly disturbance?: DisturbanceOptions;
   /** Built from the index (and cached per index) when absent. */
   readonly woodDensityTable?: WoodDensityTable;
+  /**
+   * Also return the biomass of every live stem (`stemAgbKg`), below the dbh minimum too, by the same
+   * models and wood densities as the plot's figures (change between visits needs it per tree).
+   */
+  readonly stemAgb?: boolean;
 }
 
 export const DEFAULT_MIN_STEMS_FOR_DIVERSITY = 2;
@@ -106,6 +111,8 @@ export interface PlotDiagnostics {
 export interface PlotMetricsResult {
   metrics: PlotMetrics;
   diagnostics: PlotDiagnostics;
+  /** With `stemAgb`: AGB in kg of each input stem, in input order; null for stems that are not live. */
+  stemAgbKg?: (number | null)[];
 }
 
 const tables = new WeakMap<SpeciesIndex, WoodDensityTable>();
@@ -184,6 +191,9 @@ export function computePlotMetrics(
   let loggedStumpBa = 0;
   let belowMin = 0;
   const speciesCounts = new Map<SpeciesReference, number>();
+  // With stemAgb: input positions of the included live stems, and the live stems below their minimum.
+  const includedAt: number[] = [];
+  const below: { at: number; hit: WoodDensityHit | null }[] = [];
   const unresolved = new Map<string, { level: 'genus' | 'unresolved'; stems: number }>();
 
   const mainWeight = expansionFactor(false, visit.areaHa, visit.subplotAreaHa);
@@ -210,8 +220,10 @@ export function computePlotMetrics(
     }
     if (s.dbhCm < (s.inSubplot ? visit.subplotDbhMinCm : visit.dbhMinCm)) {
       belowMin += 1;
+      if (options.stemAgb) below.push({ at: i, hit: table.lookup(index.resolve(s.species)) });
       continue;
     }
+    if (options.stemAgb) includedAt.push(i);
     const w = s.inSubplot ? (subplotWeight as number) : mainWeight;
     const g = basalAreaM2(s.dbhCm);
     const r = index.resolve(s.species);
@@ -232,7 +244,18 @@ export function computePlotMetrics(
   const totalBaHa = basalAreaPerHa(dbh, weight);
 
   // Wood density and biomass
-  const wd = stemWoodDensities(hits, baHa, options.defaultWoodDensity ?? DEFAULT_WOOD_DENSITY);
+  // Stems below their minimum get a density too (with stemAgb) but weigh nothing in the plot's mean.
+  const wd = below.length
+    ? stemWoodDensities([...hits, ...below.map((b) => b.hit)], [...baHa, ...below.map(() => 0)], options.defaultWoodDensity ?? DEFAULT_WOOD_DENSITY)
+    : stemWoodDensities(hits, baHa, options.defaultWoodDensity ?? DEFAULT_WOOD_DENSITY);
+  // One biomass model choice for every stem: measured height, else the local model, else no height.
+  const agbOf = (rho: number, d: number, measured: number | null): number =>
+    measured !== null
+      ? agbChave2014(rho, d, measured)
+      : heightModel !== null
+        ? agbChave2014(rho, d, predictHeight(heightModel, d))
+        : agbChave2005(rho, d, visit.climate);
+  const stemAgbKg: (number | null)[] | undefined = options.stemAgb ? new Array<number | null>(stems.length).fill(null) : undefined;
   const wdBa: Record<WoodDensityLevel, number> = { species: 0, genus: 0, family: 0, plot: 0, default: 0 };
   const heightCount = [0, 0, 0];
   let outsideRange = 0;
@@ -242,19 +265,18 @@ export function computePlotMetrics(
     const rho = wd.values[i];
     wdBa[wd.levels[i]] += baHa[i];
     const measured = height[i];
-    let agb: number;
-    if (measured !== null) {
-      heightCount[HEIGHT_MEASURED] += 1;
-      agb = agbChave2014(rho, d, measured);
-    } else if (heightModel !== null) {
+    if (measured !== null) heightCount[HEIGHT_MEASURED] += 1;
+    else if (heightModel !== null) {
       heightCount[HEIGHT_MODELLED] += 1;
       if (d < heightModel.dbhMinCm || d > heightModel.dbhMaxCm) outsideRange += 1;
-      agb = agbChave2014(rho, d, predictHeight(heightModel, d));
-    } else {
-      heightCount[HEIGHT_NONE] += 1;
-      agb = agbChave2005(rho, d, visit.climate);
-    }
+    } else heightCount[HEIGHT_NONE] += 1;
+    const agb = agbOf(rho, d, measured);
+    if (stemAgbKg) stemAgbKg[includedAt[i]] = agb;
     agbKgHa += weight[i] * agb;
+  }
+  for (let j = 0; j < below.length; j += 1) {
+    const s = stems[below[j].at];
+    (stemAgbKg as (number | null)[])[below[j].at] = agbOf(wd.values[nLive + j], s.dbhCm, s.heightM);
   }
   const agbMgHa = agbKgHa / 1000;
 
@@ -334,5 +356,5 @@ export function computePlotMetrics(
     liveStemsBelowDbhMin: belowMin,
     unresolvedNames,
   };
-  return { metrics, diagnostics };
+  return stemAgbKg ? { metrics, diagnostics, stemAgbKg } : { metrics, diagnostics };
 }

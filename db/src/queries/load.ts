@@ -212,3 +212,41 @@ export async function loadedRowCounts(db: Queryable): Promise<Record<'regions' |
   );
   return r;
 }
+
+export interface PreviousStem {
+  treeId: string;
+  status: string;
+  stumpCause: string | null;
+  dbhCm: number;
+  species: string | null;
+}
+
+export interface PreviousVisit {
+  plotKey: string;
+  surveyDate: string;
+  batchId: string;
+  stems: Map<string, PreviousStem>;
+}
+
+/** Of each plot, its latest stored visit before the given date, with that visit's stems by tree id (re-measurement checks). */
+export async function findPreviousVisits(db: Queryable, plotKeys: readonly string[], dates: readonly string[]): Promise<PreviousVisit[]> {
+  if (!plotKeys.length) return [];
+  const rows = await db.query<{ plot_key: string; survey_date: string; batch_id: string; tree_id: string | null; status: string; stump_cause: string | null; dbh_cm: number; species: string | null }>(
+    `with prev as (
+       select distinct on (p.plot_key) p.plot_key, v.id, v.survey_date, v.batch_id
+         from unnest($1::text[], $2::date[]) as k(plot_key, survey_date)
+         join plots p on p.plot_key = k.plot_key
+         join plot_visits v on v.plot_id = p.id and v.survey_date < k.survey_date
+        order by p.plot_key, v.survey_date desc)
+     select prev.plot_key, prev.survey_date::text survey_date, prev.batch_id::text batch_id, s.tree_id, s.status, s.stump_cause, s.dbh_cm, s.species
+       from prev left join stems s on s.visit_id = prev.id`,
+    [plotKeys, dates],
+  );
+  const out = new Map<string, PreviousVisit>();
+  for (const r of rows) {
+    let v = out.get(r.plot_key);
+    if (!v) out.set(r.plot_key, (v = { plotKey: r.plot_key, surveyDate: r.survey_date, batchId: r.batch_id, stems: new Map() }));
+    if (r.tree_id !== null) v.stems.set(r.tree_id, { treeId: r.tree_id, status: r.status, stumpCause: r.stump_cause, dbhCm: Number(r.dbh_cm), species: r.species });
+  }
+  return [...out.values()];
+}

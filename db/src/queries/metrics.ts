@@ -46,7 +46,12 @@ export async function lockVisitsForCompute(tx: Queryable, visitIds: readonly num
         for update of v`,
     [visitIds],
   );
-  return rows.map((r) => ({
+  return rows.map(computeVisitRow);
+}
+
+/** A visit row as compute reads it (columns id, plot_key, batch_id, region, forest_type, climate, area and dbh minima, classes). */
+export function computeVisitRow(r: Record<string, unknown>): ComputeVisitRow {
+  return {
     visitId: id(r.id),
     plotKey: r.plot_key as string,
     batchId: r.batch_id as string,
@@ -59,7 +64,14 @@ export async function lockVisitsForCompute(tx: Queryable, visitIds: readonly num
     subplotDbhMinCm: Number(r.subplot_dbh_min_cm),
     loggingClass: Number(r.logging_class),
     fireClass: Number(r.fire_class),
-  }));
+  };
+}
+
+/** The named numeric columns of a row, null where empty. */
+export function numericColumns<C extends string>(r: Record<string, unknown>, names: readonly C[]): Record<C, number | null> {
+  const out = {} as Record<C, number | null>;
+  for (const c of names) out[c] = r[c] === null || r[c] === undefined ? null : Number(r[c]);
+  return out;
 }
 
 export interface ComputeStemRow {
@@ -422,8 +434,7 @@ export async function pagePlotExport(db: Queryable, page: PlotExportPage): Promi
     [page.region ?? null, page.after?.plotId ?? null, page.after?.surveyDate ?? null, page.limit],
   );
   return rows.map((r) => {
-    const metrics = {} as Record<PlotMetricDbColumn, number | null>;
-    for (const c of METRIC_NAMES) metrics[c] = r[c] === null || r[c] === undefined ? null : Number(r[c]);
+    const metrics = numericColumns(r, METRIC_NAMES);
     return {
       plot_id: r.plot_key as string,
       survey_date: r.survey_date as string,

@@ -3,7 +3,7 @@ import type { Queryable } from '../connection';
 // What a recompute could not compute (compute_problems): one open row per subject, written by the
 // stage that met it and removed by the next success of the same subject.
 
-export type ProblemStage = 'plot' | 'fit' | 'summary';
+export type ProblemStage = 'plot' | 'fit' | 'summary' | 'change';
 
 export interface ComputeProblem {
   stage: ProblemStage;
@@ -17,9 +17,10 @@ export interface ComputeProblem {
   reason: string;
 }
 
-/** The subject key of a problem: a visit id, a forest type, a forest type and a region (unit separator between), a region. */
-export function problemSubject(p: Pick<ComputeProblem, 'stage' | 'forestType' | 'region' | 'visitId'>): string {
+/** The subject key of a problem: a visit id, a plot key (change), a forest type, a forest type and a region (unit separator between), a region. */
+export function problemSubject(p: Pick<ComputeProblem, 'stage' | 'forestType' | 'region' | 'visitId'> & { plotKey?: string | null }): string {
   if (p.stage === 'plot') return String(p.visitId);
+  if (p.stage === 'change') return p.plotKey ?? '';
   if (p.stage === 'summary') return p.region ?? '';
   return p.region === null ? (p.forestType ?? '') : `${p.forestType}\u001f${p.region}`;
 }
@@ -53,7 +54,7 @@ export async function clearProblems(tx: Queryable, stage: ProblemStage, subjects
 }
 
 const SELECT = `select stage, subject, run_id "runId", forest_type "forestType", region, visit_id "visitId", plot_key "plotKey", reason from compute_problems`;
-const ORDER = `order by array_position(array['plot','fit','summary'], stage), forest_type collate "C" nulls first, region collate "C" nulls first, plot_key collate "C", subject`;
+const ORDER = `order by array_position(array['plot','change','fit','summary'], stage), forest_type collate "C" nulls first, region collate "C" nulls first, plot_key collate "C", subject`;
 
 function rows(list: Array<Record<string, unknown>>): ComputeProblem[] {
   return list.map((r) => ({ ...(r as unknown as ComputeProblem), visitId: r.visitId === null ? null : Number(r.visitId) }));
@@ -72,11 +73,12 @@ export async function listBatchProblems(db: Queryable, batchId: string): Promise
   return rows(
     await db.query(
       `with mine as (
-         select distinct v.id visit_id, p.forest_type, r.name region
+         select distinct v.id visit_id, p.plot_key, p.forest_type, r.name region
            from plot_visits v join plots p on p.id = v.plot_id join regions r on r.id = p.region_id
           where v.batch_id = $1)
        ${SELECT} c
         where (c.stage = 'plot' and c.visit_id in (select visit_id from mine))
+           or (c.stage = 'change' and c.plot_key in (select plot_key from mine))
            or (c.stage = 'fit' and exists (select 1 from mine m where m.forest_type = c.forest_type and (c.region is null or c.region = m.region)))
            or (c.stage = 'summary' and c.region in (select region from mine))
         ${ORDER}`,
@@ -119,7 +121,9 @@ export function problemLine(p: ProblemView): string {
   const what =
     p.stage === 'plot'
       ? `metrics of plot ${p.plot_id ?? '?'}`
-      : p.stage === 'summary'
+      : p.stage === 'change'
+        ? `change between visits of plot ${p.plot_id ?? '?'}`
+        : p.stage === 'summary'
         ? `summary of region ${p.region}`
         : p.region === null
           ? `fit of forest type ${p.forest_type}`

@@ -1,5 +1,6 @@
 import type { Queryable } from '../connection';
-import { PLOT_METRIC_DB_COLUMNS, type PlotMetricDbColumn } from './metrics';
+import type { PlotChangeDbColumn } from './change';
+import { numericColumns, PLOT_METRIC_DB_COLUMNS, type PlotMetricDbColumn } from './metrics';
 
 // Region summaries: what the report job reads to assemble a region's snapshot (latest computed visit
 // of each plot, forest areas, species names), the snapshots themselves (versioned, never updated),
@@ -27,16 +28,33 @@ export interface RegionPlotRow {
   elevationM: number | null;
   surveyDate: string;
   metrics: Record<PlotMetricDbColumn, number | null>;
+  /** Change from the previous visit to this one (docs/methods.md#change-between-visits); every value null when the plot has no earlier visit. */
+  change: Record<RegionChangeColumn, number | null>;
 }
 
-/** The latest computed visit of every plot of a region with its metrics, by plot key (byte order). */
+/** The per-plot change columns the region and national estimates of change use. */
+export const REGION_CHANGE_COLUMNS = [
+  'carbon_net_change_mg_ha_yr',
+  'agb_net_change_mg_ha_yr',
+  'agb_growth_mg_ha_yr',
+  'agb_recruitment_mg_ha_yr',
+  'agb_loss_mg_ha_yr',
+  'mortality_annual',
+  'recruitment_annual',
+  'dbh_increment_cm_yr',
+] as const satisfies readonly PlotChangeDbColumn[];
+export type RegionChangeColumn = (typeof REGION_CHANGE_COLUMNS)[number];
+
+/** The latest computed visit of every plot of a region with its metrics and its change from the visit before, by plot key (byte order). */
 export async function listRegionLatestPlots(db: Queryable, region: string): Promise<RegionPlotRow[]> {
   const rows = await db.query<Record<string, unknown>>(
     `with latest as (${LATEST_VISITS})
-     select p.plot_key, p.forest_type, p.latitude, p.longitude, p.elevation_m, l.survey_date::text survey_date, ${METRIC_SELECT}
+     select p.plot_key, p.forest_type, p.latitude, p.longitude, p.elevation_m, l.survey_date::text survey_date, ${METRIC_SELECT},
+            ${REGION_CHANGE_COLUMNS.map((x) => `c.${x}`).join(', ')}
        from latest l
        join plots p on p.id = l.plot_id
        join plot_metrics m on m.visit_id = l.visit_id
+       left join plot_change c on c.visit_to_id = l.visit_id
       order by p.plot_key collate "C"`,
     [region],
   );
@@ -51,6 +69,7 @@ export async function listRegionLatestPlots(db: Queryable, region: string): Prom
       elevationM: r.elevation_m === null ? null : Number(r.elevation_m),
       surveyDate: r.survey_date as string,
       metrics,
+      change: numericColumns(r, REGION_CHANGE_COLUMNS),
     };
   });
 }

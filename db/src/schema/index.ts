@@ -8,3 +8,4 @@ export * from './fits';
 export * from './reports';
 export * from './access';
 export * from './work';
+export * from './change';

@@ -35,7 +35,8 @@ export const recomputeRuns = pgTable(
 
 /**
  * What a recompute could not compute, one row per subject: a plot visit whose metrics failed (`plot`),
- * a forest type or region × forest type whose fit failed (`fit`), a region whose summary failed
+ * a forest type or region × forest type whose fit failed (`fit`), a plot whose change between visits
+ * failed (`change`, subject: the plot key), a region whose summary failed
  * (`summary`). The others are computed all the same; the subject's stale mark is cleared so no run
  * retries it until its data change. A later success removes the row; `run_id` is the run that met it.
  */
@@ -55,6 +56,6 @@ export const computeProblems = pgTable(
   },
   (t) => [
     primaryKey({ name: 'compute_problems_pk', columns: [t.stage, t.subject] }),
-    check('compute_problems_stage_chk', sql`${t.stage} in ('plot','fit','summary')`),
+    check('compute_problems_stage_chk', sql`${t.stage} in ('plot','fit','summary','change')`),
   ],
 );

@@ -1,6 +1,7 @@
 import {
   listHeightModels,
   loadStemsForVisits,
+  lockPlotsForChange,
   lockVisitsForCompute,
   markStale,
   markVisitsComputed,
@@ -17,6 +18,7 @@ import { currentSpecies, heightModelFromRow, type HeightDiameterModel, type Serv
 import type { Logger } from '@stemwise/platform';
 import { computeVisits, type ChunkTask } from './chunk-metrics';
 import { metricsPool } from './metrics-pool';
+import { writePlotChanges } from './plot-change';
 
 export interface ChunkCounts {
   visits: number;
@@ -25,6 +27,10 @@ export interface ChunkCounts {
   missing: number;
   /** Visits whose metrics could not be computed (recorded in compute_problems; the others are written). */
   failed: number;
+  /** Pairs of consecutive visits written for the chunk's plots (docs/methods.md#change-between-visits). */
+  changePairs: number;
+  /** Plots whose change could not be computed (recorded in compute_problems). */
+  changeFailed: number;
   /** When the chunk started (epoch ms) and how long it took: the run's stage times come from these. */
   start: number;
   ms: number;
@@ -34,8 +40,9 @@ export interface ChunkCounts {
  * Metrics of a chunk of plot visits, in ONE transaction: lock the visits, read them and their stems
  * (two set-based queries), compute every visit, upsert every metrics row in one statement, clear the
  * visits' stale marks, mark the fits of their forest types and the summaries of their regions stale,
- * and bring the unresolved-name counts of their batches up to date. Idempotent: a rerun writes the
- * same rows and counts.
+ * bring the unresolved-name counts of their batches up to date, and rewrite the change between visits
+ * of their plots (every pair of consecutive visits of each plot, so a new visit makes its plot's change
+ * due with it). Idempotent: a rerun writes the same rows and counts.
  */
 export async function computePlotChunk(deps: Pick<ServiceDeps, 'db' | 'config'> & { log?: Logger }, runId: string, visitIds: readonly number[], jobId: string): Promise<ChunkCounts> {
   const start = Date.now();
@@ -43,6 +50,8 @@ export async function computePlotChunk(deps: Pick<ServiceDeps, 'db' | 'config'> 
   const { db, config, log } = deps;
   const species = await currentSpecies(db);
   return db.transaction(async (tx) => {
+    // The plots' change locks before the visits' row locks (see lockPlotsForChange).
+    const plotIds = await lockPlotsForChange(tx, visitIds);
     const visits = await lockVisitsForCompute(tx, visitIds);
     const stemsOf = visits.length ? await loadStemsForVisits(tx, visits.map((v) => v.visitId)) : new Map<number, ComputeStemRow[]>();
     const forestTypes = [...new Set(visits.map((v) => v.forestType))].sort();
@@ -79,9 +88,19 @@ export async function computePlotChunk(deps: Pick<ServiceDeps, 'db' | 'config'> 
     await clearProblems(tx, 'plot', computed.map(String));
     await recordProblems(tx, runId, failed);
     await markVisitsComputed(tx, ids);
+    const change = await writePlotChanges(tx, plotIds, { index: species.index, models, defaultWoodDensity: config.defaultWoodDensity, speciesVersionId: species.versionId, runId, log });
     await markStale(tx, 'fits', forestTypes);
     await markStale(tx, 'summary', [...new Set(visits.map((v) => v.region))].sort());
-    const counts: ChunkCounts = { visits: visits.length, stems: nStems, missing: visitIds.length - visits.length, failed: failed.length, start, ms: Math.round(performance.now() - started) };
+    const counts: ChunkCounts = {
+      visits: visits.length,
+      stems: nStems,
+      missing: visitIds.length - visits.length,
+      failed: failed.length,
+      changePairs: change.pairs,
+      changeFailed: change.failed,
+      start,
+      ms: Math.round(performance.now() - started),
+    };
     await recordChunkInRun(tx, runId, jobId, { ...counts });
     return counts;
   });

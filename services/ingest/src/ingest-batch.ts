@@ -1,6 +1,6 @@
 import path from 'node:path';
 import fs from 'node:fs';
-import { currentSpeciesVersion, findPlotsAtCoordinates, findStoredPlots, findStoredVisits, finishBatch, insertBatchIssues, loadSpeciesReference, stemTreeIdsOfVisits, type BatchCounts, type BatchFile, type BatchRow, type Queryable } from '@stemwise/db';
+import { currentSpeciesVersion, findPlotsAtCoordinates, findPreviousVisits, findStoredPlots, findStoredVisits, finishBatch, insertBatchIssues, loadSpeciesReference, stemTreeIdsOfVisits, type BatchCounts, type BatchFile, type BatchRow, type Queryable } from '@stemwise/db';
 import { CROSS, crossMessages, PLAUSIBILITY, PLAUSIBILITY_DEFAULTS, plausibilityMessages, SpeciesIndex, STRUCTURE, structureMessages, type PlausibilityOptions, type ServiceDeps, type SpeciesReference } from '@stemwise/core';
 import { PermanentError, type JobContext } from '@stemwise/platform';
 import { IssueLog } from './issues';
@@ -123,6 +123,17 @@ export async function ingestBatch(deps: ServiceDeps, batch: BatchRow, options: I
       plotsResult.stats.badRows++;
     }
   }
+  // A re-measurement comes after the visits stored: an earlier date is refused unless --replace says so
+  // (its plot's change between visits is then recomputed with the visit in its place).
+  if (!batch.options.replace) {
+    for (const stored of await findStoredPlots(db, okPlots.filter((p) => p.ok).map((p) => p.key))) {
+      const p = plots.get(stored.plotKey)!;
+      if (!p.ok || p.surveyDate >= stored.surveyDate) continue;
+      log.add(CROSS.visitBeforeLatest, 'plots.csv', p.line, 'survey_date', p.surveyDate, crossMessages.visitBeforeLatest(p.key, p.surveyDate, stored.surveyDate));
+      p.ok = false;
+      plotsResult.stats.badRows++;
+    }
+  }
   const coords = await findPlotsAtCoordinates(db, okPlots.map((p) => p.latitude), okPlots.map((p) => p.longitude), okPlots.map((p) => p.key));
   if (coords.length) {
     const byPlace = new Map(coords.map((c) => [`${c.latitude},${c.longitude}`, c.plotKey]));
@@ -159,7 +170,7 @@ export async function ingestBatch(deps: ServiceDeps, batch: BatchRow, options: I
 
   if (options.checkOnly || blocked() || !treesSource) {
     // Rejected already: check the trees anyway (nothing is loaded), so every problem is reported at once.
-    const trees = treesSource ? await validateTrees(ctx, treesSource, { plots, lookupStored: (k) => lookupStored(db, k), sink: null, species: index, plotsReadable: !plotsResult.stats.fatal && !!plotsFile, checkDuplicates: true }) : null;
+    const trees = treesSource ? await validateTrees(ctx, treesSource, { plots, lookupStored: (k) => lookupStored(db, k), lookupPrevious: (ps) => findPreviousVisits(db, ps.map((p) => p.key), ps.map((p) => p.surveyDate)), sink: null, species: index, plotsReadable: !plotsResult.stats.fatal && !!plotsFile, checkDuplicates: true }) : null;
     reporter.phase = 'done';
     reporter.tick(true);
     return reject(trees);
@@ -195,6 +206,7 @@ export async function ingestBatch(deps: ServiceDeps, batch: BatchRow, options: I
         trees = await validateTrees(ctx, treesSource, {
           plots,
           lookupStored: (k) => lookupStored(lookup, k),
+          lookupPrevious: (ps) => findPreviousVisits(lookup, ps.map((p) => p.key), ps.map((p) => p.surveyDate)),
           sink,
           species: index,
           plotsReadable: true,

@@ -11,6 +11,7 @@ import type { NationalSummary, ServiceDeps } from '@stemwise/core';
 import { renderMeansChartSvg } from '@stemwise/core/charts';
 import type { Logger } from '@stemwise/platform';
 import { summariseNation, type NationalRegionInput } from './summary/national-summary';
+import { summaryVariables } from './summary/region-summary';
 import type { SnapshotData, SnapshotMethod } from './snapshot-payload';
 import { payloadEtag, samplingErrorMultiplier } from './snapshots';
 
@@ -57,9 +58,9 @@ export async function assembleNationalSnapshot(deps: Deps, sources: Readonly<Rec
   for (const region of await listRegionNames(db)) {
     const [plots, forestAreas] = await Promise.all([listRegionLatestPlots(db, region), listRegionForestAreas(db, region)]);
     for (const p of plots) dates.push(p.surveyDate);
-    regions.push({ region, forestAreas, plots: plots.map((p) => ({ plotId: p.plotKey, forestType: p.forestType, values: p.metrics })) });
+    regions.push({ region, forestAreas, plots: plots.map((p) => ({ plotId: p.plotKey, forestType: p.forestType, values: { ...p.metrics, ...p.change } })) });
   }
-  const summary = summariseNation({ regions, options: { samplingErrorT: samplingErrorMultiplier(config) } });
+  const summary = summariseNation({ regions, variables: summaryVariables(regions.flatMap((r) => r.plots)), options: { samplingErrorT: samplingErrorMultiplier(config) } });
   dates.sort();
   let means: string | null = null;
   try {

@@ -16,7 +16,7 @@ import {
 import { asStoredFitChart, currentSpecies, IPCC_2006_CARBON_FRACTION, toFitRow, type SamplingErrorT, type ServiceDeps, type StoredFitChart } from '@stemwise/core';
 import { isInfrastructureError, PermanentError, type Config, type Logger } from '@stemwise/platform';
 import { buildFitChartSpec, buildGuildChartSpec, buildMeansChartSpec, chartSpecKey, regionChartPoints, renderVegaLiteSvg, type TopLevelSpec } from '@stemwise/core/charts';
-import { RegionSummaryInputError, summariseRegion, type PlotMetrics } from './summary/region-summary';
+import { RegionSummaryInputError, summariseRegion, summaryVariables, type PlotMetrics } from './summary/region-summary';
 import { SNAPSHOT_FORMAT, type FitChart, type SnapshotFitRow, type SnapshotMethod, type SnapshotPayload } from './snapshot-payload';
 
 type Deps = Pick<ServiceDeps, 'db' | 'config'> & { log?: Logger };
@@ -106,10 +106,10 @@ export async function assembleRegionSnapshot(deps: Deps, region: string, charts:
   const inputPlots: PlotMetrics[] = plots.map((p) => ({
     plotId: p.plotKey,
     forestType: p.forestType,
-    values: p.metrics,
+    values: { ...p.metrics, ...p.change },
     speciesNames: accepted.get(p.plotKey) ?? [],
   }));
-  const summary = summariseRegion({ region, plots: inputPlots, forestAreas: areas, options: { samplingErrorT: samplingErrorMultiplier(config) } });
+  const summary = summariseRegion({ region, plots: inputPlots, forestAreas: areas, variables: summaryVariables(inputPlots), options: { samplingErrorT: samplingErrorMultiplier(config) } });
 
   const fits: SnapshotFitRow[] = [];
   for (const scope of [{ kind: 'forest_type' }, { kind: 'region', region }] as const) {

@@ -8,6 +8,8 @@ export const CROSS = {
   unknownPlot: defineRule('cross', 'cross_unknown_plot', 'error', 'A stem names a plot that is neither in plots.csv nor stored.'),
   plotRejected: defineRule('cross', 'cross_plot_rejected', 'error', 'A stem belongs to a plot whose own row has errors, so it cannot be loaded.'),
   visitExists: defineRule('cross', 'cross_visit_exists', 'error', 'The plot was already loaded for this survey_date (upload with --replace to replace that visit).'),
+  visitBeforeLatest: defineRule('cross', 'cross_visit_before_latest', 'error', 'A visit is dated before the plot\'s latest stored visit (upload with --replace to load it between the stored visits).'),
+  treeRevived: defineRule('cross', 'cross_tree_revived', 'error', 'A tree recorded dead or as a stump at the plot\'s previous visit is live in this one.'),
   subplotStemTooBig: defineRule('cross', 'cross_subplot_stem_too_big', 'error', 'A subplot stem (in_subplot 1) has a diameter at or above its plot\'s dbh_min_cm.'),
   subplotMissing: defineRule('cross', 'cross_subplot_missing', 'error', 'A stem is marked in_subplot 1 but its plot has no subplot (subplot_area_ha 0).'),
   mainStemBelowMin: defineRule('cross', 'cross_main_stem_below_min', 'warning', 'A main-plot stem is thinner than its plot\'s dbh_min_cm (it is loaded; metrics may leave it out).'),
@@ -24,6 +26,10 @@ export const crossMessages = {
   plotRejected: (plot: string, line: number) => `plot ${plot} (plots.csv line ${line}) has errors, so this stem cannot be loaded`,
   visitExists: (plot: string, date: string, batch: string) =>
     `plot ${plot} was already loaded for ${date} (batch ${batch}); upload with --replace to replace that visit`,
+  visitBeforeLatest: (plot: string, date: string, latest: string) =>
+    `plot ${plot} is dated ${date}, before its latest stored visit of ${latest}; a re-measurement comes later (upload with --replace to load an earlier visit between the stored ones)`,
+  treeRevived: (plot: string, tree: string, before: string, date: string, batch: string) =>
+    `tree ${tree} of plot ${plot} is live, but was recorded ${before} at the previous visit (${date}, batch ${batch}); check the tree_id or the status of either visit`,
   subplotStemTooBig: (dbh: number, min: number) => `dbh_cm is ${dbh} on the subplot, but its plot's dbh_min_cm is ${min}; subplot stems must be thinner than that`,
   subplotMissing: (plot: string) => `in_subplot is 1 but plot ${plot} has no subplot (subplot_area_ha is 0)`,
   mainStemBelowMin: (dbh: number, min: number) => `dbh_cm is ${dbh} on the main plot, below its dbh_min_cm of ${min}`,

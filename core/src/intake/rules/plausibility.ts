@@ -14,6 +14,10 @@ export const PLAUSIBILITY = {
   speciesGenusOnly: defineRule('plausibility', 'plausibility_species_genus_only', 'warning', 'A name identifies a stem only to a genus or family of the reference list (Genus sp., or a genus alone).'),
   speciesNoReference: defineRule('plausibility', 'plausibility_species_no_reference', 'warning', 'No species reference list is loaded, so names were not checked.'),
   sameCoordinates: defineRule('plausibility', 'plausibility_same_coordinates', 'warning', 'Two different plots have exactly the same coordinates.'),
+  dbhShrank: defineRule('plausibility', 'plausibility_dbh_shrank', 'warning', 'A tree live at both visits of a re-measured plot lost more than 1 cm of diameter.'),
+  dbhGrowthFast: defineRule('plausibility', 'plausibility_dbh_growth_fast', 'warning', 'A tree live at both visits of a re-measured plot grew more than 5 cm a year in diameter.'),
+  treesAbsent: defineRule('plausibility', 'plausibility_trees_absent', 'warning', 'Trees live at the previous visit of a re-measured plot are not in trees.csv (they count as died).'),
+  speciesChanged: defineRule('plausibility', 'plausibility_species_changed', 'warning', 'A tree of a re-measured plot is recorded under another species name than at the previous visit.'),
   surveyDateEarly: defineRule('plausibility', 'plausibility_survey_date_early', 'warning', 'A survey date lies before 1950.'),
 } as const;
 
@@ -34,6 +38,12 @@ export interface PlausibilityOptions {
   tallHeightM: number;
   /** Survey dates before this year are flagged. */
   earlyYear: number;
+  /** Re-measurement: a live tree whose diameter fell by more than this (cm) is flagged. Common practice
+   *  (memory): repeat measurements at the same point differ by a few millimetres; more is a recording slip. */
+  dbhShrinkCm: number;
+  /** Re-measurement: diameter growth above this (cm/yr) is flagged. Common practice (memory): even fast
+   *  pioneers rarely exceed 2–4 cm a year. */
+  dbhGrowthMaxCmYr: number;
 }
 
 export const PLAUSIBILITY_DEFAULTS: PlausibilityOptions = Object.freeze({
@@ -43,9 +53,18 @@ export const PLAUSIBILITY_DEFAULTS: PlausibilityOptions = Object.freeze({
   hdRatioMax: 120,
   tallHeightM: 80,
   earlyYear: 1950,
+  dbhShrinkCm: 1,
+  dbhGrowthMaxCmYr: 5,
 });
 
 export const plausibilityMessages = {
+  dbhShrank: (tree: string, dbh: number, before: number, date: string, bound: number) =>
+    `tree ${tree} has dbh_cm ${dbh}, but ${before} at the previous visit (${date}): it lost more than ${bound} cm (common practice); please check both measurements`,
+  dbhGrowthFast: (tree: string, dbh: number, before: number, date: string, perYear: number, bound: number) =>
+    `tree ${tree} grew from ${before} cm (${date}) to ${dbh} cm, ${perYear.toFixed(1)} cm a year, more than ${bound} (common practice); please check the tree_id and both measurements`,
+  treesAbsent: (plot: string, n: number, date: string, examples: string) =>
+    `plot ${plot}: ${n} tree${n === 1 ? '' : 's'} live at the previous visit (${date}) ${n === 1 ? 'is' : 'are'} not in trees.csv (tree_id ${examples}); ${n === 1 ? 'it counts' : 'they count'} as died in the change between visits — list them as dead or as stumps if they were found`,
+  speciesChanged: (tree: string, name: string, before: string, date: string) => `tree ${tree} is recorded as ${name}, but as ${before} at the previous visit (${date})`,
   dbhLooksMm: (plot: string, over: number, n: number, bound: number) =>
     `plot ${plot}: ${over} of ${n} stems have dbh_cm above ${bound}, so the median diameter is above ${bound} cm; were diameters written in millimetres?`,
   dbhLarge: (dbh: number, bound: number) => `dbh_cm is ${dbh}, above ${bound} cm; please check it`,

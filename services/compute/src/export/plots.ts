@@ -47,26 +47,37 @@ export interface ExportSummary {
   staleVisits: number;
 }
 
-/** Writes `export plots` as CSV, JSON (array of objects) or GeoJSON (RFC 7946 FeatureCollection). */
-export async function exportPlots(db: Queryable, options: ExportPlotsOptions, target: ExportTarget): Promise<ExportSummary> {
-  const region = options.region ?? null;
+/** Refuses a region filter that names no stored region, listing the known ones. */
+export async function checkExportRegion(db: Queryable, region: string | null): Promise<void> {
   if (region !== null && !(await regionExists(db, region))) {
     const known = await listRegionNames(db);
     throw new StemwiseError('not_found', `no region named '${region}' (known: ${known.length ? known.join(', ') : 'none yet'})`);
   }
+}
+
+/** Writes located rows as CSV, JSON (array of objects) or GeoJSON (RFC 7946 FeatureCollection); returns the rows written. */
+export async function writeItems(format: PlotExportFormat, columns: readonly string[], source: AsyncIterable<PlotExportItem>, target: ExportTarget): Promise<number> {
   let rows = 0;
   const items = (async function* () {
-    for await (const item of plotExportItems(db, { region, pageSize: options.pageSize })) {
+    for await (const item of source) {
       rows++;
       yield item;
     }
   })();
   const pieces =
-    options.format === 'geojson'
-      ? encodeFeatureCollection(PLOT_EXPORT_COLUMNS, items)
-      : encodeTable(options.format, PLOT_EXPORT_COLUMNS, (async function* () {
+    format === 'geojson'
+      ? encodeFeatureCollection(columns, items)
+      : encodeTable(format, columns, (async function* () {
           for await (const item of items) yield item.row;
         })());
   await writeExport(pieces, target);
+  return rows;
+}
+
+/** Writes `export plots` as CSV, JSON (array of objects) or GeoJSON (RFC 7946 FeatureCollection). */
+export async function exportPlots(db: Queryable, options: ExportPlotsOptions, target: ExportTarget): Promise<ExportSummary> {
+  const region = options.region ?? null;
+  await checkExportRegion(db, region);
+  const rows = await writeItems(options.format, PLOT_EXPORT_COLUMNS, plotExportItems(db, { region, pageSize: options.pageSize }), target);
   return { rows, staleVisits: await countStaleVisits(db, region) };
 }

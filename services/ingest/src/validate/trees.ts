@@ -1,4 +1,4 @@
-import type { StoredPlot } from '@stemwise/db';
+import type { PreviousVisit, StoredPlot } from '@stemwise/db';
 import { CROSS, crossMessages, normaliseName, PLAUSIBILITY, plausibilityMessages, ROW, rowMessages, type SpeciesIndex } from '@stemwise/core';
 import type { StemSink } from '../load/stem-sink';
 import { TREE_COLUMNS } from '../rules/columns';
@@ -11,6 +11,8 @@ export interface TreesInput {
   plots: Map<string, PlotEntry>;
   /** Stored plots (with their latest visit) and the tree ids already stored on those visits. */
   lookupStored(keys: string[]): Promise<{ plots: StoredPlot[]; treeIds: Array<{ plotKey: string; treeId: string }> }>;
+  /** Of plots of the batch, their latest stored visit before the batch's date (re-measurement checks); absent: no checks. */
+  lookupPrevious?(plots: Array<{ key: string; surveyDate: string }>): Promise<PreviousVisit[]>;
   /** Where loadable stems go; null when the batch is rejected already (check only). */
   sink: StemSink | null;
   /** The species reference to check names against; null when none is loaded. */
@@ -74,6 +76,9 @@ export async function validateTrees(ctx: ValidationContext, src: TableSource, in
   const MAX_NAMES = 50_000;
 
   const plotOf = (key: string): PlotEntry | null => plots.get(key) ?? stored.get(key) ?? null;
+  // The previous visit of each re-measured plot of the batch, looked up chunk by chunk (null: none).
+  const previous = new Map<string, PreviousVisit | null>();
+  const remeasured = new Map<string, Set<string>>(); // tree ids of this batch on plots with a previous visit
 
   const resolveStored = async (keys: string[]) => {
     const found = await input.lookupStored(keys);
@@ -114,6 +119,18 @@ export async function validateTrees(ctx: ValidationContext, src: TableSource, in
       if (typeof k === 'string' && !plots.has(k) && !stored.has(k)) (unknown ??= new Set()).add(k);
     }
     if (unknown && input.plotsReadable) await resolveStored([...unknown]);
+    if (input.lookupPrevious) {
+      const ask = new Map<string, string>();
+      for (const r of batch) {
+        const k = r.values[0];
+        const p = typeof k === 'string' ? plots.get(k) : undefined;
+        if (p && p.ok && typeof p.surveyDate === 'string' && !previous.has(p.key)) ask.set(p.key, p.surveyDate);
+      }
+      if (ask.size) {
+        for (const k of ask.keys()) previous.set(k, null);
+        for (const v of await input.lookupPrevious([...ask].map(([key, surveyDate]) => ({ key, surveyDate })))) previous.set(v.plotKey, v);
+      }
+    }
 
     for (const row of batch) {
       ctx.progress.rowsChecked++;
@@ -184,6 +201,32 @@ export async function validateTrees(ctx: ValidationContext, src: TableSource, in
       if (typeof height === 'number' && height > pl.tallHeightM) {
         log.add(PLAUSIBILITY.heightTall, file, line, 'height_m', String(height), plausibilityMessages.heightTall(height, pl.tallHeightM));
       }
+      // Re-measured plots: the same tree at the previous visit (docs/methods.md#change-between-visits).
+      const before = typeof plotKey === 'string' && typeof treeId === 'string' && plot?.inBatch ? previous.get(plotKey)?.stems.get(treeId) : undefined;
+      if (plot?.inBatch && typeof treeId === 'string' && previous.get(plot.key)) {
+        let ids = remeasured.get(plot.key);
+        if (!ids) remeasured.set(plot.key, (ids = new Set()));
+        ids.add(treeId);
+      }
+      if (before && plot) {
+        const prev = previous.get(plot.key)!;
+        if (status === 'live' && before.status !== 'live') {
+          const was = before.status === 'stump' ? `a stump (${before.stumpCause})` : before.status;
+          log.add(CROSS.treeRevived, file, line, 'status', 'live', crossMessages.treeRevived(plot.key, treeId as string, was, prev.surveyDate, prev.batchId));
+          bad();
+        }
+        if (status === 'live' && before.status === 'live' && typeof dbh === 'number') {
+          const years = (Date.parse(plot.surveyDate as string) - Date.parse(prev.surveyDate)) / 86_400_000 / 365.25;
+          if (before.dbhCm - dbh > pl.dbhShrinkCm) {
+            log.add(PLAUSIBILITY.dbhShrank, file, line, 'dbh_cm', String(dbh), plausibilityMessages.dbhShrank(treeId as string, dbh, before.dbhCm, prev.surveyDate, pl.dbhShrinkCm));
+          } else if (years > 0 && (dbh - before.dbhCm) / years > pl.dbhGrowthMaxCmYr) {
+            log.add(PLAUSIBILITY.dbhGrowthFast, file, line, 'dbh_cm', String(dbh), plausibilityMessages.dbhGrowthFast(treeId as string, dbh, before.dbhCm, prev.surveyDate, (dbh - before.dbhCm) / years, pl.dbhGrowthMaxCmYr));
+          }
+        }
+        if (typeof species === 'string' && before.species !== null && normaliseName(species) !== normaliseName(before.species)) {
+          log.add(PLAUSIBILITY.speciesChanged, file, line, 'species', species, plausibilityMessages.speciesChanged(treeId as string, species, before.species, prev.surveyDate));
+        }
+      }
       if (seen && typeof plotKey === 'string' && typeof treeId === 'string') {
         const first = seen.add(`${plotKey}\u0000${treeId}`, line);
         if (first !== 0) {
@@ -228,6 +271,17 @@ export async function validateTrees(ctx: ValidationContext, src: TableSource, in
     if (p.stems === 0) log.add(CROSS.plotWithoutStems, 'plots.csv', p.line, 'plot_id', p.key, crossMessages.plotWithoutStems(p.key));
     else if (p.stemsOverMm * 2 > p.stems) {
       log.add(PLAUSIBILITY.dbhLooksMm, file, null, 'dbh_cm', p.key, plausibilityMessages.dbhLooksMm(p.key, p.stemsOverMm, p.stems, pl.mmMedianCm));
+    }
+  }
+  // Re-measured plots: trees live at the previous visit and absent now (counted as died), one warning per plot.
+  for (const [key, prev] of previous) {
+    const p = plots.get(key);
+    if (!prev || !p || !p.ok || stats.fatal) continue;
+    const ids = remeasured.get(key);
+    const absent = [...prev.stems.values()].filter((t) => t.status === 'live' && !ids?.has(t.treeId)).map((t) => t.treeId);
+    if (absent.length) {
+      const examples = absent.slice(0, 5).join(', ') + (absent.length > 5 ? ', …' : '');
+      log.add(PLAUSIBILITY.treesAbsent, 'plots.csv', p.line, 'plot_id', key, plausibilityMessages.treesAbsent(key, absent.length, prev.surveyDate, examples));
     }
   }
   // Species: one warning per distinct name, with its stem count and first line.

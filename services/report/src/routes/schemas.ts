@@ -198,7 +198,7 @@ export const FitsQuery = z.object({
 });
 export const ComputeProblemSchema = z
   .object({
-    stage: z.enum(['plot', 'fit', 'summary']),
+    stage: z.enum(['plot', 'change', 'fit', 'summary']),
     forest_type: z.string().nullable(),
     region: z.string().nullable(),
     plot_id: z.string().nullable(),

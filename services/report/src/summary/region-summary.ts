@@ -1,3 +1,4 @@
+import { REGION_CHANGE_COLUMNS } from '@stemwise/db';
 import { assertStratifiedOptions, DEFAULT_REGION_VARIABLES, isPerHectare, stratifiedEstimate, WHOLE_REGION, type DisturbanceSummary, type EstimateDetail, type GuildRow, type RegionRow, type RegionSummary, type StratifiedEstimate, type StratifiedOptions, type SummaryGuild, type PlotMetricColumn, type SummaryNote, type TotalRow } from '@stemwise/core';
 import { DEFAULT_DISTURBANCE_CLASSES, assertDisturbanceClasses, disturbanceClassIndex } from './disturbance-classes';
 import { resolveForestAreas } from './forest-areas';
@@ -7,6 +8,18 @@ import { countSpecies } from './species-counts';
 
 export { DEFAULT_DISTURBANCE_CLASSES } from './disturbance-classes';
 export { RegionSummaryInputError, type PlotMetrics, type RegionSummaryInput, type RegionSummaryOptions } from './input';
+
+/**
+ * Change between visits, estimated like the other variables over the plots whose latest visit has a
+ * previous one (docs/methods.md#change-between-visits); added to the rows only where such plots exist.
+ */
+export const CHANGE_VARIABLES: readonly string[] = REGION_CHANGE_COLUMNS;
+
+/** The default variables, and those of change when any plot has a change value (a plot measured twice). */
+export function summaryVariables(plots: ReadonlyArray<{ readonly values: Readonly<Record<string, number | null | undefined>> }>): readonly string[] {
+  const change = plots.some((p) => CHANGE_VARIABLES.some((v) => p.values[v] !== undefined && p.values[v] !== null));
+  return change ? [...DEFAULT_REGION_VARIABLES, ...CHANGE_VARIABLES] : DEFAULT_REGION_VARIABLES;
+}
 
 export const GUILD_VARIABLES: Readonly<Record<SummaryGuild, PlotMetricColumn>> = {
   pioneer: 'pioneer_ba_share',

@@ -1,0 +1,212 @@
+import fc from 'fast-check';
+import { describe, expect, it } from 'vitest';
+import {
+  annualMortality,
+  annualRecruitment,
+  type ChangeTree,
+  type ChangeVisit,
+  instantaneousMortality,
+  instantaneousRecruitment,
+  plotChange,
+  yearsBetween,
+} from './change';
+import { basalAreaM2 } from './structure';
+
+const rel = (got: number | null, want: number): number => Math.abs((got as number) - want) / Math.abs(want);
+
+const live = (treeId: string, dbhCm: number, agbKg: number, inSubplot = false): ChangeTree => ({ treeId, dbhCm, status: 'live', stumpCause: null, inSubplot, agbKg });
+const dead = (treeId: string, dbhCm: number): ChangeTree => ({ treeId, dbhCm, status: 'dead', stumpCause: null, inSubplot: false, agbKg: null });
+const stump = (treeId: string, dbhCm: number, cause: 'logged' | 'natural' | 'unknown'): ChangeTree => ({ treeId, dbhCm, status: 'stump', stumpCause: cause, inSubplot: false, agbKg: null });
+
+describe('yearsBetween', () => {
+  it('counts 365.25-day years: 2016-03-01 → 2020-03-01 is 1461 days = 4 years exactly (calendar arithmetic)', () => {
+    expect(yearsBetween('2016-03-01', '2020-03-01')).toBe(4);
+  });
+  it('2019-01-01 → 2020-01-01 is 365 days = 365/365.25 years (computed by hand)', () => {
+    expect(yearsBetween('2019-01-01', '2020-01-01')).toBe(365 / 365.25);
+  });
+  it('refuses a second date that is not after the first, and a malformed date', () => {
+    expect(() => yearsBetween('2020-01-01', '2020-01-01')).toThrow(/yearsBetween: the second date/);
+    expect(() => yearsBetween('2020-1-1', '2021-01-01')).toThrow(/yearsBetween: a date/);
+  });
+});
+
+describe('rates (computed by hand; no published worked value is pinned here)', () => {
+  it('m = ln(N0/Ns)/t: N0 = 100, Ns = 90, t = 5 → ln(10/9)/5 = 0.105360515657826/5 = 0.0210721031315652', () => {
+    expect(rel(instantaneousMortality(100, 90, 5), 0.0210721031315652)).toBeLessThan(1e-13);
+  });
+  it('annual mortality 1 − (Ns/N0)^(1/t) = 1 − exp(−m) (the two forms of Sheil, Burslem & Alder 1995, memory): 1 − 0.9^0.2 = 0.0208516376', () => {
+    expect(rel(annualMortality(100, 90, 5), 0.020851637639023)).toBeLessThan(1e-10);
+    expect(rel(annualMortality(100, 90, 5), 1 - Math.exp(-(instantaneousMortality(100, 90, 5) as number)))).toBeLessThan(1e-12);
+  });
+  it('r = ln(Nt/Ns)/t: Nt = 110, Ns = 90, t = 5 → ln(11/9)/5 = 0.200670695462151/5 = 0.0401341390924302', () => {
+    expect(rel(instantaneousRecruitment(110, 90, 5), 0.0401341390924302)).toBeLessThan(1e-13);
+  });
+  it('annual recruitment 1 − (1 − Nr/Nt)^(1/t): Nt = 110, Nr = 20, t = 5 → 1 − (9/11)^0.2 = 0.0393398... = 1 − exp(−r)', () => {
+    expect(rel(annualRecruitment(110, 20, 5), 1 - Math.pow(9 / 11, 0.2))).toBeLessThan(1e-15);
+    expect(rel(annualRecruitment(110, 20, 5), 1 - Math.exp(-(instantaneousRecruitment(110, 90, 5) as number)))).toBeLessThan(1e-12);
+  });
+  it('is null, never 0 or infinity, where a count makes a rate undefined', () => {
+    expect(instantaneousMortality(0, 0, 5)).toBeNull(); // nothing to die
+    expect(instantaneousMortality(10, 0, 5)).toBeNull(); // ln(10/0) is infinite
+    expect(instantaneousRecruitment(0, 0, 5)).toBeNull();
+    expect(instantaneousRecruitment(4, 0, 5)).toBeNull();
+    expect(annualMortality(0, 0, 5)).toBeNull();
+    expect(annualRecruitment(0, 0, 5)).toBeNull();
+  });
+  it('every tree dying in the interval is an annual mortality of 1 (defined: (0/N0)^(1/t) = 0)', () => {
+    expect(annualMortality(10, 0, 5)).toBe(1);
+    expect(annualRecruitment(4, 4, 5)).toBe(1);
+  });
+  it('refuses impossible counts and intervals', () => {
+    expect(() => instantaneousMortality(5, 6, 1)).toThrow(/instantaneousMortality: counts/);
+    expect(() => annualRecruitment(5, 1.5, 1)).toThrow(/annualRecruitment: counts/);
+    expect(() => annualMortality(5, 1, 0)).toThrow(/annualMortality: years/);
+  });
+});
+
+describe('plotChange: a hand-computed plot', () => {
+  // 0.5 ha at both visits, 2016-03-01 → 2020-03-01 (t = 4 years); dbh minimum 5 cm then 10 cm, so the
+  // common threshold is 10 cm. Biomass per stem is given (kg); the function only adds it up.
+  const first: ChangeVisit = {
+    surveyDate: '2016-03-01',
+    areaHa: 0.5,
+    dbhMinCm: 5,
+    trees: [
+      live('A', 20, 200), // survives: 22 cm, 250 kg
+      live('B', 30, 500), // dies (dead)
+      live('C', 15, 100), // absent at the second visit: died
+      live('D', 40, 1000), // logged stump: removed
+      live('E', 12, 80), // survives: 13 cm, 90 kg
+      live('F', 8, 30), // below the threshold: grows in to 11 cm, a recruit
+      live('G', 6, 10, true), // subplot stem, absent later: counts nowhere
+      dead('K', 25), // dead at both: counts nowhere
+    ],
+  };
+  const second: ChangeVisit = {
+    surveyDate: '2020-03-01',
+    areaHa: 0.5,
+    dbhMinCm: 10,
+    trees: [live('A', 22, 250), dead('B', 30), stump('D', 40, 'logged'), live('E', 13, 90), live('F', 11, 60), live('H', 10.5, 50), live('I', 9, 20), dead('J', 12), dead('K', 25)],
+  };
+  const c = plotChange(first, second);
+
+  it('threshold = max(5, 10) = 10 cm; t = 4', () => {
+    expect(c.dbhThresholdCm).toBe(10);
+    expect(c.years).toBe(4);
+  });
+  it('N0 = 5 (A B C D E), Ns = 2 (A E), died = 2 (B dead, C absent), removed = 1 (D), recruits = 2 (F grew in, H new), Nt = 4', () => {
+    expect([c.nStart, c.nSurvivors, c.nDied, c.nAbsent, c.nRemoved, c.nRecruits, c.nEnd]).toEqual([5, 2, 2, 1, 1, 2, 4]);
+  });
+  it('m = ln(5/2)/4 = 0.229072682968539; r = ln(4/2)/4 = 0.173286795139986', () => {
+    expect(rel(c.mortalityRate, 0.229072682968539)).toBeLessThan(1e-13);
+    expect(rel(c.recruitmentRate, 0.173286795139986)).toBeLessThan(1e-13);
+  });
+  it('annual: 1 − 0.4^0.25 = 0.204729271232949; 1 − 0.5^0.25 = 0.159103584746285', () => {
+    expect(rel(c.mortalityAnnual, 0.204729271232949)).toBeLessThan(1e-13);
+    expect(rel(c.recruitmentAnnual, 0.159103584746285)).toBeLessThan(1e-13);
+  });
+  it('diameter increment of survivors = ((22 − 20) + (13 − 12)) / 2 / 4 = 0.375 cm/yr', () => {
+    expect(rel(c.dbhIncrementCmYr, 0.375)).toBeLessThan(1e-14);
+  });
+  it('AGB per ha per year (×2 for 0.5 ha, /1000 to Mg, /4 years): growth ((250−200)+(90−80))·2 = 120 kg → 0.03; recruitment (60+50)·2 = 220 kg → 0.055; died (500+100)·2 → 0.3; removed 1000·2 → 0.5; net 0.03 + 0.055 − 0.8 = −0.715', () => {
+    expect(rel(c.agbGrowthMgHaYr, 0.03)).toBeLessThan(1e-12);
+    expect(rel(c.agbRecruitmentMgHaYr, 0.055)).toBeLessThan(1e-12);
+    expect(rel(c.agbDiedMgHaYr, 0.3)).toBeLessThan(1e-12);
+    expect(rel(c.agbRemovedMgHaYr, 0.5)).toBeLessThan(1e-12);
+    expect(rel(c.agbLossMgHaYr, 0.8)).toBeLessThan(1e-12);
+    expect(rel(c.agbNetChangeMgHaYr, -0.715)).toBeLessThan(1e-12);
+  });
+  it('carbon net change = 0.47 · (−0.715) = −0.33605 Mg C/ha/yr (IPCC 2006 Vol. 4 Table 4.3 fraction); another fraction scales it', () => {
+    expect(rel(c.carbonNetChangeMgHaYr, -0.33605)).toBeLessThan(1e-12);
+    expect(rel(plotChange(first, second, 0.5).carbonNetChangeMgHaYr, -0.3575)).toBeLessThan(1e-12);
+  });
+  it('basal area per ha per year: growth 2·π/40000·(22² − 20² + 13² − 12²)/4, recruitment 2·π/40000·(11² + 10.5²)/4, loss 2·π/40000·(30² + 15² + 40²)/4', () => {
+    const k = (2 * Math.PI) / 40000 / 4;
+    expect(rel(c.baGrowthM2HaYr, k * (484 - 400 + 169 - 144))).toBeLessThan(1e-12);
+    expect(rel(c.baRecruitmentM2HaYr, k * (121 + 110.25))).toBeLessThan(1e-12);
+    expect(rel(c.baLossM2HaYr, k * (900 + 225 + 1600))).toBeLessThan(1e-12);
+    expect(rel(c.baChangeM2HaYr, k * (109 + 231.25 - 2725))).toBeLessThan(1e-12);
+  });
+  it('a natural or unknown stump is a death, kept apart from removal', () => {
+    const s = plotChange(first, { ...second, trees: second.trees.map((t) => (t.treeId === 'D' ? stump('D', 40, 'natural') : t)) });
+    expect([s.nDied, s.nRemoved]).toEqual([3, 0]);
+    expect(rel(s.agbDiedMgHaYr, 0.8)).toBeLessThan(1e-12);
+  });
+  it('rates are null with no live tree at the start, and the increment with no survivor', () => {
+    const empty = plotChange({ ...first, trees: [] }, second);
+    expect([empty.nStart, empty.mortalityRate, empty.recruitmentRate, empty.mortalityAnnual, empty.dbhIncrementCmYr]).toEqual([0, null, null, null, null]);
+    expect(empty.recruitmentAnnual).toBe(1);
+  });
+  it('refuses a tree recorded twice, a live tree without biomass and visits out of order', () => {
+    expect(() => plotChange({ ...first, trees: [live('A', 20, 1), live('A', 21, 1)] }, second)).toThrow(/plotChange: first visit: tree A recorded twice/);
+    expect(() => plotChange(first, { ...second, trees: [{ ...live('A', 20, 1), agbKg: null }] })).toThrow(/plotChange: second visit: live tree A needs its biomass/);
+    expect(() => plotChange(second, first)).toThrow(/yearsBetween/);
+  });
+});
+
+describe('plotChange: gains minus losses is the net change on random plots (property)', () => {
+  const status = fc.constantFrom('live', 'live', 'live', 'dead', 'logged', 'natural', 'absent') as fc.Arbitrary<string>;
+  const treeArb = fc.record({ d1: fc.double({ min: 1, max: 150, noNaN: true }), grow: fc.double({ min: -2, max: 8, noNaN: true }), s1: status, s2: status, sub: fc.boolean(), w: fc.double({ min: 0.2, max: 1.1, noNaN: true }) });
+  const plotArb = fc.record({
+    trees: fc.array(treeArb, { maxLength: 60 }),
+    a1: fc.double({ min: 0.01, max: 2, noNaN: true }),
+    a2: fc.double({ min: 0.01, max: 2, noNaN: true }),
+    min1: fc.constantFrom(5, 10, 12.5),
+    min2: fc.constantFrom(5, 10, 12.5),
+    days: fc.integer({ min: 30, max: 8000 }),
+  });
+  const agb = (d: number, w: number): number => w * 0.1 * Math.pow(d, 2.4); // any positive per-stem biomass will do
+
+  type PlotDraw = typeof plotArb extends fc.Arbitrary<infer T> ? T : never;
+  function build(p: PlotDraw): [ChangeVisit, ChangeVisit] {
+    const t1: ChangeTree[] = [];
+    const t2: ChangeTree[] = [];
+    p.trees.forEach((t, i) => {
+      const id = `T${i}`;
+      const d2 = Math.max(0.5, t.d1 + t.grow);
+      const make = (s: string, d: number, sub: boolean): ChangeTree | null =>
+        s === 'absent' ? null : s === 'live' ? live(id, d, agb(d, t.w), sub) : s === 'dead' ? dead(id, d) : stump(id, d, s as 'logged' | 'natural');
+      const a = make(t.s1, t.d1, t.sub);
+      const b = make(t.s2, d2, false);
+      if (a) t1.push(a);
+      if (b) t2.push(b);
+    });
+    const to = new Date(Date.UTC(2010, 0, 1) + p.days * 86_400_000).toISOString().slice(0, 10);
+    return [
+      { surveyDate: '2010-01-01', areaHa: p.a1, dbhMinCm: p.min1, trees: t1 },
+      { surveyDate: to, areaHa: p.a2, dbhMinCm: p.min2, trees: t2 },
+    ];
+  }
+
+  it('net AGB and basal-area change equal the change of the stock of the trees that count (computed independently), and the counts add up', () => {
+    fc.assert(
+      fc.property(plotArb, (p) => {
+        const [v1, v2] = build(p);
+        const c = plotChange(v1, v2);
+        // The parts add up to the net change exactly (it is defined as their sum).
+        expect(c.agbNetChangeMgHaYr).toBe(c.agbGrowthMgHaYr + c.agbRecruitmentMgHaYr - (c.agbDiedMgHaYr + c.agbRemovedMgHaYr));
+        expect(c.baChangeM2HaYr).toBe(c.baGrowthM2HaYr + c.baRecruitmentM2HaYr - c.baLossM2HaYr);
+        // Independently: stock at the second visit of survivors and recruits minus stock at the first of N0.
+        const thr = Math.max(p.min1, p.min2);
+        const startIds = new Set(v1.trees.filter((t) => t.status === 'live' && !t.inSubplot && t.dbhCm >= thr).map((t) => t.treeId));
+        const bad = new Set(v1.trees.filter((t) => t.status !== 'live').map((t) => t.treeId));
+        const endTrees = v2.trees.filter((t) => t.status === 'live' && (startIds.has(t.treeId) || (t.dbhCm >= thr && !bad.has(t.treeId))));
+        const startTrees = v1.trees.filter((t) => startIds.has(t.treeId));
+        const sum = (ts: ChangeTree[], f: (t: ChangeTree) => number): number => ts.reduce((s, t) => s + f(t), 0);
+        const agbNet = (sum(endTrees, (t) => t.agbKg as number) / p.a2 - sum(startTrees, (t) => t.agbKg as number) / p.a1) / 1000 / c.years;
+        const baNet = (sum(endTrees, (t) => basalAreaM2(t.dbhCm)) / p.a2 - sum(startTrees, (t) => basalAreaM2(t.dbhCm)) / p.a1) / c.years;
+        const scaleA = (sum(endTrees, (t) => t.agbKg as number) / p.a2 + sum(startTrees, (t) => t.agbKg as number) / p.a1) / 1000 / c.years + 1e-12;
+        const scaleB = (sum(endTrees, (t) => basalAreaM2(t.dbhCm)) / p.a2 + sum(startTrees, (t) => basalAreaM2(t.dbhCm)) / p.a1) / c.years + 1e-12;
+        expect(Math.abs(c.agbNetChangeMgHaYr - agbNet) / scaleA).toBeLessThan(1e-12);
+        expect(Math.abs(c.baChangeM2HaYr - baNet) / scaleB).toBeLessThan(1e-12);
+        expect(c.nStart).toBe(c.nSurvivors + c.nDied + c.nRemoved);
+        expect(c.nEnd).toBe(endTrees.length);
+        for (const r of [c.mortalityRate, c.recruitmentRate, c.mortalityAnnual, c.recruitmentAnnual]) {
+          if (r !== null) expect(Number.isFinite(r) && r >= 0).toBe(true);
+        }
+      }),
+      { numRuns: 500, seed: 14 },
+    );
+  });
+});

@@ -1,0 +1,257 @@
+// Change of a permanent plot between two consecutive visits: which trees survived, died, were removed
+// or recruited, the demographic rates, diameter growth, and basal-area, biomass and carbon change per
+// hectare and year split into gains and losses. Rules and sources: docs/methods.md#change-between-visits.
+//  - trees are matched by tree_id within the plot; only main-plot stems count, at or above a common
+//    threshold: the larger dbh_min_cm of the two visits;
+//  - N0: live at the first visit at or above the threshold; of these, survivors are live at the second,
+//    removed are stumps with stump_cause = logged at the second, died are dead or other stumps at the
+//    second or absent from it (not found: counted as died);
+//  - recruits: live at the second visit at or above the threshold, and absent from the first or live
+//    there below the threshold (or on the subplot); a tree recorded dead or as a stump at the first and
+//    live at the second is an error in the data, counted nowhere (the ingest checks refuse it);
+//  - Nt = Ns + Nr (live at the second visit among trees that count);
+//  - biomass of each live stem is the caller's, from the same models at both visits (plot-metrics.ts).
+// Rates are null where a count makes them undefined, never 0 or infinity.
+
+import { carbonFromBiomass, IPCC_2006_CARBON_FRACTION } from './allometry';
+import { basalAreaM2 } from './structure';
+
+/** Days per year of the rates' time base (Julian year). */
+export const DAYS_PER_YEAR = 365.25;
+
+export interface ChangeTree {
+  readonly treeId: string;
+  readonly dbhCm: number;
+  readonly status: 'live' | 'dead' | 'stump';
+  readonly stumpCause: 'logged' | 'natural' | 'unknown' | null;
+  readonly inSubplot: boolean;
+  /** Above-ground biomass of the stem in kg when live (same models at both visits); null otherwise. */
+  readonly agbKg: number | null;
+}
+
+export interface ChangeVisit {
+  /** ISO date, YYYY-MM-DD. */
+  readonly surveyDate: string;
+  readonly areaHa: number;
+  readonly dbhMinCm: number;
+  readonly trees: readonly ChangeTree[];
+}
+
+export interface PlotChange {
+  years: number;
+  dbhThresholdCm: number;
+  nStart: number;
+  nSurvivors: number;
+  nDied: number;
+  /** Of nDied: trees not found at the second visit. */
+  nAbsent: number;
+  nRemoved: number;
+  nRecruits: number;
+  nEnd: number;
+  mortalityRate: number | null;
+  recruitmentRate: number | null;
+  mortalityAnnual: number | null;
+  recruitmentAnnual: number | null;
+  dbhIncrementCmYr: number | null;
+  baGrowthM2HaYr: number;
+  baRecruitmentM2HaYr: number;
+  baLossM2HaYr: number;
+  baChangeM2HaYr: number;
+  agbGrowthMgHaYr: number;
+  agbRecruitmentMgHaYr: number;
+  agbDiedMgHaYr: number;
+  agbRemovedMgHaYr: number;
+  agbLossMgHaYr: number;
+  agbNetChangeMgHaYr: number;
+  carbonNetChangeMgHaYr: number;
+}
+
+function fail(fn: string, message: string): never {
+  throw new RangeError(`${fn}: ${message}`);
+}
+
+function dayNumber(fn: string, iso: string): number {
+  const m = /^(\d{4})-(\d{2})-(\d{2})$/.exec(iso);
+  const ms = m ? Date.UTC(Number(m[1]), Number(m[2]) - 1, Number(m[3])) : Number.NaN;
+  if (!Number.isFinite(ms)) fail(fn, `a date must be YYYY-MM-DD (got ${iso})`);
+  return ms / 86_400_000;
+}
+
+// t = (date₂ − date₁) in days / 365.25 — Julian year (common practice for census intervals)
+export function yearsBetween(dateFrom: string, dateTo: string): number {
+  const t = (dayNumber('yearsBetween', dateTo) - dayNumber('yearsBetween', dateFrom)) / DAYS_PER_YEAR;
+  if (!(t > 0)) fail('yearsBetween', `the second date must be after the first (got ${dateFrom} to ${dateTo})`);
+  return t;
+}
+
+function checkCounts(fn: string, a: number, b: number, t: number): void {
+  if (!Number.isInteger(a) || !Number.isInteger(b) || a < 0 || b < 0 || b > a) fail(fn, `counts must be integers with 0 <= ${b} <= ${a}`);
+  if (!(t > 0) || !Number.isFinite(t)) fail(fn, `years must be finite and > 0 (got ${t})`);
+}
+
+// m = ln(N0 / Ns) / t, instantaneous — Sheil & May 1996, J. Ecol. 84:91–100 (memory); null when N0 or Ns is 0
+export function instantaneousMortality(n0: number, nSurvivors: number, years: number): number | null {
+  checkCounts('instantaneousMortality', n0, nSurvivors, years);
+  return n0 > 0 && nSurvivors > 0 ? Math.log(n0 / nSurvivors) / years : null;
+}
+
+// r = ln(Nt / Ns) / t, instantaneous — Sheil & May 1996, J. Ecol. 84:91–100 (memory); null when Ns is 0
+export function instantaneousRecruitment(nEnd: number, nSurvivors: number, years: number): number | null {
+  checkCounts('instantaneousRecruitment', nEnd, nSurvivors, years);
+  return nSurvivors > 0 ? Math.log(nEnd / nSurvivors) / years : null;
+}
+
+// m_a = 1 − (Ns / N0)^(1/t) — Sheil, Burslem & Alder 1995, J. Ecol. 83:331–333 (memory); null when N0 is 0
+export function annualMortality(n0: number, nSurvivors: number, years: number): number | null {
+  checkCounts('annualMortality', n0, nSurvivors, years);
+  return n0 > 0 ? 1 - Math.pow(nSurvivors / n0, 1 / years) : null;
+}
+
+// r_a = 1 − (1 − Nr / Nt)^(1/t) — Sheil, Jennings & Savill 2000, J. Trop. Ecol. 16:765–800 (memory); null when Nt is 0
+export function annualRecruitment(nEnd: number, nRecruits: number, years: number): number | null {
+  checkCounts('annualRecruitment', nEnd, nRecruits, years);
+  return nEnd > 0 ? 1 - Math.pow(1 - nRecruits / nEnd, 1 / years) : null;
+}
+
+function checkVisit(fn: string, which: string, v: ChangeVisit): Map<string, ChangeTree> {
+  if (!(v.areaHa > 0) || !Number.isFinite(v.areaHa)) fail(fn, `${which} visit: area_ha must be > 0 (got ${v.areaHa})`);
+  if (!(v.dbhMinCm > 0) || !Number.isFinite(v.dbhMinCm)) fail(fn, `${which} visit: dbh_min_cm must be > 0 (got ${v.dbhMinCm})`);
+  const byId = new Map<string, ChangeTree>();
+  for (const tree of v.trees) {
+    if (byId.has(tree.treeId)) fail(fn, `${which} visit: tree ${tree.treeId} recorded twice`);
+    if (!(tree.dbhCm > 0) || !Number.isFinite(tree.dbhCm)) fail(fn, `${which} visit: tree ${tree.treeId} dbh must be > 0 (got ${tree.dbhCm})`);
+    if (tree.status === 'live' && (tree.agbKg === null || !(tree.agbKg >= 0) || !Number.isFinite(tree.agbKg))) {
+      fail(fn, `${which} visit: live tree ${tree.treeId} needs its biomass (got ${tree.agbKg})`);
+    }
+    byId.set(tree.treeId, tree);
+  }
+  return byId;
+}
+
+const counts = (t: ChangeTree, threshold: number): boolean => t.status === 'live' && !t.inSubplot && t.dbhCm >= threshold;
+
+// ΔX/ha/yr = [Σ_surv (x₂/A₂ − x₁/A₁) + Σ_recr x₂/A₂ − Σ_lost x₁/A₁] / t, net = growth + recruitment − losses — docs/methods.md#change-between-visits
+export function plotChange(first: ChangeVisit, second: ChangeVisit, carbonFraction: number = IPCC_2006_CARBON_FRACTION): PlotChange {
+  const fn = 'plotChange';
+  const at1 = checkVisit(fn, 'first', first);
+  const at2 = checkVisit(fn, 'second', second);
+  const years = yearsBetween(first.surveyDate, second.surveyDate);
+  const threshold = Math.max(first.dbhMinCm, second.dbhMinCm);
+  const a1 = first.areaHa;
+  const a2 = second.areaHa;
+
+  let nStart = 0;
+  let nSurvivors = 0;
+  let nDied = 0;
+  let nAbsent = 0;
+  let nRemoved = 0;
+  let nRecruits = 0;
+  let increment = 0;
+  let baGrowth = 0;
+  let baRecruitment = 0;
+  let baLoss = 0;
+  let agbGrowth = 0; // kg/ha over the interval until the end
+  let agbRecruitment = 0;
+  let agbDied = 0;
+  let agbRemoved = 0;
+
+  for (const t1 of first.trees) {
+    if (!counts(t1, threshold)) continue;
+    nStart += 1;
+    const g1 = basalAreaM2(t1.dbhCm) / a1;
+    const b1 = (t1.agbKg as number) / a1;
+    const t2 = at2.get(t1.treeId);
+    if (t2 !== undefined && t2.status === 'live') {
+      nSurvivors += 1;
+      increment += t2.dbhCm - t1.dbhCm;
+      baGrowth += basalAreaM2(t2.dbhCm) / a2 - g1;
+      agbGrowth += (t2.agbKg as number) / a2 - b1;
+    } else if (t2 !== undefined && t2.status === 'stump' && t2.stumpCause === 'logged') {
+      nRemoved += 1;
+      baLoss += g1;
+      agbRemoved += b1;
+    } else {
+      nDied += 1;
+      if (t2 === undefined) nAbsent += 1;
+      baLoss += g1;
+      agbDied += b1;
+    }
+  }
+  for (const t2 of second.trees) {
+    if (!counts(t2, threshold)) continue;
+    const t1 = at1.get(t2.treeId);
+    const recruit = t1 === undefined || (t1.status === 'live' && !counts(t1, threshold));
+    if (!recruit) continue;
+    nRecruits += 1;
+    baRecruitment += basalAreaM2(t2.dbhCm) / a2;
+    agbRecruitment += (t2.agbKg as number) / a2;
+  }
+
+  const perYearMg = (kgHa: number): number => kgHa / 1000 / years;
+  const agbGrowthMgHaYr = perYearMg(agbGrowth);
+  const agbRecruitmentMgHaYr = perYearMg(agbRecruitment);
+  const agbDiedMgHaYr = perYearMg(agbDied);
+  const agbRemovedMgHaYr = perYearMg(agbRemoved);
+  const agbLossMgHaYr = agbDiedMgHaYr + agbRemovedMgHaYr;
+  const agbNetChangeMgHaYr = agbGrowthMgHaYr + agbRecruitmentMgHaYr - agbLossMgHaYr;
+  const baGrowthM2HaYr = baGrowth / years;
+  const baRecruitmentM2HaYr = baRecruitment / years;
+  const baLossM2HaYr = baLoss / years;
+  const nEnd = nSurvivors + nRecruits;
+  return {
+    years,
+    dbhThresholdCm: threshold,
+    nStart,
+    nSurvivors,
+    nDied,
+    nAbsent,
+    nRemoved,
+    nRecruits,
+    nEnd,
+    mortalityRate: instantaneousMortality(nStart, nSurvivors, years),
+    recruitmentRate: instantaneousRecruitment(nEnd, nSurvivors, years),
+    mortalityAnnual: annualMortality(nStart, nSurvivors, years),
+    recruitmentAnnual: annualRecruitment(nEnd, nRecruits, years),
+    dbhIncrementCmYr: nSurvivors > 0 ? increment / nSurvivors / years : null,
+    baGrowthM2HaYr,
+    baRecruitmentM2HaYr,
+    baLossM2HaYr,
+    baChangeM2HaYr: baGrowthM2HaYr + baRecruitmentM2HaYr - baLossM2HaYr,
+    agbGrowthMgHaYr,
+    agbRecruitmentMgHaYr,
+    agbDiedMgHaYr,
+    agbRemovedMgHaYr,
+    agbLossMgHaYr,
+    agbNetChangeMgHaYr,
+    // carbonFromBiomass takes a stock (>= 0); a change may be negative, so the fraction is applied to its size.
+    carbonNetChangeMgHaYr: Math.sign(agbNetChangeMgHaYr) * carbonFromBiomass(Math.abs(agbNetChangeMgHaYr), carbonFraction),
+  };
+}
+
+/** The figures of `export change` after the plot, region and dates, snake_case, in column order (docs/exports.md). */
+export const PLOT_CHANGE_COLUMNS = [
+  { column: 'years', key: 'years' },
+  { column: 'dbh_threshold_cm', key: 'dbhThresholdCm' },
+  { column: 'n_start', key: 'nStart' },
+  { column: 'n_survivors', key: 'nSurvivors' },
+  { column: 'n_died', key: 'nDied' },
+  { column: 'n_removed', key: 'nRemoved' },
+  { column: 'n_recruits', key: 'nRecruits' },
+  { column: 'mortality_rate', key: 'mortalityRate' },
+  { column: 'recruitment_rate', key: 'recruitmentRate' },
+  { column: 'mortality_annual', key: 'mortalityAnnual' },
+  { column: 'recruitment_annual', key: 'recruitmentAnnual' },
+  { column: 'dbh_increment_cm_yr', key: 'dbhIncrementCmYr' },
+  { column: 'ba_change_m2_ha_yr', key: 'baChangeM2HaYr' },
+  { column: 'agb_growth_mg_ha_yr', key: 'agbGrowthMgHaYr' },
+  { column: 'agb_recruitment_mg_ha_yr', key: 'agbRecruitmentMgHaYr' },
+  { column: 'agb_loss_mg_ha_yr', key: 'agbLossMgHaYr' },
+  { column: 'agb_net_change_mg_ha_yr', key: 'agbNetChangeMgHaYr' },
+  { column: 'carbon_net_change_mg_ha_yr', key: 'carbonNetChangeMgHaYr' },
+  { column: 'n_absent', key: 'nAbsent' },
+  { column: 'ba_growth_m2_ha_yr', key: 'baGrowthM2HaYr' },
+  { column: 'ba_recruitment_m2_ha_yr', key: 'baRecruitmentM2HaYr' },
+  { column: 'ba_loss_m2_ha_yr', key: 'baLossM2HaYr' },
+  { column: 'agb_died_mg_ha_yr', key: 'agbDiedMgHaYr' },
+  { column: 'agb_removed_mg_ha_yr', key: 'agbRemovedMgHaYr' },
+] as const satisfies readonly { column: string; key: keyof PlotChange }[];
