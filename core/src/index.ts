@@ -27,6 +27,7 @@ export * from './intake/storage';
 export * from './intake/submit';
 export * from './intake/batch-report';
 export * from './recompute/recompute';
+export * from './recompute/stage-times';
 export * from './recompute/height-models';
 export * from './recompute/live-run';
 export * from './recompute/follow-up';

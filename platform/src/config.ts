@@ -27,6 +27,7 @@ const envSchema = z.object({
     .regex(/^[A-Za-z0-9_.-]+:(dry|moist|wet)(,[A-Za-z0-9_.-]+:(dry|moist|wet))*$/, 'a list like wet:wet,moist:moist,dry:dry (code:climate)')
     .default('wet:wet,moist:moist,dry:dry'),
   STEMWISE_COMPUTE_CONCURRENCY: intIn(1, 64).default(2),
+  STEMWISE_COMPUTE_THREADS: intIn(0, 64).default(0),
   STEMWISE_INGEST_CONCURRENCY: intIn(1, 16).default(1),
   STEMWISE_CHUNK_PLOTS: intIn(1, 100_000).default(500),
   STEMWISE_JOB_ATTEMPTS: intIn(1, 50).default(5),
@@ -75,6 +76,8 @@ export interface Config {
   queuePrefix: string;
   forestTypes: ReadonlyArray<{ code: string; climate: Climate }>;
   computeConcurrency: number;
+  /** Worker threads that compute plot metrics (0: in the job's own thread). */
+  computeThreads: number;
   ingestConcurrency: number;
   chunkPlots: number;
   jobAttempts: number;
@@ -131,6 +134,7 @@ export const SETTINGS: ReadonlyArray<{ name: string; default: string; meaning: s
   { name: 'STEMWISE_QUEUE_PREFIX', default: 'stemwise', meaning: 'Redis key prefix of the queues' },
   { name: 'STEMWISE_FOREST_TYPES', default: 'wet:wet,moist:moist,dry:dry', meaning: 'known forest type codes and the climate class of their no-height biomass model' },
   { name: 'STEMWISE_COMPUTE_CONCURRENCY', default: '2', meaning: 'jobs a compute worker runs at once' },
+  { name: 'STEMWISE_COMPUTE_THREADS', default: '0', meaning: 'worker threads that compute plot metrics, shared by the jobs of a process (0: in the job itself; with PostgreSQL on the same 2-core machine threads were slower)' },
   { name: 'STEMWISE_INGEST_CONCURRENCY', default: '1', meaning: 'batches an ingest worker loads at once' },
   { name: 'STEMWISE_CHUNK_PLOTS', default: '500', meaning: 'plot visits per metrics job' },
   { name: 'STEMWISE_JOB_ATTEMPTS', default: '5', meaning: 'tries of a job before it is failed (exponential backoff)' },
@@ -197,6 +201,7 @@ export function loadConfig(env: Readonly<Record<string, string | undefined>> = p
       return { code, climate: climate as Climate };
     }),
     computeConcurrency: e.STEMWISE_COMPUTE_CONCURRENCY,
+    computeThreads: e.STEMWISE_COMPUTE_THREADS,
     ingestConcurrency: e.STEMWISE_INGEST_CONCURRENCY,
     chunkPlots: e.STEMWISE_CHUNK_PLOTS,
     jobAttempts: e.STEMWISE_JOB_ATTEMPTS,
