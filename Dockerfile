@@ -11,7 +11,8 @@ COPY services/compute/package.json services/compute/
 COPY services/report/package.json services/report/
 COPY cli/package.json cli/
 COPY demo-inventory/package.json demo-inventory/
-RUN npm ci --no-audit --no-fund
+# No scripts yet: the root's `prepare` (the build) needs the sources, copied below.
+RUN npm ci --no-audit --no-fund --ignore-scripts
 COPY . .
 RUN npm run build
 USER node

@@ -1,7 +1,8 @@
 #!/usr/bin/env node
-// Runs the compiled build (dist/stemwise.mjs, made by `npm run build`) when no source is newer than
-// it; otherwise the TypeScript sources directly (tsx), so `npx stemwise …` works right after `npm ci`
-// and an edited source is never shadowed by an old build.
+// Runs the compiled build (dist/stemwise.mjs and its chunks, made by `npm run build`, which `npm ci` and
+// `npm install` run as the root package's `prepare` script) when no source is newer than it; otherwise
+// the TypeScript sources directly (tsx), compiled at each start, so an edited source is never shadowed
+// by an old build (`npm run build` makes it current again).
 import fs from 'node:fs';
 import path from 'node:path';
 import { fileURLToPath, pathToFileURL } from 'node:url';

@@ -1,4 +1,4 @@
-// Compiles the command line and every service into one JavaScript file, dist/stemwise.mjs, so the
+// Compiles the command line and every service into dist/stemwise.mjs (and its chunks), so the
 // long-running processes start without the TypeScript loader (tsx): measured, loading the ingest
 // modules through tsx takes about 100 MB more memory than the same code compiled.
 //   npm run build            (bin/stemwise.mjs uses the build while no source is newer than it)
@@ -13,6 +13,7 @@ import { build, type Plugin } from 'esbuild';
 
 export const ROOT = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '..');
 export const BUNDLE = path.join(ROOT, 'dist', 'stemwise.mjs');
+const METRICS_WORKER = path.join(ROOT, 'services', 'compute', 'src', 'metrics-worker.ts');
 
 /** Bare imports outside our workspace stay imports of node_modules. */
 const externalDependencies: Plugin = {
@@ -37,11 +38,22 @@ function sourceUrls(outfile: string): Plugin {
   };
 }
 
-/** Bundles `entry` (a TypeScript module of this repository) into `outfile`. */
-export async function bundle(entry: string, outfile: string): Promise<void> {
-  await build({
-    entryPoints: [entry],
-    outfile,
+/**
+ * Bundles `entry` (a TypeScript module of this repository) into `outfile`. With `split`, what the entry
+ * loads by dynamic `import()` goes into chunk files next to `outfile` (`chunk-<hash>.mjs`), so that the
+ * packages those parts import are loaded only when a command needs them: one file would import every
+ * package (vega, fastify, pg, bullmq …) at start, about a second before `stemwise --help` could answer.
+ */
+export async function bundle(entry: string, outfile: string, { split = false } = {}): Promise<void> {
+  const outdir = path.dirname(outfile);
+  const result = await build({
+    // The metrics worker thread's own file is beside every bundle (it is small), for those that start one.
+    entryPoints: { [path.basename(outfile, '.mjs')]: entry, 'metrics-worker': METRICS_WORKER },
+    outdir,
+    outExtension: { '.js': '.mjs' },
+    splitting: split,
+    chunkNames: 'chunk-[name]-[hash]',
+    metafile: true,
     bundle: true,
     platform: 'node',
     format: 'esm',
@@ -50,12 +62,19 @@ export async function bundle(entry: string, outfile: string): Promise<void> {
     logLevel: 'warning',
     plugins: [externalDependencies, sourceUrls(outfile)],
     // Bundled code that calls require() (none of ours; kept for dependencies' interop helpers).
-    banner: { js: "import { createRequire as __stemwiseCreateRequire } from 'node:module'; const require = __stemwiseCreateRequire(import.meta.url);" },
+    // `__stemwiseBuildUrl`: where the compiled file is, for code that starts a worker thread from a file beside it (metrics-pool.ts).
+    banner: { js: "import { createRequire as __stemwiseCreateRequire } from 'node:module'; const require = __stemwiseCreateRequire(import.meta.url); const __stemwiseBuildUrl = import.meta.url;" },
   });
+  // Chunks of an earlier build that this one no longer writes.
+  const written = new Set(Object.keys(result.metafile.outputs).map((f) => path.resolve(f)));
+  for (const name of fs.readdirSync(outdir)) {
+    const file = path.join(outdir, name);
+    if (/^chunk-[\w-]+\.mjs(\.map)?$/.test(name) && !written.has(file)) fs.rmSync(file);
+  }
 }
 
 if (process.argv[1] && pathToFileURL(process.argv[1]).href === import.meta.url) {
   const t0 = performance.now();
-  await bundle(path.join(ROOT, 'cli', 'src', 'main.ts'), BUNDLE);
+  await bundle(path.join(ROOT, 'cli', 'src', 'main.ts'), BUNDLE, { split: true });
   console.log(`built ${path.relative(ROOT, BUNDLE)} (${(fs.statSync(BUNDLE).size / 1e6).toFixed(1)} MB) in ${((performance.now() - t0) / 1000).toFixed(1)} s`);
 }

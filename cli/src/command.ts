@@ -12,8 +12,8 @@ export type Parsed<O extends OptionSpecs> = { values: ReturnType<typeof parseArg
 
 /** A command (or a subcommand) that does one thing. */
 export interface CommandSpec<O extends OptionSpecs = OptionSpecs> {
-  /** One line: for `stemwise --help` (commands) or the usage of its group (subcommands). */
-  summary: string;
+  /** A subcommand's line in the usage of its group (a command's line in `stemwise --help` is in main.ts, so that help loads no command). */
+  summary?: string;
   /** What `--help` prints: starts with `usage:`. */
   usage: string;
   options: O;
@@ -29,7 +29,6 @@ type AnySpec = CommandSpec<any>;
 
 /** A command made of subcommands (`token create|list|revoke`). */
 export interface CommandGroup {
-  summary: string;
   usage: string;
   subcommands: Record<string, AnySpec>;
 }

@@ -65,8 +65,8 @@ export async function runDemo(o: DemoOptions): Promise<DemoResult> {
     await migrateDatabase(db);
     await syncForestTypes(db, config.forestTypes);
     const deps: ServiceDeps = { config, db, log: o.log, queue };
-    const { processors, queues } = await allProcessors(deps);
-    await queue.work(processors, { queues });
+    const { processors, ...work } = await allProcessors(deps);
+    await queue.work(processors, work);
 
     step(`submitting the batch in ${o.inputDir}`);
     const submitted = await submitBatch(deps, filesInDir(o.inputDir), {}, 'demo');

@@ -1,5 +1,5 @@
 import type { ServiceDeps, ServiceDescriptor, ServiceName } from '@stemwise/core';
-import { QUEUE_NAMES, jobNamesOf, type ProcessorMap, type QueueName } from '@stemwise/platform';
+import { QUEUE_NAMES, jobNamesOf, type ProcessorMap, type QueueName, type WorkOptions } from '@stemwise/platform';
 
 export type { ServiceName } from '@stemwise/core';
 
@@ -17,19 +17,23 @@ export async function loadServices(names: readonly ServiceName[]): Promise<Servi
   return Promise.all(names.map((name) => SERVICES[name]()));
 }
 
-/** The processors of the given services, merged, with the queues they serve. */
-export function processorsOf(deps: ServiceDeps, services: readonly ServiceDescriptor[]): { processors: ProcessorMap; queues: QueueName[] } {
+/** What `queue.work` takes: the processors of some services, merged, the queues they serve, and how many jobs of each run at once. */
+export type Work = { processors: ProcessorMap } & WorkOptions;
+
+/** The processors of the given services, merged, with the queues they serve (and the configured concurrency of each, in-process too). */
+export function processorsOf(deps: ServiceDeps, services: readonly ServiceDescriptor[]): Work & { queues: QueueName[] } {
   const processors: ProcessorMap = {};
   const queues: QueueName[] = [];
   for (const service of services) {
     Object.assign(processors, service.createProcessors(deps));
     queues.push(...service.queues);
   }
-  return { processors, queues };
+  const { config } = deps;
+  return { processors, queues, concurrency: { ingest: config.ingestConcurrency, compute: config.computeConcurrency, report: 1, maintenance: 1 } };
 }
 
 /** The processors of the named services (loaded), merged, with the queues they serve. */
-export async function processorsFor(deps: ServiceDeps, names: readonly ServiceName[]): Promise<{ processors: ProcessorMap; queues: QueueName[] }> {
+export async function processorsFor(deps: ServiceDeps, names: readonly ServiceName[]): Promise<Work & { queues: QueueName[] }> {
   return processorsOf(deps, await loadServices(names));
 }
 
@@ -37,7 +41,7 @@ export async function processorsFor(deps: ServiceDeps, names: readonly ServiceNa
  * Every service's processors, for running jobs in-process (the CLI without REDIS_URL: recompute,
  * upload --wait, demo), with every queue.
  */
-export async function allProcessors(deps: ServiceDeps): Promise<{ processors: ProcessorMap; queues: QueueName[] }> {
+export async function allProcessors(deps: ServiceDeps): Promise<Work & { queues: QueueName[] }> {
   const found = await processorsFor(deps, SERVICE_NAMES);
   const missing = QUEUE_NAMES.flatMap((q) => jobNamesOf(q)).filter((name) => typeof found.processors[name] !== 'function');
   if (missing.length) throw new Error(`no service has a processor for ${missing.join(', ')}`);

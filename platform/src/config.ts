@@ -27,6 +27,7 @@ const envSchema = z.object({
     .regex(/^[A-Za-z0-9_.-]+:(dry|moist|wet)(,[A-Za-z0-9_.-]+:(dry|moist|wet))*$/, 'a list like wet:wet,moist:moist,dry:dry (code:climate)')
     .default('wet:wet,moist:moist,dry:dry'),
   STEMWISE_COMPUTE_CONCURRENCY: intIn(1, 64).default(2),
+  STEMWISE_COMPUTE_THREADS: intIn(0, 64).default(0),
   STEMWISE_INGEST_CONCURRENCY: intIn(1, 16).default(1),
   STEMWISE_CHUNK_PLOTS: intIn(1, 100_000).default(500),
   STEMWISE_JOB_ATTEMPTS: intIn(1, 50).default(5),
@@ -54,6 +55,8 @@ const envSchema = z.object({
   STEMWISE_DEFAULT_WOOD_DENSITY: num().pipe(z.number().min(0.1).max(1.5)).default(0.58),
   STEMWISE_MIN_HEIGHTS: intIn(3, 100_000).default(30),
   STEMWISE_SAMPLING_ERROR_T: z.enum(['t', '1.96', '2']).default('t'),
+  STEMWISE_CAUTION_MIN_PLOTS: intIn(1, 1_000_000).default(20),
+  STEMWISE_CAUTION_MAX_SAMPLING_ERROR_PCT: num().pipe(z.number().gt(0).max(1000)).default(20),
   STEMWISE_FIT_METRIC: z.string().min(1).default('fisher_alpha'),
   STEMWISE_FIT_AXIS: z.string().min(1).default('disturbance_index'),
   STEMWISE_BOOTSTRAP: intIn(0, 100_000).default(1000),
@@ -73,6 +76,8 @@ export interface Config {
   queuePrefix: string;
   forestTypes: ReadonlyArray<{ code: string; climate: Climate }>;
   computeConcurrency: number;
+  /** Worker threads that compute plot metrics (0: in the job's own thread). */
+  computeThreads: number;
   ingestConcurrency: number;
   chunkPlots: number;
   jobAttempts: number;
@@ -108,6 +113,10 @@ export interface Config {
   defaultWoodDensity: number;
   minHeights: number;
   samplingErrorT: 't' | '1.96' | '2';
+  /** Estimates from fewer plots are flagged `few_plots` (caution_flag). */
+  cautionMinPlots: number;
+  /** Estimates with a larger sampling error (percent) are flagged `wide_error` (caution_flag). */
+  cautionMaxSamplingErrorPct: number;
   fitMetric: string;
   fitAxis: string;
   bootstrap: number;
@@ -125,6 +134,7 @@ export const SETTINGS: ReadonlyArray<{ name: string; default: string; meaning: s
   { name: 'STEMWISE_QUEUE_PREFIX', default: 'stemwise', meaning: 'Redis key prefix of the queues' },
   { name: 'STEMWISE_FOREST_TYPES', default: 'wet:wet,moist:moist,dry:dry', meaning: 'known forest type codes and the climate class of their no-height biomass model' },
   { name: 'STEMWISE_COMPUTE_CONCURRENCY', default: '2', meaning: 'jobs a compute worker runs at once' },
+  { name: 'STEMWISE_COMPUTE_THREADS', default: '0', meaning: 'worker threads that compute plot metrics, shared by the jobs of a process (0: in the job itself; with PostgreSQL on the same 2-core machine threads were slower)' },
   { name: 'STEMWISE_INGEST_CONCURRENCY', default: '1', meaning: 'batches an ingest worker loads at once' },
   { name: 'STEMWISE_CHUNK_PLOTS', default: '500', meaning: 'plot visits per metrics job' },
   { name: 'STEMWISE_JOB_ATTEMPTS', default: '5', meaning: 'tries of a job before it is failed (exponential backoff)' },
@@ -149,6 +159,8 @@ export const SETTINGS: ReadonlyArray<{ name: string; default: string; meaning: s
   { name: 'STEMWISE_DEFAULT_WOOD_DENSITY', default: '0.58', meaning: 'regional default wood density (g/cm³) when nothing better is known' },
   { name: 'STEMWISE_MIN_HEIGHTS', default: '30', meaning: 'measured heights a forest type needs before a height–diameter model is fitted' },
   { name: 'STEMWISE_SAMPLING_ERROR_T', default: 't', meaning: 'multiplier of the sampling error %: Student t, 1.96 or 2' },
+  { name: 'STEMWISE_CAUTION_MIN_PLOTS', default: '20', meaning: 'estimates from fewer plots are marked on the pages and flagged `few_plots` in `caution_flag` (common practice, no single source)' },
+  { name: 'STEMWISE_CAUTION_MAX_SAMPLING_ERROR_PCT', default: '20', meaning: 'estimates with a larger sampling error (%) are marked on the pages and flagged `wide_error` in `caution_flag` (common practice, no single source)' },
   { name: 'STEMWISE_FIT_METRIC', default: 'fisher_alpha', meaning: 'diversity column of the nightly curve fits' },
   { name: 'STEMWISE_FIT_AXIS', default: 'disturbance_index', meaning: 'disturbance column of the nightly curve fits' },
   { name: 'STEMWISE_BOOTSTRAP', default: '1000', meaning: 'bootstrap resamples for the vertex interval' },
@@ -189,6 +201,7 @@ export function loadConfig(env: Readonly<Record<string, string | undefined>> = p
       return { code, climate: climate as Climate };
     }),
     computeConcurrency: e.STEMWISE_COMPUTE_CONCURRENCY,
+    computeThreads: e.STEMWISE_COMPUTE_THREADS,
     ingestConcurrency: e.STEMWISE_INGEST_CONCURRENCY,
     chunkPlots: e.STEMWISE_CHUNK_PLOTS,
     jobAttempts: e.STEMWISE_JOB_ATTEMPTS,
@@ -213,6 +226,8 @@ export function loadConfig(env: Readonly<Record<string, string | undefined>> = p
     defaultWoodDensity: e.STEMWISE_DEFAULT_WOOD_DENSITY,
     minHeights: e.STEMWISE_MIN_HEIGHTS,
     samplingErrorT: e.STEMWISE_SAMPLING_ERROR_T,
+    cautionMinPlots: e.STEMWISE_CAUTION_MIN_PLOTS,
+    cautionMaxSamplingErrorPct: e.STEMWISE_CAUTION_MAX_SAMPLING_ERROR_PCT,
     fitMetric: e.STEMWISE_FIT_METRIC,
     fitAxis: e.STEMWISE_FIT_AXIS,
     bootstrap: e.STEMWISE_BOOTSTRAP,

@@ -3,21 +3,25 @@
 // plans a recompute and runs every plot-chunk job (the processor's own function, as many at once as
 // STEMWISE_COMPUTE_CONCURRENCY) and prints the wall time and µs per stem of each size, then the fits
 // stage and the region summaries stage (twice: after the fits, and again with every region marked
-// stale but no fit changed, which draws no chart anew).
+// stale but no fit changed, which draws no chart anew). With --in-process the run goes through the
+// in-process queue with the services' own processors instead (as `stemwise recompute` without
+// REDIS_URL runs it: metrics, fits, summaries) and its stage times are printed.
 //
-//   DATABASE_URL=postgres://postgres@127.0.0.1:5432/postgres npx tsx scripts/bench/compute.ts [--big] [--sizes 250000,1000000]
+//   DATABASE_URL=postgres://postgres@127.0.0.1:5432/postgres npx tsx scripts/bench/compute.ts [--big] [--sizes 250000,1000000] [--in-process]
 //
 // DATABASE_URL (default: the local server) names a database used only to create and drop a scratch database per size.
 import crypto from 'node:crypto';
 import { parseArgs } from 'node:util';
-import { createLogger, loadConfig, type JobQueue } from '@stemwise/platform';
-import { markStale, migrateDatabase, openDatabase, syncForestTypes, type Db } from '@stemwise/db';
-import { computePlotChunk, refreshStaleFits } from '@stemwise/compute';
-import { refreshStaleSummaries } from '@stemwise/report';
-import { finishPlotsStage, planRecompute } from '@stemwise/core';
+import { createLogger, InProcessQueue, loadConfig, type JobQueue } from '@stemwise/platform';
+import { getRecomputeRun, markStale, migrateDatabase, openDatabase, syncForestTypes, type Db } from '@stemwise/db';
+import { computePlotChunk, refreshStaleFits, service as computeService } from '@stemwise/compute';
+import { refreshStaleSummaries, service as reportService } from '@stemwise/report';
+import { finishPlotsStage, planRecompute, stageTimeLines, type StageTime } from '@stemwise/core';
 import { fixtureSpecies, loadSpecies, rng } from '../../test/compute/fixtures';
 
-const { values } = parseArgs({ options: { big: { type: 'boolean', default: false }, sizes: { type: 'string' }, keep: { type: 'boolean', default: false } } });
+const { values } = parseArgs({
+  options: { big: { type: 'boolean', default: false }, sizes: { type: 'string' }, keep: { type: 'boolean', default: false }, 'in-process': { type: 'boolean', default: false } },
+});
 const sizes = values.sizes ? values.sizes.split(',').map(Number) : [250_000, 1_000_000, ...(values.big ? [4_000_000] : [])];
 // The local server when DATABASE_URL is unset, as the other benchmarks do.
 const config = { ...loadConfig(), databaseUrl: loadConfig().databaseUrl ?? 'postgres://postgres@127.0.0.1:5432/postgres' };
@@ -108,6 +112,10 @@ async function benchOne(nStems: number): Promise<void> {
     const stems = await load(db, nStems);
     const loadMs = performance.now() - t;
 
+    if (values['in-process']) {
+      await inProcessRun(benchConfig, db, stems);
+      return;
+    }
     // A queue that only collects the flow: the chunks are then run here, as the workers would.
     let flow: { children?: unknown[] } | null = null;
     const collect = { kind: 'in-process', add: async (spec: never) => void (flow = spec) } as unknown as JobQueue;
@@ -149,6 +157,28 @@ async function benchOne(nStems: number): Promise<void> {
     if (values.keep) process.stdout.write(`kept database ${name}\n`);
     else await admin.query(`drop database if exists "${name}" with (force)`);
     await admin.close();
+  }
+}
+
+/** The whole run through the in-process queue and the services' processors; prints the stage times the run recorded. */
+async function inProcessRun(benchConfig: typeof config, db: Db, stems: number): Promise<void> {
+  const queue = new InProcessQueue(log);
+  const deps = { config: benchConfig, db, log, queue };
+  await queue.work(
+    { ...computeService.createProcessors(deps), ...reportService.createProcessors(deps) },
+    { queues: ['compute', 'report', 'maintenance'], concurrency: { compute: benchConfig.computeConcurrency } },
+  );
+  try {
+    const t = performance.now();
+    const plan = await planRecompute(deps, 'manual');
+    const failures = await queue.drain();
+    if (failures.length) throw new Error(`a job failed: ${failures[0].jobId}: ${failures[0].error}`);
+    const ms = performance.now() - t;
+    const run = await getRecomputeRun(db, plan!.runId);
+    const stages = run!.details.stages as Record<string, StageTime>;
+    process.stdout.write(`${String(stems).padStart(9)} stems | in-process run ${(ms / 1000).toFixed(2)} s, metrics stage ${(stages.metrics.ms / 1000).toFixed(2)} s\n${stageTimeLines(stages).join('\n')}\n`);
+  } finally {
+    await queue.close();
   }
 }
 

@@ -7,39 +7,24 @@
 // (visit, tree) primary key and into the real stems table. Prints the ratios. Needs PostgreSQL
 // (DATABASE_URL, else postgres://postgres@127.0.0.1:5432/postgres as the admin database) and psql.
 
-import { spawnSync, execFileSync } from 'node:child_process';
-import crypto from 'node:crypto';
+import { spawnSync } from 'node:child_process';
 import fs from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
 import { fileURLToPath, pathToFileURL } from 'node:url';
 import { parseArgs } from 'node:util';
-import pg from 'pg';
 import { createLogger, InProcessQueue, loadConfig } from '@stemwise/platform';
 import { getBatch, migrateDatabase, openDatabase, syncForestTypes } from '@stemwise/db';
 import { generateInventory } from '@stemwise/demo-inventory';
 import { submitBatch } from '@stemwise/core';
 import { bundle, ROOT } from '../build';
 import type { IngestRun } from './support/ingest-child';
+import { psql, STEMS_PER_DEMO_PLOT, withScratch } from './support/scratch';
 
 const HERE = path.dirname(fileURLToPath(import.meta.url));
-const STEMS_PER_DEMO_PLOT = 585; // the demo generator's average, measured on seed 3
-
-function psql(url: string, ...commands: string[]): number {
-  const t0 = performance.now();
-  execFileSync('psql', ['-q', '-v', 'ON_ERROR_STOP=1', url, ...commands.flatMap((c) => ['-c', c])], { stdio: ['ignore', 'ignore', 'inherit'] });
-  return (performance.now() - t0) / 1000;
-}
 
 async function benchOne(adminUrl: string, stems: number, gzip: boolean): Promise<void> {
-  const work = fs.mkdtempSync(path.join(os.tmpdir(), 'stemwise-bench-ingest-'));
-  const dbName = `stemwise_bench_${crypto.randomBytes(4).toString('hex')}`;
-  const admin = new pg.Client({ connectionString: adminUrl });
-  await admin.connect();
-  const url = new URL(adminUrl);
-  url.pathname = `/${dbName}`;
-  const dbUrl = url.toString();
-  try {
+  await withScratch(adminUrl, 'ingest', async ({ work, dbUrl }) => {
     const plots = Math.max(1, Math.round(stems / STEMS_PER_DEMO_PLOT));
     let t0 = performance.now();
     const { truth } = await generateInventory({ outDir: path.join(work, 'batch'), plots, seed: 1, gzip });
@@ -48,7 +33,6 @@ async function benchOne(adminUrl: string, stems: number, gzip: boolean): Promise
     const mb = fs.statSync(treesFile).size / 1e6;
     console.log(`\n== ${truth.counts.stems.rows.toLocaleString('en-US')} stems in ${plots.toLocaleString('en-US')} plots (${path.basename(treesFile)} ${mb.toFixed(1)} MB), generated in ${((performance.now() - t0) / 1000).toFixed(1)} s`);
 
-    await admin.query(`create database "${dbName}"`);
     const env = { ...process.env, DATABASE_URL: dbUrl, STEMWISE_STORAGE_DIR: path.join(work, 'storage'), STEMWISE_LOG_LEVEL: 'warn' };
     const config = loadConfig(env);
     const log = createLogger('warn');
@@ -89,11 +73,7 @@ async function benchOne(adminUrl: string, stems: number, gzip: boolean): Promise
     console.log(`ratio ingest / \\copy into stems:      ${(run.seconds / constrainedSeconds).toFixed(2)}`);
     console.log(`peak memory of the ingest process:    ${run.maxRssMb.toFixed(0)} MB (maxRSS; target < 300 MB); of it ${run.baselineRssMb.toFixed(0)} MB before the batch (modules, pool); peak V8 heap ${run.peakHeapMb.toFixed(0)} MB, buffers ${run.peakExternalMb.toFixed(0)} MB`);
     console.log(`load average now: ${os.loadavg().map((x) => x.toFixed(1)).join(' ')} on ${os.cpus().length} cores`);
-  } finally {
-    await admin.query(`drop database if exists "${dbName}" with (force)`).catch(() => {});
-    await admin.end();
-    fs.rmSync(work, { recursive: true, force: true });
-  }
+  });
 }
 
 /** The ingest section of `npm run bench`. */

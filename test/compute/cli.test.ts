@@ -67,6 +67,19 @@ describe('stemwise recompute and export', () => {
     expect(r.stdout).toMatch(/^run \S+ \(manual\): (done|running)\n/);
     expect(r.stdout).toMatch(/plot metrics: \d+ plot visits, \d+ stems, 1 chunk/);
     expect(r.stdout).toMatch(/fits wet: (hump|increasing|decreasing|u_shape|none) \(n = \d+/);
+    // How long each stage took, with its counts, from what the stages recorded in the run's details.
+    const [{ visits, stems }] = await s.db.query<{ visits: number; stems: number }>(`select (select count(*)::int from plot_visits) visits, (select count(*)::int from stems) stems`);
+    const times = r.stdout.slice(r.stdout.indexOf('stage times (wall clock):\n')).trimEnd().split('\n');
+    expect(times.map((l) => l.trim().split(/\s{2,}/)[0])).toEqual(['stage times (wall clock):', 'plan', 'plot metrics', 'fits', 'summaries', 'total']);
+    expect(times[1]).toMatch(new RegExp(`^  plan +\\d+\\.\\d\\d s  ${visits} plot visits in 1 chunk, \\d+ height models? checked$`));
+    expect(times[2]).toMatch(new RegExp(`^  plot metrics +\\d+\\.\\d\\d s  ${visits} plot visits, ${stems} stems, 1 chunk \\(\\d+\\.\\d\\d s of chunk work\\)$`));
+    expect(times[3]).toMatch(/^  fits +\d+\.\d\d s  \d+ forest types?$/);
+    expect(times[4]).toMatch(/^  summaries +\d+\.\d\d s  \d+ regions?, \d+ new versions?$/);
+    const secs = times.slice(1).map((l) => Number(/(\d+\.\d\d) s/.exec(l)![1]));
+    expect(secs[4]).toBeGreaterThanOrEqual(Math.max(...secs.slice(0, 4))); // the total spans them all
+    const [{ stages }] = await s.db.query<{ stages: Record<string, { start: number; ms: number }> }>(`select details->'stages' stages from recompute_runs order by started_at desc limit 1`);
+    const order = ['plan', 'metrics', 'fits', 'summaries'].map((k) => stages[k]);
+    for (let i = 1; i < order.length; i++) expect(order[i].start).toBeGreaterThanOrEqual(order[i - 1].start + order[i - 1].ms); // one after another
     const [{ stale }] = await s.db.query<{ stale: number }>(`select count(*)::int stale from plot_visits where stale`);
     expect(stale).toBe(0);
     computed = true;
@@ -96,7 +109,7 @@ describe('stemwise recompute and export', () => {
     expect(rows[0].axis).toBe('fire_score');
     const regions = await inProcess(['export', 'regions']); // the report service's export, behind the same command
     expect(regions.code, regions.stderr).toBe(0);
-    expect(regions.stdout).toMatch(/^region,forest_type,variable,n_plots,mean,se,ci_low,ci_high,sampling_error_pct,forest_area_ha,total\n/);
+    expect(regions.stdout).toMatch(/^region,forest_type,variable,n_plots,mean,se,ci_low,ci_high,sampling_error_pct,forest_area_ha,total,caution_flag\n/);
     const gj = await inProcess(['export', 'plots', '--format', 'geojson', '--region', 'Sallowfen']);
     expect(gj.code, gj.stderr).toBe(0);
     expect(JSON.parse(gj.stdout).features.every((f: { properties: { region: string } }) => f.properties.region === 'Sallowfen')).toBe(true);

@@ -2,15 +2,30 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { listStale, markStale } from '@stemwise/db';
 import { StemwiseError } from '@stemwise/platform';
 import { MIN_REGION_PLOTS, storeFits } from '@stemwise/compute';
-import { asStoredFitChart, fitCurves } from '@stemwise/core';
+import { asStoredFitChart, EVIDENCE_COLUMNS, fitCurves, fitRows } from '@stemwise/core';
 import { fixtureSpecies, generateInventory, loadInventory, loadSpecies, REGIONS } from './fixtures';
 import { fitsText, plotsText, recomputeInProcess } from './support';
 import { useServices, type TestServices } from '../support/services';
 
 // The columns of `export fits` exactly as in docs/exports.md.
-const SPEC_COLUMNS =
-  'forest_type, metric, axis, n, model, b0, b1, b2, se_b0, se_b1, se_b2, p_b1, p_b2, r2, adj_r2, aicc, peak_x, peak_ci_low, peak_ci_high, verdict'.split(', ');
+const SPEC_COLUMNS = (
+  'forest_type, metric, axis, n, model, b0, b1, b2, se_b0, se_b1, se_b2, p_b1, p_b2, r2, adj_r2, aicc, peak_x, peak_ci_low, peak_ci_high, verdict, plots_left_out, left_out_reasons, ' +
+  'delta_aicc, curvature_p, mos_turn_x, mos_turn_inside, mos_result, two_lines_break_x, two_lines_slope_1, two_lines_p_1, two_lines_slope_2, two_lines_p_2, two_lines_result, peak_boot_low, peak_boot_high'
+).split(', ');
 const VERDICTS = ['hump', 'increasing', 'decreasing', 'u_shape', 'none'];
+
+type PlotRow = Record<string, string | number | null>;
+
+/** The latest visit of each plot, from `export plots`. */
+async function latestVisits(s: TestServices): Promise<Map<string, PlotRow>> {
+  const plots = JSON.parse(await plotsText(s.db, 'json')) as PlotRow[];
+  const latest = new Map<string, PlotRow>();
+  for (const p of plots) {
+    const have = latest.get(p.plot_id as string);
+    if (!have || (have.survey_date as string) < (p.survey_date as string)) latest.set(p.plot_id as string, p);
+  }
+  return latest;
+}
 
 describe('diversity–disturbance fits', () => {
   let s: TestServices;
@@ -44,12 +59,7 @@ describe('diversity–disturbance fits', () => {
   });
 
   it('fits exactly the latest visit of each plot where both values are known', async () => {
-    const plots = JSON.parse(await plotsText(s.db, 'json')) as Array<Record<string, string | number | null>>;
-    const latest = new Map<string, Record<string, string | number | null>>();
-    for (const p of plots) {
-      const have = latest.get(p.plot_id as string);
-      if (!have || (have.survey_date as string) < (p.survey_date as string)) latest.set(p.plot_id as string, p);
-    }
+    const latest = await latestVisits(s);
     const rows = JSON.parse(await fitsText(s.config, s.db, { format: 'json' })) as Array<Record<string, number | string | null>>;
     for (const type of ['wet', 'moist', 'dry']) {
       const points = [...latest.values()]
@@ -62,6 +72,10 @@ describe('diversity–disturbance fits', () => {
       expect(quad.b2).toBe(direct.quadratic!.b2);
       expect(quad.aicc).toBe(direct.quadratic!.aicc);
       expect(quad.verdict).toBe(direct.verdict);
+      // the evidence read back from the stored details is what the fit itself found
+      const [, directQuad] = fitRows(direct, { forestType: type, metric: 'fisher_alpha', axis: 'disturbance_index' });
+      for (const c of EVIDENCE_COLUMNS) expect(quad[c], `${type} ${c}`).toBe(directQuad[c]);
+      expect(quad.mos_result).not.toBeNull();
       // what the region pages' chart shows is stored with the fit: the same points, in order, with their region
       const [row] = await s.db.query<{ chart: unknown }>(`select chart from fit_charts where forest_type = $1 and metric = 'fisher_alpha' and axis = 'disturbance_index'`, [type]);
       const chart = asStoredFitChart(row?.chart)!;
@@ -76,13 +90,34 @@ describe('diversity–disturbance fits', () => {
     }
   });
 
-  it('stores region × forest type fits where a region has enough plots, and a chart for each forest type', async () => {
-    const plots = JSON.parse(await plotsText(s.db, 'json')) as Array<Record<string, string | number | null>>;
-    const latest = new Map<string, Record<string, string | number | null>>();
-    for (const p of plots) {
-      const have = latest.get(p.plot_id as string);
-      if (!have || (have.survey_date as string) < (p.survey_date as string)) latest.set(p.plot_id as string, p);
+  it('says on both rows of each fit how many plots were left out and why (counted here from the plots export)', async () => {
+    const latest = await latestVisits(s);
+    const rows = JSON.parse(await fitsText(s.config, s.db, { format: 'json' })) as Array<Record<string, number | string | null>>;
+    let leftOutAnywhere = 0;
+    for (const type of ['wet', 'moist', 'dry']) {
+      const mine = [...latest.values()].filter((p) => p.forest_type === type);
+      const reasons = new Map<string, number>();
+      for (const p of mine) {
+        if (p.fisher_alpha !== null) continue;
+        // Fisher's alpha is undefined only for N = 0 and S = N (one identified stem is both S = N and below the minimum of 2).
+        const n = p.n_identified as number;
+        const why = n === 0 ? 'no_identified_stem' : n === 1 ? 'one_identified_stem' : p.richness === n ? 'all_singletons' : 'no_value';
+        reasons.set(`fisher_alpha:${why}`, (reasons.get(`fisher_alpha:${why}`) ?? 0) + 1);
+      }
+      const total = [...reasons.values()].reduce((a, b) => a + b, 0);
+      leftOutAnywhere += total;
+      const text = [...reasons].sort(([a], [b]) => (a < b ? -1 : 1)).map(([k, v]) => `${k}=${v}`).join(';') || null;
+      for (const r of rows.filter((x) => x.forest_type === type)) {
+        expect(r.plots_left_out, `${type} ${r.model}`).toBe(total);
+        expect(r.left_out_reasons, `${type} ${r.model}`).toBe(text);
+        expect((r.n as number) + total).toBe(mine.length);
+      }
     }
+    expect(leftOutAnywhere).toBeGreaterThan(0);
+  });
+
+  it('stores region × forest type fits where a region has enough plots, and a chart for each forest type', async () => {
+    const latest = await latestVisits(s);
     const cells = new Map<string, number>();
     for (const p of latest.values()) {
       if (p.fisher_alpha === null || p.disturbance_index === null) continue;

@@ -21,7 +21,7 @@ describe('the compiled build', () => {
   const commands = new AbortController();
   beforeAll(async () => {
     s = await useServices();
-    await bundle(path.join(ROOT, 'cli', 'src', 'main.ts'), outfile);
+    await bundle(path.join(ROOT, 'cli', 'src', 'main.ts'), outfile, { split: true }); // as `npm run build` (and `npm ci`, through `prepare`) does
   });
   afterAll(async () => {
     commands.abort();
@@ -39,9 +39,31 @@ describe('the compiled build', () => {
     });
 
   it('inlines every source module and imports only installed packages', () => {
-    const text = fs.readFileSync(outfile, 'utf8');
-    expect(text).not.toMatch(/from ["'][^"']*\.ts["']/);
-    expect(text).not.toMatch(/from ["']@stemwise\//);
+    for (const name of fs.readdirSync(outDir).filter((n) => n.endsWith('.mjs'))) {
+      const text = fs.readFileSync(path.join(outDir, name), 'utf8');
+      expect(text, name).not.toMatch(/from ["'][^"']*\.ts["']/);
+      expect(text, name).not.toMatch(/from ["']@stemwise\//);
+    }
+  });
+
+  it('loads no package before a command needs one: `stemwise --help` imports only node builtins', async () => {
+    // Every file the entry imports statically (a chunk's own static imports, transitively), and the packages they import.
+    const packages = new Set<string>();
+    const seen = new Set<string>();
+    const walk = (name: string) => {
+      if (seen.has(name)) return;
+      seen.add(name);
+      const text = fs.readFileSync(path.join(outDir, name), 'utf8');
+      for (const [, spec] of text.matchAll(/^import\s+(?:[^;]*?\sfrom\s+)?["']([^"']+)["']/gms)) {
+        if (spec.startsWith('./')) walk(spec.slice(2));
+        else packages.add(spec);
+      }
+    };
+    walk('stemwise.mjs');
+    expect(seen.size).toBeGreaterThan(1); // the pattern does find the chunks the entry imports
+    expect([...packages].filter((p) => !p.startsWith('node:'))).toEqual([]);
+    const { stdout } = await stemwise(['--help'], process.env as Record<string, string>);
+    expect(stdout).toMatch(/^usage: stemwise <command>[^]*recompute\s+recomputes what new plots made stale/m);
   });
 
   it('migrates an embedded database from the committed migrations', async () => {

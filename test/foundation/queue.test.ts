@@ -72,4 +72,43 @@ describe('job queue', () => {
     expect(failures[0].error).toContain('disk on fire');
     expect(ran).toEqual([]);
   });
+
+  it('in-process, runs up to a queue\'s concurrency of its jobs at once; a parent and other queues wait for them', async () => {
+    const queue = new InProcessQueue(testLogger());
+    const events: string[] = [];
+    let running = 0;
+    let most = 0;
+    const slow = (label: string) => async () => {
+      events.push(`start ${label}`);
+      most = Math.max(most, ++running);
+      await new Promise((r) => setTimeout(r, 30));
+      running--;
+      events.push(`end ${label}`);
+    };
+    await queue.work(
+      {
+        'compute.plot-chunk': async (data) => slow(`chunk ${(data as { visitIds: number[] }).visitIds[0]}`)(),
+        'compute.plots': slow('plots'),
+        'compute.fits': slow('fits'),
+        'report.summaries': slow('summaries'),
+      },
+      { queues: ['compute', 'report'], concurrency: { compute: 2 } },
+    );
+    const chunks = [1, 2, 3].map((v) => ({ name: 'compute.plot-chunk' as const, data: { runId: 'r3', visitIds: [v] }, jobId: `chunk.r3.${v}` }));
+    await queue.add({ name: 'compute.plots', data: { runId: 'r3' }, jobId: 'plots.r3', children: chunks });
+    await queue.add({ name: 'report.summaries', data: { runId: 'r3' }, jobId: 'summaries.r3' });
+    expect(await queue.drain()).toEqual([]);
+    expect(most).toBe(2); // two chunks at once, never more
+    expect(events.slice(0, 2)).toEqual(['start chunk 1', 'start chunk 2']);
+    // The parent starts after its last child ended; the job of another queue after the parent.
+    expect(events.indexOf('start plots')).toBeGreaterThan(events.indexOf('end chunk 3'));
+    expect(events.indexOf('start summaries')).toBeGreaterThan(events.indexOf('end plots'));
+    // Without a concurrency, one at a time as before.
+    const sequential = new InProcessQueue(testLogger());
+    most = 0;
+    await sequential.work({ 'compute.plot-chunk': async () => slow('chunk')(), 'compute.plots': slow('plots'), 'compute.fits': slow('fits') }, { queues: ['compute'] });
+    await sequential.add({ name: 'compute.plots', data: { runId: 'r4' }, jobId: 'plots.r4', children: chunks.map((c) => ({ ...c, jobId: c.jobId.replace('r3', 'r4') })) });
+    expect(await sequential.drain()).toEqual([]);
+    expect(most).toBe(1);
+  });
 });

@@ -104,7 +104,7 @@ describe('report API', () => {
     const res = await app.inject({ url: `/v1/regions/${encodeURIComponent('@Lakeside')}/summary?format=csv`, headers: auth });
     expect(res.statusCode).toBe(200);
     const lines = res.body.trimEnd().split('\n');
-    expect(lines[0]).toBe('region,forest_type,variable,n_plots,mean,se,ci_low,ci_high,sampling_error_pct,forest_area_ha,total');
+    expect(lines[0]).toBe('region,forest_type,variable,n_plots,mean,se,ci_low,ci_high,sampling_error_pct,forest_area_ha,total,caution_flag');
     expect(lines[1].startsWith("'@Lakeside,all,")).toBe(true);
     const hs = await app.inject({ url: `/v1/regions/${encodeURIComponent('=HYPERLINK("x")')}/summary?format=csv`, headers: auth });
     const row = hs.body.split('\n').find((l) => l.includes(',basal_area_m2_ha,') && l.includes(',all,'))!;
@@ -124,13 +124,29 @@ describe('report API', () => {
     expect(f.properties).toMatchObject({ plot_id: 'SM-1', region: 'Southmere', forest_type: 'moist', basal_area_m2_ha: 10 });
   });
 
+  it('serves the evidence behind each verdict on the quadratic row, none on the linear one', async () => {
+    const json = (await app.inject({ url: '/v1/fits?scope=all&forest_type=wet', headers: auth })).json();
+    const quad = json.fits.find((f: { model: string }) => f.model === 'quadratic');
+    // the stored details of seed-scenario.ts (WET_EVIDENCE), as columns
+    expect(quad).toMatchObject({
+      verdict: 'none', plots_left_out: 1, left_out_reasons: 'fisher_alpha:all_singletons=1',
+      delta_aicc: -1.8, curvature_p: 0.4, mos_turn_x: 1.2, mos_turn_inside: 'no', mos_result: 'fail',
+      two_lines_break_x: 0.35, two_lines_slope_1: 3.1, two_lines_p_1: 0.21, two_lines_slope_2: -0.8, two_lines_p_2: 0.64, two_lines_result: 'fail',
+      peak_boot_low: null, peak_boot_high: null,
+    });
+    const lin = json.fits.find((f: { model: string }) => f.model === 'linear');
+    for (const k of ['delta_aicc', 'curvature_p', 'mos_result', 'two_lines_slope_1', 'two_lines_result']) expect(lin[k], k).toBeNull();
+    const csv = await app.inject({ url: '/v1/fits?format=csv&scope=all&forest_type=wet', headers: auth });
+    expect(csv.body.split('\n')[0]).toMatch(/,verdict,plots_left_out,left_out_reasons,delta_aicc,curvature_p,mos_turn_x,mos_turn_inside,mos_result,two_lines_break_x,two_lines_slope_1,two_lines_p_1,two_lines_slope_2,two_lines_p_2,two_lines_result,peak_boot_low,peak_boot_high$/);
+  });
+
   it('lists fits as JSON or CSV, filtered by scope', async () => {
     const json = (await app.inject({ url: '/v1/fits?scope=all', headers: auth })).json();
     expect(json.fits.every((f: { scope: string }) => f.scope === 'all')).toBe(true);
     expect(json.fits.map((f: { forest_type: string; model: string }) => `${f.forest_type}/${f.model}`).sort()).toEqual(['moist/linear', 'wet/linear', 'wet/quadratic']);
     const csv = await app.inject({ url: '/v1/fits?format=csv&scope=Southmere', headers: auth });
     expect(csv.body.split('\n')[0]).toMatch(/^scope,forest_type,metric,axis,n,model,b0,/);
-    expect(csv.body.split('\n')[1]).toMatch(/^Southmere,moist,fisher_alpha,disturbance_index,5,linear,8,2,,1,1,,0\.2,,0\.3,0\.1,30,,,,increasing$/);
+    expect(csv.body.split('\n')[1]).toMatch(/^Southmere,moist,fisher_alpha,disturbance_index,5,linear,8,2,,1,1,,0\.2,,0\.3,0\.1,30,,,,increasing,/); // then the columns added at the end (docs/exports.md), empty for a fit stored without them
   });
 
   it('tells a region named `all` from the forest type as a whole, and lists fits that could not be computed', async () => {

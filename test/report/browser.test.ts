@@ -66,11 +66,19 @@ describe('region page in a browser', () => {
       expect(box?.height, id).toBeGreaterThan(100);
     }
     const ba = page.locator('#headline .card[data-variable="basal_area_m2_ha"]');
-    await expect.poll(() => ba.locator('.value').innerText()).toMatch(/^21 m²\/ha$/);
-    expect(await ba.locator('.ci').innerText()).toMatch(/^95 % CI: \d+(\.\d+)? – \d+(\.\d+)?$/);
+    // rounded to the SE's second significant digit (an SE between 1 and 10 here: one decimal), a trailing zero kept
+    await expect.poll(() => ba.locator('.value').innerText()).toMatch(/^21\.0 m²\/ha$/);
+    expect(await ba.locator('.ci').innerText()).toMatch(/^95 % CI: \d+\.\d – \d+\.\d$/);
+    expect(await ba.locator('.se').innerText()).toMatch(/SE \d\.\d$/);
     expect(await ba.locator('.se').innerText()).toMatch(/sampling error: ±\d+\.\d %/);
     expect(await page.locator('.caution').first().innerText()).toMatch(/not a census[\s\S]*national greenhouse-gas reporting method[\s\S]*licensed foresters/);
     expect(await page.locator('#estimates tbody tr').count()).toBeGreaterThan(20);
+    // the verdict with its evidence (stored details of seed-scenario.ts), the words of each verdict, no verdict on a model's row
+    const evidence = page.locator('#verdict-evidence tr[data-forest-type="wet"][data-scope="all"]');
+    expect(await evidence.innerText()).toMatch(/none[\s\S]*-1\.8[\s\S]*0\.400[\s\S]*1\.2 \(outside the range\)[\s\S]*fails[\s\S]*3\.1 \(p 0\.210\)[\s\S]*-0\.8 \(p 0\.640\)[\s\S]*fails \(break at 0\.35\)/);
+    expect(await page.locator('#verdict-words dt').allInnerTexts()).toEqual(['hump', 'u shape', 'increasing', 'decreasing', 'none']);
+    expect(await page.locator('#fits thead').innerText()).not.toMatch(/verdict/i);
+    expect(await page.locator('#fits-left-out').innerText()).toContain('1 plot left out');
     expect(await page.locator('a[href*="format=csv"]').count()).toBe(1);
 
     const shot = path.join(shots, 'northvale.png');

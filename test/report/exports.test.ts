@@ -11,7 +11,7 @@ import { envFor, testLogger, useServices, type TestServices } from '../support/s
 import { jobContext, seedRun } from './fixture';
 import { seedScenario } from './seed-scenario';
 
-const COLUMNS = 'region,forest_type,variable,n_plots,mean,se,ci_low,ci_high,sampling_error_pct,forest_area_ha,total';
+const COLUMNS = 'region,forest_type,variable,n_plots,mean,se,ci_low,ci_high,sampling_error_pct,forest_area_ha,total,caution_flag';
 let s: TestServices;
 let deps: ServiceDeps;
 const out = fs.mkdtempSync(path.join(os.tmpdir(), 'stemwise-exports-'));
@@ -42,7 +42,8 @@ describe('export regions and the static report', () => {
     expect(regionOf.slice(first).every((r) => r === 'national')).toBe(true);
     expect(regionOf.length - first).toBe(13 * 4);
     // 12 plots of three regions with plot-count weights: ȳ = 18.5 (by hand, see summaries.test.ts), no total
-    expect(lines.filter((l) => /^national,all,basal_area_m2_ha,12,18\.5,[^,]+,[^,]+,[^,]+,[^,]+,,$/.test(l))).toHaveLength(1);
+    // 12 plots are fewer than the default 20: flagged few_plots (with the sampling error of 12 %, not above 20 %)
+    expect(lines.filter((l) => /^national,all,basal_area_m2_ha,12,18\.5,[^,]+,[^,]+,[^,]+,[^,]+,,,few_plots$/.test(l))).toHaveLength(1);
     // mean 21 and SE √3.25 (computed by hand, see summaries.test.ts) in shortest round-trip form
     expect(lines.filter((l) => l.startsWith('Northvale,all,basal_area_m2_ha,5,21,1.8027756377319946,'))).toHaveLength(1);
 
@@ -105,13 +106,21 @@ describe('export regions and the static report', () => {
     expect(written.national).toBe(path.join(dir, 'national.html'));
     const index = fs.readFileSync(path.join(dir, 'index.html'), 'utf8');
     expect(index).toContain('href="national.html"');
-    expect(index).toMatch(/<tr data-variable="basal_area_m2_ha"><td>Basal area[^]*?<td class="num">18\.5<\/td>/);
+    // rounded to the precision of the SE (two significant digits of an SE below 1 → two decimals): 18.50, trailing zero kept
+    expect(index).toMatch(/<tr data-variable="basal_area_m2_ha"><td>Basal area[^]*?<td class="num">18\.50<\/td><td class="num">16\.28 – 20\.72<\/td>/);
     const page = fs.readFileSync(written.national!, 'utf8');
     expect(page).toContain('<h1>National figures</h1>');
     expect(page).toContain('Uses the latest visit of each plot, surveyed 2025–2026.');
     expect(page).toContain('All regions (stratified by region × forest type)');
-    expect(page).toMatch(/<div class="card" data-variable="basal_area_m2_ha">[^]*?<div class="value">18\.5 /);
+    expect(page).toMatch(/<div class="card" data-variable="basal_area_m2_ha">[^]*?<div class="value">18\.50 [^]*?SE 0\.\d\d<\/div>/);
+    // the JSON keeps full precision
+    const rows = JSON.parse(fs.readFileSync(path.join(dir, 'national-summary.json'), 'utf8')).summary.rows as Array<{ forest_type: string; variable: string; mean: number }>;
+    expect(rows.find((r) => r.forest_type === 'all' && r.variable === 'basal_area_m2_ha')?.mean).toBeCloseTo(18.5, 10);
     expect(page).toContain('licensed foresters');
+    // every national figure rests on 12 plots: marked, with the legend naming the thresholds
+    expect(page).toMatch(/<div class="n muted">12 plots<span class="flag" data-flag="few_plots">few plots<\/span><\/div>/);
+    expect(page).toContain('from fewer than 20 plots');
+    expect(page).toContain('a sampling error above 20 %');
     expect(page).not.toMatch(/<script/i);
     for (const link of ['index.html', 'national-summary.csv', 'national-summary.json']) {
       expect(page).toContain(`href="${link}"`);

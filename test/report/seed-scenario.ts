@@ -40,6 +40,19 @@ function fitRow(scope: string, forestType: string, model: 'linear' | 'quadratic'
   };
 }
 
+/** What a fit stores beside its columns (the shape of fitDetails), invented: a verdict `none` with its evidence. */
+export const WET_EVIDENCE = {
+  tests: {
+    shape: 'hump', deltaAicc: -1.8, quadraticPreferred: false,
+    mitchellOldsShaw: { shape: 'hump', b2: -1, pB2: 0.4, curvatureSignificant: false, vertex: 1.2, vertexInside: false, ciInside: false, passes: false, strong: false, reason: null },
+    twoLines: { shape: 'hump', breakpoint: 0.35, flatLow: 0.3, flatHigh: 0.4, first: { n: 3, slope: 3.1, se: 2, t: 1.55, p: 0.21 }, second: { n: 2, slope: -0.8, se: 1.6, t: -0.5, p: 0.64 }, passes: false, reason: null },
+    lindMehlum: null,
+    bootstrap: null,
+  },
+  peak: null,
+  left_out: { 'fisher_alpha:all_singletons': 1 },
+};
+
 /** What the fits job stores for a forest type's chart, from the scenario's plots in plot-key order. */
 export function scenarioChart(forestType: string): object {
   const plots = [...NORTHVALE, ...SOUTHMERE, ...OSTMARK].filter((p) => p.forestType === forestType).sort((a, b) => (a.key < b.key ? -1 : 1));
@@ -54,7 +67,7 @@ export async function seedScenario(db: Db): Promise<void> {
   await seedForestArea(db, 'Northvale', 'dry', 1000);
   await upsertCurveFits(db, [
     fitRow('all', 'wet', 'linear', 5, 'none'),
-    fitRow('all', 'wet', 'quadratic', 5, 'none'),
+    { ...fitRow('all', 'wet', 'quadratic', 5, 'none'), details: WET_EVIDENCE },
     fitRow('all', 'moist', 'linear', 5, 'none'),
     fitRow('Northvale', 'wet', 'linear', 3, 'none'),
     fitRow('Southmere', 'moist', 'linear', 5, 'increasing'),

@@ -36,7 +36,6 @@ Shows the state, counts, progress and the errors and warnings of a batch, groupe
 });
 
 export const command: CommandGroup = {
-  summary: 'shows a batch: batch show ID [--format text|json] [--errors-csv FILE]',
   usage: `usage: stemwise batch show ID [--format text|json] [--errors-csv FILE] [--all-issues]
 
   show    ${show.summary}

@@ -20,7 +20,6 @@ export function demoTable(r: DemoResult): string {
 }
 
 export const command = defineCommand({
-  summary: 'runs the whole pipeline on the demo inventory and writes a report folder',
   usage: `usage: stemwise demo [--out DIR] [--data DIR]
 
 Runs the whole pipeline on the invented demo inventory (or the upload folder --data DIR) in an

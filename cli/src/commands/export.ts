@@ -7,7 +7,6 @@ const KINDS = ['plots', 'change', 'fits', 'regions'] as const;
 const FORMATS: Record<(typeof KINDS)[number], readonly string[]> = { plots: ['csv', 'json', 'geojson'], change: ['csv', 'json', 'geojson'], fits: ['csv', 'json'], regions: ['csv', 'json'] };
 
 export const command = defineCommand({
-  summary: 'writes results: export plots|change|fits|regions [--format csv|json|geojson] [--out FILE] [--axis A] [--metric M] [--region R]',
   usage: `usage: stemwise export plots|change|fits|regions [--format F] [--out FILE] [--axis A] [--metric M] [--region R]
 
 Writes results to FILE, or to stdout (the data as stored, byte for byte: see docs/exports.md).

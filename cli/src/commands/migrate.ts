@@ -2,7 +2,6 @@ import { defineCommand } from '../command';
 import { printOut } from '../output';
 
 export const command = defineCommand({
-  summary: 'creates or upgrades the database schema',
   usage: `usage: stemwise migrate
 
 Creates the database schema, or upgrades it to this version's; running it again changes nothing.

@@ -1,5 +1,5 @@
 import { getRecomputeRun } from '@stemwise/db';
-import { liveRecompute, planRecompute, type ServiceDeps } from '@stemwise/core';
+import { liveRecompute, planRecompute, stageTimeLines, type ServiceDeps, type StageTime } from '@stemwise/core';
 import { StemwiseError, type JobName } from '@stemwise/platform';
 import { allProcessors } from '../processors';
 import { defineCommand, type Parsed } from '../command';
@@ -15,7 +15,6 @@ const WAIT_LIMIT_MS = 60 * 60_000;
 const options = { now: { type: 'boolean', default: false }, all: { type: 'boolean', default: false } } as const;
 
 export const command = defineCommand({
-  summary: 'recomputes what new plots made stale: recompute [--now] [--all]',
   usage: `usage: stemwise recompute [--now] [--all]
 
 Recomputes the plot figures, curve fits and region summaries that new or changed plots made stale.
@@ -33,8 +32,8 @@ async function recompute({ values }: Parsed<typeof options>, rt: Runtime): Promi
   const deps: ServiceDeps = { config: rt.config, db: await rt.db(), log: rt.log, queue: await rt.queue() };
 
   if (deps.queue.kind === 'in-process') {
-    const { processors, queues } = await allProcessors(deps);
-    await deps.queue.work(processors, { queues });
+    const { processors, ...work } = await allProcessors(deps);
+    await deps.queue.work(processors, work);
     const plan = await planRecompute(deps, 'manual', all);
     if (!plan) return nothingStale(deps);
     const failures = await deps.queue.drain();
@@ -105,6 +104,7 @@ async function printRun(deps: ServiceDeps, runId: string): Promise<void> {
     plan?: { visits: number; chunks: number; outdatedSpecies: number; heightModels: Array<{ forestType: string; heights: number; outcome: string }> };
     metrics?: { visits: number; stems: number; chunks: number };
     fits?: Array<{ forestType: string; n: number; verdict: string; regions: number }>;
+    stages?: Record<string, StageTime>;
   };
   const lines = [`run ${run.id} (${run.trigger}): ${run.state}`];
   if (d.metrics) lines.push(`plot metrics: ${d.metrics.visits} plot visits, ${d.metrics.stems} stems, ${d.metrics.chunks} chunk${d.metrics.chunks === 1 ? '' : 's'}`);
@@ -115,5 +115,6 @@ async function printRun(deps: ServiceDeps, runId: string): Promise<void> {
     lines.push(`height model ${h.forestType}: ${what}, ${h.heights} measured heights`);
   }
   for (const f of d.fits ?? []) lines.push(`fits ${f.forestType}: ${f.verdict} (n = ${f.n}${f.regions ? `, ${f.regions} region fits` : ''})`);
+  lines.push(...stageTimeLines(d.stages));
   printOut(lines.join('\n') + '\n');
 }

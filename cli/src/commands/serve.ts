@@ -8,7 +8,6 @@ const CHOICES = ['ingest', 'compute', 'report', 'all'] as const;
 const options = {} as const;
 
 export const command = defineCommand({
-  summary: 'runs services and workers: serve [ingest|compute|report|all]',
   usage: `usage: stemwise serve [ingest|compute|report|all]
 
 Runs until SIGTERM or SIGINT (then lets running jobs finish for STEMWISE_STOP_GRACE_SECONDS).
@@ -43,11 +42,9 @@ async function serve({ positionals }: Parsed<typeof options>, rt: Runtime): Prom
   if (queue.kind === 'in-process') log.warn('REDIS_URL is not set: jobs run in this process only and are not durable (fine for one machine, not for production)');
 
   const descriptors = await loadServices(services);
-  const { processors, queues } = processorsOf(deps, descriptors);
-  await queue.work(processors, {
-    queues,
-    concurrency: { ingest: config.ingestConcurrency, compute: config.computeConcurrency, report: 1, maintenance: 1 },
-  });
+  const { processors, ...work } = processorsOf(deps, descriptors);
+  const { queues } = work;
+  await queue.work(processors, work);
 
   // What each service runs beside its workers (compute: the reconciler; report: the HTTP server).
   const running: StartedService[] = [];

@@ -41,7 +41,6 @@ reference version and every plot visit is marked for recomputation; an identical
 });
 
 export const command: CommandGroup = {
-  summary: 'loads the species reference list: species import FILE (a new version)',
   usage: `usage: stemwise species import FILE [--delimiter ';'] [--decimal-comma]
 
   import    ${importCommand.summary}

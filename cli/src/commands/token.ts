@@ -82,7 +82,6 @@ ID is the token's id from 'stemwise token list'. The token stops working within 
 const subcommands = { create, list, revoke };
 
 export const command: CommandGroup = {
-  summary: 'access tokens: token create --role admin|uploader|reader [--region R]… [--label L] | token list | token revoke ID',
   usage: `usage:
   stemwise token create --role admin|uploader|reader [--region R]… [--label L]
   stemwise token list

@@ -44,7 +44,6 @@ const options = {
 } as const;
 
 export const command = defineCommand({
-  summary: 'submits a batch: upload DIR | --plots F --trees F [--strata F] [--species F] [--wait]',
   usage: USAGE,
   options,
   positionals: true,
@@ -102,8 +101,8 @@ async function upload({ values, positionals }: Parsed<typeof options>, rt: Runti
   const inProcess = deps.queue.kind === 'in-process';
   // Without Redis nothing outlives this process: the ingest job runs here, and with --wait the compute and report jobs too.
   if (inProcess) {
-    const { processors, queues } = await processorsFor(deps, values.wait ? SERVICE_NAMES : ['ingest']);
-    await deps.queue.work(processors, { queues });
+    const { processors, ...work } = await processorsFor(deps, values.wait ? SERVICE_NAMES : ['ingest']);
+    await deps.queue.work(processors, work);
   }
 
   let result;

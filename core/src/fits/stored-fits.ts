@@ -1,7 +1,8 @@
 // Curve fits as stored rows and `export fits` rows, and the points a fit is made from: shared by the
 // fits job (compute), the fits export and the report's fit tables and charts.
 import { WHOLE_FOREST_TYPE_SCOPE, type CurveFitRow, type FitScope, type LatestPlotMetrics, type PlotMetricDbColumn } from '@stemwise/db';
-import type { CurvePoint, CurveResult, FitRow } from '../science/verdict';
+import { verdictEvidence, type CurvePoint, type CurveResult, type CurveTests, type FitLeftOut, type FitRow, type PeakEstimate } from '../science/verdict';
+import { countLeftOut, leftOutText, leftOutTotal } from './left-out';
 
 /** Points (x = axis, y = metric) of the latest visit of each plot, where both are known. */
 export function pointsOf(plots: readonly LatestPlotMetrics[], axis: string, metric: string): Array<CurvePoint & { region: string }> {
@@ -12,6 +13,16 @@ export function pointsOf(plots: readonly LatestPlotMetrics[], axis: string, metr
     if (x !== null && y !== null && Number.isFinite(x) && Number.isFinite(y)) out.push({ x, y, region: p.region });
   }
   return out;
+}
+
+/** Counts per reason of the plots without the axis or the metric (details.left_out of a stored fit). */
+export function leftOutOf(plots: readonly Pick<LatestPlotMetrics, 'metrics'>[], axis: string, metric: string): Record<string, number> {
+  return countLeftOut(plots.map((p) => p.metrics), [metric, axis]);
+}
+
+/** The `plots_left_out` and `left_out_reasons` cells of counts per reason. */
+export function fitLeftOut(counts: Readonly<Record<string, number>> | null | undefined): FitLeftOut {
+  return { total: leftOutTotal(counts), reasons: leftOutText(counts) };
 }
 
 /** What is kept of a result beside the columns: the reasons, the tests, the intervals. */
@@ -83,5 +94,12 @@ export function toFitRow(r: CurveFitRow): FitRow {
     peak_ci_low: r.peakCiLow,
     peak_ci_high: r.peakCiHigh,
     verdict: r.verdict,
+    ...leftOutCells(r.details),
+    ...(r.model === 'quadratic' ? verdictEvidence(r.details.tests as CurveTests | undefined, r.details.peak as PeakEstimate | undefined) : verdictEvidence(null, null)),
   };
+}
+
+function leftOutCells(details: Record<string, unknown>): Pick<FitRow, 'plots_left_out' | 'left_out_reasons'> {
+  const { total, reasons } = fitLeftOut(details.left_out as Record<string, number> | undefined);
+  return { plots_left_out: total, left_out_reasons: reasons };
 }

@@ -1,4 +1,4 @@
-import { currentSpeciesVersion, forestTypesWithPlots, forestTypesWithStaleVisits, getRecomputeRun, listStaleVisits, markOutdatedSpeciesVisitsStale, markVisitsStale, mergeRunDetails, PLAN_LOCK, startRecomputeRun } from '@stemwise/db';
+import { currentSpeciesVersion, forestTypesWithPlots, forestTypesWithStaleVisits, getRecomputeRun, listStaleVisits, markOutdatedSpeciesVisitsStale, markVisitsStale, mergeRunDetails, PLAN_LOCK, recordRunStage, startRecomputeRun } from '@stemwise/db';
 import type { ServiceDeps } from '../deps';
 import type { JobSpec } from '@stemwise/platform';
 import { refitHeightModels, type HeightModelChange } from './height-models';
@@ -49,6 +49,7 @@ export function recomputeFlow(runId: string, visitIds: readonly number[], chunkP
 export async function planRecompute(deps: ServiceDeps, trigger: RecomputeTrigger, all = false): Promise<RecomputePlan | null> {
   const { db, config, log, queue } = deps;
   return db.withLock(PLAN_LOCK, async () => {
+    const start = Date.now();
     // One run at a time: while one runs, what is stale now is left to the run that follows it (queued
     // when it ends, see maintenance/follow-up.ts), so no two runs compute the same visits at once.
     const running = await liveRecompute(deps);
@@ -70,6 +71,7 @@ export async function planRecompute(deps: ServiceDeps, trigger: RecomputeTrigger
     const flow = recomputeFlow(run.id, visitIds, config.chunkPlots);
     const chunks = flow.children![0].children![0].children?.length ?? 0;
     await mergeRunDetails(db, run.id, { plan: { visits: visitIds.length, chunks, outdatedSpecies, heightModels, all } });
+    await recordRunStage(db, run.id, 'plan', { start, ms: Date.now() - start, visits: visitIds.length, chunks, heightModels: heightModels.length });
     await queue.add(flow);
     log.info({ runId: run.id, trigger, visits: visitIds.length, chunks }, 'recompute queued');
     return { runId: run.id, trigger, visits: visitIds.length, chunks, outdatedSpecies, heightModels, rootJobId: flow.jobId };
@@ -84,13 +86,17 @@ export interface PlotsStage {
   missing: number;
   /** Sum of the chunks' own times (they may have run in parallel). */
   chunkMs: number;
+  /** From the first chunk's start to the end of this stage (wall clock). */
+  ms: number;
 }
 
 /** The `compute.plots` stage (the flow parent, after every chunk): totals of the chunks in the run's details. */
 export async function finishPlotsStage(deps: Pick<ServiceDeps, 'db'>, runId: string): Promise<PlotsStage | null> {
   const run = await getRecomputeRun(deps.db, runId);
   if (!run) return null;
-  const chunks = Object.values((run.details.chunks ?? {}) as Record<string, { visits: number; stems: number; missing: number; ms: number }>);
+  const chunks = Object.values((run.details.chunks ?? {}) as Record<string, { visits: number; stems: number; missing: number; ms: number; start?: number }>);
+  const end = Date.now();
+  const start = Math.min(end, ...chunks.map((c) => c.start ?? end));
   const plan = run.details.plan as { chunks?: number } | undefined;
   const stage: PlotsStage = {
     chunks: chunks.length,
@@ -99,7 +105,10 @@ export async function finishPlotsStage(deps: Pick<ServiceDeps, 'db'>, runId: str
     stems: chunks.reduce((a, c) => a + c.stems, 0),
     missing: chunks.reduce((a, c) => a + c.missing, 0),
     chunkMs: chunks.reduce((a, c) => a + c.ms, 0),
+    ms: end - start,
   };
   await mergeRunDetails(deps.db, runId, { metrics: stage });
+  const { chunksPlanned: _, ...counts } = stage;
+  await recordRunStage(deps.db, runId, 'metrics', { start, ...counts });
   return stage;
 }

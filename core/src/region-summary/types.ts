@@ -1,4 +1,5 @@
 import type { SamplingErrorT, Weighting } from '../science/stratified';
+import type { CautionFlag, CautionSettings } from './caution-flag';
 
 // The region summary as the report page and the API receive it. Plain JSON: arrays and objects only,
 // no Map, NaN or Infinity; what cannot be computed is null. Keys are snake_case like the export columns.
@@ -16,6 +17,7 @@ export const REGION_COLUMNS = [
   'sampling_error_pct',
   'forest_area_ha',
   'total',
+  'caution_flag',
 ] as const;
 
 export type RegionColumn = (typeof REGION_COLUMNS)[number];
@@ -42,6 +44,8 @@ export interface RegionRow {
   readonly forest_area_ha: number | null;
   /** mean × forest_area_ha, for per-hectare variables (names ending in `_ha`) only. */
   readonly total: number | null;
+  /** Few plots or a wide sampling error (docs/exports.md); absent in summaries made before it existed. */
+  readonly caution_flag?: CautionFlag;
 }
 
 /** A total over forest area with its uncertainty (per-hectare variables, known areas). */
@@ -128,6 +132,7 @@ export type NoteCode =
   | 'single_plot_stratum'
   | 'stratum_without_values'
   | 'no_values'
+  | 'plots_left_out'
   | 'totals_per_hectare_only'
   | 'species_names_partial'
   | 'caution'
@@ -149,6 +154,8 @@ export interface RegionSummary {
   readonly confidence: number;
   readonly sampling_error_t: SamplingErrorT;
   readonly fpc_applied: boolean;
+  /** Thresholds of the rows' caution_flag; absent in summaries made before it existed. */
+  readonly caution?: CautionSettings;
   /** `export regions` rows: `all` first, then forest types sorted; variables in the order asked. */
   readonly rows: readonly RegionRow[];
   readonly totals: readonly TotalRow[];
@@ -180,6 +187,8 @@ export interface NationalSummary {
   readonly weighting: Weighting;
   readonly confidence: number;
   readonly sampling_error_t: SamplingErrorT;
+  /** Thresholds of the rows' caution_flag; absent in summaries made before it existed. */
+  readonly caution?: CautionSettings;
   /** `export regions` rows with region `national`: `all` (over every region × forest type stratum)
    * first, then each forest type nationally (over the regions where it has plots). */
   readonly rows: readonly RegionRow[];

@@ -52,11 +52,28 @@ describe('fisherAlphaFromTotals', () => {
       expect(Math.abs(back - s) / s, `S = ${s}, N = ${n}`).toBeLessThan(1e-12);
     }
   });
-  it('returns null when S = N (all singletons, α → ∞), S <= 1 or N = 0', () => {
+  it('returns null only where no finite root exists: S = N (all singletons, α → ∞, one stem included) or N = 0', () => {
     expect(fisherAlphaFromTotals(60, 60)).toBeNull();
-    expect(fisherAlphaFromTotals(1, 100)).toBeNull();
+    expect(fisherAlphaFromTotals(1, 1)).toBeNull();
     expect(fisherAlphaFromTotals(0, 100)).toBeNull();
     expect(fisherAlphaFromTotals(0, 0)).toBeNull();
+  });
+  it('solves S = 1 (one species among N stems): N = 2 gives α = 0.79591 (equation of Fisher, Corbet & Williams 1943; root solved by hand, 1e-4)', () => {
+    // Working by hand, f(α) = α ln(1 + 2/α) − 1, which rises with α:
+    //   α = 0.5  → 0.5 · ln 5        = 0.5 · 1.60944 = 0.80472 → f < 0
+    //   α = 1    → 1 · ln 3          = 1.09861                 → f > 0
+    //   α = 0.8  → 0.8 · ln 3.5      = 0.8 · 1.25276 = 1.00221 → f > 0
+    //   α = 0.79 → 0.79 · ln 3.53165 = 0.79 · 1.26176 = 0.99679 → f < 0
+    //   linear interpolation: 0.79 + 0.01 · 0.00321 / (0.00321 + 0.00221) = 0.79592; one more bisection
+    //   pair (0.7959 → 0.999997, 0.7960 → 1.000051) puts the root just above 0.7959.
+    const a = fisherAlphaFromTotals(1, 2) as number;
+    expect(Math.abs(a - 0.79591)).toBeLessThan(1e-4);
+    expect(Math.abs(a * Math.log1p(2 / a) - 1)).toBeLessThan(1e-12);
+    // S = 1 among more stems: a smaller α, still a finite root that satisfies the equation.
+    const b = fisherAlphaFromTotals(1, 100) as number;
+    expect(b).toBeGreaterThan(0);
+    expect(b).toBeLessThan(a);
+    expect(Math.abs(b * Math.log1p(100 / b) - 1)).toBeLessThan(1e-12);
   });
   it('rejects S > N and negative or non-finite input with an error naming the function', () => {
     expect(() => fisherAlphaFromTotals(5, 4)).toThrow(/fisherAlphaFromTotals/);
@@ -98,14 +115,15 @@ describe('edge cases', () => {
     }
   });
 
-  it('one species: H\' = 0, Simpson 0, inverse Simpson 1, Pielou and Fisher null (definitions)', () => {
+  it('one species: H\' = 0, Simpson 0, inverse Simpson 1, Pielou null (definitions), Fisher finite (root of the equation)', () => {
     const one = [0, 12];
     expect(richness(one)).toBe(1);
     expect(shannon(one)).toBe(0);
     expect(simpson(one)).toBe(0);
     expect(inverseSimpson(one)).toBe(1);
     expect(pielou(one)).toBeNull();
-    expect(fisherAlpha(one)).toBeNull();
+    expect(fisherAlpha(one)).toBeCloseTo(fisherAlphaFromTotals(1, 12) as number, 15);
+    expect(fisherAlpha(one)).toBeGreaterThan(0);
     expect(rarefiedRichness(one, 5)).toBe(1);
     expect(chao1(one)).toBe(1);
   });

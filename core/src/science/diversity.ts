@@ -69,10 +69,10 @@ export function pielou(counts: readonly number[]): number | null {
 }
 
 // S = α ln(1 + N/α) solved for α — Fisher, Corbet & Williams (1943) log-series alpha.
-// Edge cases (all return null, documented):
-//  - N ≤ 0 or S ≤ 0: no sample.
-//  - S = 1: the equation has a root, but it is set by N alone (α → 0 as N grows) and describes no
-//    species distribution; reported as null rather than a misleading small number.
+// f(α) = α ln(1 + N/α) rises from 0 (α → 0) towards N (α → ∞), so a finite root exists exactly when
+// 0 < S < N — S = 1 included (one species among N ≥ 2 stems: a small α, as the log series says).
+// Null (undefined, documented) only where no finite root exists:
+//  - N = 0 (or S = 0): no sample;
 //  - S = N (every species a singleton): α ln(1 + N/α) < N for every finite α, the root is at +∞.
 // S > N cannot come from counts and is rejected with an error.
 export function fisherAlphaFromTotals(species: number, individuals: number): number | null {
@@ -84,7 +84,7 @@ export function fisherAlphaFromTotals(species: number, individuals: number): num
   if (species > individuals) {
     throw new RangeError(`fisherAlphaFromTotals: S cannot exceed N (got S = ${species}, N = ${individuals})`);
   }
-  if (individuals <= 0 || species <= 1 || species === individuals) return null;
+  if (individuals <= 0 || species <= 0 || species === individuals) return null;
   const s = species;
   const n = individuals;
   // g(u) = e^u ln(1 + N e^−u) − S on u = ln α is increasing in u. Since ln(1 + x) > x/(1 + x),

@@ -170,7 +170,7 @@ describe('computePlotMetrics with a local height–diameter model', () => {
 });
 
 describe('computePlotMetrics edge cases', () => {
-  it('a plot of stumps only: zero structure and biomass, null QMD, diversity and shares; removed fraction 1', () => {
+  it('a plot of stumps only: zero structure, biomass and richness, null QMD, diversity indices and shares; removed fraction 1', () => {
     const { metrics: m, diagnostics: d } = computePlotMetrics({ ...VISIT, loggingClass: 3, fireClass: 2 }, [
       stem(null, 40, { status: 'stump', stumpCause: 'logged' }),
       stem(null, 30, { status: 'stump', stumpCause: 'unknown' }),
@@ -181,7 +181,8 @@ describe('computePlotMetrics edge cases', () => {
     expect(m.agbMgHa).toBe(0);
     expect(m.carbonMgHa).toBe(0);
     expect(m.nIdentified).toBe(0);
-    for (const key of ['richness', 'shannon', 'simpson', 'invSimpson', 'pielou', 'fisherAlpha', 'rarefied50', 'chao1',
+    expect(m.richness).toBe(0); // a count: no species among no stems
+    for (const key of ['shannon', 'simpson', 'invSimpson', 'pielou', 'fisherAlpha', 'rarefied50', 'chao1',
       'pioneerBaShare', 'lightDemanderBaShare', 'shadeTolerantBaShare', 'unassignedBaShare'] as const) {
       expect(m[key], key).toBeNull();
     }
@@ -201,11 +202,11 @@ describe('computePlotMetrics edge cases', () => {
     expect(m.fireScore).toBe(0);
   });
 
-  it('no identified stems: structure counted, diversity null, everything unassigned, ρ from the default', () => {
+  it('no identified stems: structure counted, richness 0, diversity indices null, everything unassigned, ρ from the default', () => {
     const { metrics: m, diagnostics: d } = computePlotMetrics(VISIT, [stem('indet', 20), stem('Veltria sp.', 30), stem('Xenoa spinosa', 25)], index);
     expect(m.stemsHa).toBe(6);
     expect(m.nIdentified).toBe(0);
-    expect(m.richness).toBeNull();
+    expect(m.richness).toBe(0);
     expect(m.chao1).toBeNull();
     expect(m.unassignedBaShare).toBe(1);
     expect(m.pioneerBaShare).toBe(0);
@@ -233,14 +234,24 @@ describe('computePlotMetrics edge cases', () => {
     expect(d.unresolvedNames).toEqual([{ name: 'Veltria nova', level: 'genus', stems: 4 }, { name: 'Xenoa spinosa', level: 'unresolved', stems: 1 }]);
   });
 
-  it('diversity is null below minStemsForDiversity (default 2) and computed from it', () => {
+  it('diversity indices are null below minStemsForDiversity (default 2) and computed from it; richness is always the count', () => {
     const one = [stem('Veltria magna', 20)];
-    expect(computePlotMetrics(VISIT, one, index).metrics.richness).toBeNull();
-    expect(computePlotMetrics(VISIT, one, index).metrics.nIdentified).toBe(1);
-    expect(computePlotMetrics(VISIT, one, index, { minStemsForDiversity: 1 }).metrics.richness).toBe(1);
+    const m1 = computePlotMetrics(VISIT, one, index).metrics;
+    expect(m1.nIdentified).toBe(1);
+    expect(m1.richness).toBe(1);
+    expect(m1.shannon).toBeNull();
+    expect(m1.fisherAlpha).toBeNull(); // S = N = 1: no finite root
+    const none = computePlotMetrics(VISIT, [stem(null, 20), stem('Veltria magna', 25, { status: 'dead' })], index).metrics;
+    expect(none.nIdentified).toBe(0);
+    expect(none.richness).toBe(0);
+    expect(none.fisherAlpha).toBeNull();
+    expect(computePlotMetrics(VISIT, [], index).metrics.richness).toBe(0);
     const two = [stem('Veltria magna', 20), stem('Veltria magna', 30)];
-    expect(computePlotMetrics(VISIT, two, index).metrics.richness).toBe(1);
-    expect(computePlotMetrics(VISIT, two, index).metrics.pielou).toBeNull();
+    const m2 = computePlotMetrics(VISIT, two, index).metrics;
+    expect(m2.richness).toBe(1);
+    expect(m2.pielou).toBeNull();
+    // S = 1, N = 2: the root of 1 = α ln(1 + 2/α), 0.79591 (worked by hand in diversity.test.ts)
+    expect(Math.abs((m2.fisherAlpha as number) - 0.79591)).toBeLessThan(1e-4);
   });
 
   it('with 60 identified stems, diversity equals the worked numbers of docs/methods.md#fishers-alpha and rarefied_50 is set', () => {

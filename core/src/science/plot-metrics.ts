@@ -67,8 +67,9 @@ export interface PlotMetricOptions {
   /** Local height–diameter model for the plot's forest type; null or absent: no-height models. */
   readonly heightModel?: HeightDiameterModel | null;
   /**
-   * Fewest identified live main-plot stems for diversity columns (default 2, stemwise's choice: one
-   * stem tells nothing about diversity). Below it every diversity column is null, not 0.
+   * Fewest identified live main-plot stems for the diversity indices (default 2, stemwise's choice: one
+   * stem tells nothing about diversity). Below it every index is null, not 0 — except `richness`,
+   * which is a count and always defined (0 or 1 species among 0 or 1 stems).
    */
   readonly minStemsForDiversity?: number;
   /** Regional default wood density, g/cm³ (default DEFAULT_WOOD_DENSITY = 0.58, memory; a setting). */
@@ -312,7 +313,7 @@ export function computePlotMetrics(
     agbMgHa,
     carbonMgHa: carbonFromBiomass(agbMgHa, carbonFraction),
     nIdentified,
-    richness: enough ? richness(counts) : null,
+    richness: richness(counts),
     shannon: enough ? shannon(counts) : null,
     simpson: enough ? simpson(counts) : null,
     invSimpson: enough ? inverseSimpson(counts) : null,

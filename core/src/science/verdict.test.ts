@@ -118,8 +118,41 @@ describe('fitCurves with too little or degenerate data', () => {
 describe('fitRows', () => {
   it('lists the columns of `export fits` in the order of docs/exports.md', () => {
     expect(FIT_COLUMNS.join(', ')).toBe(
-      'forest_type, metric, axis, n, model, b0, b1, b2, se_b0, se_b1, se_b2, p_b1, p_b2, r2, adj_r2, aicc, peak_x, peak_ci_low, peak_ci_high, verdict',
+      'forest_type, metric, axis, n, model, b0, b1, b2, se_b0, se_b1, se_b2, p_b1, p_b2, r2, adj_r2, aicc, peak_x, peak_ci_low, peak_ci_high, verdict, ' +
+        'plots_left_out, left_out_reasons, delta_aicc, curvature_p, mos_turn_x, mos_turn_inside, mos_result, two_lines_break_x, two_lines_slope_1, ' +
+        'two_lines_p_1, two_lines_slope_2, two_lines_p_2, two_lines_result, peak_boot_low, peak_boot_high',
     );
+  });
+
+  it('puts the evidence behind the verdict on the quadratic row only, from the tests that decided it', () => {
+    const r = fitCurves(simulateCurve(300, hump, 1, 9), { bootstrapN: 200, seed: 3 });
+    const [lin, quad] = fitRows(r, { forestType: 'lowland moist', metric: 'fisher_alpha', axis: 'disturbance_index' }, { total: 2, reasons: 'fisher_alpha:all_singletons=2' });
+    expect(r.verdict).toBe('hump');
+    const mos = r.tests.mitchellOldsShaw!;
+    const two = r.tests.twoLines!;
+    expect(quad).toMatchObject({
+      delta_aicc: r.linear!.aicc! - r.quadratic!.aicc!,
+      curvature_p: mos.pB2,
+      mos_turn_x: mos.vertex, mos_turn_inside: 'yes', mos_result: 'pass',
+      two_lines_break_x: two.breakpoint, two_lines_slope_1: two.first!.slope, two_lines_p_1: two.first!.p,
+      two_lines_slope_2: two.second!.slope, two_lines_p_2: two.second!.p, two_lines_result: 'pass',
+      peak_boot_low: r.peak!.bootstrapLow, peak_boot_high: r.peak!.bootstrapHigh,
+    });
+    // the test's p of b2 is the parabola's p_b2, computed on centred x (equal up to rounding)
+    expect(Math.abs((quad.curvature_p as number) - (quad.p_b2 as number))).toBeLessThanOrEqual(1e-9 * (quad.p_b2 as number) + 1e-300);
+    expect(quad.two_lines_slope_1 as number).toBeGreaterThan(0); // a rise, then
+    expect(quad.two_lines_slope_2 as number).toBeLessThan(0); // a fall
+    for (const k of ['delta_aicc', 'curvature_p', 'mos_turn_x', 'mos_result', 'two_lines_slope_1', 'two_lines_result', 'peak_boot_low'] as const) expect(lin[k], k).toBeNull();
+    expect([lin.plots_left_out, quad.plots_left_out, quad.left_out_reasons]).toEqual([2, 2, 'fisher_alpha:all_singletons=2']);
+  });
+
+  it('says a test failed, or could not be run, rather than leaving it blank', () => {
+    const flat = fitCurves(simulateCurve(200, (x) => 10 + 0 * x, 1, 4), { bootstrapN: 0 });
+    const [, quad] = fitRows(flat, { forestType: 'ridge', metric: 'richness', axis: 'fire_score' });
+    expect(quad.mos_result === 'fail' || quad.two_lines_result === 'fail').toBe(true);
+    expect(quad.peak_boot_low).toBeNull();
+    const [, tiny] = fitRows(fitCurves(simulateCurve(4, hump, 1, 2)), { forestType: 'ridge', metric: 'richness', axis: 'fire_score' });
+    expect(tiny.mos_result).toBeNull(); // too few plots: no test was attempted at all
   });
 
   it('gives a linear and a quadratic row; b2 and the peak only on the quadratic row', () => {

@@ -349,7 +349,57 @@ export const FIT_COLUMNS = [
   'peak_ci_low',
   'peak_ci_high',
   'verdict',
+  'plots_left_out',
+  'left_out_reasons',
+  'delta_aicc',
+  'curvature_p',
+  'mos_turn_x',
+  'mos_turn_inside',
+  'mos_result',
+  'two_lines_break_x',
+  'two_lines_slope_1',
+  'two_lines_p_1',
+  'two_lines_slope_2',
+  'two_lines_p_2',
+  'two_lines_result',
+  'peak_boot_low',
+  'peak_boot_high',
 ] as const;
+
+/** The evidence columns of a verdict (docs/exports.md): on the quadratic row, empty on the linear one. */
+export const EVIDENCE_COLUMNS = [
+  'delta_aicc', 'curvature_p', 'mos_turn_x', 'mos_turn_inside', 'mos_result', 'two_lines_break_x', 'two_lines_slope_1',
+  'two_lines_p_1', 'two_lines_slope_2', 'two_lines_p_2', 'two_lines_result', 'peak_boot_low', 'peak_boot_high',
+] as const satisfies readonly (typeof FIT_COLUMNS)[number][];
+
+export type EvidenceColumn = (typeof EVIDENCE_COLUMNS)[number];
+
+/** `pass`, `fail`, or `not_testable` (the test could not be run: its reason is in the fit's details). */
+export type TestOutcome = 'pass' | 'fail' | 'not_testable';
+
+const outcome = (t: { passes: boolean; reason: string | null } | null | undefined): TestOutcome | null =>
+  t ? (t.reason !== null && t.reason !== undefined ? 'not_testable' : t.passes ? 'pass' : 'fail') : null;
+
+// The evidence cells of a verdict from its tests and peak (a CurveResult, or the same stored as JSON in a fit's details).
+export function verdictEvidence(tests: Partial<CurveTests> | null | undefined, peak: Partial<PeakEstimate> | null | undefined): { [K in EvidenceColumn]: string | number | null } {
+  const mos = tests?.mitchellOldsShaw ?? null;
+  const two = tests?.twoLines ?? null;
+  return {
+    delta_aicc: tests?.deltaAicc ?? null,
+    curvature_p: mos && mos.reason === null ? mos.pB2 : null,
+    mos_turn_x: mos?.vertex ?? null,
+    mos_turn_inside: mos && mos.vertex !== null ? (mos.vertexInside ? 'yes' : 'no') : null,
+    mos_result: outcome(mos),
+    two_lines_break_x: two?.breakpoint ?? null,
+    two_lines_slope_1: two?.first?.slope ?? null,
+    two_lines_p_1: two?.first?.p ?? null,
+    two_lines_slope_2: two?.second?.slope ?? null,
+    two_lines_p_2: two?.second?.p ?? null,
+    two_lines_result: outcome(two),
+    peak_boot_low: peak?.bootstrapLow ?? null,
+    peak_boot_high: peak?.bootstrapHigh ?? null,
+  };
+}
 
 export type FitColumn = (typeof FIT_COLUMNS)[number];
 /** One `export fits` row; null is an empty cell (CSV) or null (JSON). */
@@ -361,8 +411,18 @@ export interface FitLabels {
   readonly axis: string;
 }
 
-// The two `export fits` rows of a result: linear then quadratic; the peak columns are on the quadratic row only, the verdict on both.
-export function fitRows(result: CurveResult, labels: FitLabels): [FitRow, FitRow] {
+/** Plots without a value of the metric or the axis, left out of the fit. */
+export interface FitLeftOut {
+  /** Plots left out in all; null when not known (fits stored before this was counted). */
+  readonly total: number | null;
+  /** `<column>:<reason>=<count>` joined by `;` (docs/exports.md); null when none or not known. */
+  readonly reasons: string | null;
+}
+
+const NO_EVIDENCE = verdictEvidence(null, null);
+
+// The two `export fits` rows of a result: linear then quadratic; the peak columns are on the quadratic row only, the verdict and the plots left out on both.
+export function fitRows(result: CurveResult, labels: FitLabels, leftOut: FitLeftOut = { total: null, reasons: null }): [FitRow, FitRow] {
   const row = (model: 'linear' | 'quadratic', m: ModelFit | null): FitRow => {
     const peak = model === 'quadratic' ? result.peak : null;
     return {
@@ -386,6 +446,9 @@ export function fitRows(result: CurveResult, labels: FitLabels): [FitRow, FitRow
       peak_ci_low: peak?.ciLow ?? null,
       peak_ci_high: peak?.ciHigh ?? null,
       verdict: result.verdict,
+      plots_left_out: leftOut.total,
+      left_out_reasons: leftOut.reasons,
+      ...(model === 'quadratic' ? verdictEvidence(result.tests, result.peak) : NO_EVIDENCE),
     };
   };
   return [row('linear', result.linear), row('quadratic', result.quadratic)];

@@ -74,9 +74,9 @@ export const PLOT_METRICS = [
     regionRow: null, headline: false, fittable: true,
   },
   {
-    key: 'richness', column: 'richness', sqlType: 'int', nullable: true,
+    key: 'richness', column: 'richness', sqlType: 'int', nullable: false,
     label: 'Species per plot', short: 'Species per plot', unit: 'species',
-    description: 'Number of species among the identified stems.',
+    description: 'Number of species among the identified stems (a count: 0 or 1 with fewer than 2 identified stems).',
     regionRow: 6, headline: true, fittable: true,
   },
   {

@@ -251,6 +251,19 @@ export async function recordChunkInRun(tx: Queryable, runId: string, jobId: stri
   );
 }
 
+/**
+ * Records how long one stage of a run took (`details.stages.<stage>`: `start`, epoch milliseconds on the
+ * clock of the process that ran it, `ms`, and the stage's counts), keeping the other stages' entries.
+ */
+export async function recordRunStage(db: Queryable, runId: string, stage: string, time: { start: number; ms: number } & Record<string, number>): Promise<void> {
+  await db.query(
+    `update recompute_runs
+        set details = details || jsonb_build_object('stages', coalesce(details->'stages', '{}'::jsonb) || jsonb_build_object($2::text, $3::jsonb))
+      where id = $1`,
+    [runId, stage, JSON.stringify(time)],
+  );
+}
+
 /** Merges keys into a run's details (plan, stage counts). */
 export async function mergeRunDetails(db: Queryable, runId: string, details: Record<string, unknown>): Promise<void> {
   await db.query(`update recompute_runs set details = details || $2::jsonb where id = $1`, [runId, JSON.stringify(details)]);

@@ -11,9 +11,12 @@ interface Pending {
 }
 
 /**
- * Runs jobs by calling the same processors directly, one at a time, in the order they were added
- * (a flow's children before their parent). For the single-machine demo and the CLI without Redis:
- * nothing survives the process, and there are no retries.
+ * Runs jobs by calling the same processors directly, in the order they were added (a flow's children
+ * before their parent, which starts once they have all finished). For the single-machine demo and the
+ * CLI without Redis: nothing survives the process, and there are no retries. One job at a time, except
+ * that jobs of one queue run up to that queue's `concurrency` (work options) at once, as a worker with
+ * that concurrency would: the plot chunks of a run, so that PostgreSQL reads one chunk while this
+ * process computes another. Jobs of another queue wait until the running ones are done.
  */
 export class InProcessQueue implements JobQueue {
   readonly kind = 'in-process' as const;
@@ -24,6 +27,7 @@ export class InProcessQueue implements JobQueue {
   private running: Promise<void> | null = null;
   private serving = false;
   private readonly served = new Set<QueueName>();
+  private readonly concurrency: Partial<Record<QueueName, number>> = {};
   private reported = 0;
 
   constructor(private readonly log: Logger) {}
@@ -49,6 +53,7 @@ export class InProcessQueue implements JobQueue {
     assertProcessors(processors, options.queues);
     this.processors = { ...this.processors, ...processors };
     for (const q of options.queues) this.served.add(q);
+    Object.assign(this.concurrency, options.concurrency);
     this.serving = true;
   }
 
@@ -70,28 +75,52 @@ export class InProcessQueue implements JobQueue {
   }
 
   private async runAll(): Promise<void> {
-    while (this.pending.length) {
-      const { spec, after } = this.pending.shift()!;
-      const { jobId, name } = spec;
-      const blocked = after.find((id) => this.states.get(id) !== 'completed');
-      if (blocked) {
-        this.fail(jobId, name, `a child job failed (${blocked})`);
-        continue;
+    const active = new Map<Promise<void>, QueueName>();
+    while (this.pending.length || active.size) {
+      for (let i = 0; i < this.pending.length; ) {
+        const next = this.pending[i];
+        const queue = queueOf(next.spec.name);
+        const [busy] = active.values();
+        if (busy !== undefined && (busy !== queue || active.size >= Math.max(1, this.concurrency[queue] ?? 1))) break;
+        // A parent waits for children still running; any other job waits for nothing but its turn.
+        if (next.after.some((id) => this.unfinished(id))) {
+          if (!active.size) throw new Error(`in-process queue: ${next.spec.jobId} waits for children that never ran`);
+          i++;
+          continue;
+        }
+        this.pending.splice(i, 1);
+        const run: Promise<void> = this.runOne(next).finally(() => active.delete(run));
+        active.set(run, queue);
       }
-      const processor = this.processors[name];
-      if (!processor) {
-        this.fail(jobId, name, `no processor for ${name} in this process`);
-        continue;
-      }
-      this.states.set(jobId, 'active');
-      const log = this.log.child({ queue: queueOf(name), jobId, jobName: name });
-      try {
-        await processor(spec.data, { jobId, name, attempt: 1, maxAttempts: 1, log, queue: this, progress: async () => {} });
-        this.states.set(jobId, 'completed');
-      } catch (err) {
-        log.error({ err }, 'job failed');
-        this.fail(jobId, name, oneLine(err));
-      }
+      if (active.size) await Promise.race(active.keys());
+    }
+  }
+
+  private unfinished(jobId: string): boolean {
+    const state = this.states.get(jobId);
+    return state === 'waiting' || state === 'waiting-children' || state === 'active';
+  }
+
+  private async runOne({ spec, after }: Pending): Promise<void> {
+    const { jobId, name } = spec;
+    const blocked = after.find((id) => this.states.get(id) !== 'completed');
+    if (blocked) {
+      this.fail(jobId, name, `a child job failed (${blocked})`);
+      return;
+    }
+    const processor = this.processors[name];
+    if (!processor) {
+      this.fail(jobId, name, `no processor for ${name} in this process`);
+      return;
+    }
+    this.states.set(jobId, 'active');
+    const log = this.log.child({ queue: queueOf(name), jobId, jobName: name });
+    try {
+      await processor(spec.data, { jobId, name, attempt: 1, maxAttempts: 1, log, queue: this, progress: async () => {} });
+      this.states.set(jobId, 'completed');
+    } catch (err) {
+      log.error({ err }, 'job failed');
+      this.fail(jobId, name, oneLine(err));
     }
   }
 

@@ -28,6 +28,8 @@ import {
   fitCurves,
   fitDetails,
   fitRows,
+  fitLeftOut,
+  leftOutOf,
   pointsOf,
   toStoredRow,
   type CurvePoint,
@@ -58,6 +60,8 @@ export interface ForestTypeFits {
   regions: Array<{ region: string; points: CurvePoint[]; result: CurveResult }>;
   /** Regions whose fit threw (the others are fitted all the same), with the reason. */
   failedRegions: Array<{ region: string; reason: string }>;
+  /** Plots of the forest type without the metric or the axis, counted per reason (left out of every fit). */
+  leftOut?: Record<string, number>;
 }
 
 /** Fits of one forest type: as a whole, and per region with enough plots. */
@@ -66,7 +70,7 @@ export async function fitForestType(db: Pick<Db, 'query'>, forestType: string, s
     if (!FITTABLE_COLUMNS.includes(c)) throw new PermanentError('fit_column_unknown', `cannot fit on '${c}': not a numeric column of export plots`);
   }
   const plots = await listLatestPlotMetrics(db, forestType);
-  return fitPoints(forestType, pointsOf(plots, settings.axis, settings.metric), settings, options);
+  return { ...fitPoints(forestType, pointsOf(plots, settings.axis, settings.metric), settings, options), leftOut: leftOutOf(plots, settings.axis, settings.metric) };
 }
 
 /**
@@ -143,8 +147,13 @@ export async function storeFits(deps: Pick<ServiceDeps, 'db' | 'config'> & { log
       fits = fitPoints(forestType, points, settings, { regions: true });
       chart = { ...fitChartData(fits.all), points: fitChartPoints(points) };
       const svg = await chartFor(fits, chart, settings, deps.log);
-      for (const row of fitRows(fits.all, labels)) rows.push(toStoredRow({ kind: 'forest_type' }, row, { ...fitDetails(fits.all), ...svg }));
-      for (const r of fits.regions) for (const row of fitRows(r.result, labels)) rows.push(toStoredRow({ kind: 'region', region: r.region }, row, fitDetails(r.result)));
+      const leftOut = (region?: string) => leftOutOf(region === undefined ? plots : plots.filter((p) => p.region === region), settings.axis, settings.metric);
+      const all = leftOut();
+      for (const row of fitRows(fits.all, labels, fitLeftOut(all))) rows.push(toStoredRow({ kind: 'forest_type' }, row, { ...fitDetails(fits.all), ...svg, left_out: all }));
+      for (const r of fits.regions) {
+        const mine = leftOut(r.region);
+        for (const row of fitRows(r.result, labels, fitLeftOut(mine))) rows.push(toStoredRow({ kind: 'region', region: r.region }, row, { ...fitDetails(r.result), left_out: mine }));
+      }
     } catch (err) {
       if (isInfrastructureError(err)) throw err;
       // The science met data it cannot handle: keep the stored fits, say why, go on with the next type.

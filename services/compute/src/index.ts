@@ -5,3 +5,4 @@ export { exportPlots, plotExportItems, PLOT_EXPORT_COLUMNS, PLOT_EXPORT_FORMATS,
 export { exportChange, changeExportItems, CHANGE_EXPORT_COLUMNS } from './export/change';
 export { exportFits, FIT_EXPORT_FORMATS, type FitExportFormat } from './export/fits';
 export { service } from './service';
+export { metricsPool, closeMetricsPool } from './metrics-pool';

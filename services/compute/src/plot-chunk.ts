@@ -11,12 +11,13 @@ import {
   recordProblems,
   upsertPlotMetrics,
   type ComputeStemRow,
-  type ComputeVisitRow,
   type PlotMetricsWrite,
   type UnresolvedNameCount,
 } from '@stemwise/db';
-import { computePlotMetrics, currentSpecies, heightModelFromRow, PLOT_METRICS, type HeightDiameterModel, type PlotDiagnostics, type ServiceDeps } from '@stemwise/core';
-import { isInfrastructureError, PermanentError, type Logger } from '@stemwise/platform';
+import { currentSpecies, heightModelFromRow, type HeightDiameterModel, type ServiceDeps } from '@stemwise/core';
+import type { Logger } from '@stemwise/platform';
+import { computeVisits, type ChunkTask } from './chunk-metrics';
+import { metricsPool } from './metrics-pool';
 import { writePlotChanges } from './plot-change';
 
 export interface ChunkCounts {
@@ -30,6 +31,8 @@ export interface ChunkCounts {
   changePairs: number;
   /** Plots whose change could not be computed (recorded in compute_problems). */
   changeFailed: number;
+  /** When the chunk started (epoch ms) and how long it took: the run's stage times come from these. */
+  start: number;
   ms: number;
 }
 
@@ -42,6 +45,7 @@ export interface ChunkCounts {
  * due with it). Idempotent: a rerun writes the same rows and counts.
  */
 export async function computePlotChunk(deps: Pick<ServiceDeps, 'db' | 'config'> & { log?: Logger }, runId: string, visitIds: readonly number[], jobId: string): Promise<ChunkCounts> {
+  const start = Date.now();
   const started = performance.now();
   const { db, config, log } = deps;
   const species = await currentSpecies(db);
@@ -54,28 +58,28 @@ export async function computePlotChunk(deps: Pick<ServiceDeps, 'db' | 'config'> 
     // Read after the visits are locked, so a concurrent refit (which marks these visits stale) is either seen or waits.
     const models = new Map<string, HeightDiameterModel>((await listHeightModels(tx, forestTypes)).map((m) => [m.forestType, heightModelFromRow(m)]));
 
+    const stems = visits.map((v) => stemsOf.get(v.visitId) ?? []);
+    // The CPU-bound part, in the worker threads when there are any (see metrics-pool.ts); the same code either way.
+    const task: ChunkTask = { visits, stems, species: species.index, models: [...models], defaultWoodDensity: config.defaultWoodDensity, speciesVersionId: species.versionId };
+    const outcomes = config.computeThreads > 0 ? await metricsPool(config.computeThreads).compute(task) : computeVisits(task);
+
     const writes: PlotMetricsWrite[] = [];
     const unresolved: UnresolvedNameCount[] = [];
     const failed: Parameters<typeof recordProblems>[2][number][] = [];
-    let nStems = 0;
-    for (const visit of visits) {
-      const stems = stemsOf.get(visit.visitId) ?? [];
-      nStems += stems.length;
-      let write;
-      try {
-        write = computeVisit(visit, stems, species.index, models.get(visit.forestType) ?? null, config.defaultWoodDensity, species.versionId);
-      } catch (err) {
-        if (isInfrastructureError(err)) throw err;
+    const nStems = stems.reduce((a, s) => a + s.length, 0);
+    outcomes.forEach((outcome, i) => {
+      const visit = visits[i];
+      if ('reason' in outcome) {
         // One plot that cannot be computed does not hold back the others: its reason is recorded, its
         // stale mark cleared (no run retries it until its data change), its earlier metrics left as they were.
-        const reason = (err as Error).message;
+        const { reason } = outcome;
         log?.error({ runId, plotKey: visit.plotKey, visitId: visit.visitId, forestType: visit.forestType, reason }, 'plot metrics could not be computed; the other plots go on');
         failed.push({ stage: 'plot', forestType: visit.forestType, region: visit.region, visitId: visit.visitId, plotKey: visit.plotKey, reason });
-        continue;
+        return;
       }
-      for (const u of write.diagnostics.unresolvedNames) unresolved.push({ batchId: visit.batchId, name: u.name, level: u.level, stems: u.stems });
-      writes.push(write);
-    }
+      for (const u of outcome.write.diagnostics.unresolvedNames) unresolved.push({ batchId: visit.batchId, name: u.name, level: u.level, stems: u.stems });
+      writes.push(outcome.write);
+    });
 
     const ids = visits.map((v) => v.visitId);
     const computed = writes.map((w) => w.visitId);
@@ -87,48 +91,17 @@ export async function computePlotChunk(deps: Pick<ServiceDeps, 'db' | 'config'> 
     const change = await writePlotChanges(tx, plotIds, { index: species.index, models, defaultWoodDensity: config.defaultWoodDensity, speciesVersionId: species.versionId, runId, log });
     await markStale(tx, 'fits', forestTypes);
     await markStale(tx, 'summary', [...new Set(visits.map((v) => v.region))].sort());
-    const counts: ChunkCounts = { visits: visits.length, stems: nStems, missing: visitIds.length - visits.length, failed: failed.length, changePairs: change.pairs, changeFailed: change.failed, ms: Math.round(performance.now() - started) };
+    const counts: ChunkCounts = {
+      visits: visits.length,
+      stems: nStems,
+      missing: visitIds.length - visits.length,
+      failed: failed.length,
+      changePairs: change.pairs,
+      changeFailed: change.failed,
+      start,
+      ms: Math.round(performance.now() - started),
+    };
     await recordChunkInRun(tx, runId, jobId, { ...counts });
     return counts;
   });
-}
-
-function computeVisit(
-  visit: ComputeVisitRow,
-  stems: readonly ComputeStemRow[],
-  index: Parameters<typeof computePlotMetrics>[2],
-  heightModel: HeightDiameterModel | null,
-  defaultWoodDensity: number,
-  speciesVersionId: number | null,
-): PlotMetricsWrite & { diagnostics: PlotDiagnostics & { heightModelHeights: number | null } } {
-  let result;
-  try {
-    result = computePlotMetrics(
-      {
-        areaHa: visit.areaHa,
-        dbhMinCm: visit.dbhMinCm,
-        subplotAreaHa: visit.subplotAreaHa,
-        subplotDbhMinCm: visit.subplotDbhMinCm,
-        loggingClass: visit.loggingClass,
-        fireClass: visit.fireClass,
-        climate: visit.climate,
-      },
-      stems,
-      index,
-      { heightModel, defaultWoodDensity },
-    );
-  } catch (err) {
-    if (err instanceof RangeError) {
-      throw new PermanentError('plot_invalid', `plot ${visit.plotKey} (visit ${visit.visitId}): ${err.message}`, { cause: err });
-    }
-    throw err;
-  }
-  const { metrics } = result;
-  return {
-    visitId: visit.visitId,
-    speciesVersionId,
-    // In catalogue order: the order of PLOT_METRIC_DB_COLUMNS, which the upsert's columns follow.
-    values: PLOT_METRICS.map((c) => metrics[c.key]),
-    diagnostics: { ...result.diagnostics, heightModelHeights: heightModel?.n ?? null },
-  };
 }

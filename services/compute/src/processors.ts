@@ -1,4 +1,4 @@
-import { mergeRunDetails } from '@stemwise/db';
+import { mergeRunDetails, recordRunStage } from '@stemwise/db';
 import { createMaintenanceProcessors, finishPlotsStage, type ServiceDeps } from '@stemwise/core';
 import { parsePayload, type ProcessorMap } from '@stemwise/platform';
 import { refreshStaleFits } from './fits';
@@ -29,8 +29,10 @@ export function createProcessors(deps: ServiceDeps): ProcessorMap {
     },
     'compute.fits': async (data, ctx) => {
       const { runId } = parsePayload('compute.fits', data);
+      const start = Date.now();
       const fits = await refreshStaleFits({ ...deps, log: ctx.log, runId });
       await mergeRunDetails(deps.db, runId, { fits });
+      await recordRunStage(deps.db, runId, 'fits', { start, ms: Date.now() - start, forestTypes: fits.length });
       const problems = fits.filter((f) => f.problems).map((f) => ({ forestType: f.forestType, problems: f.problems }));
       if (problems.length) ctx.log.warn({ runId, problems }, 'some fits could not be computed; the others are stored');
       ctx.log.info({ runId, forestTypes: fits.map((f) => f.forestType) }, 'fits stored');

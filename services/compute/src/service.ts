@@ -1,4 +1,5 @@
 import { startReconciler, type ServiceDescriptor } from '@stemwise/core';
+import { closeMetricsPool } from './metrics-pool';
 import { createProcessors } from './processors';
 
 /** The compute service: plot metrics, fits, and the maintenance queue (planning runs, reconciling). */
@@ -6,5 +7,14 @@ export const service: ServiceDescriptor = {
   name: 'compute',
   queues: ['compute', 'maintenance'],
   createProcessors,
-  start: startReconciler,
+  // The reconcile timer; on stop, the metrics threads end too (once the running jobs are done or handed back).
+  async start(deps) {
+    const reconciler = await startReconciler(deps);
+    return {
+      async stop() {
+        await reconciler.stop();
+        await closeMetricsPool();
+      },
+    };
+  },
 };

@@ -1,4 +1,4 @@
-import { clearProblems, failRecomputeRun, finishRecomputeRun, mergeRunDetails, problemLine, recordProblems, SUMMARIES_LOCK } from '@stemwise/db';
+import { clearProblems, failRecomputeRun, finishRecomputeRun, mergeRunDetails, problemLine, recordProblems, recordRunStage, SUMMARIES_LOCK } from '@stemwise/db';
 import { NATIONAL, queueFollowUp, type ServiceDeps } from '@stemwise/core';
 import { parsePayload, PermanentError, type ProcessorMap } from '@stemwise/platform';
 import { refreshNationalSummary } from './national-snapshot';
@@ -15,6 +15,7 @@ export function createProcessors(deps: ServiceDeps): ProcessorMap {
     'report.summaries': async (data, ctx) => {
       const { runId } = parsePayload('report.summaries', data);
       const { db } = deps;
+      const start = Date.now();
       const result = await db.withLock(SUMMARIES_LOCK, async () => {
         const regions = await refreshStaleSummaries({ db, config: deps.config, log: ctx.log, runId });
         // The national summary mixes every region: only once they all went through, else it stays stale.
@@ -41,6 +42,7 @@ export function createProcessors(deps: ServiceDeps): ProcessorMap {
         },
       };
       await mergeRunDetails(db, runId, details);
+      await recordRunStage(db, runId, 'summaries', { start, ms: Date.now() - start, regions: details.summaries.regions, versions: details.summaries.versions_created });
       // A region, forest type or plot that could not be computed does not fail the run: the run ends
       // done, with what it could not compute in compute_problems (and its count in the run's details).
       const problems = await finishRecomputeRun(db, runId);

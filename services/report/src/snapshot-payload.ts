@@ -1,4 +1,4 @@
-import type { RegionSummary } from '@stemwise/core';
+import type { RegionSummary, TestOutcome } from '@stemwise/core';
 
 // What one region_summaries.payload holds (format 1). The API serves it without `charts`; the page
 // draws the charts from it. Plain JSON; null where a value cannot be computed.
@@ -28,6 +28,23 @@ export interface SnapshotFitRow {
   readonly peak_ci_low: number | null;
   readonly peak_ci_high: number | null;
   readonly verdict: string;
+  /** Plots without the metric or the axis (absent in snapshots made before it was counted). */
+  readonly plots_left_out?: number | null;
+  readonly left_out_reasons?: string | null;
+  /** The evidence behind the verdict (docs/exports.md), on the quadratic row; absent in older snapshots. */
+  readonly delta_aicc?: number | null;
+  readonly curvature_p?: number | null;
+  readonly mos_turn_x?: number | null;
+  readonly mos_turn_inside?: 'yes' | 'no' | null;
+  readonly mos_result?: TestOutcome | null;
+  readonly two_lines_break_x?: number | null;
+  readonly two_lines_slope_1?: number | null;
+  readonly two_lines_p_1?: number | null;
+  readonly two_lines_slope_2?: number | null;
+  readonly two_lines_p_2?: number | null;
+  readonly two_lines_result?: TestOutcome | null;
+  readonly peak_boot_low?: number | null;
+  readonly peak_boot_high?: number | null;
 }
 
 export interface FitChart {

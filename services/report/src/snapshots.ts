@@ -13,7 +13,7 @@ import {
   recordProblems,
   regionExists,
 } from '@stemwise/db';
-import { asStoredFitChart, currentSpecies, IPCC_2006_CARBON_FRACTION, toFitRow, type SamplingErrorT, type ServiceDeps, type StoredFitChart } from '@stemwise/core';
+import { asStoredFitChart, cautionSettings, currentSpecies, IPCC_2006_CARBON_FRACTION, toFitRow, type SamplingErrorT, type ServiceDeps, type StoredFitChart } from '@stemwise/core';
 import { isInfrastructureError, PermanentError, type Config, type Logger } from '@stemwise/platform';
 import { buildFitChartSpec, buildGuildChartSpec, buildMeansChartSpec, chartSpecKey, regionChartPoints, renderVegaLiteSvg, type TopLevelSpec } from '@stemwise/core/charts';
 import { RegionSummaryInputError, summariseRegion, summaryVariables, type PlotMetrics } from './summary/region-summary';
@@ -109,7 +109,7 @@ export async function assembleRegionSnapshot(deps: Deps, region: string, charts:
     values: { ...p.metrics, ...p.change },
     speciesNames: accepted.get(p.plotKey) ?? [],
   }));
-  const summary = summariseRegion({ region, plots: inputPlots, forestAreas: areas, variables: summaryVariables(inputPlots), options: { samplingErrorT: samplingErrorMultiplier(config) } });
+  const summary = summariseRegion({ region, plots: inputPlots, forestAreas: areas, variables: summaryVariables(inputPlots), options: { samplingErrorT: samplingErrorMultiplier(config), caution: cautionSettings(config) } });
 
   const fits: SnapshotFitRow[] = [];
   for (const scope of [{ kind: 'forest_type' }, { kind: 'region', region }] as const) {

@@ -1,5 +1,5 @@
 import { countStaleVisits, forestTypesWithPlots, listCurveFits, listStale } from '@stemwise/db';
-import { checkFitColumn, encodeTable, FIT_COLUMNS, fitRows, toFitRow, writeExport, type ExportTarget, type FitRow, type ServiceDeps } from '@stemwise/core';
+import { checkFitColumn, encodeTable, FIT_COLUMNS, fitLeftOut, fitRows, toFitRow, writeExport, type ExportTarget, type FitRow, type ServiceDeps } from '@stemwise/core';
 import type { Logger } from '@stemwise/platform';
 import { fitForestType, storeFits } from '../fits';
 
@@ -42,7 +42,7 @@ export async function fitExportRows(deps: Pick<ServiceDeps, 'db' | 'config'> & {
   const rows: FitRow[] = [];
   for (const forestType of types) {
     const fits = await fitForestType(db, forestType, { metric, axis, bootstrap: config.bootstrap, seed: config.seed }, { regions: false });
-    rows.push(...fitRows(fits.all, { forestType, metric, axis }));
+    rows.push(...fitRows(fits.all, { forestType, metric, axis }, fitLeftOut(fits.leftOut)));
   }
   return { rows, stored: false };
 }

@@ -1,7 +1,7 @@
 import type { NationalSnapshot } from '../national-snapshot';
 import { HEADLINE_VARIABLES, variableLabel } from '@stemwise/core';
 import { cautions, visitsSentence } from './region-page';
-import { figure, interval, isoMinute, samplingError } from './figures';
+import { estimate, estimateInterval, isoMinute, samplingError } from './figures';
 import { html, type Markup } from './html';
 import { pageShell } from './shell';
 
@@ -28,7 +28,7 @@ function nationalSection(n: IndexNational): Markup {
   <p>Stratified by region × forest type over ${data.plots} plots in ${data.regions} regions. ${visitsSentence(data.first_survey, data.last_survey)} <a href="${n.href}">National figures by forest type</a> (version ${n.snapshot.version}, ${isoMinute(n.snapshot.createdAt)}).</p>
   <table class="national"><thead><tr><th>Variable</th><th class="num">Mean</th><th class="num">95 % CI</th><th class="num">Sampling error</th><th class="num">Plots</th></tr></thead><tbody>${rows.map((r) => {
     const label = variableLabel(r.variable);
-    return html`<tr data-variable="${r.variable}"><td>${label.name}${label.unit ? html` <span class="muted">(${label.unit})</span>` : null}</td><td class="num">${figure(r.mean)}</td><td class="num">${interval(r.ci_low, r.ci_high)}</td><td class="num">${samplingError(r.sampling_error_pct)}</td><td class="num">${r.n_plots}</td></tr>`;
+    return html`<tr data-variable="${r.variable}"><td>${label.name}${label.unit ? html` <span class="muted">(${label.unit})</span>` : null}</td><td class="num">${estimate(r.mean, r.se)}</td><td class="num">${estimateInterval(r.ci_low, r.ci_high, r.se)}</td><td class="num">${samplingError(r.sampling_error_pct)}</td><td class="num">${r.n_plots}</td></tr>`;
   })}</tbody></table>
 </section>`;
 }

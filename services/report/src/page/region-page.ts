@@ -1,9 +1,10 @@
 import { problemLine, type ProblemView } from '@stemwise/db';
 import type { Snapshot } from '../snapshot-payload';
-import { HEADLINE_VARIABLES, totalUnit, variableLabel, type DisturbanceRow, type RegionRow, type TotalRow } from '@stemwise/core';
-import { figure, interval, isoMinute, percentOfShare, samplingError } from './figures';
+import { CAUTION_WORDS, HEADLINE_VARIABLES, totalUnit, variableLabel, type CautionSettings, type DisturbanceRow, type RegionRow, type TotalRow } from '@stemwise/core';
+import { estimate, estimateInterval, figure, isoMinute, samplingError, sharePercent, standardError } from './figures';
 import { html, safeSvg, type Markup } from './html';
 import { pageShell } from './shell';
+import { fitsSection } from './fits-section';
 
 export interface RegionPageLinks {
   index: string;
@@ -36,6 +37,7 @@ export function cautions(carbonFraction: number): Markup {
   <ul>
     <li>These are estimates from a sample of plots, not a census. Every figure is shown with its standard error, 95 % confidence interval and sampling error: read the interval, not only the mean.</li>
     <li>Biomass and carbon follow the method stated on this page (Chave et al. 2014, or Chave et al. 2005 where heights are missing; carbon = ${carbonFraction} × biomass, IPCC 2006). The intervals cover sampling error only, not the error of the biomass models. These figures do not replace the national greenhouse-gas reporting method.</li>
+    <li>Figures are rounded to the precision their standard error supports: the SE to two significant digits, the estimate and its interval to the same decimal place (common practice, as advised in the GUM, JCGM 100:2008). The downloads keep full precision.</li>
     <li>This page is no logging plan: decisions on harvesting rest with local regulations and licensed foresters.</li>
   </ul>
 </section>`;
@@ -48,6 +50,19 @@ export function visitsSentence(first: string | null, last: string | null): strin
   return `Uses the latest visit of each plot, surveyed ${a === b ? a : `${a}–${b}`}.`;
 }
 
+/** The visible mark of an estimate to read with care (few plots, wide error); null for the others. */
+export function cautionMark(r: RegionRow): Markup | null {
+  const flag = r.caution_flag;
+  if (flag === undefined || flag === 'none') return null;
+  return html`<span class="flag" data-flag="${flag}">${CAUTION_WORDS[flag]}</span>`;
+}
+
+/** The sentence that explains the marks, with the thresholds the summary used; null for a summary made before them. */
+export function cautionLegend(caution: CautionSettings | undefined): Markup | null {
+  if (!caution) return null;
+  return html`<p class="muted caution-legend">Marked <span class="flag">few plots</span>: from fewer than ${caution.min_plots} plots; <span class="flag">wide error</span>: a sampling error above ${caution.max_sampling_error_pct} %; <span class="flag">no error estimate</span>: no sampling error could be computed. Read marked figures with particular care: they can move a lot with a few more plots (thresholds of common practice, set in the configuration).</p>`;
+}
+
 export function headlineCards(rows: readonly RegionRow[], totals: readonly TotalRow[]): Markup {
   const cards = HEADLINE_VARIABLES.map((v) => {
     const r = rows.find((x) => x.forest_type === WHOLE && x.variable === v);
@@ -56,15 +71,18 @@ export function headlineCards(rows: readonly RegionRow[], totals: readonly Total
     const t = totals.find((x) => x.forest_type === WHOLE && x.variable === v);
     return html`<div class="card" data-variable="${v}">
   <div class="label">${label.name}</div>
-  <div class="value">${figure(r.mean)} <span class="unit">${label.unit}</span></div>
-  <div class="ci">95 % CI: ${interval(r.ci_low, r.ci_high)}</div>
-  <div class="se">sampling error: ${samplingError(r.sampling_error_pct)} · SE ${figure(r.se)}</div>
-  <div class="n muted">${plots(r.n_plots)}</div>
-  ${t ? html`<div class="total">total ${figure(t.total)} ${totalUnit(v)} (95 % CI ${interval(t.ci_low, t.ci_high)}) on ${figure(t.forest_area_ha)} ha</div>` : null}
+  <div class="value">${estimate(r.mean, r.se)} <span class="unit">${label.unit}</span></div>
+  <div class="ci">95 % CI: ${estimateInterval(r.ci_low, r.ci_high, r.se)}</div>
+  <div class="se">sampling error: ${samplingError(r.sampling_error_pct)} · SE ${standardError(r.se)}</div>
+  <div class="n muted">${plots(r.n_plots)}${cautionMark(r)}</div>
+  ${t ? html`<div class="total">total ${estimate(t.total, t.se)} ${totalUnit(v)} (95 % CI ${estimateInterval(t.ci_low, t.ci_high, t.se)}) on ${figure(t.forest_area_ha)} ha</div>` : null}
 </div>`;
   });
   return html`<div class="cards" id="headline">${cards}</div>`;
 }
+
+// SE of mean × area with the area known without error: SE × area (Cochran 1977 ch. 5)
+const totalSe = (r: RegionRow): number | null => (r.se !== null && r.forest_area_ha !== null ? r.se * r.forest_area_ha : null);
 
 export function estimatesTable(rows: readonly RegionRow[], whole?: string): Markup {
   const variables = [...new Set(rows.map((r) => r.variable))];
@@ -74,9 +92,9 @@ export function estimatesTable(rows: readonly RegionRow[], whole?: string): Mark
     return group.map(
       (r, i) => html`<tr class="${r.forest_type === WHOLE ? 'whole' : ''}">
   ${i === 0 ? html`<td rowspan="${group.length}">${label.name}${label.unit ? html` <span class="muted">(${label.unit})</span>` : null}</td>` : null}
-  <td>${stratumName(r.forest_type, whole)}</td><td class="num">${r.n_plots}</td><td class="num">${figure(r.mean)}</td><td class="num">${figure(r.se)}</td>
-  <td class="num">${interval(r.ci_low, r.ci_high)}</td><td class="num">${samplingError(r.sampling_error_pct)}</td>
-  <td class="num">${figure(r.forest_area_ha)}</td><td class="num">${figure(r.total)}</td>
+  <td>${stratumName(r.forest_type, whole)}</td><td class="num">${r.n_plots}</td><td class="num">${estimate(r.mean, r.se)}${cautionMark(r)}</td><td class="num">${standardError(r.se)}</td>
+  <td class="num">${estimateInterval(r.ci_low, r.ci_high, r.se)}</td><td class="num">${samplingError(r.sampling_error_pct)}</td>
+  <td class="num">${figure(r.forest_area_ha)}</td><td class="num">${estimate(r.total, totalSe(r))}</td>
 </tr>`,
     );
   });
@@ -91,7 +109,7 @@ function guildTable(s: Snapshot): Markup | null {
   return html`<table id="guilds"><thead><tr><th>Stratum</th>${guilds.map((g) => html`<th class="num">${GUILD_NAMES[g] ?? g}</th>`)}</tr></thead><tbody>${strata.map(
     (t) => html`<tr class="${t === WHOLE ? 'whole' : ''}"><td>${stratumName(t)}</td>${guilds.map((g) => {
       const r = rows.find((x) => x.forest_type === t && x.guild === g);
-      return html`<td class="num">${percentOfShare(r?.mean_share)}${r?.se != null ? html` <span class="muted">± ${percentOfShare(r.se)}</span>` : null}</td>`;
+      return html`<td class="num">${sharePercent(r?.mean_share, r?.se)}${r?.se != null ? html` <span class="muted">± ${standardError(100 * r.se)} %</span>` : null}</td>`;
     })}</tr>`,
   )}</tbody></table>`;
 }
@@ -113,7 +131,7 @@ function disturbanceTable(s: Snapshot): Markup | null {
     const first = rows.find((r) => r.class === c) as DisturbanceRow;
     return html`<tr><td>${c.replace(/_/g, ' ')}</td><td>${classRange(first)}</td>${strata.map((t) => {
       const r = rows.find((x) => x.forest_type === t && x.class === c);
-      return html`<td class="num">${r ? html`${plots(r.n_plots)} · ${percentOfShare(r.share)}` : '–'}</td>`;
+      return html`<td class="num">${r ? html`${plots(r.n_plots)} · ${sharePercent(r.share, r.share_se)}` : '–'}</td>`;
     })}</tr>`;
   })}</tbody></table>
 <p class="muted">Shares per forest type are shares of its plots; the whole-region share is the stratified estimate (of forest area when areas are known).${missing.length ? ` Plots without a disturbance index: ${missing.map((m) => `${m.forest_type} ${m.n_plots}`).join(', ')}.` : ''}</p>`;
@@ -126,22 +144,6 @@ function speciesTable(s: Snapshot): Markup | null {
     (r) => html`<tr class="${r.forest_type === WHOLE ? 'whole' : ''}"><td>${stratumName(r.forest_type)}</td><td class="num">${r.n_species}</td><td class="num">${r.n_plots_with_names}</td></tr>`,
   )}</tbody></table>
 <p class="muted">Species counted among live stems of the main plots identified to species (synonyms counted as their accepted name). Observed counts grow with the number of plots: compare strata with care.</p>`;
-}
-
-function fitsSection(s: Snapshot): Markup {
-  const { charts, fits } = s.payload;
-  const figures = charts.fits.map((c) => {
-    const svg = safeSvg(c.svg);
-    return html`<figure class="fit-chart" data-forest-type="${c.forest_type}">${svg ?? html`<p class="muted">No chart for ${c.forest_type}: ${c.missing ?? 'not available'}.</p>`}
-<figcaption>${c.forest_type}: ${c.metric} against ${c.axis} for all ${c.points} plots of this forest type in the inventory; the ${c.highlighted} plots of ${s.region} are drawn highlighted. The curve and the verdict are those of the forest type as a whole.</figcaption></figure>`;
-  });
-  const table = fits.length
-    ? html`<table id="fits"><thead><tr><th>Fitted on</th><th>Forest type</th><th>Model</th><th class="num">Plots</th><th class="num">R²</th><th class="num">AICc</th><th class="num">Peak (95 % CI)</th><th>Verdict</th></tr></thead><tbody>${fits.map(
-        (f) => html`<tr><td>${f.scope === WHOLE ? 'whole forest type' : `plots of ${f.scope}`}</td><td>${f.forest_type}</td><td>${f.model}</td><td class="num">${f.n}</td><td class="num">${figure(f.r2)}</td><td class="num">${figure(f.aicc)}</td><td class="num">${f.peak_x === null ? '–' : html`${figure(f.peak_x)} (${interval(f.peak_ci_low, f.peak_ci_high)})`}</td><td>${f.verdict.replace('_', ' ')}</td></tr>`,
-      )}</tbody></table>
-<p class="muted">A verdict summarises survey plots; it is not proof of cause (soil, altitude or history can make or hide a pattern).</p>`
-    : html`<p class="muted">No fits stored yet for these forest types.</p>`;
-  return html`${figures}${table}`;
 }
 
 // A short note of what could not be computed: the figures shown leave these parts out or are older for them.
@@ -194,6 +196,7 @@ export function renderRegionPage(input: RegionPageInput): string {
   <h2 id="headline-figures">Headline figures for the whole region</h2>
   <p class="muted">Stratified estimates over the forest types; 95 % intervals use Student t (degrees of freedom in the notes below).</p>
   ${headlineCards(summary.rows, summary.totals)}
+  ${cautionLegend(summary.caution)}
   <h2>Charts</h2>
   ${means ? html`<figure id="means-chart">${means}<figcaption>Means per hectare with their 95 % confidence intervals: the whole region (dark) and each forest type. Wide intervals come from few plots.</figcaption></figure>` : null}
   ${guilds ? html`<figure id="guild-chart">${guilds}<figcaption>Guild composition: the mean share of live basal area per plot.</figcaption></figure>` : null}
@@ -201,6 +204,7 @@ export function renderRegionPage(input: RegionPageInput): string {
   ${fitsSection(s)}
   <h2>Estimates by forest type</h2>
   ${estimatesTable(summary.rows)}
+  ${cautionLegend(summary.caution)}
   <h2>Guild composition</h2>
   ${guildTable(s) ?? html`<p class="muted">No guild shares.</p>`}
   <h2>Plots by disturbance class</h2>

@@ -35,6 +35,13 @@ tr.whole td { font-weight: 600; }
 .muted { color: var(--muted); }
 footer { margin: 40px auto 30px; color: var(--muted); font-size: .85rem; }
 .regions td a { font-weight: 600; }
+#verdict-words { display: grid; grid-template-columns: max-content 1fr; gap: 4px 14px; font-size: .9rem; margin: 8px 0 12px; }
+#verdict-words dt { font-weight: 600; }
+#verdict-words dd { margin: 0; }
+#verdict-evidence td, #verdict-evidence th { font-size: .82rem; padding: 4px 5px; }
+#verdict-evidence td.num, #verdict-evidence th.num { white-space: normal; }
+.table-scroll { overflow-x: auto; }
+.flag { display: inline-block; margin-left: 6px; padding: 0 5px; border: 1px solid var(--warn); border-radius: 3px; color: var(--warn); background: var(--warn-soft); font-size: .75rem; font-weight: 600; white-space: nowrap; }
 @media print {
   html { font-size: 10pt; }
   body { background: #fff; }

@@ -1,17 +1,14 @@
 import type { FastifyInstance } from 'fastify';
 import type { ZodTypeProvider } from 'fastify-type-provider-zod';
 import { listCurveFits, listRegionNames, listStageProblems, problemView, WHOLE_FOREST_TYPE_SCOPE, type FitScope } from '@stemwise/db';
-import { csvHeader, csvLine, toFitRow, type Row } from '@stemwise/core';
+import { csvHeader, csvLine, FIT_COLUMNS, toFitRow, type Row } from '@stemwise/core';
 import { canSeeRegion, readsRegions, type Principal } from '../access';
 import type { SnapshotFitRow } from '../snapshot-payload';
 import { denyJson, requireToken, type RouteContext } from './auth';
 import { wantsCsv } from './regions';
 import { ErrorBody, FitList, FitsQuery } from './schemas';
 
-const FIT_CSV_COLUMNS = [
-  'scope', 'forest_type', 'metric', 'axis', 'n', 'model', 'b0', 'b1', 'b2', 'se_b0', 'se_b1', 'se_b2',
-  'p_b1', 'p_b2', 'r2', 'adj_r2', 'aicc', 'peak_x', 'peak_ci_low', 'peak_ci_high', 'verdict',
-];
+const FIT_CSV_COLUMNS = ['scope', ...FIT_COLUMNS];
 
 /**
  * Diversity–disturbance fits. Scope `all` (a forest type as a whole, across regions) is shown to every

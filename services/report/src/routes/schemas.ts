@@ -59,7 +59,10 @@ export const RegionRowSchema = z.object({
   sampling_error_pct: num.describe('half-width of the 95 % interval over the mean, in percent'),
   forest_area_ha: num,
   total: num.describe('mean × forest area, for per-hectare variables with known areas'),
+  caution_flag: z.enum(['none', 'few_plots', 'wide_error', 'few_plots_wide_error', 'no_error_estimate']).optional().describe('few plots or a wide sampling error (docs/exports.md); absent in summaries made before it existed'),
 });
+
+const CautionSchema = z.object({ min_plots: z.number().int(), max_sampling_error_pct: z.number() }).optional().describe('thresholds of caution_flag');
 
 const TotalRowSchema = z.object({ forest_type: z.string(), variable: z.string(), forest_area_ha: z.number(), total: z.number(), se: num, ci_low: num, ci_high: num });
 const EstimateDetailSchema = z.object({
@@ -97,6 +100,7 @@ export const RegionSummarySchema = z.object({
   confidence: z.number(),
   sampling_error_t: z.union([z.literal('t'), z.number()]),
   fpc_applied: z.boolean(),
+  caution: CautionSchema,
   rows: z.array(RegionRowSchema),
   totals: z.array(TotalRowSchema),
   estimate_details: z.array(EstimateDetailSchema),
@@ -114,6 +118,7 @@ export const NationalSummarySchema = z.object({
   weighting: z.enum(['area', 'plot_count']).describe('W_h from forest areas of every stratum, or from plot counts when one is missing'),
   confidence: z.number(),
   sampling_error_t: z.union([z.literal('t'), z.number()]),
+  caution: CautionSchema,
   rows: z.array(RegionRowSchema).describe('`export regions` rows with region `national`: `all` (every region × forest type), then each forest type nationally'),
   totals: z.array(TotalRowSchema),
   estimate_details: z.array(EstimateDetailSchema.extend({ forest_type: z.string() })),
@@ -142,6 +147,21 @@ export const FitRowSchema = z.object({
   peak_ci_low: num,
   peak_ci_high: num,
   verdict: z.enum(['hump', 'increasing', 'decreasing', 'u_shape', 'none']).or(z.string()),
+  plots_left_out: z.number().int().nullable().optional().describe('plots without the metric or the axis, left out of the fit (absent in summaries made before it was counted)'),
+  left_out_reasons: z.string().nullable().optional().describe('`<column>:<reason>=<count>` joined by `;` (docs/exports.md)'),
+  delta_aicc: num.optional().describe('AICc(line) − AICc(parabola); positive favours the parabola (quadratic row)'),
+  curvature_p: num.optional().describe('two-sided p of the curvature b2 in the Mitchell-Olds & Shaw test'),
+  mos_turn_x: num.optional().describe("the parabola's turning point"),
+  mos_turn_inside: z.enum(['yes', 'no']).nullable().optional().describe('whether the turning point lies inside the observed x range'),
+  mos_result: z.enum(['pass', 'fail', 'not_testable']).nullable().optional().describe('Mitchell-Olds & Shaw test: significant curvature of the right sign and the turn inside the range'),
+  two_lines_break_x: num.optional(),
+  two_lines_slope_1: num.optional().describe('slope of the line below the break'),
+  two_lines_p_1: num.optional(),
+  two_lines_slope_2: num.optional().describe('slope of the line above the break'),
+  two_lines_p_2: num.optional(),
+  two_lines_result: z.enum(['pass', 'fail', 'not_testable']).nullable().optional().describe('two-lines test: a significant rise then fall (hump) or fall then rise (U)'),
+  peak_boot_low: num.optional().describe('percentile bootstrap interval of the peak (hump or U verdicts)'),
+  peak_boot_high: num.optional(),
 });
 
 export const SummaryResponse = z.object({

@@ -1,4 +1,4 @@
-import { WHOLE_REGION, type DisturbanceClass, type SamplingErrorT } from '@stemwise/core';
+import { WHOLE_REGION, type CautionSettings, type DisturbanceClass, type SamplingErrorT } from '@stemwise/core';
 
 /** One plot's figures, as in `export plots` (numeric columns; null where not computable). */
 export interface PlotMetrics {
@@ -22,6 +22,8 @@ export interface RegionSummaryOptions {
   readonly plotAreaHa?: number;
   /** Classes on disturbance_index. Default DEFAULT_DISTURBANCE_CLASSES. */
   readonly disturbanceClasses?: readonly DisturbanceClass[];
+  /** Thresholds of the rows' caution_flag. Default DEFAULT_CAUTION (20 plots, 20 %). */
+  readonly caution?: CautionSettings;
 }
 
 export interface RegionSummaryInput {

@@ -1,4 +1,4 @@
-import { assertStratifiedOptions, DEFAULT_REGION_VARIABLES, isPerHectare, stratifiedEstimate, type StratifiedEstimate, type StratifiedOptions, type StratumInput } from '@stemwise/core';
+import { assertCautionSettings, assertStratifiedOptions, DEFAULT_CAUTION, DEFAULT_REGION_VARIABLES, isPerHectare, stratifiedEstimate, type StratifiedEstimate, type StratifiedOptions, type StratumInput } from '@stemwise/core';
 import { resolveForestAreas } from './forest-areas';
 import { RegionSummaryInputError, validateInput, type PlotMetrics, type RegionSummaryOptions } from './input';
 import { fmtHa, note } from './notes';
@@ -23,7 +23,7 @@ export interface NationalSummaryInput {
   readonly regions: readonly NationalRegionInput[];
   /** Variables to estimate, in row order. Default DEFAULT_REGION_VARIABLES. */
   readonly variables?: readonly string[];
-  readonly options?: Pick<RegionSummaryOptions, 'confidence' | 'samplingErrorT' | 'df'>;
+  readonly options?: Pick<RegionSummaryOptions, 'confidence' | 'samplingErrorT' | 'df' | 'caution'>;
 }
 
 interface Stratum {
@@ -49,6 +49,8 @@ export function summariseNation(input: NationalSummaryInput): NationalSummary {
   const opts = input.options ?? {};
   const estimatorBase: StratifiedOptions = { confidence: opts.confidence, samplingErrorT: opts.samplingErrorT, df: opts.df };
   assertStratifiedOptions(estimatorBase);
+  const caution = opts.caution ?? DEFAULT_CAUTION;
+  assertCautionSettings(caution);
 
   // Strata and their areas, region by region, with the region summaries' own rule for missing areas.
   const strata: Stratum[] = [];
@@ -87,7 +89,7 @@ export function summariseNation(input: NationalSummaryInput): NationalSummary {
     for (const variable of variables) {
       const e = estimate(subset, variable);
       const perHa = isPerHectare(variable);
-      rows.push(regionRow(NATIONAL, forestType, variable, e.n, e, e.size, perHa ? e.total : null));
+      rows.push(regionRow(NATIONAL, forestType, variable, e.n, e, e.size, perHa ? e.total : null, caution));
       if (perHa && e.size !== null && e.total !== null) {
         totals.push({ forest_type: forestType, variable, forest_area_ha: e.size, total: e.total, se: e.totalSe, ci_low: e.totalCiLow, ci_high: e.totalCiHigh });
       }
@@ -114,6 +116,7 @@ export function summariseNation(input: NationalSummaryInput): NationalSummary {
     weighting,
     confidence: opts.confidence ?? 0.95,
     sampling_error_t: seT,
+    caution,
     rows,
     totals,
     estimate_details: details,

@@ -68,7 +68,7 @@ function assertPlainJson(value: unknown, path = '$'): void {
 
 describe('summariseRegion rows', () => {
   it('REGION_COLUMNS is the `export regions` column list of docs/exports.md, and every row has exactly those keys in that order', () => {
-    expect(REGION_COLUMNS).toEqual(['region', 'forest_type', 'variable', 'n_plots', 'mean', 'se', 'ci_low', 'ci_high', 'sampling_error_pct', 'forest_area_ha', 'total']);
+    expect(REGION_COLUMNS).toEqual(['region', 'forest_type', 'variable', 'n_plots', 'mean', 'se', 'ci_low', 'ci_high', 'sampling_error_pct', 'forest_area_ha', 'total', 'caution_flag']);
     const s = summariseRegion(base());
     for (const r of s.rows) expect(Object.keys(r)).toEqual([...REGION_COLUMNS]);
   });
@@ -287,5 +287,34 @@ describe('summariseRegion output and input', () => {
   it('rejects a bad option even for a region without plots', () => {
     expect(() => summariseRegion(base({ plots: [], options: { confidence: 1.5 } }))).toThrow(/confidence/);
     expect(() => summariseRegion(base({ options: { samplingErrorT: 2, confidence: 0.9 } }))).toThrow(/95 % convention/);
+  });
+});
+
+describe('plots left out of the estimates', () => {
+  it('notes per variable how many plots had no value, and why', () => {
+    const plots = [
+      plot('VM-101', 'ridge', { stems_ha: 2, n_identified: 0, richness: 0, fisher_alpha: null }),
+      plot('VM-102', 'ridge', { stems_ha: 4, n_identified: 5, richness: 5, fisher_alpha: null }),
+      plot('VM-103', 'ridge', { stems_ha: 6, n_identified: 9, richness: 3, fisher_alpha: 1.6 }),
+      plot('VM-104', 'valley', { stems_ha: 8, n_identified: 0, richness: 0, fisher_alpha: null }),
+    ];
+    const s = summariseRegion({ region: 'Varenmoor', plots, variables: ['stems_ha', 'fisher_alpha', 'richness'] });
+    const notes = s.notes.filter((n) => n.code === 'plots_left_out');
+    expect(notes.map((n) => n.variable)).toEqual(['fisher_alpha']);
+    expect(notes[0].message).toMatch(/^fisher_alpha: 3 of 4 plots left out of the estimates/);
+    expect(notes[0].message).toContain('1 (fisher_alpha) with every identified species with a single stem');
+    expect(notes[0].message).toContain('2 (fisher_alpha) with no live stem identified to species');
+    expect(s.rows.find((r) => r.forest_type === 'all' && r.variable === 'fisher_alpha')?.n_plots).toBe(1);
+  });
+});
+
+describe('caution flags of the rows', () => {
+  it('flags every row of the hand case: 2–5 plots are fewer than 20; with a minimum of 2 only wide errors remain', () => {
+    const s = summariseRegion(base());
+    expect(s.caution).toEqual({ min_plots: 20, max_sampling_error_pct: 20 });
+    for (const r of s.rows) expect(r.caution_flag, `${r.forest_type} ${r.variable}`).toMatch(/^few_plots/);
+    const loose = summariseRegion(base({ options: { caution: { min_plots: 2, max_sampling_error_pct: 20 } } }));
+    // ridge stems_ha 2 4 6: mean 4, SE 2/√3 = 1.1547, t(2) = 4.3027 → sampling error 124 % (by hand) → wide
+    expect(loose.rows.find((r) => r.forest_type === 'ridge' && r.variable === 'stems_ha')?.caution_flag).toBe('wide_error');
   });
 });

@@ -1,5 +1,5 @@
 import { REGION_CHANGE_COLUMNS } from '@stemwise/db';
-import { assertStratifiedOptions, DEFAULT_REGION_VARIABLES, isPerHectare, stratifiedEstimate, WHOLE_REGION, type DisturbanceSummary, type EstimateDetail, type GuildRow, type RegionRow, type RegionSummary, type StratifiedEstimate, type StratifiedOptions, type SummaryGuild, type PlotMetricColumn, type SummaryNote, type TotalRow } from '@stemwise/core';
+import { assertCautionSettings, assertStratifiedOptions, cautionFlag, countLeftOut, DEFAULT_CAUTION, DEFAULT_REGION_VARIABLES, isPerHectare, leftOutSentence, leftOutText, stratifiedEstimate, WHOLE_REGION, type CautionSettings, type DisturbanceSummary, type EstimateDetail, type GuildRow, type PlotMetricColumn, type RegionRow, type RegionSummary, type StratifiedEstimate, type StratifiedOptions, type SummaryGuild, type SummaryNote, type TotalRow } from '@stemwise/core';
 import { DEFAULT_DISTURBANCE_CLASSES, assertDisturbanceClasses, disturbanceClassIndex } from './disturbance-classes';
 import { resolveForestAreas } from './forest-areas';
 import { validateInput, type PlotMetrics, type RegionSummaryInput } from './input';
@@ -40,6 +40,8 @@ export function summariseRegion(input: RegionSummaryInput): RegionSummary {
   const opts = input.options ?? {};
   const classes = opts.disturbanceClasses ?? DEFAULT_DISTURBANCE_CLASSES;
   assertDisturbanceClasses(classes);
+  const caution = opts.caution ?? DEFAULT_CAUTION;
+  assertCautionSettings(caution);
 
   const byType = new Map<string, PlotMetrics[]>();
   for (const p of input.plots) {
@@ -83,7 +85,7 @@ export function summariseRegion(input: RegionSummaryInput): RegionSummary {
     const e = types.length === 0 ? null : estimateOf(variable);
     if (e === null) continue;
     const perHa = isPerHectare(variable);
-    rows.push(regionRow(input.region, WHOLE_REGION, variable, e.n, e, e.size, perHa ? e.total : null));
+    rows.push(regionRow(input.region, WHOLE_REGION, variable, e.n, e, e.size, perHa ? e.total : null, caution));
     if (perHa && e.size !== null && e.total !== null) {
       totals.push({ forest_type: WHOLE_REGION, variable, forest_area_ha: e.size, total: e.total, se: e.totalSe, ci_low: e.totalCiLow, ci_high: e.totalCiHigh });
     }
@@ -93,7 +95,7 @@ export function summariseRegion(input: RegionSummaryInput): RegionSummary {
     for (const variable of variables) {
       const s = estimateOf(variable).strata[h];
       const perHa = isPerHectare(variable);
-      rows.push(regionRow(input.region, t, variable, s.n, s, s.size, perHa ? s.total : null));
+      rows.push(regionRow(input.region, t, variable, s.n, s, s.size, perHa ? s.total : null, caution));
       if (perHa && s.size !== null && s.total !== null) {
         totals.push({ forest_type: t, variable, forest_area_ha: s.size, total: s.total, se: s.totalSe, ci_low: s.totalCiLow, ci_high: s.totalCiHigh });
       }
@@ -115,6 +117,7 @@ export function summariseRegion(input: RegionSummaryInput): RegionSummary {
     ...resolved.notes,
     ...methodNotes(opts.plotAreaHa, fpc, opts.confidence ?? 0.95, opts.samplingErrorT ?? 't', opts.df ?? 'satterthwaite'),
     ...coverageNotes(types, [...estimates.entries()].filter(([v]) => variables.includes(v))),
+    ...leftOutNotes(input.plots, variables),
     ...(species !== null && species[0].n_plots_with_names < input.plots.length
       ? [note('species_names_partial', `Species counts use the ${species[0].n_plots_with_names} of ${input.plots.length} plots that came with names.`)]
       : []),
@@ -130,6 +133,7 @@ export function summariseRegion(input: RegionSummaryInput): RegionSummary {
     confidence: opts.confidence ?? 0.95,
     sampling_error_t: opts.samplingErrorT ?? 't',
     fpc_applied: fpc,
+    caution,
     rows,
     totals,
     estimate_details: details,
@@ -138,6 +142,18 @@ export function summariseRegion(input: RegionSummaryInput): RegionSummary {
     species,
     notes,
   };
+}
+
+// Plots without a value of a variable are left out of its estimates: say how many, and why.
+function leftOutNotes(plots: readonly PlotMetrics[], variables: readonly string[]): SummaryNote[] {
+  const out: SummaryNote[] = [];
+  for (const variable of variables) {
+    const counts = countLeftOut(plots.map((p) => p.values), [variable]);
+    const n = Object.values(counts).reduce((a, b) => a + b, 0);
+    if (n === 0) continue;
+    out.push(note('plots_left_out', `${variable}: ${n} of ${plots.length} plots left out of the estimates, having no value: ${leftOutSentence(leftOutText(counts))}.`, null, variable));
+  }
+  return out;
 }
 
 /** How a stratified estimate of one variable was made (df, t, strata covered). */
@@ -163,7 +179,7 @@ export interface Estimated {
   readonly samplingErrorPct: number | null;
 }
 
-export function regionRow(region: string, forestType: string, variable: string, n: number, e: Estimated, area: number | null, total: number | null): RegionRow {
+export function regionRow(region: string, forestType: string, variable: string, n: number, e: Estimated, area: number | null, total: number | null, caution: CautionSettings): RegionRow {
   // Key order is REGION_COLUMNS order.
   return {
     region,
@@ -177,6 +193,7 @@ export function regionRow(region: string, forestType: string, variable: string, 
     sampling_error_pct: e.samplingErrorPct,
     forest_area_ha: area,
     total,
+    caution_flag: cautionFlag(n, e.samplingErrorPct, caution),
   };
 }
 
