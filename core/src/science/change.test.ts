@@ -35,7 +35,7 @@ describe('rates (computed by hand; no published worked value is pinned here)', (
   it('m = ln(N0/Ns)/t: N0 = 100, Ns = 90, t = 5 → ln(10/9)/5 = 0.105360515657826/5 = 0.0210721031315652', () => {
     expect(rel(instantaneousMortality(100, 90, 5), 0.0210721031315652)).toBeLessThan(1e-13);
   });
-  it('annual mortality 1 − (Ns/N0)^(1/t) = 1 − exp(−m) (the two forms of Sheil, Burslem & Alder 1995, memory): 1 − 0.9^0.2 = 0.0208516376', () => {
+  it('annual mortality 1 − (Ns/N0)^(1/t) = 1 − exp(−m) (the annual and instantaneous forms of one constant rate): 1 − 0.9^0.2 = 0.0208516376', () => {
     expect(rel(annualMortality(100, 90, 5), 0.020851637639023)).toBeLessThan(1e-10);
     expect(rel(annualMortality(100, 90, 5), 1 - Math.exp(-(instantaneousMortality(100, 90, 5) as number)))).toBeLessThan(1e-12);
   });

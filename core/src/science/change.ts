@@ -89,25 +89,25 @@ function checkCounts(fn: string, a: number, b: number, t: number): void {
   if (!(t > 0) || !Number.isFinite(t)) fail(fn, `years must be finite and > 0 (got ${t})`);
 }
 
-// m = ln(N0 / Ns) / t, instantaneous — Sheil & May 1996, J. Ecol. 84:91–100 (memory); null when N0 or Ns is 0
+// m = ln(N0 / Ns) / t, instantaneous — constant-rate model Ns = N0·e^(−mt) solved for m (docs/methods.md#change-between-visits); null when N0 or Ns is 0
 export function instantaneousMortality(n0: number, nSurvivors: number, years: number): number | null {
   checkCounts('instantaneousMortality', n0, nSurvivors, years);
   return n0 > 0 && nSurvivors > 0 ? Math.log(n0 / nSurvivors) / years : null;
 }
 
-// r = ln(Nt / Ns) / t, instantaneous — Sheil & May 1996, J. Ecol. 84:91–100 (memory); null when Ns is 0
+// r = ln(Nt / Ns) / t, instantaneous — constant-rate model Nt = Ns·e^(rt) solved for r (docs/methods.md#change-between-visits); null when Ns is 0
 export function instantaneousRecruitment(nEnd: number, nSurvivors: number, years: number): number | null {
   checkCounts('instantaneousRecruitment', nEnd, nSurvivors, years);
   return nSurvivors > 0 ? Math.log(nEnd / nSurvivors) / years : null;
 }
 
-// m_a = 1 − (Ns / N0)^(1/t) — Sheil, Burslem & Alder 1995, J. Ecol. 83:331–333 (memory); null when N0 is 0
+// m_a = 1 − (Ns / N0)^(1/t) = 1 − e^(−m), the share dying per year at a constant rate (docs/methods.md#change-between-visits); null when N0 is 0
 export function annualMortality(n0: number, nSurvivors: number, years: number): number | null {
   checkCounts('annualMortality', n0, nSurvivors, years);
   return n0 > 0 ? 1 - Math.pow(nSurvivors / n0, 1 / years) : null;
 }
 
-// r_a = 1 − (1 − Nr / Nt)^(1/t) — Sheil, Jennings & Savill 2000, J. Trop. Ecol. 16:765–800 (memory); null when Nt is 0
+// r_a = 1 − (1 − Nr / Nt)^(1/t) = 1 − e^(−r), the yearly share of recruits at a constant rate (docs/methods.md#change-between-visits); null when Nt is 0
 export function annualRecruitment(nEnd: number, nRecruits: number, years: number): number | null {
   checkCounts('annualRecruitment', nEnd, nRecruits, years);
   return nEnd > 0 ? 1 - Math.pow(1 - nRecruits / nEnd, 1 / years) : null;
