@@ -100,6 +100,18 @@ describe('stemwise recompute and export', () => {
     expect(nowhere.stderr).toMatch(/^stemwise: cannot write .*plots\.csv: the folder .*missing does not exist\n$/);
   });
 
+  it('says so when export change has no rows because no plot was measured twice', async () => {
+    const empty = await useServices();
+    try {
+      const r = await runMain(['export', 'change'], { ...envFor(empty), REDIS_URL: undefined });
+      expect(r.code, r.stderr).toBe(0);
+      expect(r.stdout.trim().split('\n')).toHaveLength(1); // the header only
+      expect(r.stderr).toMatch(/no plot has two computed visits yet/);
+    } finally {
+      await empty.cleanup();
+    }
+  });
+
   it('writes export fits and GeoJSON to stdout, data only', async () => {
     await recomputed();
     const fits = await inProcess(['export', 'fits', '--format', 'json', '--axis', 'fire_score', '--metric', 'richness']);

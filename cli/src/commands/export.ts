@@ -57,6 +57,9 @@ Writes results to FILE, or to stdout (the data as stored, byte for byte: see doc
       written = await exportRegions({ db: await rt.db() }, { format: format as 'csv' | 'json', region: values.region ?? null }, target);
     }
     if (values.out) printErr(`stemwise: ${written.rows} row${written.rows === 1 ? '' : 's'} written to ${values.out}\n`);
+    if (kind === 'change' && written.rows === 0) {
+      printErr("stemwise: note: no plot has two computed visits yet; change rows appear once a plot is measured again (same plot_id, a later date)\n");
+    }
     if (written.staleVisits) {
       printErr(`stemwise: note: ${written.staleVisits} plot visit${written.staleVisits === 1 ? ' awaits' : 's await'} recompute; their figures are missing or out of date (run 'stemwise recompute')\n`);
     }
