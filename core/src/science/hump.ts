@@ -21,6 +21,11 @@ function quadraticParts(fn: string, fit: PolynomialFit) {
   return { a1, a2, v11: v[1][1], v12: v[1][2], v22: v[2][2], shift: fit.shift, df: fit.df };
 }
 
+// Throws naming the function when the x range is empty or reversed.
+function checkRange(fn: string, range: XRange): void {
+  if (!(range.min < range.max)) throw new RangeError(`${fn}: the x range must have min < max, got [${range.min}, ${range.max}]`);
+}
+
 // Throws naming the function when alpha is not in (0, 1).
 function checkAlpha(fn: string, alpha: number): void {
   if (!(alpha > 0 && alpha < 1)) throw new RangeError(`${fn}: alpha must be in (0, 1), got ${alpha}`);
@@ -99,7 +104,7 @@ export interface MitchellOldsShawResult {
 export function mitchellOldsShawTest(fit: PolynomialFit, range: XRange, shape: CurveShape, alpha = 0.05): MitchellOldsShawResult {
   const fn = 'mitchellOldsShawTest';
   checkAlpha(fn, alpha);
-  if (!(range.min < range.max)) throw new RangeError(`${fn}: the x range must have min < max, got [${range.min}, ${range.max}]`);
+  checkRange(fn, range);
   const b2 = fit.coefficients[2];
   const seB2 = Math.sqrt(fit.shiftedCovariance[2][2]);
   if (!(seB2 > 0 && Number.isFinite(seB2))) {
@@ -135,7 +140,7 @@ export interface LindMehlumResult {
 export function lindMehlumTest(fit: PolynomialFit, range: XRange, shape: CurveShape, alpha = 0.05): LindMehlumResult {
   const fn = 'lindMehlumTest';
   checkAlpha(fn, alpha);
-  if (!(range.min < range.max)) throw new RangeError(`${fn}: the x range must have min < max, got [${range.min}, ${range.max}]`);
+  checkRange(fn, range);
   const low = quadraticSlopeAt(fit, range.min);
   const high = quadraticSlopeAt(fit, range.max);
   const sign = shape === 'hump' ? 1 : -1;
