@@ -7,6 +7,7 @@ export * from './queries/recompute';
 export * from './queries/reconcile';
 export * from './queries/metrics';
 export * from './queries/fits';
+export * from './queries/summary-versions';
 export * from './queries/problems';
 export * from './queries/species-read';
 export * from './queries/summaries';

@@ -1,6 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import { quantileSorted } from './bootstrap';
-import { interruptedRegression, twoLinesTest } from './hump-two-lines';
+import { interruptedRegression, PUBLISHED_TWO_LINES, twoLinesTest } from './hump-two-lines';
+import { normalTwoSidedP } from './normal';
 import { simulateCurve } from '../../test/random-test-data';
 import { R_CHECK_X, R_CHECK_Y } from '../../test/regression-fixture';
 
@@ -92,10 +93,55 @@ describe('two lines on repeated points', () => {
     expect(interruptedRegression(x, y, 0.5)).toBeNull();
   });
 
-  it('the two-lines test on plots entered three times is not testable, with a reason, never an exception', () => {
+  it('the two-lines test on plots entered three times, breakpoint allowed to the edge, is not testable, with a reason, never an exception', () => {
     const [sx, sy] = xy(simulateCurve(20, (v) => 10 + 3 * v, 1, 1));
-    const t = twoLinesTest([...sx, ...sx, ...sx], [...sy, ...sy, ...sy], 'hump');
+    const t = twoLinesTest([...sx, ...sx, ...sx], [...sy, ...sy, ...sy], 'hump', { range: 'flat' });
     expect(t.passes).toBe(false);
     expect(t.reason).toMatch(/no sampling variance|too few points/);
+  });
+});
+
+describe('twoLinesTest options (docs/methods.md#where-it-differs-from-the-published-procedure)', () => {
+  const quantile = (v: readonly number[], p: number): number => quantileSorted(Float64Array.from(v).sort(), p);
+
+  it('keeps the top and the breakpoint between the 10th and 90th percentiles of x by default, and not with range "flat"', () => {
+    // a straight rise: the top of the flexible fit is at the highest x, outside the middle 80 %
+    const [x, y] = xy(simulateCurve(200, (v) => 1 + 2 * v, 1, 61));
+    const inner = twoLinesTest(x, y, 'hump');
+    expect(inner.flatHigh!).toBeLessThanOrEqual(quantile(x, 0.9));
+    expect(inner.flatLow!).toBeGreaterThanOrEqual(quantile(x, 0.1));
+    expect(inner.breakpoint!).toBeLessThanOrEqual(quantile(x, 0.9));
+    const edge = twoLinesTest(x, y, 'hump', { range: 'flat' });
+    expect(edge.flatHigh!).toBeGreaterThan(quantile(x, 0.9));
+  });
+
+  it('split "each" takes the second slope from the run that puts the points at the breakpoint in the second line', () => {
+    // x in steps of 0.05 with three plots at each x: the breakpoint falls on observed x
+    const x = Array.from({ length: 63 }, (_, i) => Math.floor(i / 3) * 0.05);
+    const y = x.map((v, i) => 10 + 8 * v - 8 * v * v + ((i * 7919) % 13) / 13 - 0.5);
+    const t = twoLinesTest(x, y, 'hump', { split: 'each' });
+    const xc = t.breakpoint!;
+    expect(x).toContain(xc);
+    const below = Math.max(...x.filter((v) => v < xc));
+    expect(t.first!.slope).toBeCloseTo(interruptedRegression(x, y, xc)!.first.slope, 12);
+    expect(t.second!.slope).toBeCloseTo(interruptedRegression(x, y, below)!.second.slope, 12);
+    expect(t.second!.n).toBe(x.filter((v) => v >= xc).length);
+  });
+
+  it('pValues "normal" gives each slope p = 2(1 − Φ(|t|)) from the same t', () => {
+    const [x, y] = xy(simulateCurve(40, (v) => 10 + 8 * v - 8 * v * v, 1, 67));
+    const t = twoLinesTest(x, y, 'hump');
+    const z = twoLinesTest(x, y, 'hump', { pValues: 'normal' });
+    expect(z.first!.t).toBe(t.first!.t);
+    expect(z.first!.p).toBeCloseTo(normalTwoSidedP(t.first!.t), 15);
+    // normal tails are thinner than Student t's: a smaller p from the same t
+    expect(z.first!.p).toBeLessThan(t.first!.p);
+  });
+
+  it('smooth "spline" still finds a planted hump and not a straight rise', () => {
+    const [x, y] = xy(simulateCurve(300, (v) => 10 + 8 * v - 8 * v * v, 1, 71));
+    expect(twoLinesTest(x, y, 'hump', PUBLISHED_TWO_LINES).passes).toBe(true);
+    const [lx, ly] = xy(simulateCurve(300, (v) => 1 + 2 * v, 1, 73));
+    expect(twoLinesTest(lx, ly, 'hump', PUBLISHED_TWO_LINES).passes).toBe(false);
   });
 });

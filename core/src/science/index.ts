@@ -14,6 +14,8 @@ export * from './hump-bootstrap';
 export * from './hump-two-lines';
 export * from './random';
 export * from './regression';
+export * from './normal';
+export * from './spline';
 export * from './student-t';
 export * from './verdict';
 export * from './stratified';

@@ -259,6 +259,8 @@ export function computePlotMetrics(
   const stemAgbKg: (number | null)[] | undefined = options.stemAgb ? new Array<number | null>(stems.length).fill(null) : undefined;
   const wdBa: Record<WoodDensityLevel, number> = { species: 0, genus: 0, family: 0, plot: 0, default: 0 };
   const heightCount = [0, 0, 0];
+  const heightAgb = [0, 0, 0];
+  const wdAgb: Record<WoodDensityLevel, number> = { species: 0, genus: 0, family: 0, plot: 0, default: 0 };
   let outsideRange = 0;
   let agbKgHa = 0;
   for (let i = 0; i < nLive; i += 1) {
@@ -266,14 +268,14 @@ export function computePlotMetrics(
     const rho = wd.values[i];
     wdBa[wd.levels[i]] += baHa[i];
     const measured = height[i];
-    if (measured !== null) heightCount[HEIGHT_MEASURED] += 1;
-    else if (heightModel !== null) {
-      heightCount[HEIGHT_MODELLED] += 1;
-      if (d < heightModel.dbhMinCm || d > heightModel.dbhMaxCm) outsideRange += 1;
-    } else heightCount[HEIGHT_NONE] += 1;
+    const source = measured !== null ? HEIGHT_MEASURED : heightModel !== null ? HEIGHT_MODELLED : HEIGHT_NONE;
+    heightCount[source] += 1;
+    if (source === HEIGHT_MODELLED && heightModel !== null && (d < heightModel.dbhMinCm || d > heightModel.dbhMaxCm)) outsideRange += 1;
     const agb = agbOf(rho, d, measured);
     if (stemAgbKg) stemAgbKg[includedAt[i]] = agb;
     agbKgHa += weight[i] * agb;
+    heightAgb[source] += weight[i] * agb;
+    wdAgb[wd.levels[i]] += weight[i] * agb;
   }
   for (let j = 0; j < below.length; j += 1) {
     const s = stems[below[j].at];
@@ -294,6 +296,8 @@ export function computePlotMetrics(
     else shade += baHa[i];
   }
   const share = (x: number): number | null => (totalBaHa > 0 ? x / totalBaHa : null);
+  // Biomass method shares: the part of the plot's live AGB per hectare computed each way.
+  const agbShare = (x: number): number | null => (agbKgHa > 0 ? x / agbKgHa : null);
 
   // Diversity on identified live main-plot stems
   const counts = [...speciesCounts.values()];
@@ -329,6 +333,14 @@ export function computePlotMetrics(
     loggingScore: logging,
     fireScore: fireValue,
     disturbanceIndex: disturbanceIndex(logging, fireValue),
+    agbHeightMeasuredShare: agbShare(heightAgb[HEIGHT_MEASURED]),
+    agbHeightModelledShare: agbShare(heightAgb[HEIGHT_MODELLED]),
+    agbNoHeightShare: agbShare(heightAgb[HEIGHT_NONE]),
+    agbWdSpeciesShare: agbShare(wdAgb.species),
+    agbWdGenusShare: agbShare(wdAgb.genus),
+    agbWdFamilyShare: agbShare(wdAgb.family),
+    agbWdPlotShare: agbShare(wdAgb.plot),
+    agbWdDefaultShare: agbShare(wdAgb.default),
   };
 
   const unresolvedNames = [...unresolved.entries()]

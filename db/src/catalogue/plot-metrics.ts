@@ -169,6 +169,54 @@ export const PLOT_METRICS = [
     description: 'Combined disturbance index of the logging and fire scores, 0 none to 1 severe.',
     regionRow: 7, headline: true, fittable: true,
   },
+  {
+    key: 'agbHeightMeasuredShare', column: 'agb_height_measured_share', sqlType: 'float8', nullable: true,
+    label: 'Share of AGB with measured height', short: 'AGB share, measured height', unit: '',
+    description: 'Share of live above-ground biomass from stems whose height was measured (Chave et al. 2014 eq. 4 with that height); null without live biomass.',
+    regionRow: null, headline: false, fittable: false,
+  },
+  {
+    key: 'agbHeightModelledShare', column: 'agb_height_modelled_share', sqlType: 'float8', nullable: true,
+    label: 'Share of AGB with modelled height', short: 'AGB share, modelled height', unit: '',
+    description: 'Share of live above-ground biomass from stems whose height came from the local height–diameter model (Chave et al. 2014 eq. 4); null without live biomass.',
+    regionRow: null, headline: false, fittable: false,
+  },
+  {
+    key: 'agbNoHeightShare', column: 'agb_no_height_share', sqlType: 'float8', nullable: true,
+    label: 'Share of AGB from the model without height', short: 'AGB share, no height', unit: '',
+    description: 'Share of live above-ground biomass from stems without a measured or modelled height (Chave et al. 2005, no height); null without live biomass.',
+    regionRow: null, headline: false, fittable: false,
+  },
+  {
+    key: 'agbWdSpeciesShare', column: 'agb_wd_species_share', sqlType: 'float8', nullable: true,
+    label: 'Share of AGB with species wood density', short: 'AGB share, species density', unit: '',
+    description: 'Share of live above-ground biomass from stems whose wood density came from their species; null without live biomass.',
+    regionRow: null, headline: false, fittable: false,
+  },
+  {
+    key: 'agbWdGenusShare', column: 'agb_wd_genus_share', sqlType: 'float8', nullable: true,
+    label: 'Share of AGB with genus wood density', short: 'AGB share, genus density', unit: '',
+    description: 'Share of live above-ground biomass from stems whose wood density came from the mean of their genus; null without live biomass.',
+    regionRow: null, headline: false, fittable: false,
+  },
+  {
+    key: 'agbWdFamilyShare', column: 'agb_wd_family_share', sqlType: 'float8', nullable: true,
+    label: 'Share of AGB with family wood density', short: 'AGB share, family density', unit: '',
+    description: 'Share of live above-ground biomass from stems whose wood density came from the mean of their family; null without live biomass.',
+    regionRow: null, headline: false, fittable: false,
+  },
+  {
+    key: 'agbWdPlotShare', column: 'agb_wd_plot_share', sqlType: 'float8', nullable: true,
+    label: 'Share of AGB with plot-mean wood density', short: 'AGB share, plot density', unit: '',
+    description: 'Share of live above-ground biomass from stems whose wood density came from the mean of the plot; null without live biomass.',
+    regionRow: null, headline: false, fittable: false,
+  },
+  {
+    key: 'agbWdDefaultShare', column: 'agb_wd_default_share', sqlType: 'float8', nullable: true,
+    label: 'Share of AGB with default wood density', short: 'AGB share, default density', unit: '',
+    description: 'Share of live above-ground biomass from stems whose wood density came from the regional default; null without live biomass.',
+    regionRow: null, headline: false, fittable: false,
+  },
 ] as const satisfies readonly PlotMetricSpec[];
 
 export type PlotMetricEntry = (typeof PLOT_METRICS)[number];

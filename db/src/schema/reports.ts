@@ -29,6 +29,8 @@ export const regionSummaries = pgTable(
     etag: text('etag').notNull(),
     payload: jsonb('payload').notNull(),
     createdAt: timestamp('created_at', { withTimezone: true }).notNull().defaultNow(),
+    /** Keys of the plots the version summarised (byte order), for "what changed" against the version before; null in versions made before it was kept. */
+    plotKeys: text('plot_keys').array(),
   },
   (t) => [unique('region_summaries_version_uq').on(t.regionId, t.version)],
 );

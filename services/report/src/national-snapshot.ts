@@ -12,6 +12,7 @@ import { renderMeansChartSvg } from '@stemwise/core/charts';
 import type { Logger } from '@stemwise/platform';
 import { summariseNation, type NationalRegionInput } from './summary/national-summary';
 import { summaryVariables } from './summary/region-summary';
+import { biomassMethodShares, type BiomassMethodRow } from './summary/biomass-method';
 import type { SnapshotData, SnapshotMethod } from './snapshot-payload';
 import { payloadEtag, samplingErrorMultiplier } from './snapshots';
 
@@ -31,6 +32,8 @@ export interface NationalPayload {
   readonly summary: NationalSummary;
   /** Region → its latest summary version (null: none yet) when this was assembled. */
   readonly sources: Readonly<Record<string, number | null>>;
+  /** Share of the AGB from each height source and wood-density level, over every plot (absent in older snapshots). */
+  readonly biomass_method?: readonly BiomassMethodRow[];
   readonly charts: { readonly means: string | null };
 }
 
@@ -74,6 +77,7 @@ export async function assembleNationalSnapshot(deps: Deps, sources: Readonly<Rec
     method: { estimator: NATIONAL_ESTIMATOR },
     summary,
     sources,
+    biomass_method: biomassMethodShares(regions.flatMap((r) => r.plots)),
     charts: { means },
   };
 }

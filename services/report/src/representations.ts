@@ -16,6 +16,8 @@ export function summaryJson(s: Snapshot): string {
     method: rest.method,
     summary: rest.summary,
     fits: rest.fits,
+    biomass_method: rest.biomass_method ?? null,
+    plot_sizes: rest.plot_sizes ?? null,
   });
 }
 
@@ -28,6 +30,6 @@ export function summaryCsv(s: Snapshot | NationalSnapshot): string {
 
 /** The national snapshot as JSON (everything but the chart SVG). */
 export function nationalJson(s: NationalSnapshot): string {
-  const { data, method, summary, sources } = s.payload;
-  return JSON.stringify({ region: 'national', version: s.version, created_at: s.createdAt.toISOString(), etag: s.etag, data, method, summary, sources });
+  const { data, method, summary, sources, biomass_method } = s.payload;
+  return JSON.stringify({ region: 'national', version: s.version, created_at: s.createdAt.toISOString(), etag: s.etag, data, method, summary, sources, biomass_method: biomass_method ?? null });
 }

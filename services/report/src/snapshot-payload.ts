@@ -1,4 +1,5 @@
 import type { RegionSummary, TestOutcome } from '@stemwise/core';
+import type { BiomassMethodRow } from './summary/biomass-method';
 
 // What one region_summaries.payload holds (format 1). The API serves it without `charts`; the page
 // draws the charts from it. Plain JSON; null where a value cannot be computed.
@@ -47,6 +48,12 @@ export interface SnapshotFitRow {
   readonly peak_boot_high?: number | null;
 }
 
+export interface PlotSize {
+  readonly forest_type: string;
+  readonly area_ha: number;
+  readonly n_plots: number;
+}
+
 export interface FitChart {
   readonly forest_type: string;
   readonly metric: string;
@@ -84,6 +91,10 @@ export interface SnapshotPayload {
   readonly method: SnapshotMethod;
   readonly summary: RegionSummary;
   readonly fits: readonly SnapshotFitRow[];
+  /** Share of the AGB from each height source and wood-density level (absent in older snapshots). */
+  readonly biomass_method?: readonly BiomassMethodRow[];
+  /** Plots per forest type and plot area in ha (absent in older snapshots). */
+  readonly plot_sizes?: readonly PlotSize[];
   readonly charts: {
     readonly means: string | null;
     readonly guilds: string | null;

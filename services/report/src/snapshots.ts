@@ -4,6 +4,8 @@ import {
   clearStale,
   getFitChart,
   insertSummarySnapshot,
+  listRegionPlotSizes,
+  recordSummaryPlotKeys,
   listCurveFits,
   listLatestChartSvgs,
   listRegionForestAreas,
@@ -18,6 +20,7 @@ import { isInfrastructureError, PermanentError, type Config, type Logger } from 
 import { buildFitChartSpec, buildGuildChartSpec, buildMeansChartSpec, chartSpecKey, regionChartPoints, renderVegaLiteSvg, type TopLevelSpec } from '@stemwise/core/charts';
 import { RegionSummaryInputError, summariseRegion, summaryVariables, type PlotMetrics } from './summary/region-summary';
 import { SNAPSHOT_FORMAT, type FitChart, type SnapshotFitRow, type SnapshotMethod, type SnapshotPayload } from './snapshot-payload';
+import { biomassMethodShares } from './summary/biomass-method';
 
 type Deps = Pick<ServiceDeps, 'db' | 'config'> & { log?: Logger };
 
@@ -87,12 +90,13 @@ async function optionalChart(deps: Deps, what: string, spec: () => TopLevelSpec 
 /** Assembles a region's snapshot payload from the database (no write). */
 export async function assembleRegionSnapshot(deps: Deps, region: string, charts: StoredChartCache = new Map()): Promise<SnapshotPayload> {
   const { db, config } = deps;
-  const [plots, areas, names, species, drawnBefore] = await Promise.all([
+  const [plots, areas, names, species, drawnBefore, sizes] = await Promise.all([
     listRegionLatestPlots(db, region),
     listRegionForestAreas(db, region),
     listRegionStemNames(db, region),
     currentSpecies(db),
     listLatestChartSvgs(db, region),
+    listRegionPlotSizes(db, region),
   ]);
   // Species counts use accepted names (synonyms and spelling variants count as their species), like richness.
   const accepted = new Map<string, string[]>();
@@ -133,6 +137,8 @@ export async function assembleRegionSnapshot(deps: Deps, region: string, charts:
     method: methodOf(config),
     summary,
     fits,
+    biomass_method: biomassMethodShares(inputPlots),
+    plot_sizes: sizes.map((z) => ({ forest_type: z.forestType, area_ha: z.areaHa, n_plots: z.plots })),
     charts: { means: means.svg, guilds: guilds.svg, fits: fitCharts, drawn_from: { means: means.key, guilds: guilds.key } },
   };
 }
@@ -185,6 +191,7 @@ export async function refreshStaleSummaries(deps: Deps & { runId?: string }): Pr
     const etag = payloadEtag(payload);
     const stored = await db.transaction(async (tx) => {
       const r = await insertSummarySnapshot(tx, region, etag, payload);
+      if (r.created) await recordSummaryPlotKeys(tx, region, r.version);
       await clearStale(tx, 'summary', [mark]);
       await clearProblems(tx, 'summary', [region]);
       return r;
