@@ -57,6 +57,8 @@ const CASES: Case[] = [
   { method: 'GET', url: '/v1/regions/Northvale/summary?version=1', expect: REGION_N },
   { method: 'GET', url: '/v1/regions/Northvale/versions', expect: REGION_N },
   { method: 'GET', url: '/v1/regions/Northvale/plots', expect: REGION_N },
+  { method: 'GET', url: '/v1/regions/Northvale/changes', expect: REGION_N },
+  { method: 'GET', url: '/v1/regions/Northvale/changes?version=1', expect: REGION_N },
   { method: 'GET', url: '/v1/national/summary', expect: ADMIN_ONLY },
   { method: 'GET', url: '/v1/national/summary?format=csv', expect: ADMIN_ONLY },
   { method: 'GET', url: '/v1/national/summary?version=1', expect: ADMIN_ONLY },

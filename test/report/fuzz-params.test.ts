@@ -50,6 +50,7 @@ const ROUTES: Route[] = [
   (p) => `/v1/regions/${p}/summary`,
   (p) => `/v1/regions/${p}/versions`,
   (p) => `/v1/regions/${p}/plots`,
+  (p) => `/v1/regions/${p}/changes`,
   () => '/v1/regions',
   () => '/v1/fits',
   (p) => `/v1/batches/${p}`,

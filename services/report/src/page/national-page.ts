@@ -1,6 +1,7 @@
 import type { NationalSnapshot } from '../national-snapshot';
 import { figure, isoMinute } from './figures';
 import { html, safeSvg } from './html';
+import { biomassMethodSection } from './biomass-method-section';
 import { cautionLegend, cautions, estimatesTable, headlineCards, versionsList, visitsSentence } from './region-page';
 import { pageShell } from './shell';
 
@@ -50,6 +51,7 @@ export function renderNationalPage(input: NationalPageInput): string {
   <h2>Estimates by forest type, nationally</h2>
   ${estimatesTable(summary.rows, WHOLE_COUNTRY)}
   ${cautionLegend(summary.caution)}
+  ${biomassMethodSection(s.payload.biomass_method)}
   <h2>Strata</h2>
   <table id="strata"><thead><tr><th>Region</th><th>Forest type</th><th class="num">Plots</th><th class="num">Forest area (ha)</th></tr></thead><tbody>${summary.strata.map(
     (t) => html`<tr><td>${t.region}</td><td>${t.forest_type}</td><td class="num">${t.n_plots}</td><td class="num">${figure(t.forest_area_ha)}</td></tr>`,

@@ -5,6 +5,10 @@ import { estimate, estimateInterval, figure, isoMinute, samplingError, sharePerc
 import { html, safeSvg, type Markup } from './html';
 import { pageShell } from './shell';
 import { fitsSection } from './fits-section';
+import { biomassMethodSection } from './biomass-method-section';
+import { plotSizeNote } from './plot-size-note';
+import { whatChangedSection } from './what-changed-section';
+import type { SummaryChanges } from '../summary/summary-changes';
 
 export interface RegionPageLinks {
   index: string;
@@ -23,6 +27,8 @@ export interface RegionPageInput {
   versions: ReadonlyArray<{ version: number; createdAt: Date }>;
   /** What the latest recompute could not compute for this region (its plots, fits, summary); a short note when any. */
   problems?: readonly ProblemView[];
+  /** What changed since the version before (docs/methods.md#what-changed-between-versions); absent where not read. */
+  changes?: SummaryChanges | null;
 }
 
 const WHOLE = 'all';
@@ -201,10 +207,12 @@ export function renderRegionPage(input: RegionPageInput): string {
   ${means ? html`<figure id="means-chart">${means}<figcaption>Means per hectare with their 95 % confidence intervals: the whole region (dark) and each forest type. Wide intervals come from few plots.</figcaption></figure>` : null}
   ${guilds ? html`<figure id="guild-chart">${guilds}<figcaption>Guild composition: the mean share of live basal area per plot.</figcaption></figure>` : null}
   <h2>Diversity and disturbance by forest type</h2>
+  ${plotSizeNote(s.payload.plot_sizes)}
   ${fitsSection(s)}
   <h2>Estimates by forest type</h2>
   ${estimatesTable(summary.rows)}
   ${cautionLegend(summary.caution)}
+  ${biomassMethodSection(s.payload.biomass_method)}
   <h2>Guild composition</h2>
   ${guildTable(s) ?? html`<p class="muted">No guild shares.</p>`}
   <h2>Plots by disturbance class</h2>
@@ -225,6 +233,7 @@ export function renderRegionPage(input: RegionPageInput): string {
     <a href="${links.summaryJson}">Summary (JSON)</a>
     <a href="${links.plotsGeoJson}">Plots with metrics (GeoJSON)</a>
   </p>
+  ${whatChangedSection(input.changes)}
   <h2>Versions of this summary</h2>
   ${versionsList(input)}
 </main>

@@ -14,6 +14,7 @@ import { checkToken, requireToken, routeOf, TOKEN_COOKIE, type Deny, type RouteC
 import { checkNational, NATIONAL_LINKS } from './national';
 import { checkRegion, regionLinks, visibleRegions } from './regions';
 import { RegionParams, VersionNumber } from './schemas';
+import { readSummaryChanges } from '../what-changed';
 
 const COOKIE_MAX_AGE_S = 30 * 24 * 3600;
 
@@ -124,10 +125,12 @@ export function pageRoutes(app: FastifyInstance, ctx: RouteContext): void {
       const v = entry.snapshot.version;
       const versions = await listSummaryVersions(ctx.deps.db, region);
       const problems = (await listRegionProblems(ctx.deps.db, region, entry.snapshot.payload.summary.forest_types)).map(problemView);
+      const changes = await readSummaryChanges(ctx.deps.db, region, v);
       const body = renderRegionPage({
         snapshot: entry.snapshot,
         versions,
         problems,
+        changes,
         links: {
           index: '/',
           summaryJson: `${links.summary}?version=${v}`,

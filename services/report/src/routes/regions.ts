@@ -4,13 +4,15 @@ import { listNationalVersions, listRegionHeads, listSummaryVersions } from '@ste
 import { regionPlotsGeoJson } from '../plots-geojson';
 import { canSeeNational, canSeeRegion, readsRegions, type Principal } from '../access';
 import { denyJson, requireToken, type Deny, type RouteContext } from './auth';
-import { ErrorBody, GeoJsonCollection, RegionList, RegionParams, SummaryQuery, SummaryResponse, VersionList } from './schemas';
+import { ErrorBody, GeoJsonCollection, RegionList, RegionParams, SummaryChangesResponse, SummaryQuery, SummaryResponse, VersionList } from './schemas';
+import { readSummaryChanges } from '../what-changed';
 
 const enc = encodeURIComponent;
 export const regionLinks = (region: string) => ({
   summary: `/v1/regions/${enc(region)}/summary`,
   summary_csv: `/v1/regions/${enc(region)}/summary?format=csv`,
   plots: `/v1/regions/${enc(region)}/plots`,
+  changes: `/v1/regions/${enc(region)}/changes`,
   page: `/regions/${enc(region)}`,
 });
 
@@ -156,6 +158,32 @@ export function regionRoutes(app: FastifyInstance, ctx: RouteContext): void {
       if (!(await checkRegion(ctx, request, reply, region))) return reply;
       const versions = await listSummaryVersions(ctx.deps.db, region);
       return { region, versions: versions.map((v) => ({ version: v.version, etag: v.etag, created_at: v.createdAt.toISOString() })) };
+    },
+  );
+
+  r.get(
+    '/v1/regions/:region/changes',
+    {
+      preValidation: auth,
+      schema: {
+        summary: "What changed in a region's summary since the version before: plots added and removed, estimates moved by more than their SE",
+        description: 'The latest version unless `?version=N`.',
+        tags: ['regions'],
+        security,
+        params: RegionParams,
+        querystring: SummaryQuery.pick({ version: true }),
+        response: { 200: SummaryChangesResponse, 401: ErrorBody, 403: ErrorBody, 404: ErrorBody },
+      },
+    },
+    async (request, reply) => {
+      const { region } = request.params;
+      if (!(await checkRegion(ctx, request, reply, region))) return reply;
+      const changes = await readSummaryChanges(ctx.deps.db, region, request.query.version);
+      if (!changes) {
+        const what = request.query.version ? `version ${request.query.version} of the summary of '${region}' does not exist` : `no summary of '${region}' yet: it is assembled by the next recompute`;
+        return denyJson(reply, 404, 'not_found', what);
+      }
+      return { region, ...changes };
     },
   );
 

@@ -28,7 +28,7 @@ export const RegionListItem = z.object({
   plots: z.number().int(),
   latest_version: z.number().int().nullable().describe('null until the first summary is assembled'),
   updated_at: z.string().nullable(),
-  links: z.object({ summary: z.string(), summary_csv: z.string(), plots: z.string(), page: z.string() }),
+  links: z.object({ summary: z.string(), summary_csv: z.string(), plots: z.string(), changes: z.string(), page: z.string() }),
 });
 export const RegionList = z.object({
   national: z
@@ -186,6 +186,18 @@ export const NationalResponse = SummaryResponse.omit({ fits: true }).extend({
   method: z.object({ estimator: z.string() }),
   summary: NationalSummarySchema,
   sources: z.record(z.string(), z.number().int().nullable()).describe('region → its summary version current when this was assembled'),
+});
+
+export const SummaryChangesResponse = z.object({
+  region: z.string(),
+  version: z.number().int(),
+  previous_version: z.number().int().nullable().describe('null: the first version'),
+  plots_added: z.array(z.string()).readonly().nullable().describe('plot keys; null when either version was made before plot lists were kept'),
+  plots_removed: z.array(z.string()).readonly().nullable(),
+  moved: z
+    .array(z.object({ forest_type: z.string(), variable: z.string(), old_mean: z.number(), new_mean: z.number(), se: z.number() }))
+    .readonly()
+    .describe('estimates whose mean moved by more than the SE of the new estimate'),
 });
 
 export const VersionList = z.object({
