@@ -163,6 +163,20 @@ describe('computePlotMetrics with a local height–diameter model', () => {
     const sub = agbChave2014(0.6, 8, h(8)) + agbChave2014(rhoPlot, 6, h(6));
     expect(rel(m.agbMgHa, (2 * main + 10 * sub) / 1000)).toBeLessThan(1e-13);
   });
+  it('splits the AGB by height source and wood-density level (agb_*_share columns; hand-computed, rel 1e-13)', () => {
+    const rhoPlot = 4104 / 6640;
+    const h = (x: number): number => predictHeight(model, x);
+    const measured = 2 * (agbChave2014(0.4, 20, 15) + agbChave2014(0.8, 40, 25));
+    const plotLevel = 2 * agbChave2014(rhoPlot, 20, h(20)) + 10 * agbChave2014(rhoPlot, 6, h(6));
+    const total = m.agbMgHa * 1000;
+    expect(rel(m.agbHeightMeasuredShare as number, measured / total)).toBeLessThan(1e-13);
+    expect(rel(m.agbHeightModelledShare as number, 1 - measured / total)).toBeLessThan(1e-13);
+    expect(m.agbNoHeightShare).toBe(0);
+    expect(rel(m.agbWdPlotShare as number, plotLevel / total)).toBeLessThan(1e-13);
+    const wd = [m.agbWdSpeciesShare, m.agbWdGenusShare, m.agbWdFamilyShare, m.agbWdPlotShare, m.agbWdDefaultShare] as number[];
+    expect(Math.abs(wd.reduce((a, b) => a + b, 0) - 1)).toBeLessThan(1e-14);
+    expect(m.agbWdDefaultShare).toBe(0);
+  });
   it('reports modelled stems and those outside the fitted dbh range (10, 8 and 6 cm < 15 cm)', () => {
     expect(d.heightSourceShare).toEqual({ measured: 2 / 7, modelled: 5 / 7, noHeightModel: 0 });
     expect(d.modelledOutsideFitRange).toBe(3);
@@ -183,7 +197,7 @@ describe('computePlotMetrics edge cases', () => {
     expect(m.nIdentified).toBe(0);
     expect(m.richness).toBe(0); // a count: no species among no stems
     for (const key of ['shannon', 'simpson', 'invSimpson', 'pielou', 'fisherAlpha', 'rarefied50', 'chao1',
-      'pioneerBaShare', 'lightDemanderBaShare', 'shadeTolerantBaShare', 'unassignedBaShare'] as const) {
+      'pioneerBaShare', 'lightDemanderBaShare', 'shadeTolerantBaShare', 'unassignedBaShare', 'agbHeightMeasuredShare', 'agbWdSpeciesShare'] as const) {
       expect(m[key], key).toBeNull();
     }
     expect(m.loggingRemovedBaFrac).toBe(1);
