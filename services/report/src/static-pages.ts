@@ -8,6 +8,7 @@ import { renderIndexPage } from './page/index-page';
 import { renderNationalPage } from './page/national-page';
 import { renderRegionPage } from './page/region-page';
 import { regionPlotsGeoJson } from './plots-geojson';
+import { readSummaryChanges } from './what-changed';
 import { nationalJson, summaryCsv, summaryJson } from './representations';
 import type { Snapshot, SnapshotPayload } from './snapshot-payload';
 
@@ -64,6 +65,7 @@ export async function writeRegionPages(deps: Pick<ServiceDeps, 'db'>, outDir: st
       renderRegionPage({
         snapshot,
         versions,
+        changes: await readSummaryChanges(db, row.region, snapshot.version),
         links: {
           index: '../index.html',
           summaryJson: `${slug}-summary.json`,
