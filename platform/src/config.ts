@@ -161,7 +161,7 @@ export const SETTINGS: ReadonlyArray<{ name: string; default: string; meaning: s
   { name: 'STEMWISE_SAMPLING_ERROR_T', default: 't', meaning: 'multiplier of the sampling error %: Student t, 1.96 or 2' },
   { name: 'STEMWISE_CAUTION_MIN_PLOTS', default: '20', meaning: 'estimates from fewer plots are marked on the pages and flagged `few_plots` in `caution_flag` (common practice, no single source)' },
   { name: 'STEMWISE_CAUTION_MAX_SAMPLING_ERROR_PCT', default: '20', meaning: 'estimates with a larger sampling error (%) are marked on the pages and flagged `wide_error` in `caution_flag` (common practice, no single source)' },
-  { name: 'STEMWISE_FIT_METRIC', default: 'fisher_alpha', meaning: 'diversity column of the nightly curve fits' },
+  { name: 'STEMWISE_FIT_METRIC', default: 'fisher_alpha', meaning: 'diversity column of the nightly curve fits; `rarefied_50` is the size-fair choice where plot areas differ much ([methods](docs/methods.md#plots-of-different-sizes))' },
   { name: 'STEMWISE_FIT_AXIS', default: 'disturbance_index', meaning: 'disturbance column of the nightly curve fits' },
   { name: 'STEMWISE_BOOTSTRAP', default: '1000', meaning: 'bootstrap resamples for the vertex interval' },
   { name: 'STEMWISE_SEED', default: '20261201', meaning: 'seed of the bootstrap, so reruns give the same intervals' },
