@@ -1,3 +1,4 @@
+import { loadConfig, ROOT_SHOOT_RELATION_NAMES } from '@stemwise/platform';
 import { describe, expect, it } from 'vitest';
 import {
   belowGroundBiomass,
@@ -6,6 +7,7 @@ import {
   IPCC_2006_TABLE_4_4,
   ROOT_SHOOT_RELATIONS,
   rootShootRatio,
+  rootShootRelationOf,
   sdOfRange,
 } from './root-shoot';
 
@@ -94,5 +96,22 @@ describe('defaults and the range rule', () => {
   it('a uniform on [0.09, 0.25] has SD 0.16/√12 = 0.0461880215 (computed)', () => {
     expect(rel(sdOfRange([0.09, 0.25], 0.2), 0.0461880215)).toBeLessThan(1e-9);
     expect(() => sdOfRange([0.3, 0.2], 0.25)).toThrow(/sdOfRange/);
+  });
+});
+
+describe('the relation of each forest type (STEMWISE_ROOT_SHOOT, else by climate)', () => {
+  it('the configuration accepts exactly the relations the science defines', () => {
+    expect([...ROOT_SHOOT_RELATION_NAMES].sort()).toEqual([...ROOT_SHOOT_RELATIONS].sort());
+  });
+  it('a configured forest type uses its relation; the others the default of their climate', () => {
+    const config = loadConfig({ STEMWISE_FOREST_TYPES: 'lowland:wet,hill:moist,scrub:dry', STEMWISE_ROOT_SHOOT: 'hill:tropical_mountain' });
+    expect(rootShootRelationOf('hill', 'moist', config.rootShoot)).toBe('tropical_mountain');
+    expect(rootShootRelationOf('lowland', 'wet', config.rootShoot)).toBe('tropical_rainforest');
+    expect(rootShootRelationOf('scrub', 'dry', config.rootShoot)).toBe('tropical_dry');
+  });
+  it('the configuration refuses an unknown relation, an unknown forest type and a repeated one', () => {
+    expect(() => loadConfig({ STEMWISE_ROOT_SHOOT: 'wet:boreal_forest' })).toThrow(/STEMWISE_ROOT_SHOOT: boreal_forest is not a root-to-shoot relation/);
+    expect(() => loadConfig({ STEMWISE_ROOT_SHOOT: 'swamp:mokany_2006' })).toThrow(/STEMWISE_ROOT_SHOOT: swamp is not a forest type/);
+    expect(() => loadConfig({ STEMWISE_ROOT_SHOOT: 'wet:mokany_2006,wet:tropical_dry' })).toThrow(/listed twice/);
   });
 });

@@ -136,3 +136,18 @@ export function belowGroundBiomass(relation: RootShootRelation, agbMgHa: number)
   const r = rootShootRatio(relation, agbMgHa);
   return r === null ? 0 : r.ratio * agbMgHa;
 }
+
+/** A forest type's configured relation (STEMWISE_ROOT_SHOOT), as the configuration lists them. */
+export interface ConfiguredRootShoot {
+  readonly forestType: string;
+  readonly relation: RootShootRelation;
+}
+
+/** The relation a forest type uses: the configured one, else the default of its climate class. */
+export function rootShootRelationOf(forestType: string, climate: 'dry' | 'moist' | 'wet', configured: readonly ConfiguredRootShoot[]): RootShootRelation {
+  const chosen = configured.find((c) => c.forestType === forestType)?.relation;
+  if (chosen !== undefined) return chosen;
+  const byClimate = DEFAULT_ROOT_SHOOT_BY_CLIMATE[climate];
+  if (byClimate === undefined) fail('rootShootRelationOf', `climate must be dry, moist or wet (got ${String(climate)})`);
+  return byClimate;
+}
