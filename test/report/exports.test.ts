@@ -110,13 +110,13 @@ describe('export regions and the static report', () => {
     const index = fs.readFileSync(path.join(dir, 'index.html'), 'utf8');
     expect(index).toContain('href="national.html"');
     // rounded to the precision of the SE (two significant digits of an SE below 1 → two decimals): 18.50, trailing zero kept
-    expect(index).toMatch(/<tr data-variable="basal_area_m2_ha"><td>Basal area[^]*?<td class="num">18\.50<\/td><td class="num">16\.28 – 20\.72<\/td>/);
+    expect(index).toMatch(/<tr data-variable="reporting_basal_area_m2_ha"><td>Basal area from the reporting threshold[^]*?<td class="num">18\.50<\/td><td class="num">16\.28 – 20\.72<\/td>/);
     const page = fs.readFileSync(written.national!, 'utf8');
     expect(page).toContain('<h1>National figures</h1>');
     expect(page).toContain('Uses the latest visit of each plot, surveyed 2025–2026.');
     expect(page).toContain('All regions (stratified by region × forest type)');
     expect(page).toMatch(/<h2 id="carbon-pools">Carbon pools<\/h2>\s*<table id="pools">[^]*<td>Soil organic carbon<\/td><td><strong>not covered<\/strong>/);
-    expect(page).toMatch(/<div class="card" data-variable="basal_area_m2_ha">[^]*?<div class="value">18\.50 [^]*?SE 0\.\d\d<\/div>/);
+    expect(page).toMatch(/<div class="card" data-variable="reporting_basal_area_m2_ha">[^]*?<div class="value">18\.50 [^]*?SE 0\.\d\d<\/div>/);
     // the JSON keeps full precision
     const rows = JSON.parse(fs.readFileSync(path.join(dir, 'national-summary.json'), 'utf8')).summary.rows as Array<{ forest_type: string; variable: string; mean: number }>;
     expect(rows.find((r) => r.forest_type === 'all' && r.variable === 'basal_area_m2_ha')?.mean).toBeCloseTo(18.5, 10);
