@@ -37,10 +37,11 @@ describe('export regions and the static report', () => {
     expect(all.rows).toBe(lines.length - 1);
     const regionOf = lines.slice(1).map((l) => l.split(',')[0]);
     expect(new Set(regionOf)).toEqual(new Set(['Northvale', 'Southmere', 'national'])); // Ostmark has no summary
-    // the national rows come last: `all` then each forest type, every default variable (18 × 4: 13, then the 5 carbon pools)
+    // the national rows come last: `all` then each forest type, every default variable (13 of version 1,
+    // the 5 carbon pools and the 4 at the reporting threshold: 22 × 4; seeded plots have no stand tables)
     const first = regionOf.indexOf('national');
     expect(regionOf.slice(first).every((r) => r === 'national')).toBe(true);
-    expect(regionOf.length - first).toBe(18 * 4);
+    expect(regionOf.length - first).toBe(22 * 4);
     // 12 plots of three regions with plot-count weights: ȳ = 18.5 (by hand, see summaries.test.ts), no total
     // 12 plots are fewer than the default 20: flagged few_plots (with the sampling error of 12 %, not above 20 %)
     expect(lines.filter((l) => /^national,all,basal_area_m2_ha,12,18\.5,[^,]+,[^,]+,[^,]+,[^,]+,,,few_plots$/.test(l))).toHaveLength(1);
