@@ -6,4 +6,6 @@ ALTER TABLE "plot_metrics" ADD COLUMN "agb_wd_genus_share" double precision;--> 
 ALTER TABLE "plot_metrics" ADD COLUMN "agb_wd_family_share" double precision;--> statement-breakpoint
 ALTER TABLE "plot_metrics" ADD COLUMN "agb_wd_plot_share" double precision;--> statement-breakpoint
 ALTER TABLE "plot_metrics" ADD COLUMN "agb_wd_default_share" double precision;--> statement-breakpoint
+-- Visits computed before the biomass method shares existed are due again, so the next run fills them.
+UPDATE "plot_visits" SET "stale" = true WHERE NOT "stale" AND "id" IN (SELECT "visit_id" FROM "plot_metrics");--> statement-breakpoint
 ALTER TABLE "region_summaries" ADD COLUMN "plot_keys" text[];
