@@ -8,6 +8,9 @@ import { renderIndexPage } from './page/index-page';
 import { renderNationalPage } from './page/national-page';
 import { renderRegionPage } from './page/region-page';
 import { regionPlotsGeoJson } from './plots-geojson';
+import { mapSection } from './page/map-section';
+import { DEFAULT_PLOT_SORT, plotTable, plotTableVariables } from './page/plot-table';
+import { DEFAULT_MAP_VARIABLE, plotMapSvg, readRegionPlots } from './plot-map';
 import { nationalJson, summaryCsv, summaryJson } from './representations';
 import type { Snapshot, SnapshotPayload } from './snapshot-payload';
 
@@ -58,12 +61,18 @@ export async function writeRegionPages(deps: Pick<ServiceDeps, 'db'>, outDir: st
     write(path.join(regionsDir, `${slug}-summary.json`), summaryJson(snapshot));
     write(path.join(regionsDir, `${slug}-plots.geojson`), await regionPlotsGeoJson(db, row.region));
     const versions = await listSummaryVersions(db, row.region);
+    // No server behind the files: the map keeps its default colouring, and plots are not links.
+    const groups = await readRegionPlots(db, [row.region]);
+    const what = `Plots of ${row.region}`;
+    const map = mapSection({ svg: await plotMapSvg(groups, DEFAULT_MAP_VARIABLE, what, null), variable: DEFAULT_MAP_VARIABLE, choices: null, what, linked: false });
+    const table = plotTable({ plots: groups[0].plots, variables: plotTableVariables(null), sort: DEFAULT_PLOT_SORT, sortHref: null, plotHref: null });
     const page = path.join(regionsDir, `${slug}.html`);
     write(
       page,
       renderRegionPage({
         snapshot,
         versions,
+        plots: { map, table },
         links: {
           index: '../index.html',
           summaryJson: `${slug}-summary.json`,

@@ -1,6 +1,6 @@
 import type { NationalSnapshot } from '../national-snapshot';
 import { figure, isoMinute } from './figures';
-import { html, safeSvg } from './html';
+import { html, safeSvg, type Markup } from './html';
 import { cautionLegend, cautions, estimatesTable, headlineCards, versionsList, visitsSentence } from './region-page';
 import { pageShell } from './shell';
 
@@ -16,6 +16,8 @@ export interface NationalPageInput {
   };
   /** Every version of the national summary, newest first. */
   versions: ReadonlyArray<{ version: number; createdAt: Date }>;
+  /** The map of every region's plots (page/map-section.ts); absent: not shown. */
+  map?: Markup | null;
 }
 
 const WHOLE_COUNTRY = 'All regions (stratified by region × forest type)';
@@ -47,6 +49,7 @@ export function renderNationalPage(input: NationalPageInput): string {
   ${headlineCards(summary.rows, summary.totals)}
   ${cautionLegend(summary.caution)}
   ${means ? html`<h2>Charts</h2><figure id="means-chart">${means}<figcaption>Means per hectare with their 95 % confidence intervals: all regions together (dark) and each forest type nationally.</figcaption></figure>` : null}
+  ${input.map ? html`<h2 id="where">Where the plots are</h2>${input.map}` : null}
   <h2>Estimates by forest type, nationally</h2>
   ${estimatesTable(summary.rows, WHOLE_COUNTRY)}
   ${cautionLegend(summary.caution)}
