@@ -7,6 +7,9 @@ import { renderPlotMapSvg, type MapPlot } from '@stemwise/core/charts';
 // of equal inputs is kept (a few dozen, least recently used dropped), so a page seen again costs one
 // query, not a drawing.
 
+/** Address of a plot's page on the server. */
+export const plotPagePath = (region: string, plotKey: string): string => `/regions/${encodeURIComponent(region)}/plots/${encodeURIComponent(plotKey)}`;
+
 /** Columns a map may be coloured by: every numeric column of `export plots` (the catalogue). */
 export const MAP_VARIABLES: readonly string[] = PLOT_METRICS.map((m) => m.column);
 /** What a map shows unless the reader picks another: above-ground biomass. */

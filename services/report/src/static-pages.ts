@@ -27,6 +27,12 @@ export function regionSlug(region: string): string {
   return plain && base ? base : `${base || 'region'}-${crypto.createHash('sha256').update(region).digest('hex').slice(0, 6)}`;
 }
 
+// The fit charts' points link to plot pages on the server; the files have none, so the links go.
+function withoutPlotLinks(payload: SnapshotPayload): SnapshotPayload {
+  const unlink = (svg: string | null) => svg && svg.replace(/<a\b[^>]*>|<\/a>/g, '');
+  return { ...payload, charts: { ...payload.charts, fits: payload.charts.fits.map((c) => ({ ...c, svg: unlink(c.svg) })) } };
+}
+
 export interface WrittenPages {
   index: string;
   /** national.html, when a national summary exists. */
@@ -53,7 +59,7 @@ export async function writeRegionPages(deps: Pick<ServiceDeps, 'db'>, outDir: st
   const written: WrittenPages['regions'] = [];
   const slugs = new Map<string, string>();
   for (const row of await listLatestSnapshots(db)) {
-    const snapshot: Snapshot = { region: row.region, version: row.version, etag: row.etag, createdAt: row.createdAt, payload: row.payload as SnapshotPayload };
+    const snapshot: Snapshot = { region: row.region, version: row.version, etag: row.etag, createdAt: row.createdAt, payload: withoutPlotLinks(row.payload as SnapshotPayload) };
     let slug = regionSlug(row.region);
     if ([...slugs.values()].includes(slug)) slug = `${slug}-${crypto.createHash('sha256').update(row.region).digest('hex').slice(0, 6)}`;
     slugs.set(row.region, slug);

@@ -5,17 +5,13 @@ import { mapSection, MAP_PARAM } from '../page/map-section';
 import { DEFAULT_PLOT_SORT, plotTable, plotTableVariables, type PlotSort } from '../page/plot-table';
 import { renderPlotPage } from '../page/plot-page';
 import type { Markup } from '../page/html';
-import { DEFAULT_MAP_VARIABLE, MAP_VARIABLES, plotMapSvg, readRegionPlots, type RegionPlots } from '../plot-map';
+import { DEFAULT_MAP_VARIABLE, MAP_VARIABLES, plotMapSvg, plotPagePath, readRegionPlots, type RegionPlots } from '../plot-map';
 import { readPlotPage } from '../plot-page-data';
 import type { Deny, RouteContext } from './auth';
 import { checkRegion, regionLinks } from './regions';
 import { paramText, RegionParams, VersionNumber } from './schemas';
 
 // The plot pages (/regions/:region/plots/:plotId), and the plot map and plot table of the other pages.
-
-const enc = encodeURIComponent;
-/** Address of a plot's page on the server. */
-export const plotPagePath = (region: string, plotKey: string): string => `/regions/${enc(region)}/plots/${enc(plotKey)}`;
 
 const variables = MAP_VARIABLES as [string, ...string[]];
 /** The query of a page with a map: the map's variable. */
