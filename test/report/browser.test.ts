@@ -91,11 +91,13 @@ function watch(page: Page): string[] {
 async function shootBothWays(page: Page, name: string, mustPrint: readonly string[]): Promise<void> {
   await page.emulateMedia({ media: 'screen' });
   await page.screenshot({ path: path.join(shots, `${name}.png`), fullPage: true });
+  for (const [i, sel] of mustPrint.entries()) await page.locator(sel).first().screenshot({ path: path.join(shots, `${name}-part${i + 1}.png`) });
   await page.emulateMedia({ media: 'print' });
-  for (const sel of mustPrint) {
+  for (const [i, sel] of mustPrint.entries()) {
     const box = await sizeOf(page, sel);
     expect(box.width, `${name}: ${sel} in print`).toBeGreaterThan(250);
     expect(box.height, `${name}: ${sel} in print`).toBeGreaterThan(120);
+    await page.locator(sel).first().screenshot({ path: path.join(shots, `${name}-print-part${i + 1}.png`) });
   }
   await page.screenshot({ path: path.join(shots, `${name}-print.png`), fullPage: true });
   const pdf = await page.pdf({ path: path.join(shots, `${name}.pdf`), format: 'A4' });
@@ -169,7 +171,7 @@ describe('report pages in a browser', () => {
     expect((await svgLinks(page, 'figure.fit-chart[data-forest-type="wet"] svg')).sort()).toEqual(['NV-W1', 'NV-W2', 'NV-W3'].map((k) => `/regions/Northvale/plots/${k}`));
     // the plot table: one row per plot, sorted by the server through its heading links
     expect(await page.locator('#plot-table tbody tr').count()).toBe(5);
-    await shootBothWays(page, 'northvale', ['#plot-map svg', '#means-chart svg', '#guild-chart svg', 'figure.fit-chart[data-forest-type="wet"] svg']);
+    await shootBothWays(page, 'northvale', ['#plot-map svg', '#plot-table', '#means-chart svg', '#guild-chart svg', 'figure.fit-chart[data-forest-type="wet"] svg']);
     expect(fs.statSync(path.join(shots, 'northvale.png')).size).toBeGreaterThan(50_000);
     expect(problems).toEqual([]);
   });

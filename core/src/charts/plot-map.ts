@@ -15,6 +15,8 @@ export interface MapPlot {
   readonly value: number | null;
   /** The plot page's address; null or absent: the point is not a link. */
   readonly href?: string | null;
+  /** The plot's region: with more than one region on a map, each region has its own marker shape. */
+  readonly region?: string;
 }
 
 export interface PlotMapInput {
@@ -25,6 +27,9 @@ export interface PlotMapInput {
   /** Width of the map in pixels (default 640); the height follows from the plots' extent. */
   readonly width?: number;
 }
+
+/** Marker shapes of the regions, in order of their names (the ramp colours the variable). */
+const REGION_SHAPES = ['circle', 'square', 'triangle-up', 'diamond', 'triangle-down', 'cross', 'triangle-left', 'triangle-right'] as const;
 
 /** Our own sequential ramp: sand to deep spruce, every step dark enough on white with its outline. */
 export const MAP_COLOURS = { ramp: ['#f1e4b3', '#c5d68a', '#6fae73', '#2f7a62', '#1b4350'], noValue: '#77746b', outline: '#2b2f2a' } as const;
@@ -64,7 +69,13 @@ export function buildPlotMapSpec(input: PlotMapInput): TopLevelSpec | null {
   const legendTitle = label.unit ? `${label.name} (${label.unit})` : label.name;
   const frame = mapFrame(plots, width);
   const size = plots.length <= 50 ? 90 : plots.length <= 500 ? 46 : 18;
-  const rows = plots.map((p) => ({ plot: p.plot, lon: p.longitude, lat: p.latitude, value: p.value, href: p.href ?? null }));
+  const rows = plots.map((p) => ({ plot: p.plot, lon: p.longitude, lat: p.latitude, value: p.value, href: p.href ?? null, region: p.region ?? '' }));
+  const regions = [...new Set(rows.map((r) => r.region))].sort();
+  // More regions than shapes: the shapes repeat, and the legend still names each region.
+  const shape =
+    regions.length > 1
+      ? { shape: { field: 'region', type: 'nominal', title: 'Region', scale: { domain: regions, range: regions.map((_, i) => REGION_SHAPES[i % REGION_SHAPES.length]) }, legend: { orient: 'bottom', direction: 'horizontal', symbolFillColor: '#cfcabb', symbolStrokeColor: MAP_COLOURS.outline } } }
+      : {};
   const withValue = rows.filter((r) => r.value !== null && Number.isFinite(r.value));
   const without = rows.filter((r) => !(r.value !== null && Number.isFinite(r.value)));
   const linked = rows.some((r) => r.href !== null);
@@ -76,10 +87,11 @@ export function buildPlotMapSpec(input: PlotMapInput): TopLevelSpec | null {
     layer.push({
       name: 'plots',
       data: { values: withValue },
-      mark: { type: 'circle', size, opacity: 0.95, stroke: MAP_COLOURS.outline, strokeWidth: 0.7, aria: false, cursor: linked ? 'pointer' : undefined },
+      mark: { type: 'point', shape: 'circle', filled: true, size, opacity: 0.95, stroke: MAP_COLOURS.outline, strokeWidth: 0.7, aria: false, cursor: linked ? 'pointer' : undefined },
       encoding: {
         x,
         y,
+        ...shape,
         color: { field: 'value', type: 'quantitative', title: legendTitle, scale: { range: [...MAP_COLOURS.ramp] }, legend: { orient: 'bottom', direction: 'horizontal', gradientLength: Math.min(360, width - 80), titleLimit: width, format: '~r' } },
         ...href,
       },
@@ -94,6 +106,7 @@ export function buildPlotMapSpec(input: PlotMapInput): TopLevelSpec | null {
         x,
         y,
         stroke: { datum: 'no value', type: 'nominal', scale: { range: [MAP_COLOURS.noValue] }, legend: { title: null, orient: 'bottom' } },
+        ...shape,
         ...href,
       },
     });

@@ -37,7 +37,7 @@ const drawn = new Map<string, Promise<string | null>>();
 export function plotMapSvg(groups: readonly RegionPlots[], variable: string, title: string, href: ((region: string, plotKey: string) => string) | null): Promise<string | null> {
   const column = variable as keyof RegionPlotRow['metrics'];
   const plots: MapPlot[] = groups.flatMap((g) =>
-    g.plots.map((p) => ({ plot: p.plotKey, longitude: p.longitude, latitude: p.latitude, value: p.metrics[column] ?? null, href: href ? href(g.region, p.plotKey) : null })),
+    g.plots.map((p) => ({ plot: p.plotKey, longitude: p.longitude, latitude: p.latitude, value: p.metrics[column] ?? null, href: href ? href(g.region, p.plotKey) : null, region: g.region })),
   );
   const key = crypto.createHash('sha256').update(JSON.stringify([variable, title, plots])).digest('base64url');
   let svg = drawn.get(key);

@@ -1,7 +1,7 @@
 import { REGION_CHANGE_COLUMNS, type HeightModelRow, type PlotChangeRow, type PlotVisitRow, type RegionPlot } from '@stemwise/db';
 import { DEFAULT_WOOD_DENSITY, PLOT_METRICS, variableLabel, type DiameterClass, type PlotDiagnostics, type ResolutionLevel } from '@stemwise/core';
 import { diameterClassName } from '@stemwise/core/charts';
-import { figure, isoMinute, percentOfShare } from './figures';
+import { figure, isoDate, percentOfShare } from './figures';
 import { html, safeSvg, type Markup } from './html';
 import { pageShell } from './shell';
 
@@ -52,9 +52,9 @@ const withUnit = (v: string): Markup => {
 };
 
 function visitsTable(visits: readonly PlotVisitRow[]): Markup {
-  return html`<table id="plot-visits"><thead><tr><th>Survey date</th><th class="num">Plot area (ha)</th><th class="num">Minimum dbh (cm)</th><th class="num">Subplot area (ha)</th><th class="num">Subplot minimum dbh (cm)</th><th class="num">Logging class</th><th class="num">Fire class</th><th class="num">Live stems</th><th class="num">Dead stems</th><th class="num">Stumps</th><th>Figures</th></tr></thead><tbody>${visits.map(
-    (v) => html`<tr><td>${v.surveyDate}</td><td class="num">${figure(v.areaHa)}</td><td class="num">${figure(v.dbhMinCm)}</td><td class="num">${v.subplotAreaHa > 0 ? figure(v.subplotAreaHa) : 'none'}</td><td class="num">${v.subplotAreaHa > 0 ? figure(v.subplotDbhMinCm) : '–'}</td><td class="num">${v.loggingClass}</td><td class="num">${v.fireClass}</td><td class="num">${v.stems.live}</td><td class="num">${v.stems.dead}</td><td class="num">${v.stems.stump}</td><td>${v.computedAt ? `computed ${isoMinute(v.computedAt)}${v.stale ? '; to be computed again' : ''}` : 'not computed yet'}</td></tr>`,
-  )}</tbody></table>`;
+  return html`<div class="table-scroll"><table id="plot-visits"><thead><tr><th>Survey date</th><th class="num">Area (ha)</th><th class="num">Min. dbh (cm)</th><th class="num">Subplot (ha)</th><th class="num">Subplot min. dbh (cm)</th><th class="num">Logging class</th><th class="num">Fire class</th><th class="num">Live stems</th><th class="num">Dead stems</th><th class="num">Stumps</th><th>Figures</th></tr></thead><tbody>${visits.map(
+    (v) => html`<tr><td class="nowrap">${v.surveyDate}</td><td class="num">${figure(v.areaHa)}</td><td class="num">${figure(v.dbhMinCm)}</td><td class="num">${v.subplotAreaHa > 0 ? figure(v.subplotAreaHa) : 'none'}</td><td class="num">${v.subplotAreaHa > 0 ? figure(v.subplotDbhMinCm) : '–'}</td><td class="num">${v.loggingClass}</td><td class="num">${v.fireClass}</td><td class="num">${v.stems.live}</td><td class="num">${v.stems.dead}</td><td class="num">${v.stems.stump}</td><td>${v.computedAt ? `computed ${isoDate(v.computedAt)}${v.stale ? '; to be computed again' : ''}` : 'not computed yet'}</td></tr>`,
+  )}</tbody></table></div>`;
 }
 
 function figuresTable(visits: readonly PlotVisitRow[]): Markup {
@@ -103,12 +103,16 @@ function biomassMethod(d: PlotVisitRow['diagnostics'], model: HeightModelRow | n
 </ul>`;
 }
 
+// Mortality and recruitment are shares of trees per year: shown as per cent per year.
+const ANNUAL_SHARES = new Set<string>(['mortality_annual', 'recruitment_annual']);
+const percentPerYear = (x: number | null): string => (x === null ? '–' : `${figure(100 * x)} %/yr`);
+
 function changeSection(changes: readonly PlotChangeRow[]): Markup {
   if (!changes.length) return html`<p class="muted" id="plot-change">Measured once so far: the change between visits appears here after the plot is measured again.</p>`;
   return html`<div class="table-scroll"><table id="plot-change"><thead><tr><th>Figure</th>${changes.map((c) => html`<th class="num">${c.dateFrom} → ${c.dateTo}</th>`)}</tr></thead><tbody>
 <tr><td>Years between the visits</td>${changes.map((c) => html`<td class="num">${figure(c.values.years)}</td>`)}</tr>
 <tr><td>Trees at the first visit · died · removed · recruits</td>${changes.map((c) => html`<td class="num">${c.values.n_start ?? '–'} · ${c.values.n_died ?? '–'} · ${c.values.n_removed ?? '–'} · ${c.values.n_recruits ?? '–'}</td>`)}</tr>
-${REGION_CHANGE_COLUMNS.map((v) => html`<tr data-variable="${v}"><td>${withUnit(v)}</td>${changes.map((c) => html`<td class="num">${figure(c.values[v])}</td>`)}</tr>`)}
+${REGION_CHANGE_COLUMNS.map((v) => html`<tr data-variable="${v}"><td>${withUnit(v)}</td>${changes.map((c) => html`<td class="num">${ANNUAL_SHARES.has(v) ? percentPerYear(c.values[v]) : figure(c.values[v])}</td>`)}</tr>`)}
 </tbody></table></div>
 <p class="muted">Trees matched by tree id between consecutive visits, at the larger of the two minimum diameters (docs/methods.md, change between visits).</p>`;
 }

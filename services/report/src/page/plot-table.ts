@@ -71,7 +71,9 @@ export function plotTable(input: PlotTableInput): Markup {
   );
   return html`<div class="table-scroll"><table id="plot-table"><thead><tr>${header('plot', 'Plot', false)}${header('forest_type', 'Forest type', false)}${header('survey_date', 'Latest visit', false)}${input.variables.map((v) => {
     const l = variableLabel(v);
-    return header(v, html`${l.short}${l.unit && !l.short.includes(l.unit) ? html` <span class="muted">(${l.unit})</span>` : null}`, true);
+    // the short label where it carries its unit (or needs none), else the full name with the unit
+    const plain = l.short.includes('(') || !l.unit || l.short.toLowerCase().includes(l.unit.toLowerCase());
+    return header(v, plain ? l.short : html`${l.name} <span class="muted">(${l.unit})</span>`, true);
   })}</tr></thead><tbody>${rows}</tbody></table></div>
 <p class="muted">One row per plot: its latest computed visit. ${sortHref ? 'Select a column heading to sort by it; select it again to turn the order round.' : ''} Plots without a value are listed last.</p>`;
 }
