@@ -2,7 +2,7 @@
 // like the other charts, offline (no base map, no tile server). The projection is the plain
 // equirectangular one with its standard parallel at the middle latitude of the plots: x = λ·cos φ₀,
 // y = φ (Snyder 1987, "Map projections — a working manual", USGS Professional Paper 1395; memory), so that
-// distances near the middle of the map look right. Each point links to the plot's page when given a link.
+// distances near the middle of the map look right (docs/methods.md#plot-maps). Each point links to the plot's page when given a link.
 import type { TopLevelSpec } from 'vega-lite';
 import { variableLabel } from '../region-summary/variables';
 import { REPORT_CHART_CONFIG, renderVegaLiteSvg } from './render';

@@ -19,7 +19,7 @@ export interface DiameterClass {
  * the next multiple of the width, so a 5 cm subplot minimum gives 5–10, 10–20, …; stems at or above
  * `topCm` form one open class. Empty classes between occupied ones are kept (a gap is information).
  */
-// N/ha per class = Σ wᵢ and G/ha per class = Σ wᵢ π (Dᵢ/200)² over the stems of the class — the stand table (forest mensuration)
+// N/ha per class = Σ wᵢ and G/ha per class = Σ wᵢ π (Dᵢ/200)² over the stems of the class — the stand table (forest mensuration; docs/methods.md#diameter-distribution-of-a-plot)
 export function diameterClasses(dbhCm: readonly number[], weights: readonly number[], startCm: number, widthCm = 10, topCm = 100): DiameterClass[] {
   if (dbhCm.length !== weights.length) throw new RangeError(`diameterClasses: dbh and weight arrays differ in length (${dbhCm.length} vs ${weights.length})`);
   if (!(widthCm > 0) || !(startCm >= 0) || !(topCm > startCm)) throw new RangeError(`diameterClasses: need width > 0 and 0 <= start < top (got ${widthCm}, ${startCm}, ${topCm})`);
