@@ -92,6 +92,9 @@ async function shootBothWays(page: Page, name: string, mustPrint: readonly strin
   await page.emulateMedia({ media: 'screen' });
   await page.screenshot({ path: path.join(shots, `${name}.png`), fullPage: true });
   for (const [i, sel] of mustPrint.entries()) await page.locator(sel).first().screenshot({ path: path.join(shots, `${name}-part${i + 1}.png`) });
+  // the print view at the width of an A4 page (210 mm at 96 px per inch)
+  const screen = page.viewportSize();
+  await page.setViewportSize({ width: 794, height: 1123 });
   await page.emulateMedia({ media: 'print' });
   for (const [i, sel] of mustPrint.entries()) {
     const box = await sizeOf(page, sel);
@@ -103,6 +106,7 @@ async function shootBothWays(page: Page, name: string, mustPrint: readonly strin
   const pdf = await page.pdf({ path: path.join(shots, `${name}.pdf`), format: 'A4' });
   expect(pdf.length, `${name}.pdf`).toBeGreaterThan(20_000);
   await page.emulateMedia({ media: 'screen' });
+  if (screen) await page.setViewportSize(screen);
 }
 
 describe('report pages in a browser', () => {

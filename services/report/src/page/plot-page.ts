@@ -51,10 +51,12 @@ const withUnit = (v: string): Markup => {
   return html`${l.name}${l.unit ? html` <span class="muted">(${l.unit})</span>` : null}`;
 };
 
+const stemWord = (n: number, one: string, many: string): string => `${n} ${n === 1 ? one : many}`;
+
 function visitsTable(visits: readonly PlotVisitRow[]): Markup {
-  return html`<div class="table-scroll"><table id="plot-visits"><thead><tr><th>Survey date</th><th class="num">Area (ha)</th><th class="num">Min. dbh (cm)</th><th class="num">Subplot (ha)</th><th class="num">Subplot min. dbh (cm)</th><th class="num">Logging class</th><th class="num">Fire class</th><th class="num">Live stems</th><th class="num">Dead stems</th><th class="num">Stumps</th><th>Figures</th></tr></thead><tbody>${visits.map(
-    (v) => html`<tr><td class="nowrap">${v.surveyDate}</td><td class="num">${figure(v.areaHa)}</td><td class="num">${figure(v.dbhMinCm)}</td><td class="num">${v.subplotAreaHa > 0 ? figure(v.subplotAreaHa) : 'none'}</td><td class="num">${v.subplotAreaHa > 0 ? figure(v.subplotDbhMinCm) : '–'}</td><td class="num">${v.loggingClass}</td><td class="num">${v.fireClass}</td><td class="num">${v.stems.live}</td><td class="num">${v.stems.dead}</td><td class="num">${v.stems.stump}</td><td>${v.computedAt ? `computed ${isoDate(v.computedAt)}${v.stale ? '; to be computed again' : ''}` : 'not computed yet'}</td></tr>`,
-  )}</tbody></table></div>`;
+  return html`<table id="plot-visits"><thead><tr><th>Survey date</th><th>Plot</th><th>Subplot</th><th>Logging · fire class</th><th>Stems recorded</th><th>Figures</th></tr></thead><tbody>${visits.map(
+    (v) => html`<tr><td class="nowrap">${v.surveyDate}</td><td>${figure(v.areaHa)} ha, dbh ≥ ${figure(v.dbhMinCm)} cm</td><td>${v.subplotAreaHa > 0 ? `${figure(v.subplotAreaHa)} ha, dbh ≥ ${figure(v.subplotDbhMinCm)} cm` : 'none'}</td><td>${v.loggingClass} · ${v.fireClass}</td><td>${stemWord(v.stems.live, 'live', 'live')} · ${stemWord(v.stems.dead, 'dead', 'dead')} · ${stemWord(v.stems.stump, 'stump', 'stumps')}</td><td>${v.computedAt ? `computed ${isoDate(v.computedAt)}${v.stale ? '; to be computed again' : ''}` : 'not computed yet'}</td></tr>`,
+  )}</tbody></table>`;
 }
 
 function figuresTable(visits: readonly PlotVisitRow[]): Markup {
