@@ -10,7 +10,7 @@ import { renderRegionPage } from './page/region-page';
 import { regionPlotsGeoJson } from './plots-geojson';
 import { mapSection } from './page/map-section';
 import { DEFAULT_PLOT_SORT, plotTable, plotTableVariables } from './page/plot-table';
-import { DEFAULT_MAP_VARIABLE, plotMapSvg, readRegionPlots } from './plot-map';
+import { DEFAULT_MAP_VARIABLE, plotMapSvg, readRegionPlots, type RegionPlots } from './plot-map';
 import { nationalJson, summaryCsv, summaryJson } from './representations';
 import type { Snapshot, SnapshotPayload } from './snapshot-payload';
 
@@ -57,6 +57,9 @@ export async function writeRegionPages(deps: Pick<ServiceDeps, 'db'>, outDir: st
     files.push(file);
   };
   const written: WrittenPages['regions'] = [];
+  const allPlots: RegionPlots[] = [];
+  const staticMap = async (what: string) =>
+    mapSection({ svg: await plotMapSvg(allPlots, DEFAULT_MAP_VARIABLE, what, null), variable: DEFAULT_MAP_VARIABLE, choices: null, what, linked: false });
   const slugs = new Map<string, string>();
   for (const row of await listLatestSnapshots(db)) {
     const snapshot: Snapshot = { region: row.region, version: row.version, etag: row.etag, createdAt: row.createdAt, payload: withoutPlotLinks(row.payload as SnapshotPayload) };
@@ -69,6 +72,7 @@ export async function writeRegionPages(deps: Pick<ServiceDeps, 'db'>, outDir: st
     const versions = await listSummaryVersions(db, row.region);
     // No server behind the files: the map keeps its default colouring, and plots are not links.
     const groups = await readRegionPlots(db, [row.region]);
+    allPlots.push(...groups);
     const what = `Plots of ${row.region}`;
     const map = mapSection({ svg: await plotMapSvg(groups, DEFAULT_MAP_VARIABLE, what, null), variable: DEFAULT_MAP_VARIABLE, choices: null, what, linked: false });
     const table = plotTable({ plots: groups[0].plots, variables: plotTableVariables(null), sort: DEFAULT_PLOT_SORT, sortHref: null, plotHref: null });
@@ -105,9 +109,9 @@ export async function writeRegionPages(deps: Pick<ServiceDeps, 'db'>, outDir: st
     write(path.join(outDir, 'national-summary.json'), nationalJson(national));
     nationalPage = path.join(outDir, 'national.html');
     const links = { index: 'index.html', summaryJson: 'national-summary.json', summaryCsv: 'national-summary.csv', versionPage: null, signOut: null };
-    write(nationalPage, renderNationalPage({ snapshot: national, carbonFraction: IPCC_2006_CARBON_FRACTION, versions: await listNationalVersions(db), links }));
+    write(nationalPage, renderNationalPage({ snapshot: national, carbonFraction: IPCC_2006_CARBON_FRACTION, versions: await listNationalVersions(db), links, map: await staticMap('Plots of all regions') }));
   }
   const index = path.join(outDir, 'index.html');
-  write(index, renderIndexPage(entries, { carbonFraction: IPCC_2006_CARBON_FRACTION, signOut: null, national: national && { snapshot: national, href: 'national.html' } }));
+  write(index, renderIndexPage(entries, { carbonFraction: IPCC_2006_CARBON_FRACTION, signOut: null, national: national && { snapshot: national, href: 'national.html' }, map: await staticMap('Plots of the regions listed') }));
   return { index, national: nationalPage, regions: written, files };
 }

@@ -1,6 +1,5 @@
 import type { RegionPlotRow } from '@stemwise/db';
 import { variableLabel } from '@stemwise/core';
-import { figure } from './figures';
 import { html, type Markup } from './html';
 
 // The plot table of a region page: one row per plot (its latest computed visit), sortable by any column
@@ -43,6 +42,17 @@ export function sortPlots(plots: readonly RegionPlotRow[], sort: PlotSort): Regi
   });
 }
 
+/** Decimals of a column: three significant figures at its median magnitude (at most 3), the same for every row so the column reads down evenly. */
+export function columnDecimals(values: ReadonlyArray<number | null | undefined>): number {
+  const a = values.filter((v): v is number => v !== null && v !== undefined && Number.isFinite(v) && v !== 0).map(Math.abs).sort((x, y) => x - y);
+  if (!a.length) return 0;
+  const median = a[Math.floor(a.length / 2)];
+  return Math.min(3, Math.max(0, 2 - Math.floor(Math.log10(median))));
+}
+
+const fixed = (x: number | null | undefined, decimals: number): string =>
+  x === null || x === undefined || !Number.isFinite(x) ? '–' : new Intl.NumberFormat('en-GB', { minimumFractionDigits: decimals, maximumFractionDigits: decimals }).format(x);
+
 export interface PlotTableInput {
   readonly plots: readonly RegionPlotRow[];
   readonly variables: readonly string[];
@@ -64,9 +74,11 @@ export function plotTable(input: PlotTableInput): Markup {
     const inner = sortHref ? html`<a href="${sortHref({ key, dir: next })}">${name}</a>${mark}` : html`${name}${mark}`;
     return html`<th${numeric ? html` class="num"` : null}${aria ? html` aria-sort="${aria}"` : null} data-key="${key}">${inner}</th>`;
   };
+  const value = (p: RegionPlotRow, v: string) => p.metrics[v as keyof RegionPlotRow['metrics']];
+  const decimals = new Map(input.variables.map((v) => [v, columnDecimals(input.plots.map((p) => value(p, v)))]));
   const rows = sortPlots(input.plots, sort).map(
     (p) => html`<tr data-plot="${p.plotKey}"><td>${plotHref ? html`<a href="${plotHref(p.plotKey)}">${p.plotKey}</a>` : p.plotKey}</td><td>${p.forestType}</td><td>${p.surveyDate}</td>${input.variables.map(
-      (v) => html`<td class="num">${figure(p.metrics[v as keyof RegionPlotRow['metrics']])}</td>`,
+      (v) => html`<td class="num">${fixed(value(p, v), decimals.get(v) ?? 0)}</td>`,
     )}</tr>`,
   );
   return html`<div class="table-scroll"><table id="plot-table"><thead><tr>${header('plot', 'Plot', false)}${header('forest_type', 'Forest type', false)}${header('survey_date', 'Latest visit', false)}${input.variables.map((v) => {
@@ -75,5 +87,5 @@ export function plotTable(input: PlotTableInput): Markup {
     const plain = l.short.includes('(') || !l.unit || l.short.toLowerCase().includes(l.unit.toLowerCase());
     return header(v, plain ? l.short : html`${l.name} <span class="muted">(${l.unit})</span>`, true);
   })}</tr></thead><tbody>${rows}</tbody></table></div>
-<p class="muted">One row per plot: its latest computed visit. ${sortHref ? 'Select a column heading to sort by it; select it again to turn the order round.' : ''} Plots without a value are listed last.</p>`;
+<p class="muted">One row per plot: its latest computed visit, each column to three significant figures of its typical value. ${sortHref ? 'Select a column heading to sort by it; select it again to turn the order round.' : ''} Plots without a value are listed last.</p>`;
 }
