@@ -150,7 +150,7 @@ describe('report pages in a browser', () => {
       expect(box?.width, id).toBeGreaterThan(200);
       expect(box?.height, id).toBeGreaterThan(100);
     }
-    const ba = page.locator('#headline .card[data-variable="basal_area_m2_ha"]');
+    const ba = page.locator('#headline .card[data-variable="reporting_basal_area_m2_ha"]');
     // rounded to the SE's second significant digit (an SE between 1 and 10 here: one decimal), a trailing zero kept
     await expect.poll(() => ba.locator('.value').innerText()).toMatch(/^21\.0 m²\/ha$/);
     expect(await ba.locator('.ci').innerText()).toMatch(/^95 % CI: \d+\.\d – \d+\.\d$/);
@@ -214,10 +214,10 @@ describe('report pages in a browser', () => {
     const agb = page.locator('#plot-figures tr[data-variable="agb_mg_ha"]');
     expect(await agb.innerText()).toMatch(/^Above-ground biomass \(Mg\/ha\)\s+176\s+192$/);
     const axes = await svgTexts(page, '#diameter-chart svg');
-    expect(axes).toEqual(expect.arrayContaining(['Diameter class at breast height (cm)', 'Stem density (stems/ha)', 'Basal area (m²/ha)']));
+    expect(axes).toEqual(expect.arrayContaining(['Diameter class at breast height', 'Stem density (stems/ha)', 'Basal area (m²/ha)']));
     // 7 live stems on 0.1 ha: 12, 20, 20, 20 cm in 10–20 and 20–30, 35, 48 and 105 cm
-    expect(await page.locator('#diameter-classes tbody tr td:first-child').allInnerTexts()).toEqual(['10–20', '20–30', '30–40', '40–50', '50–60', '60–70', '70–80', '80–90', '90–100', '≥ 100']);
-    expect(await page.locator('#diameter-classes tbody tr:first-child').innerText()).toMatch(/10–20\s+1\s+10\s/);
+    expect(await page.locator('#diameter-classes tbody tr td:first-child').allInnerTexts()).toEqual(['10–20 cm', '20–30 cm', '30–40 cm', '40–50 cm', '50–60 cm', '60–70 cm', '70–80 cm', '80–90 cm', '90–100 cm', '≥ 100 cm']);
+    expect(await page.locator('#diameter-classes tbody tr:first-child').innerText()).toMatch(/10–20 cm\s+1\s+10\s/);
     const species = await page.locator('#plot-species tbody tr').allInnerTexts();
     expect(species[0]).toMatch(/^Arborea lucida\s+Arborea splendens\s+Lucidaceae\s+shade-tolerant\s+0\.6\s+3\s/); // the synonym counted as its accepted species
     expect(await page.locator('#biomass-method').innerText()).toMatch(/25\.0 % measured[\s\S]*75\.0 % from the local height–diameter model[\s\S]*80\.0 % from the species’ own value/);

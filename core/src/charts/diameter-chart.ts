@@ -1,13 +1,16 @@
 // The diameter distribution of one plot visit: live stems per hectare and basal area per hectare by
-// diameter class (from diameterClasses), two panels of equal size.
+// diameter class (the stand-table classes), two panels of equal size.
 import type { TopLevelSpec } from 'vega-lite';
-import type { DiameterClass } from '../science/diameter-classes';
+import { classWords } from '../region-summary/stand-table';
 import { variableLabel } from '../region-summary/variables';
 import { REPORT_CHART_CONFIG, REPORT_COLOURS, renderVegaLiteSvg } from './render';
 
-/** A class for people: "10–20", or "≥ 100" for the open top class. */
-export function diameterClassName(c: Pick<DiameterClass, 'lowerCm' | 'upperCm'>): string {
-  return c.upperCm === null ? `≥ ${c.lowerCm}` : `${c.lowerCm}–${c.upperCm}`;
+/** One diameter class of a plot: lowerCm ≤ D < upperCm (null: open), with its figures per hectare. */
+export interface DiameterClassFigures {
+  readonly lowerCm: number;
+  readonly upperCm: number | null;
+  readonly stemsHa: number;
+  readonly basalAreaM2Ha: number;
 }
 
 const titled = (variable: string): string => {
@@ -16,11 +19,11 @@ const titled = (variable: string): string => {
 };
 
 /** Bars by diameter class: stem density and basal area (catalogue labels and units); null without classes. */
-export function buildDiameterChartSpec(classes: readonly DiameterClass[], title: string): TopLevelSpec | null {
+export function buildDiameterChartSpec(classes: readonly DiameterClassFigures[], title: string): TopLevelSpec | null {
   if (!classes.length) return null;
-  const values = classes.map((c) => ({ cls: diameterClassName(c), stems: c.stemsHa, ba: c.basalAreaM2Ha }));
+  const values = classes.map((c) => ({ cls: classWords(c.lowerCm, c.upperCm), stems: c.stemsHa, ba: c.basalAreaM2Ha }));
   const order = values.map((v) => v.cls);
-  const x = { field: 'cls', type: 'ordinal', sort: order, title: 'Diameter class at breast height (cm)', axis: { labelAngle: -40 } };
+  const x = { field: 'cls', type: 'ordinal', sort: order, title: 'Diameter class at breast height', axis: { labelAngle: -40 } };
   const panel = (field: string, variable: string) => ({
     width: 300,
     height: 200,
@@ -39,7 +42,7 @@ export function buildDiameterChartSpec(classes: readonly DiameterClass[], title:
   } as unknown as TopLevelSpec;
 }
 
-export async function renderDiameterChartSvg(classes: readonly DiameterClass[], title: string): Promise<string | null> {
+export async function renderDiameterChartSvg(classes: readonly DiameterClassFigures[], title: string): Promise<string | null> {
   const spec = buildDiameterChartSpec(classes, title);
   return spec ? renderVegaLiteSvg(spec) : null;
 }

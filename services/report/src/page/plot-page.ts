@@ -1,6 +1,6 @@
 import { REGION_CHANGE_COLUMNS, type HeightModelRow, type PlotChangeRow, type PlotVisitRow, type RegionPlot } from '@stemwise/db';
-import { DEFAULT_WOOD_DENSITY, PLOT_METRICS, variableLabel, type DiameterClass, type PlotDiagnostics, type ResolutionLevel } from '@stemwise/core';
-import { diameterClassName } from '@stemwise/core/charts';
+import { classWords, DEFAULT_WOOD_DENSITY, PLOT_METRICS, variableLabel, type PlotDiagnostics, type ResolutionLevel } from '@stemwise/core';
+import type { DiameterClassFigures } from '@stemwise/core/charts';
 import { figure, isoDate, percentOfShare } from './figures';
 import { html, safeSvg, type Markup } from './html';
 import { pageShell } from './shell';
@@ -23,6 +23,11 @@ export interface SpeciesLine {
   basalAreaM2Ha: number;
 }
 
+/** A diameter class of the plot with its figures and the live stems recorded in it. */
+export interface PlotDiameterClass extends DiameterClassFigures {
+  stems: number;
+}
+
 export interface PlotPageData {
   region: string;
   plot: RegionPlot;
@@ -30,7 +35,7 @@ export interface PlotPageData {
   changes: PlotChangeRow[];
   /** The visit whose stems are shown (the latest computed, else the latest); null without visits. */
   shown: PlotVisitRow | null;
-  classes: DiameterClass[];
+  classes: PlotDiameterClass[];
   diameterSvg: string | null;
   species: SpeciesLine[];
   heightModel: HeightModelRow | null;
@@ -68,9 +73,9 @@ function figuresTable(visits: readonly PlotVisitRow[]): Markup {
 <p class="muted">Rounded to three significant figures; <code>export plots</code> keeps full precision. Biomass and carbon are model estimates (see how they were estimated below).</p>`;
 }
 
-function classTable(classes: readonly DiameterClass[]): Markup {
-  return html`<table id="diameter-classes"><thead><tr><th>Diameter class (cm)</th><th class="num">Live stems recorded</th><th class="num">${withUnit('stems_ha')}</th><th class="num">${withUnit('basal_area_m2_ha')}</th></tr></thead><tbody>${classes.map(
-    (c) => html`<tr><td>${diameterClassName(c)}</td><td class="num">${c.stems}</td><td class="num">${figure(c.stemsHa)}</td><td class="num">${figure(c.basalAreaM2Ha)}</td></tr>`,
+function classTable(classes: readonly PlotDiameterClass[]): Markup {
+  return html`<table id="diameter-classes"><thead><tr><th>Diameter class</th><th class="num">Live stems recorded</th><th class="num">${withUnit('stems_ha')}</th><th class="num">${withUnit('basal_area_m2_ha')}</th></tr></thead><tbody>${classes.map(
+    (c) => html`<tr><td>${classWords(c.lowerCm, c.upperCm)}</td><td class="num">${c.stems}</td><td class="num">${figure(c.stemsHa)}</td><td class="num">${figure(c.basalAreaM2Ha)}</td></tr>`,
   )}</tbody></table>`;
 }
 
@@ -141,7 +146,7 @@ export function renderPlotPage(d: PlotPageData, links: PlotPageLinks): string {
   <h2>Figures per visit</h2>
   ${figuresTable(d.visits)}
   <h2>Diameter distribution${shown ? `, visit of ${shown.surveyDate}` : ''}</h2>
-  ${chart ? html`<figure id="diameter-chart">${chart}<figcaption>Live stems per hectare and basal area per hectare by diameter class; the first class starts at the smallest diameter measured on this visit${shown && shown.subplotAreaHa > 0 ? ` (the subplot's ${figure(shown.subplotDbhMinCm)} cm)` : ''}.</figcaption></figure>${classTable(d.classes)}` : html`<p class="muted">No live stem to draw.</p>`}
+  ${chart ? html`<figure id="diameter-chart">${chart}<figcaption>Live stems per hectare and basal area per hectare by diameter class; the classes of the region's stand tables, with stems below the reporting threshold (measured on a subplot) in a class of their own.</figcaption></figure>${classTable(d.classes)}` : html`<p class="muted">No live stem to draw.</p>`}
   <h2>Species${shown ? `, visit of ${shown.surveyDate}` : ''}</h2>
   ${speciesTable(d.species)}
   <h2>How the biomass was estimated${shown ? `, visit of ${shown.surveyDate}` : ''}</h2>

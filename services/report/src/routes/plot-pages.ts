@@ -67,7 +67,7 @@ export function plotPageRoutes(
     async (request: FastifyRequest<{ Params: { region: string; plotId: string } }>, reply) => {
       const { region, plotId } = request.params;
       if (!(await checkRegion(ctx, request, reply, region, deny))) return reply;
-      const data = await readPlotPage(ctx.deps.db, region, plotId);
+      const data = await readPlotPage(ctx.deps.db, region, plotId, ctx.deps.config.reportingDbhMinCm);
       if (!data) return deny(reply, 404, 'not_found', `Region ${region} has no plot ${plotId}.`);
       return send(reply, renderPlotPage(data, { index: '/', region: regionLinks(region).page, signOut: '/signout' }));
     },
