@@ -17,6 +17,7 @@ import {
 } from '@stemwise/db';
 import { asStoredFitChart, cautionSettings, currentSpecies, IPCC_2006_CARBON_FRACTION, standTableValues, toFitRow, type SamplingErrorT, type ServiceDeps, type StoredFitChart } from '@stemwise/core';
 import { isInfrastructureError, PermanentError, type Config, type Logger } from '@stemwise/platform';
+import { plotPagePath } from './plot-map';
 import { buildFitChartSpec, buildGuildChartSpec, buildMeansChartSpec, chartSpecKey, regionChartPoints, renderVegaLiteSvg, type TopLevelSpec } from '@stemwise/core/charts';
 import { RegionSummaryInputError, summariseRegion, summaryVariables, type PlotMetrics } from './summary/region-summary';
 import { SNAPSHOT_FORMAT, type FitChart, type SnapshotFitRow, type SnapshotMethod, type SnapshotPayload } from './snapshot-payload';
@@ -82,7 +83,7 @@ async function fitChart(deps: Deps, region: string, forestType: string, charts: 
   if (!stored) return { ...base, svg: null, missing: `no stored fit of ${metric} against ${axis} for ${forestType}: the fits stage has not stored its chart`, drawn_from: null };
   if (!stored.points.x.length) return { ...base, svg: null, missing: `no plot of ${forestType} has both ${metric} and ${axis}`, drawn_from: null };
   try {
-    const { svg, key } = await draw(buildFitChartSpec({ forestType, metric, axis, points: regionChartPoints(stored.points, region), chart: stored }), drawn);
+    const { svg, key } = await draw(buildFitChartSpec({ forestType, metric, axis, points: regionChartPoints(stored.points, region, (plot) => plotPagePath(region, plot)), chart: stored }), drawn);
     return { ...base, svg, missing: null, drawn_from: key };
   } catch (err) {
     deps.log?.error({ err, region, forestType }, 'fit chart could not be rendered');
