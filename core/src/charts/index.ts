@@ -5,3 +5,4 @@ export * from './fit-chart';
 export * from './means-chart';
 export * from './guild-chart';
 export type { TopLevelSpec } from 'vega-lite';
+export * from './change-chart';

@@ -15,8 +15,9 @@ import {
 } from '@stemwise/db';
 import { asStoredFitChart, cautionSettings, currentSpecies, IPCC_2006_CARBON_FRACTION, toFitRow, type SamplingErrorT, type ServiceDeps, type StoredFitChart } from '@stemwise/core';
 import { isInfrastructureError, PermanentError, type Config, type Logger } from '@stemwise/platform';
-import { buildFitChartSpec, buildGuildChartSpec, buildMeansChartSpec, chartSpecKey, regionChartPoints, renderVegaLiteSvg, type TopLevelSpec } from '@stemwise/core/charts';
+import { buildChangeChartSpec, buildFitChartSpec, buildGuildChartSpec, buildMeansChartSpec, chartSpecKey, regionChartPoints, renderVegaLiteSvg, type TopLevelSpec } from '@stemwise/core/charts';
 import { RegionSummaryInputError, summariseRegion, summaryVariables, type PlotMetrics } from './summary/region-summary';
+import { changeCoverage } from './summary/change-coverage';
 import { SNAPSHOT_FORMAT, type FitChart, type SnapshotFitRow, type SnapshotMethod, type SnapshotPayload } from './snapshot-payload';
 
 type Deps = Pick<ServiceDeps, 'db' | 'config'> & { log?: Logger };
@@ -124,6 +125,7 @@ export async function assembleRegionSnapshot(deps: Deps, region: string, charts:
 
   const means = await optionalChart(deps, 'means', () => buildMeansChartSpec(summary.rows), drawn);
   const guilds = await optionalChart(deps, 'guilds', () => buildGuildChartSpec(summary.guild_composition), drawn);
+  const change = await optionalChart(deps, 'change', () => buildChangeChartSpec(summary.rows), drawn);
 
   const dates = plots.map((p) => p.surveyDate).sort();
   return {
@@ -133,7 +135,8 @@ export async function assembleRegionSnapshot(deps: Deps, region: string, charts:
     method: methodOf(config),
     summary,
     fits,
-    charts: { means: means.svg, guilds: guilds.svg, fits: fitCharts, drawn_from: { means: means.key, guilds: guilds.key } },
+    change: changeCoverage(plots),
+    charts: { means: means.svg, guilds: guilds.svg, change: change.svg, fits: fitCharts, drawn_from: { means: means.key, guilds: guilds.key, change: change.key } },
   };
 }
 

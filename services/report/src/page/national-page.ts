@@ -1,7 +1,8 @@
 import type { NationalSnapshot } from '../national-snapshot';
 import { figure, isoMinute } from './figures';
 import { html, safeSvg } from './html';
-import { cautionLegend, cautions, estimatesTable, headlineCards, versionsList, visitsSentence } from './region-page';
+import { cautionLegend, cautions, estimatesTable, headlineCards, versionsList, visitsSentence, withoutChange } from './region-page';
+import { changeSection } from './change-section';
 import { pageShell } from './shell';
 
 export interface NationalPageInput {
@@ -48,8 +49,10 @@ export function renderNationalPage(input: NationalPageInput): string {
   ${cautionLegend(summary.caution)}
   ${means ? html`<h2>Charts</h2><figure id="means-chart">${means}<figcaption>Means per hectare with their 95 % confidence intervals: all regions together (dark) and each forest type nationally.</figcaption></figure>` : null}
   <h2>Estimates by forest type, nationally</h2>
-  ${estimatesTable(summary.rows, WHOLE_COUNTRY)}
+  ${estimatesTable(withoutChange(summary.rows), WHOLE_COUNTRY)}
   ${cautionLegend(summary.caution)}
+  <h2 id="change-between-visits">Change between visits</h2>
+  ${changeSection({ rows: summary.rows, coverage: s.payload.change, chartSvg: s.payload.charts.change, whole: WHOLE_COUNTRY, scope: 'country' })}
   <h2>Strata</h2>
   <table id="strata"><thead><tr><th>Region</th><th>Forest type</th><th class="num">Plots</th><th class="num">Forest area (ha)</th></tr></thead><tbody>${summary.strata.map(
     (t) => html`<tr><td>${t.region}</td><td>${t.forest_type}</td><td class="num">${t.n_plots}</td><td class="num">${figure(t.forest_area_ha)}</td></tr>`,

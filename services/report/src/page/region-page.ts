@@ -1,10 +1,12 @@
 import { problemLine, type ProblemView } from '@stemwise/db';
 import type { Snapshot } from '../snapshot-payload';
-import { CAUTION_WORDS, HEADLINE_VARIABLES, totalUnit, variableLabel, type CautionSettings, type DisturbanceRow, type RegionRow, type TotalRow } from '@stemwise/core';
+import { CAUTION_WORDS, HEADLINE_VARIABLES, shownValue, totalUnit, variableLabel, type CautionSettings, type DisturbanceRow, type RegionRow, type TotalRow } from '@stemwise/core';
 import { estimate, estimateInterval, figure, isoMinute, samplingError, sharePercent, standardError } from './figures';
 import { html, safeSvg, type Markup } from './html';
 import { pageShell } from './shell';
 import { fitsSection } from './fits-section';
+import { changeSection } from './change-section';
+import { changeRows } from '../summary/change-view';
 
 export interface RegionPageLinks {
   index: string;
@@ -65,8 +67,9 @@ export function cautionLegend(caution: CautionSettings | undefined): Markup | nu
 
 export function headlineCards(rows: readonly RegionRow[], totals: readonly TotalRow[]): Markup {
   const cards = HEADLINE_VARIABLES.map((v) => {
-    const r = rows.find((x) => x.forest_type === WHOLE && x.variable === v);
-    if (!r) return null;
+    const found = rows.find((x) => x.forest_type === WHOLE && x.variable === v);
+    if (!found) return null;
+    const r = shownRow(found);
     const label = variableLabel(v);
     const t = totals.find((x) => x.forest_type === WHOLE && x.variable === v);
     return html`<div class="card" data-variable="${v}">
@@ -84,21 +87,39 @@ export function headlineCards(rows: readonly RegionRow[], totals: readonly Total
 // SE of mean × area with the area known without error: SE × area (Cochran 1977 ch. 5)
 const totalSe = (r: RegionRow): number | null => (r.se !== null && r.forest_area_ha !== null ? r.se * r.forest_area_ha : null);
 
-export function estimatesTable(rows: readonly RegionRow[], whole?: string): Markup {
+/** A row in the unit its variable is shown in (shares × 100, in percent); totals are never shares. */
+export function shownRow(r: RegionRow): RegionRow {
+  if (!variableLabel(r.variable).percent) return r;
+  const v = (x: number | null) => shownValue(r.variable, x);
+  return { ...r, mean: v(r.mean), se: v(r.se), ci_low: v(r.ci_low), ci_high: v(r.ci_high) };
+}
+
+export interface EstimatesTableOptions {
+  /** The table's id (default `estimates`). */
+  readonly id?: string;
+  /** Show forest area and total columns (default true). */
+  readonly totals?: boolean;
+}
+
+export function estimatesTable(rows: readonly RegionRow[], whole?: string, options: EstimatesTableOptions = {}): Markup {
+  const { id = 'estimates', totals = true } = options;
   const variables = [...new Set(rows.map((r) => r.variable))];
   const body = variables.map((v) => {
-    const group = rows.filter((r) => r.variable === v).sort((a, b) => (a.forest_type === WHOLE ? -1 : b.forest_type === WHOLE ? 1 : a.forest_type < b.forest_type ? -1 : 1));
+    const group = rows
+      .filter((r) => r.variable === v)
+      .sort((a, b) => (a.forest_type === WHOLE ? -1 : b.forest_type === WHOLE ? 1 : a.forest_type < b.forest_type ? -1 : 1))
+      .map(shownRow);
     const label = variableLabel(v);
     return group.map(
-      (r, i) => html`<tr class="${r.forest_type === WHOLE ? 'whole' : ''}">
+      (r, i) => html`<tr class="${r.forest_type === WHOLE ? 'whole' : ''}" data-variable="${v}" data-forest-type="${r.forest_type}">
   ${i === 0 ? html`<td rowspan="${group.length}">${label.name}${label.unit ? html` <span class="muted">(${label.unit})</span>` : null}</td>` : null}
   <td>${stratumName(r.forest_type, whole)}</td><td class="num">${r.n_plots}</td><td class="num">${estimate(r.mean, r.se)}${cautionMark(r)}</td><td class="num">${standardError(r.se)}</td>
   <td class="num">${estimateInterval(r.ci_low, r.ci_high, r.se)}</td><td class="num">${samplingError(r.sampling_error_pct)}</td>
-  <td class="num">${figure(r.forest_area_ha)}</td><td class="num">${estimate(r.total, totalSe(r))}</td>
+  ${totals ? html`<td class="num">${figure(r.forest_area_ha)}</td><td class="num">${estimate(r.total, totalSe(r))}</td>` : null}
 </tr>`,
     );
   });
-  return html`<table id="estimates"><thead><tr><th>Variable</th><th>Stratum</th><th class="num">Plots</th><th class="num">Mean</th><th class="num">SE</th><th class="num">95 % CI</th><th class="num">Sampling error</th><th class="num">Forest area (ha)</th><th class="num">Total</th></tr></thead><tbody>${body}</tbody></table>`;
+  return html`<table id="${id}"><thead><tr><th>Variable</th><th>Stratum</th><th class="num">Plots</th><th class="num">Mean</th><th class="num">SE</th><th class="num">95 % CI</th><th class="num">Sampling error</th>${totals ? html`<th class="num">Forest area (ha)</th><th class="num">Total</th>` : null}</tr></thead><tbody>${body}</tbody></table>`;
 }
 
 function guildTable(s: Snapshot): Markup | null {
@@ -168,6 +189,12 @@ export function versionsList(input: VersionsInput): Markup {
   })}</ul>`;
 }
 
+/** The rows of the stock and diversity variables: change between visits has its own section. */
+export function withoutChange(rows: readonly RegionRow[]): RegionRow[] {
+  const change = new Set(changeRows(rows));
+  return rows.filter((r) => !change.has(r));
+}
+
 /** The HTML page of one region's summary snapshot. */
 export function renderRegionPage(input: RegionPageInput): string {
   const { snapshot: s, links } = input;
@@ -203,8 +230,10 @@ export function renderRegionPage(input: RegionPageInput): string {
   <h2>Diversity and disturbance by forest type</h2>
   ${fitsSection(s)}
   <h2>Estimates by forest type</h2>
-  ${estimatesTable(summary.rows)}
+  ${estimatesTable(withoutChange(summary.rows))}
   ${cautionLegend(summary.caution)}
+  <h2 id="change-between-visits">Change between visits</h2>
+  ${changeSection({ rows: summary.rows, coverage: s.payload.change, chartSvg: charts.change, scope: 'region' })}
   <h2>Guild composition</h2>
   ${guildTable(s) ?? html`<p class="muted">No guild shares.</p>`}
   <h2>Plots by disturbance class</h2>
