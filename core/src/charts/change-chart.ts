@@ -1,7 +1,7 @@
 import type { TopLevelSpec } from 'vega-lite';
 import type { RegionRow } from '../region-summary/types';
 import { variableLabel } from '../region-summary/variables';
-import { REPORT_CHART_CONFIG, REPORT_CHART_FRAME, WHOLE_REGION_LABEL, renderVegaLiteSvg } from './render';
+import { REPORT_CHART_CONFIG, REPORT_CHART_SIZE, WHOLE_REGION_LABEL, renderVegaLiteSvg } from './render';
 import type { WholeLabel } from './means-chart';
 
 // Change between visits per forest type (and for the whole region or country): the gains (survivor
@@ -47,12 +47,15 @@ export function buildChangeChartSpec(rows: readonly RegionRow[], whole: Pick<Who
   const unit = variableLabel('agb_net_change_mg_ha_yr').unit;
   return {
     $schema: 'https://vega.github.io/schema/vega-lite/v6.json',
-    ...REPORT_CHART_FRAME,
+    // Bands of a discrete axis cannot be fitted to a size by vega: the plot area is set, and the
+    // rendered SVG brought to the report's width (renderVegaLiteSvg).
+    width: REPORT_CHART_SIZE.width - 90,
+    height: REPORT_CHART_SIZE.height - 110,
     background: 'white',
     padding: 8,
     title: {
-      text: 'Biomass change between visits: gains, losses and net change',
-      subtitle: `above-ground biomass, ${unit}; losses drawn below zero; whiskers: 95 % confidence intervals`,
+      text: 'Gains, losses and net change of biomass',
+      subtitle: ['above-ground biomass between two visits', `${unit}; losses below zero; whiskers: 95 % CI`],
     },
     data: { values: bars },
     layer: [
@@ -62,7 +65,7 @@ export function buildChangeChartSpec(rows: readonly RegionRow[], whole: Pick<Who
           x,
           xOffset,
           y: { field: 'value', type: 'quantitative', title: `Change of above-ground biomass (${unit})` },
-          color: { field: 'part', type: 'nominal', sort: parts, scale: { domain: parts, range: [...CHANGE_COLOURS] }, legend: { title: null, orient: 'bottom', direction: 'horizontal' } },
+          color: { field: 'part', type: 'nominal', sort: parts, scale: { domain: parts, range: [...CHANGE_COLOURS] }, legend: { title: null, orient: 'bottom', direction: 'horizontal', labelLimit: 400 } },
         },
       },
       { mark: { type: 'rule', color: '#3b2a1a', strokeWidth: 1.3, aria: false }, encoding: { x, xOffset, y: { field: 'low', type: 'quantitative' }, y2: { field: 'high' } } },

@@ -14,12 +14,12 @@ describe('means chart', () => {
       row('dry', 'carbon_mg_ha', 48, -53.6, 149.6),
       row('all', 'basal_area_m2_ha', 21, 14.2, 27.8),
       row('all', 'fisher_alpha', 8, 5, 11), // not a panel of this chart
-    ]) as unknown as { hconcat: Array<{ title: { text: string }; layer: Array<{ encoding: { y: { scale: { domain: [number, number] } } } }> }> };
-    expect(spec.hconcat.map((p) => p.title.text)).toEqual(['Basal area (m²/ha)', 'Carbon (Mg C/ha)']);
-    const [lo, hi] = spec.hconcat[1].layer[0].encoding.y.scale.domain;
+    ]) as unknown as { concat: Array<{ title: { text: string }; layer: Array<{ encoding: { y: { scale: { domain: [number, number] } } } }> }> };
+    expect(spec.concat.map((p) => p.title.text)).toEqual(['Basal area (m²/ha)', 'Carbon in above-ground biomass (Mg C/ha)']);
+    const [lo, hi] = spec.concat[1].layer[0].encoding.y.scale.domain;
     expect(lo).toBeLessThan(-53.6);
     expect(hi).toBeGreaterThan(159.7);
-    expect(spec.hconcat[0].layer[0].encoding.y.scale.domain[0]).toBe(0); // bars start at zero when every interval is positive
+    expect(spec.concat[0].layer[0].encoding.y.scale.domain[0]).toBe(0); // bars start at zero when every interval is positive
   });
 
   it('has nothing to draw without means', () => {

@@ -13,7 +13,7 @@ import {
   recordProblems,
   regionExists,
 } from '@stemwise/db';
-import { asStoredFitChart, cautionSettings, currentSpecies, IPCC_2006_CARBON_FRACTION, toFitRow, type SamplingErrorT, type ServiceDeps, type StoredFitChart } from '@stemwise/core';
+import { asStoredFitChart, cautionSettings, variableLabel, currentSpecies, IPCC_2006_CARBON_FRACTION, toFitRow, type SamplingErrorT, type ServiceDeps, type StoredFitChart } from '@stemwise/core';
 import { isInfrastructureError, PermanentError, type Config, type Logger } from '@stemwise/platform';
 import { buildChangeChartSpec, buildFitChartSpec, buildGuildChartSpec, buildMeansChartSpec, chartSpecKey, regionChartPoints, renderVegaLiteSvg, type TopLevelSpec } from '@stemwise/core/charts';
 import { RegionSummaryInputError, summariseRegion, summaryVariables, type PlotMetrics } from './summary/region-summary';
@@ -37,7 +37,7 @@ export function methodOf(config: Pick<Config, 'fitMetric' | 'fitAxis'>): Snapsho
       'Above-ground biomass per stem by Chave et al. 2014 (wood density, diameter, height; heights measured or from a local height–diameter model), or by Chave et al. 2005 for the climate class where no height is available.',
     carbon_fraction: IPCC_2006_CARBON_FRACTION,
     carbon: `Carbon = ${IPCC_2006_CARBON_FRACTION} × above-ground biomass (IPCC 2006 default carbon fraction). Not a substitute for the national greenhouse-gas inventory method.`,
-    fits: `${config.fitMetric} against ${config.fitAxis}: straight line and parabola by least squares per forest type, with the hump tests and a plain verdict.`,
+    fits: `${variableLabel(config.fitMetric).name} against ${variableLabel(config.fitAxis).name}: straight line and parabola by least squares per forest type, with the hump tests and a plain verdict.`,
   };
 }
 
@@ -67,7 +67,7 @@ async function fitChart(deps: Deps, region: string, forestType: string, charts: 
   if (!stored) return { ...base, svg: null, missing: `no stored fit of ${metric} against ${axis} for ${forestType}: the fits stage has not stored its chart`, drawn_from: null };
   if (!stored.points.x.length) return { ...base, svg: null, missing: `no plot of ${forestType} has both ${metric} and ${axis}`, drawn_from: null };
   try {
-    const { svg, key } = await draw(buildFitChartSpec({ forestType, metric, axis, points: regionChartPoints(stored.points, region), chart: stored }), drawn);
+    const { svg, key } = await draw(buildFitChartSpec({ forestType, metric, axis, points: regionChartPoints(stored.points, region), chart: stored, highlightLabel: `plots of ${region}` }), drawn);
     return { ...base, svg, missing: null, drawn_from: key };
   } catch (err) {
     deps.log?.error({ err, region, forestType }, 'fit chart could not be rendered');
