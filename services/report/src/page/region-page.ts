@@ -142,29 +142,34 @@ function classRange(r: DisturbanceRow): string {
   return `${r.lower} to below ${r.upper}`;
 }
 
+// Counts and shares in columns of their own, each headed by what it is: a forest type's share is the
+// share of its plots; the whole region's is the stratified estimate (of forest area when areas are known).
 function disturbanceTable(s: Snapshot): Markup | null {
   const { rows, plots_without_index } = s.payload.summary.disturbance;
   if (!rows.length) return null;
   const strata = [...new Set(rows.map((r) => r.forest_type))];
   const classes = [...new Set(rows.map((r) => r.class))];
   const missing = plots_without_index.filter((p) => p.n_plots > 0);
-  return html`<table id="disturbance"><thead><tr><th>Class</th><th>Disturbance index</th>${strata.map((t) => html`<th class="num">${stratumName(t)}</th>`)}</tr></thead><tbody>${classes.map((c) => {
+  const wholeShare = s.payload.summary.weighting === 'area' ? '% of forest area (stratified)' : '% of plots (stratified, plot-count weights)';
+  return html`<table id="disturbance"><thead><tr><th rowspan="2">Class</th><th rowspan="2">Disturbance index</th>${strata.map((t) => html`<th class="num" colspan="2">${stratumName(t)}</th>`)}</tr>
+<tr>${strata.map((t) => html`<th class="num">Plots (count)</th><th class="num">${t === WHOLE ? wholeShare : '% of its plots'}</th>`)}</tr></thead><tbody>${classes.map((c) => {
     const first = rows.find((r) => r.class === c) as DisturbanceRow;
     return html`<tr><td>${c.replace(/_/g, ' ')}</td><td>${classRange(first)}</td>${strata.map((t) => {
       const r = rows.find((x) => x.forest_type === t && x.class === c);
-      return html`<td class="num">${r ? html`${plots(r.n_plots)} · ${sharePercent(r.share, r.share_se)}` : '–'}</td>`;
+      return r ? html`<td class="num">${r.n_plots}</td><td class="num">${sharePercent(r.share, r.share_se)}</td>` : html`<td class="num">–</td><td class="num">–</td>`;
     })}</tr>`;
   })}</tbody></table>
-<p class="muted">Shares per forest type are shares of its plots; the whole-region share is the stratified estimate (of forest area when areas are known).${missing.length ? ` Plots without a disturbance index: ${missing.map((m) => `${m.forest_type} ${m.n_plots}`).join(', ')}.` : ''}</p>`;
+<p class="muted">Plots (count): plots of the class. Per forest type, the share is the share of its plots with a disturbance index; for the whole region it is the stratified estimate (${s.payload.summary.weighting === 'area' ? 'forest types weighted by forest area: an estimate of the share of forest area' : 'forest types weighted by plot counts, as no forest areas were given'}), so it need not equal the pooled count over all plots.${missing.length ? ` Plots without a disturbance index: ${missing.map((m) => `${m.forest_type} ${m.n_plots}`).join(', ')}.` : ''}</p>`;
 }
 
+// Species counts are pooled (distinct species over the plots of a stratum), not stratified estimates.
 function speciesTable(s: Snapshot): Markup | null {
   const rows = s.payload.summary.species;
   if (!rows) return null;
-  return html`<table id="species"><thead><tr><th>Stratum</th><th class="num">Species recorded</th><th class="num">Plots</th></tr></thead><tbody>${rows.map(
-    (r) => html`<tr class="${r.forest_type === WHOLE ? 'whole' : ''}"><td>${stratumName(r.forest_type)}</td><td class="num">${r.n_species}</td><td class="num">${r.n_plots_with_names}</td></tr>`,
+  return html`<table id="species"><thead><tr><th>Stratum</th><th class="num">Species recorded (pooled count)</th><th class="num">Plots pooled</th></tr></thead><tbody>${rows.map(
+    (r) => html`<tr class="${r.forest_type === WHOLE ? 'whole' : ''}"><td>${stratumName(r.forest_type, 'Whole region (pooled over all plots)')}</td><td class="num">${r.n_species}</td><td class="num">${r.n_plots_with_names}</td></tr>`,
   )}</tbody></table>
-<p class="muted">Species counted among live stems of the main plots identified to species (synonyms counted as their accepted name). Observed counts grow with the number of plots: compare strata with care.</p>`;
+<p class="muted">Pooled counts, not estimates: the distinct species among the live main-plot stems identified to species of all the stratum's plots together (synonyms counted as their accepted name). They grow with the number and size of the plots pooled: compare strata with care.</p>`;
 }
 
 // A short note of what could not be computed: the figures shown leave these parts out or are older for them.
@@ -238,7 +243,7 @@ export function renderRegionPage(input: RegionPageInput): string {
   ${guildTable(s) ?? html`<p class="muted">No guild shares.</p>`}
   <h2>Plots by disturbance class</h2>
   ${disturbanceTable(s) ?? html`<p class="muted">No disturbance index.</p>`}
-  <h2>Species counts</h2>
+  <h2>Species recorded (pooled counts)</h2>
   ${speciesTable(s) ?? html`<p class="muted">No species names.</p>`}
   <h2>Method and notes</h2>
   <ul class="notes">
