@@ -54,7 +54,7 @@ describe('change chart', () => {
   it('renders with a legend of the five parts and the unit on the axis', async () => {
     const svg = (await renderChangeChartSvg(ROWS))!;
     expect(svg).toMatch(/aria-label="Symbol legend for fill color with 5 values: survivor growth, recruitment, died, removed, net change"/);
-    expect(svg).toContain('Change of above-ground biomass (Mg/ha/yr)');
+    expect(svg).toContain('Biomass change (Mg/ha/yr)');
   });
 });
 

@@ -64,12 +64,12 @@ export function buildChangeChartSpec(rows: readonly RegionRow[], whole: Pick<Who
         encoding: {
           x,
           xOffset,
-          y: { field: 'value', type: 'quantitative', title: `Change of above-ground biomass (${unit})` },
+          y: { field: 'value', type: 'quantitative', title: `Biomass change (${unit})` },
           color: { field: 'part', type: 'nominal', sort: parts, scale: { domain: parts, range: [...CHANGE_COLOURS] }, legend: { title: null, orient: 'bottom', direction: 'horizontal', labelLimit: 400 } },
         },
       },
       { mark: { type: 'rule', color: '#3b2a1a', strokeWidth: 1.3, aria: false }, encoding: { x, xOffset, y: { field: 'low', type: 'quantitative' }, y2: { field: 'high' } } },
-      { data: { values: [{ zero: 0 }] }, mark: { type: 'rule', color: '#555555', strokeWidth: 1, aria: false }, encoding: { y: { field: 'zero', type: 'quantitative' } } },
+      { mark: { type: 'rule', color: '#555555', strokeWidth: 1, aria: false }, encoding: { y: { datum: 0, type: 'quantitative' } } },
     ],
     config: REPORT_CHART_CONFIG,
   } as unknown as TopLevelSpec;
