@@ -25,7 +25,7 @@ function panel(title: string, bars: Bar[], order: string[]): Record<string, unkn
   const y = { type: 'quantitative', title: null, scale: { domain: [lo, hi], nice: true } };
   return {
     title: { text: title, fontSize: 12, fontWeight: 'normal' },
-    width: 215,
+    width: 262,
     height: 110,
     data: { values: bars },
     layer: [
