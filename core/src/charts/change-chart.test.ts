@@ -5,7 +5,7 @@ import { fitCurves } from '../science/verdict';
 import { buildChangeChartSpec, renderChangeChartSvg } from './change-chart';
 import { renderFitChartSvg } from './fit-chart';
 import { renderGuildChartSvg } from './guild-chart';
-import { renderMeansChartSvg } from './means-chart';
+import { MEANS_CHART_VARIABLES, renderMeansChartSvg } from './means-chart';
 import { atReportWidth, REPORT_CHART_SIZE } from './render';
 
 const row = (forest_type: string, variable: string, mean: number, ci_low: number, ci_high: number): RegionRow => ({
@@ -63,7 +63,7 @@ describe('chart sizes', () => {
     const pts = Array.from({ length: 40 }, (_, i) => ({ x: i / 40, y: 5 + Math.sin(i), highlight: i % 4 === 0 }));
     const svgs = [
       await renderFitChartSvg({ forestType: 'wet', metric: 'fisher_alpha', axis: 'disturbance_index', points: pts, chart: fitChartData(fitCurves(pts, { bootstrapN: 0 })) }),
-      (await renderMeansChartSvg(['stems_ha', 'basal_area_m2_ha', 'agb_mg_ha', 'carbon_mg_ha'].flatMap((v) => [row('all', v, 10, 8, 12), row('wet', v, 11, 7, 15)])))!,
+      (await renderMeansChartSvg(MEANS_CHART_VARIABLES.flatMap((v) => [row('all', v, 10, 8, 12), row('wet', v, 11, 7, 15)])))!,
       (await renderGuildChartSvg([{ forest_type: 'all', guild: 'pioneer', n_plots: 3, mean_share: 0.4, se: 0.1 }, { forest_type: 'all', guild: 'shade_tolerant', n_plots: 3, mean_share: 0.6, se: 0.1 }]))!,
       (await renderChangeChartSvg(ROWS))!,
     ];

@@ -1,10 +1,11 @@
 import type { TopLevelSpec } from 'vega-lite';
 import type { RegionRow } from '../region-summary/types';
 import { REPORT_CHART_CONFIG, REPORT_COLOURS, WHOLE_REGION_LABEL, renderVegaLiteSvg } from './render';
-import { axisTitle } from '../region-summary/variables';
+import { shortTitle } from '../region-summary/variables';
 
 /** Variables drawn in the means chart, one panel each. */
-export const MEANS_CHART_VARIABLES = ['stems_ha', 'basal_area_m2_ha', 'agb_mg_ha', 'carbon_mg_ha'] as const;
+/** The per-hectare figures at the reporting threshold (docs/methods.md#reporting-threshold): comparable between plots. */
+export const MEANS_CHART_VARIABLES = ['reporting_stems_ha', 'reporting_basal_area_m2_ha', 'reporting_agb_mg_ha', 'reporting_carbon_mg_ha'] as const;
 
 interface Bar {
   stratum: string;
@@ -62,7 +63,7 @@ export function buildMeansChartSpec(rows: readonly RegionRow[], whole: WholeLabe
       }));
     if (!bars.length) continue;
     const order = [whole.label, ...bars.filter((b) => !b.whole).map((b) => b.stratum).sort()];
-    panels.push(panel(axisTitle(variable), bars, order));
+    panels.push(panel(shortTitle(variable), bars, order));
   }
   if (!panels.length) return null;
   return {

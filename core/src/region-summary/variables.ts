@@ -1,6 +1,7 @@
 // How the summary's variables (columns of `export plots`) are named for people on the page and in
 // charts, and which of them a region summary estimates: all read from the plot-metric catalogue.
 import { HEADLINE_METRIC_COLUMNS, plotMetricByColumn, REGION_METRIC_COLUMNS } from '@stemwise/db/catalogue';
+import { standLabel } from './stand-table';
 
 export interface VariableLabel {
   /** Full name for tables. */
@@ -35,6 +36,9 @@ const CHANGE_LABELS: Readonly<Record<string, ChangeLabel>> = {
   dbh_increment_cm_yr: { name: 'Diameter growth of survivors', short: 'Diameter growth (cm/yr)', unit: 'cm/yr', description: 'Mean diameter increment per year of the trees alive at both visits.' },
   agb_died_mg_ha_yr: { name: 'Biomass lost by trees that died', short: 'Died (Mg/ha/yr)', unit: 'Mg/ha/yr', description: 'Above-ground biomass per year (at the first visit) of the trees that died, were found dead or were not found again.' },
   agb_removed_mg_ha_yr: { name: 'Biomass removed by logging', short: 'Removed (Mg/ha/yr)', unit: 'Mg/ha/yr', description: 'Above-ground biomass per year (at the first visit) of the trees found as logged stumps.' },
+  bgb_net_change_mg_ha_yr: { name: 'Net below-ground biomass change between visits', short: 'Root biomass change (Mg/ha/yr)', unit: 'Mg/ha/yr', description: 'Yearly change of the below-ground (root) biomass derived from the above-ground biomass of live trees.' },
+  standing_dead_net_change_mg_ha_yr: { name: 'Net standing dead wood change between visits', short: 'Standing dead wood change (Mg/ha/yr)', unit: 'Mg/ha/yr', description: 'Yearly change of the biomass of standing dead trees.' },
+  tree_carbon_net_change_mg_ha_yr: { name: 'Net tree carbon change between visits (three pools)', short: 'Tree carbon change (Mg C/ha/yr)', unit: 'Mg C/ha/yr', description: 'Yearly change of the carbon in above-ground and below-ground biomass of live trees and in standing dead wood.' },
 };
 
 export function variableLabel(variable: string): VariableLabel {
@@ -43,6 +47,8 @@ export function variableLabel(variable: string): VariableLabel {
     const percent = m.share === true;
     return { name: m.label, short: percent ? `${m.short} (%)` : m.short, unit: percent ? '%' : m.unit, percent, description: m.description };
   }
+  const stand = standLabel(variable);
+  if (stand !== null) return { name: stand.name, short: stand.short, unit: stand.unit, percent: false, description: '' };
   const c = CHANGE_LABELS[variable];
   if (c !== undefined) return { ...c, percent: c.percent === true };
   return { name: variable, short: variable, unit: '', percent: false, description: '' };
@@ -54,6 +60,12 @@ export function axisTitle(variable: string): string {
   return l.unit && !l.name.includes(`(${l.unit})`) ? `${l.name} (${l.unit})` : l.name;
 }
 
+/** A chart panel title: the short label, with the unit where the short label does not already end with it. */
+export function shortTitle(variable: string): string {
+  const l = variableLabel(variable);
+  return l.unit && !/\([^)]*\)$/.test(l.short) ? `${l.short} (${l.unit})` : l.short;
+}
+
 /** A value of the variable in the unit shown (× 100 for shares). */
 export function shownValue(variable: string, x: number): number;
 export function shownValue(variable: string, x: number | null): number | null;
@@ -63,7 +75,7 @@ export function shownValue(variable: string, x: number | null): number | null {
 
 /** Unit of a total (mean × forest area) of a per-hectare variable; '' for any other variable. */
 export function totalUnit(variable: string): string {
-  return plotMetricByColumn(variable)?.totalUnit ?? '';
+  return plotMetricByColumn(variable)?.totalUnit ?? standLabel(variable)?.totalUnit ?? '';
 }
 
 /** Totals are meaningful for densities only: the per-hectare variables (those with a total unit). */
