@@ -11,6 +11,8 @@ export interface ChartPoint {
   readonly y: number;
   /** Drawn in the highlight colour, on top (e.g. the plots of one region). */
   readonly highlight?: boolean;
+  /** Where a click on the point leads (the plot's page); absent: not a link. */
+  readonly href?: string;
 }
 
 export interface FitChartInput {
@@ -62,10 +64,14 @@ export function fitChartCaptionLines(chart: FitChartData): string[] {
   return second.length ? [first, second.join(' · ')] : [first];
 }
 
-/** The stored points of a forest type, those of `region` highlighted (in their stored order). */
-export function regionChartPoints(points: FitChartPoints, region: string | null): ChartPoint[] {
+/** The stored points of a forest type, those of `region` highlighted (in their stored order); `href` links the highlighted ones to their plot's page. */
+export function regionChartPoints(points: FitChartPoints, region: string | null, href?: (plotKey: string) => string): ChartPoint[] {
   const at = region === null ? -1 : points.regions.indexOf(region);
-  return points.x.map((x, i) => ({ x, y: points.y[i], highlight: points.region[i] === at }));
+  return points.x.map((x, i) => {
+    const highlight = points.region[i] === at;
+    const plot = points.plots?.[i];
+    return highlight && href && plot !== undefined ? { x, y: points.y[i], highlight, href: href(plot) } : { x, y: points.y[i], highlight };
+  });
 }
 
 const highlightedCount = (points: readonly ChartPoint[]): number => points.reduce((n, p) => n + (p.highlight ? 1 : 0), 0);
@@ -87,7 +93,8 @@ export function buildFitChartSpec(input: FitChartInput): TopLevelSpec {
     legend: { orient: 'bottom' as const, direction: 'horizontal' as const, symbolType: 'circle', labelLimit: 400, values: highlightedCount(points) > 0 ? [plainLabel, highlightLabel] : [plainLabel] },
   };
   const plain = points.filter((p) => !p.highlight).map((p) => ({ x: p.x, y: p.y, who: plainLabel }));
-  const highlighted = points.filter((p) => p.highlight).map((p) => ({ x: p.x, y: p.y, who: highlightLabel }));
+  const highlighted = points.filter((p) => p.highlight).map((p) => (p.href === undefined ? { x: p.x, y: p.y, who: highlightLabel } : { x: p.x, y: p.y, who: highlightLabel, href: p.href }));
+  const linked = highlighted.some((p) => 'href' in p);
   const { x: cx, y: cy, low, high } = chart.curve;
   const curve = cx.map((v, i) => ({ x: v, y: cy[i], low: low[i], high: high[i] }));
   const layer: LayerItem[] = [];
@@ -119,8 +126,8 @@ export function buildFitChartSpec(input: FitChartInput): TopLevelSpec {
     layer.push({
       name: 'highlighted',
       data: { values: highlighted },
-      mark: { type: 'point', filled: true, size: 46, stroke: '#5a2508', strokeWidth: 0.8, opacity: 0.95, aria: false },
-      encoding: { x, y, color: who },
+      mark: { type: 'point', filled: true, size: 46, stroke: '#5a2508', strokeWidth: 0.8, opacity: 0.95, aria: false, ...(linked ? { cursor: 'pointer' as const } : {}) },
+      encoding: linked ? { x, y, color: who, href: { field: 'href' } } : { x, y, color: who },
     });
   }
   if (curve.length > 0) {

@@ -3,7 +3,6 @@ import {
   insertNationalSnapshot,
   listLatestSummaryVersions,
   listRegionForestAreas,
-  listRegionLatestPlots,
   listRegionNames,
   type Queryable,
 } from '@stemwise/db';
@@ -14,9 +13,9 @@ import { summariseNation, type NationalRegionInput } from './summary/national-su
 import { summaryVariables } from './summary/region-summary';
 import { changeCoverage, type ChangeCoverage, type PlotPair } from './summary/change-coverage';
 import type { SnapshotData, SnapshotMethod } from './snapshot-payload';
-import { payloadEtag, samplingErrorMultiplier } from './snapshots';
+import { payloadEtag, regionPlots, samplingErrorMultiplier, type RegionPlotsCache } from './snapshots';
 
-type Deps = Pick<ServiceDeps, 'db' | 'config'> & { log?: Logger };
+type Deps = Pick<ServiceDeps, 'db' | 'config'> & { log?: Logger; /** The region plots the stage has read already. */ plots?: RegionPlotsCache };
 
 // What one national_summaries.payload holds (format 1): the national rows and how they were made,
 // the visits they use, and the region summary versions current when it was assembled. The latter
@@ -60,7 +59,7 @@ export async function assembleNationalSnapshot(deps: Deps, sources: Readonly<Rec
   const dates: string[] = [];
   const pairs: PlotPair[] = [];
   for (const region of await listRegionNames(db)) {
-    const [plots, forestAreas] = await Promise.all([listRegionLatestPlots(db, region), listRegionForestAreas(db, region)]);
+    const [plots, forestAreas] = await Promise.all([regionPlots(db, region, deps.plots), listRegionForestAreas(db, region)]);
     for (const p of plots) dates.push(p.surveyDate);
     pairs.push(...plots);
     regions.push({ region, forestAreas, plots: plots.map((p) => ({ plotId: p.plotKey, forestType: p.forestType, values: { ...p.metrics, ...p.change, ...standTableValues(p.standTable) } })) });

@@ -27,6 +27,8 @@ export interface RegionPageInput {
   versions: ReadonlyArray<{ version: number; createdAt: Date }>;
   /** What the latest recompute could not compute for this region (its plots, fits, summary); a short note when any. */
   problems?: readonly ProblemView[];
+  /** The plot map and the plot table (page/map-section.ts, page/plot-table.ts); absent: not shown. */
+  plots?: { map: Markup; table: Markup } | null;
 }
 
 const WHOLE = 'all';
@@ -238,6 +240,7 @@ export function renderRegionPage(input: RegionPageInput): string {
   <h2>Charts</h2>
   ${means ? html`<figure id="means-chart">${means}<figcaption>Means per hectare with their 95 % confidence intervals: the whole region (dark) and each forest type. Wide intervals come from few plots.</figcaption></figure>` : null}
   ${guilds ? html`<figure id="guild-chart">${guilds}<figcaption>Guild composition: the mean share of live basal area per plot.</figcaption></figure>` : null}
+  ${input.plots ? html`<h2 id="where">Where the plots are</h2>${input.plots.map}` : null}
   <h2>Diversity and disturbance by forest type</h2>
   ${fitsSection(s)}
   <h2>Estimates by forest type</h2>
@@ -253,6 +256,7 @@ export function renderRegionPage(input: RegionPageInput): string {
   ${disturbanceTable(s) ?? html`<p class="muted">No disturbance index.</p>`}
   <h2>Species recorded (pooled counts)</h2>
   ${speciesTable(s) ?? html`<p class="muted">No species names.</p>`}
+  ${input.plots ? html`<h2 id="plots">Plots</h2>${input.plots.table}` : null}
   <h2>Method and notes</h2>
   <ul class="notes">
     <li>${method.estimator}</li>
