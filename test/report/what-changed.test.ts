@@ -54,10 +54,10 @@ describe('what changed since the previous summary version', () => {
   });
 
   it('says the first version is the first', async () => {
-    const res = await app.inject({ url: '/v1/regions/Northvale/changes', headers: auth });
+    const res = await app.inject({ url: '/v1/regions/Northvale/summary/changes', headers: auth });
     expect(res.statusCode).toBe(200);
     expect(res.json()).toEqual({ region: 'Northvale', version: 1, previous_version: null, plots_added: null, plots_removed: null, moved: [] });
-    expect((await app.inject({ url: '/v1/regions/Northvale/changes?version=7', headers: auth })).statusCode).toBe(404);
+    expect((await app.inject({ url: '/v1/regions/Northvale/summary/changes?version=7', headers: auth })).statusCode).toBe(404);
   });
 
   it('lists plots added and removed and the estimates that moved by more than their SE, with old value, new value and SE', async () => {
@@ -72,7 +72,7 @@ describe('what changed since the previous summary version', () => {
     await markStale(s.db, 'summary', ['Northvale']);
     await summaries();
 
-    const res = await app.inject({ url: '/v1/regions/Northvale/changes', headers: auth });
+    const res = await app.inject({ url: '/v1/regions/Northvale/summary/changes', headers: auth });
     expect(res.statusCode).toBe(200);
     const body = res.json() as { version: number; previous_version: number; plots_added: string[]; plots_removed: string[]; moved: Array<{ forest_type: string; variable: string; old_mean: number; new_mean: number; se: number }> };
     expect(body.version).toBe(2);
@@ -88,7 +88,7 @@ describe('what changed since the previous summary version', () => {
     expect(moved('all')!.se).toBeCloseTo(Math.sqrt(3.25), 12);
     expect(moved('dry')).toBeUndefined(); // unchanged
     // the earlier version's changes stay what they were
-    expect((await app.inject({ url: '/v1/regions/Northvale/changes?version=1', headers: auth })).json()).toMatchObject({ version: 1, previous_version: null });
+    expect((await app.inject({ url: '/v1/regions/Northvale/summary/changes?version=1', headers: auth })).json()).toMatchObject({ version: 1, previous_version: null });
   });
 
   it('shows the changes, the biomass method shares and the plot-size note on the region page', async () => {

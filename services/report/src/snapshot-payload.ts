@@ -1,4 +1,5 @@
 import type { RegionSummary, TestOutcome } from '@stemwise/core';
+import type { ChangeCoverage } from './summary/change-coverage';
 import type { BiomassMethodRow } from './summary/biomass-method';
 
 // What one region_summaries.payload holds (format 1). The API serves it without `charts`; the page
@@ -91,6 +92,8 @@ export interface SnapshotPayload {
   readonly method: SnapshotMethod;
   readonly summary: RegionSummary;
   readonly fits: readonly SnapshotFitRow[];
+  /** The pairs of visits behind the estimates of change (null: no plot measured twice); absent in snapshots made before it. */
+  readonly change?: ChangeCoverage | null;
   /** Share of the AGB from each height source and wood-density level (absent in older snapshots). */
   readonly biomass_method?: readonly BiomassMethodRow[];
   /** Plots per forest type and plot area in ha (absent in older snapshots). */
@@ -98,9 +101,11 @@ export interface SnapshotPayload {
   readonly charts: {
     readonly means: string | null;
     readonly guilds: string | null;
+    /** Gains, losses and net change per forest type (null without change estimates); absent in older snapshots. */
+    readonly change?: string | null;
     readonly fits: readonly FitChart[];
-    /** Keys of the specifications the means and guild charts were drawn from (see FitChart.drawn_from). */
-    readonly drawn_from: { readonly means: string | null; readonly guilds: string | null };
+    /** Keys of the specifications the means, guild and change charts were drawn from (see FitChart.drawn_from). */
+    readonly drawn_from: { readonly means: string | null; readonly guilds: string | null; readonly change?: string | null };
   };
 }
 
