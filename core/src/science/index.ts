@@ -20,3 +20,4 @@ export * from './stratified';
 export * from './sample-moments';
 export * from './estimator-errors';
 export * from './change';
+export * from './carbon-uncertainty';
