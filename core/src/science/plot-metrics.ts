@@ -31,6 +31,7 @@ import {
   shannon,
   simpson,
 } from './diversity';
+import { CarbonMomentsBuilder, type CarbonMoments } from './carbon-uncertainty';
 import { type HeightDiameterModel, predictHeight } from './height-diameter';
 import type { SpeciesIndex, SpeciesReference } from './species-names';
 import { basalAreaM2, basalAreaPerHa, expansionFactor, quadraticMeanDiameter, stemsPerHa } from './structure';
@@ -84,6 +85,8 @@ export interface PlotMetricOptions {
    * models and wood densities as the plot's figures (change between visits needs it per tree).
    */
   readonly stemAgb?: boolean;
+  /** Also return the sums the carbon uncertainty needs (`carbonMoments`, docs/methods.md#carbon-uncertainty). */
+  readonly carbonMoments?: boolean;
 }
 
 export const DEFAULT_MIN_STEMS_FOR_DIVERSITY = 2;
@@ -114,6 +117,8 @@ export interface PlotMetricsResult {
   diagnostics: PlotDiagnostics;
   /** With `stemAgb`: AGB in kg of each input stem, in input order; null for stems that are not live. */
   stemAgbKg?: (number | null)[];
+  /** With `carbonMoments`: the plot's above-ground biomass sums by height source (Mg/ha). */
+  carbonMoments?: CarbonMoments;
 }
 
 const tables = new WeakMap<SpeciesIndex, WoodDensityTable>();
@@ -261,6 +266,7 @@ export function computePlotMetrics(
   const heightCount = [0, 0, 0];
   let outsideRange = 0;
   let agbKgHa = 0;
+  const moments = options.carbonMoments ? new CarbonMomentsBuilder() : null;
   for (let i = 0; i < nLive; i += 1) {
     const d = dbh[i];
     const rho = wd.values[i];
@@ -273,6 +279,10 @@ export function computePlotMetrics(
     } else heightCount[HEIGHT_NONE] += 1;
     const agb = agbOf(rho, d, measured);
     if (stemAgbKg) stemAgbKg[includedAt[i]] = agb;
+    if (moments) {
+      const source = measured !== null ? 'measured' : heightModel !== null ? 'modelled' : 'noHeight';
+      moments.addTree(source, [{ weight: weight[i], coef: 1, agbMg: agb / 1000, dbhCm: d, modelled: source === 'modelled' }]);
+    }
     agbKgHa += weight[i] * agb;
   }
   for (let j = 0; j < below.length; j += 1) {
@@ -357,5 +367,7 @@ export function computePlotMetrics(
     liveStemsBelowDbhMin: belowMin,
     unresolvedNames,
   };
-  return stemAgbKg ? { metrics, diagnostics, stemAgbKg } : { metrics, diagnostics };
+  const result: PlotMetricsResult = stemAgbKg ? { metrics, diagnostics, stemAgbKg } : { metrics, diagnostics };
+  if (moments) result.carbonMoments = moments.build();
+  return result;
 }

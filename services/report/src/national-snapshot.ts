@@ -10,6 +10,7 @@ import {
 import { cautionSettings, type NationalSummary, type ServiceDeps } from '@stemwise/core';
 import { renderMeansChartSvg } from '@stemwise/core/charts';
 import type { Logger } from '@stemwise/platform';
+import { nationalCarbonUncertainty, withWholeInterval, type CarbonUncertaintySection } from './carbon-uncertainty';
 import { summariseNation, type NationalRegionInput } from './summary/national-summary';
 import { summaryVariables } from './summary/region-summary';
 import type { SnapshotData, SnapshotMethod } from './snapshot-payload';
@@ -31,6 +32,8 @@ export interface NationalPayload {
   readonly summary: NationalSummary;
   /** Region → its latest summary version (null: none yet) when this was assembled. */
   readonly sources: Readonly<Record<string, number | null>>;
+  /** Whole uncertainty of the above-ground carbon stock (docs/methods.md#carbon-uncertainty); null when off, absent in older snapshots. */
+  readonly carbon_uncertainty?: CarbonUncertaintySection | null;
   readonly charts: { readonly means: string | null };
 }
 
@@ -60,7 +63,9 @@ export async function assembleNationalSnapshot(deps: Deps, sources: Readonly<Rec
     for (const p of plots) dates.push(p.surveyDate);
     regions.push({ region, forestAreas, plots: plots.map((p) => ({ plotId: p.plotKey, forestType: p.forestType, values: { ...p.metrics, ...p.change } })) });
   }
-  const summary = summariseNation({ regions, variables: summaryVariables(regions.flatMap((r) => r.plots)), options: { samplingErrorT: samplingErrorMultiplier(config), caution: cautionSettings(config) } });
+  const estimated = summariseNation({ regions, variables: summaryVariables(regions.flatMap((r) => r.plots)), options: { samplingErrorT: samplingErrorMultiplier(config), caution: cautionSettings(config) } });
+  const carbon = await nationalCarbonUncertainty(db, config, regions);
+  const summary = { ...estimated, rows: withWholeInterval(estimated.rows, carbon) };
   dates.sort();
   let means: string | null = null;
   try {
@@ -74,6 +79,7 @@ export async function assembleNationalSnapshot(deps: Deps, sources: Readonly<Rec
     method: { estimator: NATIONAL_ESTIMATOR },
     summary,
     sources,
+    carbon_uncertainty: carbon,
     charts: { means },
   };
 }

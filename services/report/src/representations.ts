@@ -16,6 +16,7 @@ export function summaryJson(s: Snapshot): string {
     method: rest.method,
     summary: rest.summary,
     fits: rest.fits,
+    carbon_uncertainty: rest.carbon_uncertainty ?? null,
   });
 }
 
@@ -29,5 +30,6 @@ export function summaryCsv(s: Snapshot | NationalSnapshot): string {
 /** The national snapshot as JSON (everything but the chart SVG). */
 export function nationalJson(s: NationalSnapshot): string {
   const { data, method, summary, sources } = s.payload;
-  return JSON.stringify({ region: 'national', version: s.version, created_at: s.createdAt.toISOString(), etag: s.etag, data, method, summary, sources });
+  const carbon_uncertainty = s.payload.carbon_uncertainty ?? null;
+  return JSON.stringify({ region: 'national', version: s.version, created_at: s.createdAt.toISOString(), etag: s.etag, data, method, summary, sources, carbon_uncertainty });
 }

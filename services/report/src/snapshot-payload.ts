@@ -1,4 +1,5 @@
 import type { RegionSummary, TestOutcome } from '@stemwise/core';
+import type { CarbonUncertaintySection } from './carbon-uncertainty';
 
 // What one region_summaries.payload holds (format 1). The API serves it without `charts`; the page
 // draws the charts from it. Plain JSON; null where a value cannot be computed.
@@ -84,6 +85,8 @@ export interface SnapshotPayload {
   readonly method: SnapshotMethod;
   readonly summary: RegionSummary;
   readonly fits: readonly SnapshotFitRow[];
+  /** Whole uncertainty of the above-ground carbon stock (docs/methods.md#carbon-uncertainty); null when off, absent in older snapshots. */
+  readonly carbon_uncertainty?: CarbonUncertaintySection | null;
   readonly charts: {
     readonly means: string | null;
     readonly guilds: string | null;

@@ -16,6 +16,7 @@ import {
 import { asStoredFitChart, cautionSettings, currentSpecies, IPCC_2006_CARBON_FRACTION, toFitRow, type SamplingErrorT, type ServiceDeps, type StoredFitChart } from '@stemwise/core';
 import { isInfrastructureError, PermanentError, type Config, type Logger } from '@stemwise/platform';
 import { buildFitChartSpec, buildGuildChartSpec, buildMeansChartSpec, chartSpecKey, regionChartPoints, renderVegaLiteSvg, type TopLevelSpec } from '@stemwise/core/charts';
+import { regionCarbonUncertainty, withWholeInterval } from './carbon-uncertainty';
 import { RegionSummaryInputError, summariseRegion, summaryVariables, type PlotMetrics } from './summary/region-summary';
 import { SNAPSHOT_FORMAT, type FitChart, type SnapshotFitRow, type SnapshotMethod, type SnapshotPayload } from './snapshot-payload';
 
@@ -109,7 +110,9 @@ export async function assembleRegionSnapshot(deps: Deps, region: string, charts:
     values: { ...p.metrics, ...p.change },
     speciesNames: accepted.get(p.plotKey) ?? [],
   }));
-  const summary = summariseRegion({ region, plots: inputPlots, forestAreas: areas, variables: summaryVariables(inputPlots), options: { samplingErrorT: samplingErrorMultiplier(config), caution: cautionSettings(config) } });
+  const estimated = summariseRegion({ region, plots: inputPlots, forestAreas: areas, variables: summaryVariables(inputPlots), options: { samplingErrorT: samplingErrorMultiplier(config), caution: cautionSettings(config) } });
+  const carbon = await regionCarbonUncertainty(db, config, region, areas);
+  const summary = { ...estimated, rows: withWholeInterval(estimated.rows, carbon) };
 
   const fits: SnapshotFitRow[] = [];
   for (const scope of [{ kind: 'forest_type' }, { kind: 'region', region }] as const) {
@@ -133,6 +136,7 @@ export async function assembleRegionSnapshot(deps: Deps, region: string, charts:
     method: methodOf(config),
     summary,
     fits,
+    carbon_uncertainty: carbon,
     charts: { means: means.svg, guilds: guilds.svg, fits: fitCharts, drawn_from: { means: means.key, guilds: guilds.key } },
   };
 }

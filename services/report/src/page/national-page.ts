@@ -3,6 +3,7 @@ import { figure, isoMinute } from './figures';
 import { html, safeSvg } from './html';
 import { cautionLegend, cautions, estimatesTable, headlineCards, versionsList, visitsSentence } from './region-page';
 import { pageShell } from './shell';
+import { carbonUncertaintySection } from './carbon-uncertainty-section';
 
 export interface NationalPageInput {
   snapshot: NationalSnapshot;
@@ -46,6 +47,7 @@ export function renderNationalPage(input: NationalPageInput): string {
   <p class="muted">Stratified estimates with every region × forest type as a stratum; 95 % intervals use Student t at Satterthwaite degrees of freedom.</p>
   ${headlineCards(summary.rows, summary.totals)}
   ${cautionLegend(summary.caution)}
+  ${carbonUncertaintySection(s.payload.carbon_uncertainty, 'All regions together (stratified)')}
   ${means ? html`<h2>Charts</h2><figure id="means-chart">${means}<figcaption>Means per hectare with their 95 % confidence intervals: all regions together (dark) and each forest type nationally.</figcaption></figure>` : null}
   <h2>Estimates by forest type, nationally</h2>
   ${estimatesTable(summary.rows, WHOLE_COUNTRY)}

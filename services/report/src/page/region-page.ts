@@ -5,6 +5,7 @@ import { estimate, estimateInterval, figure, isoMinute, samplingError, sharePerc
 import { html, safeSvg, type Markup } from './html';
 import { pageShell } from './shell';
 import { fitsSection } from './fits-section';
+import { carbonUncertaintySection } from './carbon-uncertainty-section';
 
 export interface RegionPageLinks {
   index: string;
@@ -197,6 +198,7 @@ export function renderRegionPage(input: RegionPageInput): string {
   <p class="muted">Stratified estimates over the forest types; 95 % intervals use Student t (degrees of freedom in the notes below).</p>
   ${headlineCards(summary.rows, summary.totals)}
   ${cautionLegend(summary.caution)}
+  ${carbonUncertaintySection(s.payload.carbon_uncertainty, 'Whole region (stratified)')}
   <h2>Charts</h2>
   ${means ? html`<figure id="means-chart">${means}<figcaption>Means per hectare with their 95 % confidence intervals: the whole region (dark) and each forest type. Wide intervals come from few plots.</figcaption></figure>` : null}
   ${guilds ? html`<figure id="guild-chart">${guilds}<figcaption>Guild composition: the mean share of live basal area per plot.</figcaption></figure>` : null}
