@@ -61,7 +61,7 @@ const envSchema = z.object({
   STEMWISE_FIT_AXIS: z.string().min(1).default('disturbance_index'),
   STEMWISE_BOOTSTRAP: intIn(0, 100_000).default(1000),
   STEMWISE_SEED: intIn(0, 2 ** 31 - 1).default(20261201),
-  STEMWISE_CARBON_DRAWS: intIn(0, 1_000_000).refine((n) => n === 0 || n >= 100, '0 (off) or at least 100').default(5000),
+  STEMWISE_CARBON_DRAWS: intIn(0, 1_000_000).refine((n) => n === 0 || n >= 100, '0 (off) or at least 100').default(20_000),
   STEMWISE_CARBON_ALLOMETRY_RSE: num().pipe(z.number().min(0).max(2)).default(0.357),
   STEMWISE_CARBON_WOOD_DENSITY_SD: num().pipe(z.number().min(0).max(1)).default(0.1),
 });
@@ -174,7 +174,7 @@ export const SETTINGS: ReadonlyArray<{ name: string; default: string; meaning: s
   { name: 'STEMWISE_FIT_AXIS', default: 'disturbance_index', meaning: 'disturbance column of the nightly curve fits' },
   { name: 'STEMWISE_BOOTSTRAP', default: '1000', meaning: 'bootstrap resamples for the vertex interval' },
   { name: 'STEMWISE_SEED', default: '20261201', meaning: 'seed of the bootstrap and of the carbon Monte Carlo, so reruns give the same intervals' },
-  { name: 'STEMWISE_CARBON_DRAWS', default: '5000', meaning: 'Monte Carlo draws of the whole carbon uncertainty in the region and national summaries (0: not computed; else at least 100)' },
+  { name: 'STEMWISE_CARBON_DRAWS', default: '20000', meaning: 'Monte Carlo draws of the whole carbon uncertainty in the region and national summaries (0: not computed; else at least 100)' },
   { name: 'STEMWISE_CARBON_ALLOMETRY_RSE', default: '0.357', meaning: 'residual standard error (ln scale) of the biomass model with height: Chave et al. 2014 eq. 4 (value from memory)' },
   { name: 'STEMWISE_CARBON_WOOD_DENSITY_SD', default: '0.1', meaning: "relative SD of a tree's wood density around its reference value (common practice, no single source)" },
 ];
