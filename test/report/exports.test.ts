@@ -11,7 +11,7 @@ import { envFor, testLogger, useServices, type TestServices } from '../support/s
 import { jobContext, seedRun } from './fixture';
 import { seedScenario } from './seed-scenario';
 
-const COLUMNS = 'region,forest_type,variable,n_plots,mean,se,ci_low,ci_high,sampling_error_pct,forest_area_ha,total,caution_flag';
+const COLUMNS = 'region,forest_type,variable,n_plots,mean,se,ci_low,ci_high,sampling_error_pct,forest_area_ha,total,caution_flag,whole_se,whole_ci_low,whole_ci_high,total_whole_ci_low,total_whole_ci_high';
 let s: TestServices;
 let deps: ServiceDeps;
 const out = fs.mkdtempSync(path.join(os.tmpdir(), 'stemwise-exports-'));

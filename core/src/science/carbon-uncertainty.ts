@@ -292,7 +292,7 @@ function treeErrorSds(
   return [Math.sqrt(out[0]), Math.sqrt(out[1]), Math.sqrt(out[2])];
 }
 
-// Monte Carlo (IPCC 2006 Vol. 1 Ch. 3 approach 2) of CF·(1+R)·Σ W_h ȳ_h with sampling, per-tree and shared model errors — docs/methods.md#carbon-uncertainty
+// Monte Carlo (IPCC 2006 Vol. 1 Ch. 3, approach 2) of CF·(1+R)·Σ W_h ȳ_h with sampling, per-tree and shared model errors — docs/methods.md#carbon-uncertainty
 export function carbonUncertainty(strata: readonly CarbonStratum[], settings: CarbonUncertaintySettings = {}): CarbonUncertainty | null {
   const draws = settings.draws ?? DEFAULT_CARBON_DRAWS;
   const seed = settings.seed ?? 1;
@@ -360,45 +360,54 @@ export function carbonUncertainty(strata: readonly CarbonStratum[], settings: Ca
   const normal = normalSampler(rng);
   const df = est.df;
   const totalDraws = new Float64Array(draws);
-  const comp = CARBON_ERROR_SOURCES.map(() => new Float64Array(draws));
+  // Parts of each draw (the others at their centre): sampling, per-tree errors together, height parameters, R.
+  const parts = [new Float64Array(draws), new Float64Array(draws), new Float64Array(draws), new Float64Array(draws)];
   const delta = types.map((): [number, number, number] => [0, 0, 0]);
-  const rDraw = new Float64Array(types.length);
+  const rDraw = Float64Array.from(rMean);
+  const H = plans.length;
+  const typeOf = Int32Array.from(plans, (p) => typeIndex.get(p.forestType) as number);
+  const treeSd = Float64Array.from(plans, (p) => Math.hypot(p.treeSd[0], p.treeSd[1], p.treeSd[2]));
+  // W_h·CF·(1 + R̄): the weight of a stratum's AGB error in the carbon estimate.
+  const scaled = Float64Array.from(plans, (p, h) => p.weight * cf * (1 + rMean[typeOf[h]]));
 
   for (let i = 0; i < draws; i += 1) {
     for (let t = 0; t < types.length; t += 1) {
       const l = chol[t];
-      const z0 = normal();
-      const z1 = normal();
-      const z2 = normal();
-      if (l === null) delta[t] = [0, 0, 0];
-      else delta[t] = [l[0] * z0, l[3] * z0 + l[4] * z1, l[6] * z0 + l[7] * z1 + l[8] * z2];
-      const r = rMean[t] + rSd[t] * normal();
-      rDraw[t] = r > 0 ? r : 0; // a ratio below 0 has no meaning: truncated at 0
+      if (l !== null) {
+        const z0 = normal();
+        const z1 = normal();
+        const z2 = normal();
+        delta[t] = [l[0] * z0, l[3] * z0 + l[4] * z1, l[6] * z0 + l[7] * z1 + l[8] * z2];
+      }
+      if (rSd[t] > 0) {
+        const r = rMean[t] + rSd[t] * normal();
+        rDraw[t] = r > 0 ? r : 0; // a ratio below 0 has no meaning: truncated at 0
+      }
     }
     // One scale for every stratum's sampling draw: the stratified sum is then t with df degrees of freedom.
     const tScale = Math.sqrt(df / (2 * gammaDraw(rng, normal, df / 2)));
     let total = 0;
-    const c = [0, 0, 0, 0, 0, 0];
-    for (let h = 0; h < plans.length; h += 1) {
+    let cSampling = 0;
+    let cTree = 0;
+    let cHeight = 0;
+    let cRoot = 0;
+    for (let h = 0; h < H; h += 1) {
       const p = plans[h];
-      const t = typeIndex.get(p.forestType) as number;
-      const base = cf * (1 + rMean[t]);
+      const t = typeOf[h];
       const sampling = p.se * normal() * tScale;
-      const allometry = p.treeSd[0] * normal();
-      const heightResidual = p.treeSd[1] * normal();
-      const woodDensity = p.treeSd[2] * normal();
+      const tree = treeSd[h] > 0 ? treeSd[h] * normal() : 0;
       const heightParameters = chol[t] === null ? 0 : heightShiftEffect(p.lnD, delta[t]);
-      const agb = p.mean + sampling + allometry + heightResidual + woodDensity + heightParameters;
-      total += p.weight * cf * (1 + rDraw[t]) * agb;
-      c[0] += p.weight * base * sampling;
-      c[1] += p.weight * base * allometry;
-      c[2] += p.weight * base * heightResidual;
-      c[3] += p.weight * base * woodDensity;
-      c[4] += p.weight * base * heightParameters;
-      c[5] += p.weight * cf * (rDraw[t] - rMean[t]) * p.mean;
+      total += p.weight * cf * (1 + rDraw[t]) * (p.mean + sampling + tree + heightParameters);
+      cSampling += scaled[h] * sampling;
+      cTree += scaled[h] * tree;
+      cHeight += scaled[h] * heightParameters;
+      cRoot += p.weight * cf * (rDraw[t] - rMean[t]) * p.mean;
     }
     totalDraws[i] = total;
-    for (let k = 0; k < 6; k += 1) comp[k][i] = c[k];
+    parts[0][i] = cSampling;
+    parts[1][i] = cTree;
+    parts[2][i] = cHeight;
+    parts[3][i] = cRoot;
   }
 
   const variance = (x: Float64Array): number => {
@@ -409,9 +418,15 @@ export function carbonUncertainty(strata: readonly CarbonStratum[], settings: Ca
     for (const v of x) s += (v - m) * (v - m);
     return s / (x.length - 1);
   };
-  const vars = comp.map(variance);
-  const sumVars = vars.reduce((a, b) => a + b, 0);
-  const shares = Object.fromEntries(CARBON_ERROR_SOURCES.map((s, k) => [s, sumVars > 0 ? vars[k] / sumVars : 0])) as Record<CarbonErrorSource, number>;
+  // The per-tree part is one normal per stratum; its variance is split among its three sources by
+  // their known variances Σ_h (W_h CF (1 + R̄))² sd_{h,k}².
+  const [vSampling, vTree, vHeight, vRoot] = parts.map(variance);
+  const treeVar = [0, 1, 2].map((k) => plans.reduce((acc, p, h) => acc + (scaled[h] * p.treeSd[k]) ** 2, 0));
+  const treeVarSum = treeVar[0] + treeVar[1] + treeVar[2];
+  const split = (k: number): number => (treeVarSum > 0 ? (vTree * treeVar[k]) / treeVarSum : 0);
+  const vars: Record<CarbonErrorSource, number> = { sampling: vSampling, allometry: split(0), heightResidual: split(1), woodDensity: split(2), heightParameters: vHeight, rootShoot: vRoot };
+  const sumVars = vSampling + vTree + vHeight + vRoot;
+  const shares = Object.fromEntries(CARBON_ERROR_SOURCES.map((k) => [k, sumVars > 0 ? vars[k] / sumVars : 0])) as Record<CarbonErrorSource, number>;
   const interval = percentileInterval(totalDraws, 1 - confidence);
   let drawsMean = 0;
   for (const v of totalDraws) drawsMean += v;

@@ -132,7 +132,7 @@ describe('minHeights, extrapolation and the 100 m cap', () => {
 });
 
 describe('fitHeightDiameter parameter covariance', () => {
-  // RSE² (XᵀX)⁻¹ with X = [1, ln D, (ln D)²] (the OLS covariance, e.g. Draper & Smith 1998 ch. 5), computed
+  // RSE² (XᵀX)⁻¹ with X = [1, ln D, (ln D)²] (the OLS covariance, Seber & Lee 2003 ch. 3), computed
   // here independently by the adjugate of XᵀX on the unscaled columns; 1e-6 relative (XᵀX is badly conditioned).
   const d = [10, 12, 15, 19, 24, 30, 37, 45, 55, 68, 80, 95];
   const h = d.map((x, i) => Math.exp(0.893 + 0.76 * Math.log(x) - 0.034 * Math.log(x) ** 2 + 0.2 * Math.cos(2.1 * i)));

@@ -141,7 +141,7 @@ export function fitHeightDiameter(
   };
 }
 
-// Cov(a, b, c) = J · RSE² (RᵀR)⁻¹ · Jᵀ, R from the QR of [1, t, t²], J the map from (g0, g1, g2) on t = (ln D − m)/s to (a, b, c) — OLS covariance (e.g. Draper & Smith 1998, Applied Regression Analysis, ch. 5)
+// Cov(a, b, c) = J · RSE² (RᵀR)⁻¹ · Jᵀ, R from the QR of [1, t, t²], J the map from (g0, g1, g2) on t = (ln D − m)/s to (a, b, c) — OLS covariance (Seber & Lee 2003, Linear Regression Analysis, ch. 3)
 function parameterCovariance(r: readonly (readonly number[])[], rse: number, m: number, s: number): number[] {
   // R⁻¹ of the upper-triangular 3 × 3 R
   const inv = [
