@@ -251,7 +251,7 @@ describe('coverage by simulation: inventories with a known model error', () => {
   // sqrt(0.95·0.05/1000) = 0.69 %, so the band is ±2.9 SE (a correct method fails it with probability
   // < 0.4 %). The sampling-only interval must fall well below 93 % (the model errors here are of the
   // order of the sampling error), which shows that the check can fail. Measured with this seed: whole
-  // 94.3 %, sampling only 86.3 %.
+  // 94.6 %, sampling only 86.3 %.
   const INVENTORIES = 1000;
   const N = 800;
   const SAMPLED = 60;

@@ -254,8 +254,10 @@ export function cholesky3(cov: readonly number[], fn: string): number[] {
 }
 
 // Σ_i w v_i (e^{β x_i} − 1), x = δa + δb L + δc L², to second order: β Σ wvx + β²/2 Σ wvx², from Σ w v L^k (k = 0..4)
-export function heightShiftEffect(lnD: readonly number[], delta: readonly [number, number, number], beta: number = CHAVE_2014_EXPONENT): number {
-  const [a, b, c] = delta;
+export function heightShiftEffect(lnD: ArrayLike<number>, delta: ArrayLike<number>, beta: number = CHAVE_2014_EXPONENT): number {
+  const a = delta[0];
+  const b = delta[1];
+  const c = delta[2];
   const first = a * lnD[0] + b * lnD[1] + c * lnD[2];
   const second = a * a * lnD[0] + 2 * a * b * lnD[1] + (b * b + 2 * a * c) * lnD[2] + 2 * b * c * lnD[3] + c * c * lnD[4];
   return beta * first + 0.5 * beta * beta * second;
@@ -346,7 +348,7 @@ export function carbonUncertainty(strata: readonly CarbonStratum[], settings: Ca
     };
   });
 
-  // Shared draws per forest type, in a fixed (sorted) order so the stream does not depend on input order.
+  // Forest types in a fixed (sorted) order, so the stream of draws does not depend on the input order.
   const types = [...new Set(plans.map((p) => p.forestType))].sort();
   const typeIndex = new Map(types.map((t, i) => [t, i]));
   const chol = types.map((t) => {
@@ -356,34 +358,33 @@ export function carbonUncertainty(strata: readonly CarbonStratum[], settings: Ca
   const rMean = types.map((t) => rootShoot.get(t)?.ratio ?? 0);
   const rSd = types.map((t) => rootShoot.get(t)?.sd ?? 0);
 
+  // Everything a draw needs is linear in the strata of one forest type (they share R and δ), so the
+  // strata are summed per forest type first and a draw costs a few normals per forest type:
+  // sampling Σ W_h SE_h z_h is one normal of SD sqrt(Σ W_h² SE_h²), the per-tree errors likewise, and the
+  // height-parameter effect of Σ W_h·(sums of ln D) is the sum of the strata's effects.
+  const T = types.length;
+  const mean = new Float64Array(T);
+  const samplingSd = new Float64Array(T);
+  const treeVarBySource = [new Float64Array(T), new Float64Array(T), new Float64Array(T)];
+  const lnDSum = types.map(() => new Float64Array(5));
+  for (const p of plans) {
+    const t = typeIndex.get(p.forestType) as number;
+    mean[t] += p.weight * p.mean;
+    samplingSd[t] += (p.weight * p.se) ** 2;
+    for (let k = 0; k < 3; k += 1) treeVarBySource[k][t] += (p.weight * p.treeSd[k]) ** 2;
+    for (let k = 0; k < 5; k += 1) lnDSum[t][k] += p.weight * p.lnD[k];
+  }
+  for (let t = 0; t < T; t += 1) samplingSd[t] = Math.sqrt(samplingSd[t]);
+  const treeVar = Float64Array.from(types, (_, t) => treeVarBySource[0][t] + treeVarBySource[1][t] + treeVarBySource[2][t]);
+
   const rng = createRng(seed);
   const normal = normalSampler(rng);
   const df = est.df;
   const totalDraws = new Float64Array(draws);
   // Parts of each draw (the others at their centre): sampling, per-tree errors together, height parameters, R.
   const parts = [new Float64Array(draws), new Float64Array(draws), new Float64Array(draws), new Float64Array(draws)];
-  const delta = types.map((): [number, number, number] => [0, 0, 0]);
-  const rDraw = Float64Array.from(rMean);
-  const H = plans.length;
-  const typeOf = Int32Array.from(plans, (p) => typeIndex.get(p.forestType) as number);
-  const treeSd = Float64Array.from(plans, (p) => Math.hypot(p.treeSd[0], p.treeSd[1], p.treeSd[2]));
-  // W_h·CF·(1 + R̄): the weight of a stratum's AGB error in the carbon estimate.
-  const scaled = Float64Array.from(plans, (p, h) => p.weight * cf * (1 + rMean[typeOf[h]]));
-
+  const delta = new Float64Array(3);
   for (let i = 0; i < draws; i += 1) {
-    for (let t = 0; t < types.length; t += 1) {
-      const l = chol[t];
-      if (l !== null) {
-        const z0 = normal();
-        const z1 = normal();
-        const z2 = normal();
-        delta[t] = [l[0] * z0, l[3] * z0 + l[4] * z1, l[6] * z0 + l[7] * z1 + l[8] * z2];
-      }
-      if (rSd[t] > 0) {
-        const r = rMean[t] + rSd[t] * normal();
-        rDraw[t] = r > 0 ? r : 0; // a ratio below 0 has no meaning: truncated at 0
-      }
-    }
     // One scale for every stratum's sampling draw: the stratified sum is then t with df degrees of freedom.
     const tScale = Math.sqrt(df / (2 * gammaDraw(rng, normal, df / 2)));
     let total = 0;
@@ -391,17 +392,31 @@ export function carbonUncertainty(strata: readonly CarbonStratum[], settings: Ca
     let cTree = 0;
     let cHeight = 0;
     let cRoot = 0;
-    for (let h = 0; h < H; h += 1) {
-      const p = plans[h];
-      const t = typeOf[h];
-      const sampling = p.se * normal() * tScale;
-      const tree = treeSd[h] > 0 ? treeSd[h] * normal() : 0;
-      const heightParameters = chol[t] === null ? 0 : heightShiftEffect(p.lnD, delta[t]);
-      total += p.weight * cf * (1 + rDraw[t]) * (p.mean + sampling + tree + heightParameters);
-      cSampling += scaled[h] * sampling;
-      cTree += scaled[h] * tree;
-      cHeight += scaled[h] * heightParameters;
-      cRoot += p.weight * cf * (rDraw[t] - rMean[t]) * p.mean;
+    for (let t = 0; t < T; t += 1) {
+      const base = cf * (1 + rMean[t]);
+      let factor = base;
+      if (rSd[t] > 0) {
+        const r = rMean[t] + rSd[t] * normal();
+        factor = cf * (1 + (r > 0 ? r : 0)); // a ratio below 0 has no meaning: truncated at 0
+      }
+      let heightParameters = 0;
+      const l = chol[t];
+      if (l !== null) {
+        const z0 = normal();
+        const z1 = normal();
+        const z2 = normal();
+        delta[0] = l[0] * z0;
+        delta[1] = l[3] * z0 + l[4] * z1;
+        delta[2] = l[6] * z0 + l[7] * z1 + l[8] * z2;
+        heightParameters = heightShiftEffect(lnDSum[t], delta);
+      }
+      const sampling = samplingSd[t] * normal() * tScale;
+      const tree = treeVar[t] > 0 ? Math.sqrt(treeVar[t]) * normal() : 0;
+      total += factor * (mean[t] + sampling + tree + heightParameters);
+      cSampling += base * sampling;
+      cTree += base * tree;
+      cHeight += base * heightParameters;
+      cRoot += (factor - base) * mean[t];
     }
     totalDraws[i] = total;
     parts[0][i] = cSampling;
@@ -418,12 +433,12 @@ export function carbonUncertainty(strata: readonly CarbonStratum[], settings: Ca
     for (const v of x) s += (v - m) * (v - m);
     return s / (x.length - 1);
   };
-  // The per-tree part is one normal per stratum; its variance is split among its three sources by
-  // their known variances Σ_h (W_h CF (1 + R̄))² sd_{h,k}².
+  // The per-tree part is one normal per forest type; its variance is split among its three sources by
+  // their known variances Σ_t (CF (1 + R̄_t))² Σ_h W_h² sd_{h,k}².
   const [vSampling, vTree, vHeight, vRoot] = parts.map(variance);
-  const treeVar = [0, 1, 2].map((k) => plans.reduce((acc, p, h) => acc + (scaled[h] * p.treeSd[k]) ** 2, 0));
-  const treeVarSum = treeVar[0] + treeVar[1] + treeVar[2];
-  const split = (k: number): number => (treeVarSum > 0 ? (vTree * treeVar[k]) / treeVarSum : 0);
+  const sourceVar = [0, 1, 2].map((k) => types.reduce((acc, _, t) => acc + (cf * (1 + rMean[t])) ** 2 * treeVarBySource[k][t], 0));
+  const sourceVarSum = sourceVar[0] + sourceVar[1] + sourceVar[2];
+  const split = (k: number): number => (sourceVarSum > 0 ? (vTree * sourceVar[k]) / sourceVarSum : 0);
   const vars: Record<CarbonErrorSource, number> = { sampling: vSampling, allometry: split(0), heightResidual: split(1), woodDensity: split(2), heightParameters: vHeight, rootShoot: vRoot };
   const sumVars = vSampling + vTree + vHeight + vRoot;
   const shares = Object.fromEntries(CARBON_ERROR_SOURCES.map((k) => [k, sumVars > 0 ? vars[k] / sumVars : 0])) as Record<CarbonErrorSource, number>;

@@ -8,7 +8,7 @@ export interface PlotCarbonMomentsRow extends Pick<typeof plots.$inferSelect, 'p
   moments: unknown;
 }
 
-/** The carbon-uncertainty sums of the latest computed visit of each plot of a region (docs/methods.md#carbon-uncertainty). */
+/** The carbon-uncertainty sums of the latest computed visit of each plot of a region that has a carbon figure (docs/methods.md#carbon-uncertainty). */
 export async function listRegionCarbonMoments(db: Queryable, region: string): Promise<PlotCarbonMomentsRow[]> {
   return db.query<PlotCarbonMomentsRow>(
     `with latest as (${LATEST_VISITS})
@@ -17,6 +17,7 @@ export async function listRegionCarbonMoments(db: Queryable, region: string): Pr
        join plots p on p.id = l.plot_id
        join plot_visits v on v.id = l.visit_id
        join plot_metrics m on m.visit_id = l.visit_id
+      where m.carbon_mg_ha is not null
       order by p.plot_key collate "C"`,
     [region],
   );
