@@ -26,6 +26,11 @@ const envSchema = z.object({
     .string()
     .regex(/^[A-Za-z0-9_.-]+:(dry|moist|wet)(,[A-Za-z0-9_.-]+:(dry|moist|wet))*$/, 'a list like wet:wet,moist:moist,dry:dry (code:climate)')
     .default('wet:wet,moist:moist,dry:dry'),
+  STEMWISE_ROOT_SHOOT: z
+    .string()
+    .regex(/^[A-Za-z0-9_.-]+:[a-z0-9_]+(,[A-Za-z0-9_.-]+:[a-z0-9_]+)*$/, 'a list like moist:mokany_2006,dry:tropical_dry (forest_type:relation)')
+    .optional(),
+  STEMWISE_STANDING_DEAD_SHARE: num().pipe(z.number().gt(0).max(1)).default(0.7),
   STEMWISE_COMPUTE_CONCURRENCY: intIn(1, 64).default(2),
   STEMWISE_COMPUTE_THREADS: intIn(0, 64).default(0),
   STEMWISE_INGEST_CONCURRENCY: intIn(1, 16).default(1),
@@ -68,6 +73,13 @@ const envSchema = z.object({
 
 export type Climate = 'dry' | 'moist' | 'wet';
 
+/**
+ * Root-to-shoot relations a forest type may use (docs/methods.md#below-ground-biomass); the science
+ * (core/src/science/root-shoot.ts) defines each one and its test holds the two lists equal.
+ */
+export const ROOT_SHOOT_RELATION_NAMES = ['tropical_rainforest', 'tropical_moist_deciduous', 'tropical_dry', 'tropical_mountain', 'mokany_2006'] as const;
+export type RootShootRelationName = (typeof ROOT_SHOOT_RELATION_NAMES)[number];
+
 export interface Config {
   databaseUrl: string | undefined;
   redisUrl: string | undefined;
@@ -78,6 +90,10 @@ export interface Config {
   logFormat: LogFormat | undefined;
   queuePrefix: string;
   forestTypes: ReadonlyArray<{ code: string; climate: Climate }>;
+  /** Root-to-shoot relation chosen per forest type (STEMWISE_ROOT_SHOOT); a type not listed uses its climate's default. */
+  rootShoot: ReadonlyArray<{ forestType: string; relation: RootShootRelationName }>;
+  /** Share of the live-tree allometric biomass a standing dead stem keeps (common practice default 0.7). */
+  standingDeadShare: number;
   computeConcurrency: number;
   /** Worker threads that compute plot metrics (0: in the job's own thread). */
   computeThreads: number;
@@ -142,6 +158,8 @@ export const SETTINGS: ReadonlyArray<{ name: string; default: string; meaning: s
   { name: 'STEMWISE_LOG_FORMAT', default: '(unset: json for serve, text for other commands)', meaning: 'json: one JSON object per line; text: a line for a person (`stemwise: warning: …`)' },
   { name: 'STEMWISE_QUEUE_PREFIX', default: 'stemwise', meaning: 'Redis key prefix of the queues' },
   { name: 'STEMWISE_FOREST_TYPES', default: 'wet:wet,moist:moist,dry:dry', meaning: 'known forest type codes and the climate class of their no-height biomass model' },
+  { name: 'STEMWISE_ROOT_SHOOT', default: '(unset: by climate, wet:tropical_rainforest, moist:tropical_moist_deciduous, dry:tropical_dry)', meaning: `root-to-shoot relation of each forest type, forest_type:relation pairs (relations: ${ROOT_SHOOT_RELATION_NAMES.join(', ')}; docs/methods.md#below-ground-biomass); run stemwise recompute --all after changing it` },
+  { name: 'STEMWISE_STANDING_DEAD_SHARE', default: '0.7', meaning: 'share of the live-tree allometric biomass a standing dead stem keeps (common practice, no single source; docs/methods.md#standing-dead-wood); run stemwise recompute --all after changing it' },
   { name: 'STEMWISE_COMPUTE_CONCURRENCY', default: '2', meaning: 'jobs a compute worker runs at once' },
   { name: 'STEMWISE_COMPUTE_THREADS', default: '0', meaning: 'worker threads that compute plot metrics, shared by the jobs of a process (0: in the job itself; with PostgreSQL on the same 2-core machine threads were slower)' },
   { name: 'STEMWISE_INGEST_CONCURRENCY', default: '1', meaning: 'batches an ingest worker loads at once' },
@@ -186,6 +204,22 @@ function parseTrustProxy(v: string): boolean | number | string[] {
   return v.split(',');
 }
 
+function parseRootShoot(v: string | undefined, forestTypes: ReadonlyArray<{ code: string }>): Config['rootShoot'] {
+  if (v === undefined) return [];
+  const known = new Set(forestTypes.map((t) => t.code));
+  const seen = new Set<string>();
+  return v.split(',').map((pair) => {
+    const [forestType, relation] = pair.split(':');
+    if (!known.has(forestType)) throw new ConfigError('STEMWISE_ROOT_SHOOT', `${forestType} is not a forest type of STEMWISE_FOREST_TYPES (${[...known].join(', ')})`);
+    if (seen.has(forestType)) throw new ConfigError('STEMWISE_ROOT_SHOOT', `${forestType} is listed twice`);
+    seen.add(forestType);
+    if (!(ROOT_SHOOT_RELATION_NAMES as readonly string[]).includes(relation)) {
+      throw new ConfigError('STEMWISE_ROOT_SHOOT', `${relation} is not a root-to-shoot relation (known: ${ROOT_SHOOT_RELATION_NAMES.join(', ')})`);
+    }
+    return { forestType, relation: relation as RootShootRelationName };
+  });
+}
+
 /** Parses the environment once into a typed configuration; a bad value throws a ConfigError naming it. */
 export function loadConfig(env: Readonly<Record<string, string | undefined>> = process.env): Config {
   const cleaned: Record<string, string> = {};
@@ -199,6 +233,10 @@ export function loadConfig(env: Readonly<Record<string, string | undefined>> = p
     throw new ConfigError(String(issue.path[0] ?? 'environment'), issue.message);
   }
   const e = parsed.data;
+  const forestTypes = e.STEMWISE_FOREST_TYPES.split(',').map((pair) => {
+    const [code, climate] = pair.split(':');
+    return { code, climate: climate as Climate };
+  });
   const dataDir = path.resolve(e.STEMWISE_DATA_DIR);
   return {
     databaseUrl: e.DATABASE_URL,
@@ -208,10 +246,9 @@ export function loadConfig(env: Readonly<Record<string, string | undefined>> = p
     logLevel: e.STEMWISE_LOG_LEVEL,
     logFormat: e.STEMWISE_LOG_FORMAT,
     queuePrefix: e.STEMWISE_QUEUE_PREFIX,
-    forestTypes: e.STEMWISE_FOREST_TYPES.split(',').map((pair) => {
-      const [code, climate] = pair.split(':');
-      return { code, climate: climate as Climate };
-    }),
+    forestTypes,
+    rootShoot: parseRootShoot(e.STEMWISE_ROOT_SHOOT, forestTypes),
+    standingDeadShare: e.STEMWISE_STANDING_DEAD_SHARE,
     computeConcurrency: e.STEMWISE_COMPUTE_CONCURRENCY,
     computeThreads: e.STEMWISE_COMPUTE_THREADS,
     ingestConcurrency: e.STEMWISE_INGEST_CONCURRENCY,

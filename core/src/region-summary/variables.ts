@@ -21,6 +21,9 @@ const CHANGE_LABELS: Readonly<Record<string, VariableLabel>> = {
   mortality_annual: { name: 'Annual mortality (share of trees per year)', short: 'Mortality per year', unit: '' },
   recruitment_annual: { name: 'Annual recruitment (share of trees per year)', short: 'Recruitment per year', unit: '' },
   dbh_increment_cm_yr: { name: 'Diameter growth of survivors', short: 'Diameter growth (cm/yr)', unit: 'cm/yr' },
+  bgb_net_change_mg_ha_yr: { name: 'Net below-ground biomass change between visits', short: 'Root biomass change (Mg/ha/yr)', unit: 'Mg/ha/yr' },
+  standing_dead_net_change_mg_ha_yr: { name: 'Net standing dead wood change between visits', short: 'Standing dead wood change (Mg/ha/yr)', unit: 'Mg/ha/yr' },
+  tree_carbon_net_change_mg_ha_yr: { name: 'Net tree carbon change between visits (three pools)', short: 'Tree carbon change (Mg C/ha/yr)', unit: 'Mg C/ha/yr' },
 };
 
 export function variableLabel(variable: string): VariableLabel {

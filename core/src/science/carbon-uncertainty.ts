@@ -17,6 +17,7 @@
 
 import { percentileInterval } from './bootstrap';
 import { createRng, type Rng } from './random';
+import type { RootShootRatio } from './root-shoot';
 import { stratifiedEstimate, type StratifiedOptions } from './stratified';
 
 /** Exponent of ρD²H in Chave et al. 2014 eq. 4 (AGB ∝ H^0.976 and ρ^0.976). */
@@ -114,12 +115,6 @@ export interface HeightModelError {
   readonly covariance: readonly number[] | null;
 }
 
-/** A forest type's root-to-shoot ratio R (below-ground / above-ground biomass) and its standard deviation. */
-export interface RootShootRatio {
-  readonly ratio: number;
-  readonly sd: number;
-}
-
 export interface CarbonStratum {
   readonly name: string;
   /** Key of the shared models (height model, root-to-shoot ratio) this stratum's trees use. */
@@ -152,7 +147,7 @@ export interface CarbonUncertaintySettings {
   readonly treeErrorScope?: 'forest' | 'plots';
   /** Height models by forest type; a type without one has no modelled heights. */
   readonly heightModels?: ReadonlyMap<string, HeightModelError>;
-  /** Root-to-shoot ratios by forest type: given, the figure is above- plus below-ground; else above-ground only. */
+  /** Root-to-shoot ratio R and its SD by forest type (root-shoot.ts): given, the figure is above- plus below-ground; else above-ground only. */
   readonly rootShoot?: ReadonlyMap<string, RootShootRatio>;
   /** Options of the stratified estimator (df, weighting, fpc) — those of the sampling interval beside it. */
   readonly stratified?: Omit<StratifiedOptions, 'confidence'>;

@@ -21,3 +21,5 @@ export * from './sample-moments';
 export * from './estimator-errors';
 export * from './change';
 export * from './carbon-uncertainty';
+export * from './root-shoot';
+export * from './dead-wood';

@@ -8,7 +8,10 @@
 //  - guild shares: of live basal area (expanded), with unassigned = unidentified or not a listed species;
 //  - disturbance: logged stumps against live basal area on the main plot only; stem fire damage
 //    weighted by expanded live basal area (main plot and subplot);
-//  - heights: measured, else the local height–diameter model, else the Chave et al. 2005 no-height model.
+//  - heights: measured, else the local height–diameter model, else the Chave et al. 2005 no-height model;
+//  - below-ground biomass: the plot's live AGB times the ratio of its forest type's root-to-shoot relation
+//    at that AGB (root-shoot.ts); standing dead wood: dead stems at or above their area's dbh minimum, by
+//    the live model choice times the share a dead stem keeps (dead-wood.ts), never in the live columns.
 // AGB and carbon are model estimates with their own uncertainty (see allometry.ts).
 
 import type { PlotMetricValues } from '@stemwise/db/catalogue';
@@ -32,7 +35,9 @@ import {
   simpson,
 } from './diversity';
 import { CarbonMomentsBuilder, type CarbonMoments } from './carbon-uncertainty';
+import { standingDeadBiomass, DEFAULT_STANDING_DEAD_SHARE } from './dead-wood';
 import { type HeightDiameterModel, predictHeight } from './height-diameter';
+import { DEFAULT_ROOT_SHOOT_BY_CLIMATE, type RootShootRelation, rootShootRatio } from './root-shoot';
 import type { SpeciesIndex, SpeciesReference } from './species-names';
 import { basalAreaM2, basalAreaPerHa, expansionFactor, quadraticMeanDiameter, stemsPerHa } from './structure';
 import {
@@ -87,6 +92,10 @@ export interface PlotMetricOptions {
   readonly stemAgb?: boolean;
   /** Also return the sums the carbon uncertainty needs (`carbonMoments`, docs/methods.md#carbon-uncertainty). */
   readonly carbonMoments?: boolean;
+  /** Root-to-shoot relation of the plot's forest type (default: DEFAULT_ROOT_SHOOT_BY_CLIMATE of its climate). */
+  readonly rootShoot?: RootShootRelation;
+  /** Share of the allometric biomass a standing dead stem keeps (default DEFAULT_STANDING_DEAD_SHARE = 0.7, common practice). */
+  readonly standingDeadShare?: number;
 }
 
 export const DEFAULT_MIN_STEMS_FOR_DIVERSITY = 2;
@@ -119,6 +128,8 @@ export interface PlotMetricsResult {
   stemAgbKg?: (number | null)[];
   /** With `carbonMoments`: the plot's above-ground biomass sums by height source (Mg/ha). */
   carbonMoments?: CarbonMoments;
+  /** With `stemAgb`: standing dead wood in kg of each dead stem at or above its minimum, in input order; null for the others. */
+  stemDeadKg?: (number | null)[];
 }
 
 const tables = new WeakMap<SpeciesIndex, WoodDensityTable>();
@@ -200,6 +211,8 @@ export function computePlotMetrics(
   // With stemAgb: input positions of the included live stems, and the live stems below their minimum.
   const includedAt: number[] = [];
   const below: { at: number; hit: WoodDensityHit | null }[] = [];
+  // Standing dead stems at or above their minimum: input position, weight and wood-density hit.
+  const dead: { at: number; w: number; hit: WoodDensityHit | null }[] = [];
   const unresolved = new Map<string, { level: 'genus' | 'unresolved'; stems: number }>();
 
   const mainWeight = expansionFactor(false, visit.areaHa, visit.subplotAreaHa);
@@ -220,9 +233,14 @@ export function computePlotMetrics(
       if (s.stumpCause === 'logged' && !s.inSubplot) loggedStumpBa += basalAreaM2(s.dbhCm);
       continue;
     }
-    if (s.status !== 'live') continue;
     if (s.inSubplot && subplotWeight === null) {
       fail(`stem ${i}: a subplot stem on a plot without a subplot (subplot_area_ha = ${visit.subplotAreaHa})`);
+    }
+    if (s.status === 'dead') {
+      if (s.dbhCm >= (s.inSubplot ? visit.subplotDbhMinCm : visit.dbhMinCm)) {
+        dead.push({ at: i, w: s.inSubplot ? (subplotWeight as number) : mainWeight, hit: table.lookup(index.resolve(s.species)) });
+      }
+      continue;
     }
     if (s.dbhCm < (s.inSubplot ? visit.subplotDbhMinCm : visit.dbhMinCm)) {
       belowMin += 1;
@@ -250,9 +268,9 @@ export function computePlotMetrics(
   const totalBaHa = basalAreaPerHa(dbh, weight);
 
   // Wood density and biomass
-  // Stems below their minimum get a density too (with stemAgb) but weigh nothing in the plot's mean.
-  const wd = below.length
-    ? stemWoodDensities([...hits, ...below.map((b) => b.hit)], [...baHa, ...below.map(() => 0)], options.defaultWoodDensity ?? DEFAULT_WOOD_DENSITY)
+  // Stems below their minimum (with stemAgb) and dead stems get a density too but weigh nothing in the plot's mean.
+  const wd = below.length || dead.length
+    ? stemWoodDensities([...hits, ...below.map((b) => b.hit), ...dead.map((b) => b.hit)], [...baHa, ...below.map(() => 0), ...dead.map(() => 0)], options.defaultWoodDensity ?? DEFAULT_WOOD_DENSITY)
     : stemWoodDensities(hits, baHa, options.defaultWoodDensity ?? DEFAULT_WOOD_DENSITY);
   // One biomass model choice for every stem: measured height, else the local model, else no height.
   const agbOf = (rho: number, d: number, measured: number | null): number =>
@@ -291,6 +309,24 @@ export function computePlotMetrics(
   }
   const agbMgHa = agbKgHa / 1000;
 
+  // Carbon pools: below-ground from the plot's AGB, standing dead wood from the dead stems.
+  const relation = options.rootShoot ?? DEFAULT_ROOT_SHOOT_BY_CLIMATE[visit.climate];
+  const ratio = rootShootRatio(relation, agbMgHa);
+  const bgbMgHa = ratio === null ? 0 : ratio.ratio * agbMgHa;
+  const deadShare = options.standingDeadShare ?? DEFAULT_STANDING_DEAD_SHARE;
+  const stemDeadKg: (number | null)[] | undefined = options.stemAgb ? new Array<number | null>(stems.length).fill(null) : undefined;
+  let deadKgHa = 0;
+  for (let j = 0; j < dead.length; j += 1) {
+    const s = stems[dead[j].at];
+    const kg = standingDeadBiomass(agbOf(wd.values[nLive + below.length + j], s.dbhCm, s.heightM), deadShare);
+    if (stemDeadKg) stemDeadKg[dead[j].at] = kg;
+    deadKgHa += dead[j].w * kg;
+  }
+  const standingDeadMgHa = deadKgHa / 1000;
+  const carbonMgHa = carbonFromBiomass(agbMgHa, carbonFraction);
+  const bgbCarbonMgHa = carbonFromBiomass(bgbMgHa, carbonFraction);
+  const standingDeadCarbonMgHa = carbonFromBiomass(standingDeadMgHa, carbonFraction);
+
   // Guild shares of live basal area
   let pioneer = 0;
   let light = 0;
@@ -321,7 +357,7 @@ export function computePlotMetrics(
     basalAreaM2Ha: totalBaHa,
     qmdCm: quadraticMeanDiameter(dbh, weight),
     agbMgHa,
-    carbonMgHa: carbonFromBiomass(agbMgHa, carbonFraction),
+    carbonMgHa,
     nIdentified,
     richness: richness(counts),
     shannon: enough ? shannon(counts) : null,
@@ -339,6 +375,13 @@ export function computePlotMetrics(
     loggingScore: logging,
     fireScore: fireValue,
     disturbanceIndex: disturbanceIndex(logging, fireValue),
+    rootShootRatio: ratio === null ? null : ratio.ratio,
+    bgbMgHa,
+    bgbCarbonMgHa,
+    standingDeadMgHa,
+    standingDeadCarbonMgHa,
+    // C_trees = C_AGB + C_BGB + C_dead — the sum of the covered pools (docs/methods.md#pools-not-covered)
+    treeCarbonMgHa: carbonMgHa + bgbCarbonMgHa + standingDeadCarbonMgHa,
   };
 
   const unresolvedNames = [...unresolved.entries()]
@@ -367,7 +410,7 @@ export function computePlotMetrics(
     liveStemsBelowDbhMin: belowMin,
     unresolvedNames,
   };
-  const result: PlotMetricsResult = stemAgbKg ? { metrics, diagnostics, stemAgbKg } : { metrics, diagnostics };
+  const result: PlotMetricsResult = stemAgbKg ? { metrics, diagnostics, stemAgbKg, stemDeadKg } : { metrics, diagnostics };
   if (moments) result.carbonMoments = moments.build();
   return result;
 }

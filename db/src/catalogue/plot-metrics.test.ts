@@ -49,7 +49,7 @@ describe('the plot-metric catalogue', () => {
   it('gives a total unit to the per-hectare metrics, and only to them', () => {
     const perHa = PLOT_METRICS.filter((m) => m.unit.endsWith('/ha')).map((m) => m.column);
     expect(PLOT_METRICS.filter((m) => 'totalUnit' in m).map((m) => m.column)).toEqual(perHa);
-    expect(perHa).toEqual(['stems_ha', 'basal_area_m2_ha', 'agb_mg_ha', 'carbon_mg_ha']);
+    expect(perHa).toEqual(['stems_ha', 'basal_area_m2_ha', 'agb_mg_ha', 'carbon_mg_ha', 'bgb_mg_ha', 'bgb_carbon_mg_ha', 'standing_dead_mg_ha', 'standing_dead_carbon_mg_ha', 'tree_carbon_mg_ha']);
   });
 
   it('lets a fit use every metric marked fittable, in export order', () => {

@@ -169,6 +169,43 @@ export const PLOT_METRICS = [
     description: 'Combined disturbance index of the logging and fire scores, 0 none to 1 severe.',
     regionRow: 7, headline: true, fittable: true,
   },
+  // Carbon pools (docs/methods.md#below-ground-biomass, #standing-dead-wood): kept together.
+  {
+    key: 'rootShootRatio', column: 'root_shoot_ratio', sqlType: 'float8', nullable: true,
+    label: 'Root-to-shoot ratio applied', short: 'Root-to-shoot ratio', unit: '',
+    description: "Ratio of below-ground to above-ground biomass applied to the plot (its forest type's relation at its biomass); null where none applies.",
+    regionRow: null, headline: false, fittable: false,
+  },
+  {
+    key: 'bgbMgHa', column: 'bgb_mg_ha', sqlType: 'float8', nullable: false,
+    label: 'Below-ground biomass', short: 'Root biomass (Mg/ha)', unit: 'Mg/ha', totalUnit: 'Mg',
+    description: 'Below-ground (root) biomass of live trees from above-ground biomass by a published root-to-shoot relation, a model estimate.',
+    regionRow: 14, headline: false, fittable: false,
+  },
+  {
+    key: 'bgbCarbonMgHa', column: 'bgb_carbon_mg_ha', sqlType: 'float8', nullable: false,
+    label: 'Carbon in below-ground biomass', short: 'Root carbon (Mg C/ha)', unit: 'Mg C/ha', totalUnit: 'Mg C',
+    description: 'Carbon in below-ground biomass (biomass × carbon fraction), a model estimate.',
+    regionRow: 15, headline: false, fittable: false,
+  },
+  {
+    key: 'standingDeadMgHa', column: 'standing_dead_mg_ha', sqlType: 'float8', nullable: false,
+    label: 'Standing dead wood biomass', short: 'Standing dead wood (Mg/ha)', unit: 'Mg/ha', totalUnit: 'Mg',
+    description: 'Biomass of standing dead stems: the allometry of a live stem times the share a dead stem keeps, a model estimate.',
+    regionRow: 16, headline: false, fittable: false,
+  },
+  {
+    key: 'standingDeadCarbonMgHa', column: 'standing_dead_carbon_mg_ha', sqlType: 'float8', nullable: false,
+    label: 'Carbon in standing dead wood', short: 'Dead wood carbon (Mg C/ha)', unit: 'Mg C/ha', totalUnit: 'Mg C',
+    description: 'Carbon in standing dead wood (biomass × carbon fraction), a model estimate.',
+    regionRow: 17, headline: false, fittable: false,
+  },
+  {
+    key: 'treeCarbonMgHa', column: 'tree_carbon_mg_ha', sqlType: 'float8', nullable: false,
+    label: 'Carbon in trees (above-ground, below-ground, standing dead)', short: 'Tree carbon (Mg C/ha)', unit: 'Mg C/ha', totalUnit: 'Mg C',
+    description: 'Carbon of the three pools the tally covers: live above-ground and below-ground biomass and standing dead wood (not lying dead wood, litter or soil).',
+    regionRow: 18, headline: false, fittable: false,
+  },
 ] as const satisfies readonly PlotMetricSpec[];
 
 export type PlotMetricEntry = (typeof PLOT_METRICS)[number];

@@ -46,6 +46,10 @@ export const REGION_CHANGE_COLUMNS = [
   'mortality_annual',
   'recruitment_annual',
   'dbh_increment_cm_yr',
+  // Carbon pools (docs/methods.md#change-between-visits)
+  'bgb_net_change_mg_ha_yr',
+  'standing_dead_net_change_mg_ha_yr',
+  'tree_carbon_net_change_mg_ha_yr',
 ] as const satisfies readonly PlotChangeDbColumn[];
 export type RegionChangeColumn = (typeof REGION_CHANGE_COLUMNS)[number];
 

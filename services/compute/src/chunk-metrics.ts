@@ -1,6 +1,6 @@
 import type { ComputeStemRow, ComputeVisitRow, PlotMetricsWrite } from '@stemwise/db';
 import { PLOT_METRICS } from '@stemwise/db/catalogue';
-import { computePlotMetrics, type CarbonMoments, type HeightDiameterModel, type PlotDiagnostics, type SpeciesIndex } from '@stemwise/core/science';
+import { computePlotMetrics, type CarbonMoments, type ConfiguredRootShoot, type HeightDiameterModel, type PlotDiagnostics, rootShootRelationOf, type SpeciesIndex } from '@stemwise/core/science';
 
 // The CPU-bound part of a plot chunk: the metrics of each visit from its stems. Pure (no I/O, no
 // packages beyond the science), so that it runs the same in a worker thread (metrics-worker.ts) as in
@@ -15,6 +15,9 @@ export interface ChunkTask {
   models: ReadonlyArray<readonly [string, HeightDiameterModel]>;
   defaultWoodDensity: number;
   speciesVersionId: number | null;
+  /** Configured root-to-shoot relations (the others by climate) and the standing dead share: docs/methods.md#below-ground-biomass. */
+  rootShoot: readonly ConfiguredRootShoot[];
+  standingDeadShare: number;
 }
 
 /** Diagnostics of a visit as stored; `carbonMoments` are the sums the carbon uncertainty of the summaries reads (docs/methods.md#carbon-uncertainty). */
@@ -28,7 +31,7 @@ export function computeVisits(task: ChunkTask): VisitOutcome[] {
   const models = new Map(task.models);
   return task.visits.map((visit, i) => {
     try {
-      return { write: computeVisit(visit, task.stems[i], task.species, models.get(visit.forestType) ?? null, task.defaultWoodDensity, task.speciesVersionId) };
+      return { write: computeVisit(visit, task.stems[i], task.species, models.get(visit.forestType) ?? null, task) };
     } catch (err) {
       // Input the science refuses (a RangeError) names the plot; anything else keeps its own message.
       const reason = err instanceof RangeError ? `plot ${visit.plotKey} (visit ${visit.visitId}): ${err.message}` : (err as Error).message;
@@ -42,8 +45,7 @@ function computeVisit(
   stems: readonly ComputeStemRow[],
   index: SpeciesIndex,
   heightModel: HeightDiameterModel | null,
-  defaultWoodDensity: number,
-  speciesVersionId: number | null,
+  task: Pick<ChunkTask, 'defaultWoodDensity' | 'speciesVersionId' | 'rootShoot' | 'standingDeadShare'>,
 ): VisitWrite {
   const result = computePlotMetrics(
     {
@@ -57,12 +59,18 @@ function computeVisit(
     },
     stems,
     index,
-    { heightModel, defaultWoodDensity, carbonMoments: true },
+    {
+      heightModel,
+      defaultWoodDensity: task.defaultWoodDensity,
+      rootShoot: rootShootRelationOf(visit.forestType, visit.climate, task.rootShoot),
+      standingDeadShare: task.standingDeadShare,
+      carbonMoments: true,
+    },
   );
   const { metrics } = result;
   return {
     visitId: visit.visitId,
-    speciesVersionId,
+    speciesVersionId: task.speciesVersionId,
     // In catalogue order: the order of PLOT_METRIC_DB_COLUMNS, which the upsert's columns follow.
     values: PLOT_METRICS.map((c) => metrics[c.key]),
     diagnostics: { ...result.diagnostics, heightModelHeights: heightModel?.n ?? null, carbonMoments: result.carbonMoments },

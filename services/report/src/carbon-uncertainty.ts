@@ -74,7 +74,7 @@ export const CARBON_NOT_COVERED: readonly string[] = [
   "the biomass model's own parameter uncertainty and any bias of a pantropical model at this site",
   'errors shared by the reference wood densities of a species',
   'the carbon fraction (0.47 taken as exact)',
-  'below-ground biomass, dead wood, litter and soil (above-ground live trees only)',
+  'the other carbon pools: this interval is of above-ground live trees only (below-ground biomass and standing dead wood have sampling intervals only; lying dead wood, litter and soil are not estimated)',
 ];
 
 const isMoments = (m: unknown): m is CarbonMoments => {

@@ -2,6 +2,7 @@ import type { NationalSnapshot } from '../national-snapshot';
 import { figure, isoMinute } from './figures';
 import { html, safeSvg } from './html';
 import { cautionLegend, cautions, estimatesTable, headlineCards, versionsList, visitsSentence } from './region-page';
+import { poolsSection } from './pools-section';
 import { pageShell } from './shell';
 import { carbonUncertaintySection } from './carbon-uncertainty-section';
 
@@ -47,6 +48,8 @@ export function renderNationalPage(input: NationalPageInput): string {
   <p class="muted">Stratified estimates with every region × forest type as a stratum; 95 % intervals use Student t at Satterthwaite degrees of freedom.</p>
   ${headlineCards(summary.rows, summary.totals)}
   ${cautionLegend(summary.caution)}
+  <h2 id="carbon-pools">Carbon pools</h2>
+  ${poolsSection(summary.rows, summary.totals, input.carbonFraction) ?? html`<p class="muted">This summary was made before the carbon pools were estimated; the next recompute adds them.</p>`}
   ${carbonUncertaintySection(s.payload.carbon_uncertainty, 'All regions together (stratified)')}
   ${means ? html`<h2>Charts</h2><figure id="means-chart">${means}<figcaption>Means per hectare with their 95 % confidence intervals: all regions together (dark) and each forest type nationally.</figcaption></figure>` : null}
   <h2>Estimates by forest type, nationally</h2>

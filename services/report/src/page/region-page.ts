@@ -6,6 +6,7 @@ import { html, safeSvg, type Markup } from './html';
 import { pageShell } from './shell';
 import { fitsSection } from './fits-section';
 import { carbonUncertaintySection } from './carbon-uncertainty-section';
+import { poolsSection } from './pools-section';
 
 export interface RegionPageLinks {
   index: string;
@@ -198,6 +199,8 @@ export function renderRegionPage(input: RegionPageInput): string {
   <p class="muted">Stratified estimates over the forest types; 95 % intervals use Student t (degrees of freedom in the notes below).</p>
   ${headlineCards(summary.rows, summary.totals)}
   ${cautionLegend(summary.caution)}
+  <h2 id="carbon-pools">Carbon pools</h2>
+  ${poolsSection(summary.rows, summary.totals, method.carbon_fraction) ?? html`<p class="muted">This summary was made before the carbon pools were estimated; the next recompute adds them.</p>`}
   ${carbonUncertaintySection(s.payload.carbon_uncertainty, 'Whole region (stratified)')}
   <h2>Charts</h2>
   ${means ? html`<figure id="means-chart">${means}<figcaption>Means per hectare with their 95 % confidence intervals: the whole region (dark) and each forest type. Wide intervals come from few plots.</figcaption></figure>` : null}
