@@ -47,7 +47,7 @@ describe('carbon uncertainty in the summaries', () => {
     const { payload } = await region('Northvale');
     expect(payload.carbon_uncertainty?.rows).toEqual([]);
     expect(payload.carbon_uncertainty?.missing).toMatch(/5 plot\(s\) were computed before .*recompute --all/);
-    expect(carbonRow(payload.summary.rows, 'all').whole_ci_low).toBeUndefined();
+    expect(carbonRow(payload.summary.rows, 'all').whole_ci_low).toBeNull();
   });
 
   it('with sums: the section, the whole interval on the carbon rows, the summary’s own sampling interval', async () => {
@@ -87,7 +87,7 @@ describe('carbon uncertainty in the summaries', () => {
     const exported = await listRegionExportRows(s.db, 'Northvale');
     expect(carbonRow(exported, 'all').whole_se).toBe(whole.whole_se);
     expect(carbonRow(exported, 'all').whole_se).toBeGreaterThan(0);
-    expect(exported.find((r) => r.variable === 'basal_area_m2_ha')?.whole_se).toBeUndefined();
+    expect(exported.find((r) => r.variable === 'basal_area_m2_ha')?.whole_se).toBeNull();
 
     // Seeded: the same data again give the same content, so no new version
     await markStale(s.db, 'summary', ['Northvale']);
