@@ -17,3 +17,4 @@ export * from './queries/load';
 export * from './queries/species-reference';
 export * from './queries/change';
 export * from './queries/carbon-moments';
+export * from './queries/plot-page';

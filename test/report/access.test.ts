@@ -68,6 +68,11 @@ const CASES: Case[] = [
   { method: 'GET', url: '/v1/batches/{batch}/errors.csv', expect: BATCH_OWNER, ok: BATCH_OK },
   { method: 'GET', url: '/', expect: ANY_REGION_READER },
   { method: 'GET', url: '/regions/Northvale', expect: REGION_N },
+  { method: 'GET', url: '/regions/Northvale?colour=fisher_alpha&sort=agb_mg_ha&dir=desc', expect: REGION_N },
+  { method: 'GET', url: '/regions/Northvale/plots/NV-W1', expect: REGION_N },
+  // a plot of Southmere asked for under Northvale: the region's reader gets 404 (no such plot in its region), never the plot
+  { method: 'GET', url: '/regions/Northvale/plots/SM-1', expect: { ...REGION_N, admin: 404, readerN: 404 } },
+  { method: 'GET', url: '/regions/Southmere/plots/SM-1', expect: { ...DENIED_TOKENS, admin: 'ok', uploader: 403, otherUploader: 403, readerN: 403, readerS: 'ok' } },
   { method: 'GET', url: '/national', expect: ADMIN_ONLY },
 ];
 

@@ -10,6 +10,8 @@ export interface ChartPoint {
   readonly y: number;
   /** Drawn in the highlight colour, on top (e.g. the plots of one region). */
   readonly highlight?: boolean;
+  /** Where a click on the point leads (the plot's page); absent: not a link. */
+  readonly href?: string;
 }
 
 export interface FitChartInput {
@@ -53,10 +55,14 @@ export function fitChartCaption(chart: FitChartData): string {
   return parts.join(' · ');
 }
 
-/** The stored points of a forest type, those of `region` highlighted (in their stored order). */
-export function regionChartPoints(points: FitChartPoints, region: string | null): ChartPoint[] {
+/** The stored points of a forest type, those of `region` highlighted (in their stored order); `href` links the highlighted ones to their plot's page. */
+export function regionChartPoints(points: FitChartPoints, region: string | null, href?: (plotKey: string) => string): ChartPoint[] {
   const at = region === null ? -1 : points.regions.indexOf(region);
-  return points.x.map((x, i) => ({ x, y: points.y[i], highlight: points.region[i] === at }));
+  return points.x.map((x, i) => {
+    const highlight = points.region[i] === at;
+    const plot = points.plots?.[i];
+    return highlight && href && plot !== undefined ? { x, y: points.y[i], highlight, href: href(plot) } : { x, y: points.y[i], highlight };
+  });
 }
 
 /** The vega-lite specification of the chart (exported for inspection and tests). */
@@ -66,7 +72,8 @@ export function buildFitChartSpec(input: FitChartInput): TopLevelSpec {
   const x = { field: 'x', type: 'quantitative' as const, title: axis, scale: { zero: false, nice: false } };
   const y = { field: 'y', type: 'quantitative' as const, title: metric, scale: { zero: false } };
   const plain = points.filter((p) => !p.highlight).map((p) => ({ x: p.x, y: p.y }));
-  const highlighted = points.filter((p) => p.highlight).map((p) => ({ x: p.x, y: p.y }));
+  const highlighted = points.filter((p) => p.highlight).map((p) => (p.href === undefined ? { x: p.x, y: p.y } : { x: p.x, y: p.y, href: p.href }));
+  const linked = highlighted.some((p) => 'href' in p);
   const { x: cx, y: cy, low, high } = chart.curve;
   const curve = cx.map((v, i) => ({ x: v, y: cy[i], low: low[i], high: high[i] }));
   const layer: LayerItem[] = [];
@@ -98,8 +105,8 @@ export function buildFitChartSpec(input: FitChartInput): TopLevelSpec {
     layer.push({
       name: 'highlighted',
       data: { values: highlighted },
-      mark: { type: 'point', filled: true, size: 46, color: C.highlight, stroke: '#5a2508', strokeWidth: 0.8, opacity: 0.95, aria: false },
-      encoding: { x, y },
+      mark: { type: 'point', filled: true, size: 46, color: C.highlight, stroke: '#5a2508', strokeWidth: 0.8, opacity: 0.95, aria: false, ...(linked ? { cursor: 'pointer' as const } : {}) },
+      encoding: linked ? { x, y, href: { field: 'href' } } : { x, y },
     });
   }
   if (curve.length > 0) {

@@ -1,6 +1,7 @@
 // How the summary's variables (columns of `export plots`) are named for people on the page and in
 // charts, and which of them a region summary estimates: all read from the plot-metric catalogue.
 import { HEADLINE_METRIC_COLUMNS, plotMetricByColumn, REGION_METRIC_COLUMNS } from '@stemwise/db/catalogue';
+import { standLabel } from './stand-table';
 
 export interface VariableLabel {
   /** Full name for tables. */
@@ -28,12 +29,15 @@ const CHANGE_LABELS: Readonly<Record<string, VariableLabel>> = {
 
 export function variableLabel(variable: string): VariableLabel {
   const m = plotMetricByColumn(variable);
-  return m === undefined ? (CHANGE_LABELS[variable] ?? { name: variable, short: variable, unit: '' }) : { name: m.label, short: m.short, unit: m.unit };
+  if (m !== undefined) return { name: m.label, short: m.short, unit: m.unit };
+  const stand = standLabel(variable);
+  if (stand !== null) return { name: stand.name, short: stand.short, unit: stand.unit };
+  return CHANGE_LABELS[variable] ?? { name: variable, short: variable, unit: '' };
 }
 
 /** Unit of a total (mean × forest area) of a per-hectare variable; '' for any other variable. */
 export function totalUnit(variable: string): string {
-  return plotMetricByColumn(variable)?.totalUnit ?? '';
+  return plotMetricByColumn(variable)?.totalUnit ?? standLabel(variable)?.totalUnit ?? '';
 }
 
 /** Totals are meaningful for densities only: the per-hectare variables (those with a total unit). */

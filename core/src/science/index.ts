@@ -23,3 +23,5 @@ export * from './change';
 export * from './carbon-uncertainty';
 export * from './root-shoot';
 export * from './dead-wood';
+export * from './stump';
+export * from './stand-table';

@@ -42,7 +42,7 @@ const STEMS: StemInput[] = [
   stem('Pellamo rubra', 8, { inSubplot: true }), // 6
   stem('Xenoa spinosa', 6, { inSubplot: true }), // 7 unresolved → plot mean ρ
   stem('Veltria magna', 25, { status: 'dead' }), // 8 dead: ignored
-  stem(null, 30, { status: 'stump', stumpCause: 'logged' }), // 9 logged stump, main plot
+  stem(null, 30, { status: 'stump', stumpCause: 'logged' }), // 9 logged stump, main plot (cut surface 30 cm: DBH 24 cm)
   stem(null, 50, { status: 'stump', stumpCause: 'natural' }), // 10 natural stump: ignored
   stem(null, 7, { status: 'stump', stumpCause: 'logged', inSubplot: true }), // 11 subplot stump: ignored
   stem('Ostra lenta', 8), // 12 live main-plot stem below dbh_min 10: left out
@@ -132,8 +132,8 @@ describe('computePlotMetrics on a small plot (every expected value computed by h
     expect(Math.abs(sum - 1)).toBeLessThan(1e-15);
   });
 
-  it('disturbance: f = 900/(3400 + 900); L = (f/0.5 + 1/3)/2; F = ((4400/7800)/3 + 0)/2; I = 1 − (1 − L)(1 − F)', () => {
-    const f = 900 / 4300;
+  it('disturbance: stump 30 cm → DBH 0.8 · 30 = 24 cm, f = 576/(3400 + 576); L = (f/0.5 + 1/3)/2; F = ((4400/7800)/3 + 0)/2; I = 1 − (1 − L)(1 − F)', () => {
+    const f = 576 / 3976; // the logged stump at its DBH (docs/methods.md#stump-diameter-to-dbh)
     const l = (f / 0.5 + 1 / 3) / 2;
     const fs = (4400 / 7800 / 3) / 2; // fire damage: stem 2 (1800·2) and stem 5 (800·1)
     expect(rel(m.loggingRemovedBaFrac, f)).toBeLessThan(1e-14);

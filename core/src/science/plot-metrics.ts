@@ -6,8 +6,11 @@
 //  - diversity: live main-plot stems identified to species (exact, synonym or normalised match;
 //    synonyms count as their accepted species; genus-only and unresolved names are not identified);
 //  - guild shares: of live basal area (expanded), with unassigned = unidentified or not a listed species;
-//  - disturbance: logged stumps against live basal area on the main plot only; stem fire damage
-//    weighted by expanded live basal area (main plot and subplot);
+//  - disturbance: logged stumps (their cut-surface diameter converted to DBH, stump.ts) against live
+//    basal area on the main plot only; stem fire damage weighted by expanded live basal area (main plot
+//    and subplot);
+//  - the `reporting_*` columns and the stand table: the same live stems from the reporting threshold
+//    up, null where the plot did not measure every stem from the threshold up (stand-table.ts);
 //  - heights: measured, else the local height–diameter model, else the Chave et al. 2005 no-height model;
 //  - below-ground biomass: the plot's live AGB times the ratio of its forest type's root-to-shoot relation
 //    at that AGB (root-shoot.ts); standing dead wood: dead stems at or above their area's dbh minimum, by
@@ -39,7 +42,9 @@ import { standingDeadBiomass, DEFAULT_STANDING_DEAD_SHARE } from './dead-wood';
 import { type HeightDiameterModel, predictHeight } from './height-diameter';
 import { DEFAULT_ROOT_SHOOT_BY_CLIMATE, type RootShootRelation, rootShootRatio } from './root-shoot';
 import type { SpeciesIndex, SpeciesReference } from './species-names';
+import { DEFAULT_REPORTING_DBH_MIN_CM, diameterClasses, figuresAtThreshold, measuredFromCm, plotStandTable } from './stand-table';
 import { basalAreaM2, basalAreaPerHa, expansionFactor, quadraticMeanDiameter, stemsPerHa } from './structure';
+import { assertStumpToDbh, DEFAULT_STUMP_TO_DBH, dbhFromStump, type StumpToDbh } from './stump';
 import {
   DEFAULT_WOOD_DENSITY,
   stemWoodDensities,
@@ -96,6 +101,10 @@ export interface PlotMetricOptions {
   readonly rootShoot?: RootShootRelation;
   /** Share of the allometric biomass a standing dead stem keeps (default DEFAULT_STANDING_DEAD_SHARE = 0.7, common practice). */
   readonly standingDeadShare?: number;
+  /** Reporting threshold of the `reporting_*` columns and the stand table, cm (default 10, a setting). */
+  readonly reportingDbhMinCm?: number;
+  /** DBH from a stump's cut-surface diameter (default DEFAULT_STUMP_TO_DBH, a setting). */
+  readonly stumpToDbh?: StumpToDbh;
 }
 
 export const DEFAULT_MIN_STEMS_FOR_DIVERSITY = 2;
@@ -117,6 +126,11 @@ export interface PlotDiagnostics {
   modelledOutsideFitRange: number;
   /** Live stems below the dbh minimum of the area they were recorded on (left out of every column). */
   liveStemsBelowDbhMin: number;
+  /**
+   * Stand table of the live stems: per class of `diameterClasses(thresholdCm)`, [stems/ha, m²/ha, Mg/ha],
+   * or null where the plot did not measure the class (docs/methods.md#stand-tables).
+   */
+  standTable: { thresholdCm: number; classes: ([number, number, number] | null)[] };
   /** Recorded names of the visit's stems (every status and size) not matched to a listed species: `genus` when the genus is listed, else `unresolved`. */
   unresolvedNames: { name: string; level: 'genus' | 'unresolved'; stems: number }[];
 }
@@ -195,10 +209,15 @@ export function computePlotMetrics(
   }
   const carbonFraction = options.carbonFraction ?? IPCC_2006_CARBON_FRACTION;
   const table = options.woodDensityTable ?? tableFor(index);
+  const reportingDbhMinCm = options.reportingDbhMinCm ?? DEFAULT_REPORTING_DBH_MIN_CM;
+  const classes = diameterClasses(reportingDbhMinCm);
+  const stumpToDbh = options.stumpToDbh ?? DEFAULT_STUMP_TO_DBH;
+  assertStumpToDbh('computePlotMetrics', stumpToDbh);
 
   // Included live stems, one entry per stem in each array.
   const dbh: number[] = [];
   const weight: number[] = [];
+  const baStem: number[] = []; // basal area, m²
   const baHa: number[] = []; // basal area × expansion, m²/ha
   const height: (number | null)[] = [];
   const hits: (WoodDensityHit | null)[] = [];
@@ -230,7 +249,7 @@ export function computePlotMetrics(
       else u.stems += 1;
     }
     if (s.status === 'stump') {
-      if (s.stumpCause === 'logged' && !s.inSubplot) loggedStumpBa += basalAreaM2(s.dbhCm);
+      if (s.stumpCause === 'logged' && !s.inSubplot) loggedStumpBa += basalAreaM2(dbhFromStump(s.dbhCm, stumpToDbh));
       continue;
     }
     if (s.inSubplot && subplotWeight === null) {
@@ -253,6 +272,7 @@ export function computePlotMetrics(
     const r = index.resolve(s.species);
     dbh.push(s.dbhCm);
     weight.push(w);
+    baStem.push(g);
     baHa.push(g * w);
     height.push(s.heightM);
     hits.push(table.lookup(r));
@@ -285,6 +305,7 @@ export function computePlotMetrics(
   let outsideRange = 0;
   let agbKgHa = 0;
   const moments = options.carbonMoments ? new CarbonMomentsBuilder() : null;
+  const agbStem = new Array<number>(nLive);
   for (let i = 0; i < nLive; i += 1) {
     const d = dbh[i];
     const rho = wd.values[i];
@@ -296,6 +317,7 @@ export function computePlotMetrics(
       if (d < heightModel.dbhMinCm || d > heightModel.dbhMaxCm) outsideRange += 1;
     } else heightCount[HEIGHT_NONE] += 1;
     const agb = agbOf(rho, d, measured);
+    agbStem[i] = agb;
     if (stemAgbKg) stemAgbKg[includedAt[i]] = agb;
     if (moments) {
       const source = measured !== null ? 'measured' : heightModel !== null ? 'modelled' : 'noHeight';
@@ -326,6 +348,11 @@ export function computePlotMetrics(
   const carbonMgHa = carbonFromBiomass(agbMgHa, carbonFraction);
   const bgbCarbonMgHa = carbonFromBiomass(bgbMgHa, carbonFraction);
   const standingDeadCarbonMgHa = carbonFromBiomass(standingDeadMgHa, carbonFraction);
+  // The same stems from the reporting threshold up, and by diameter class.
+  const expanded = { dbhCm: dbh, weight, basalAreaM2: baStem, agbKg: agbStem };
+  const fromCm = measuredFromCm(visit.dbhMinCm, visit.subplotAreaHa, visit.subplotDbhMinCm);
+  const atThreshold = figuresAtThreshold(expanded, reportingDbhMinCm, fromCm);
+  const standTable = plotStandTable(expanded, classes, fromCm).map((f): [number, number, number] | null => (f === null ? null : [f.stemsHa, f.basalAreaM2Ha, f.agbMgHa]));
 
   // Guild shares of live basal area
   let pioneer = 0;
@@ -382,6 +409,11 @@ export function computePlotMetrics(
     standingDeadCarbonMgHa,
     // C_trees = C_AGB + C_BGB + C_dead — the sum of the covered pools (docs/methods.md#pools-not-covered)
     treeCarbonMgHa: carbonMgHa + bgbCarbonMgHa + standingDeadCarbonMgHa,
+    reportingDbhMinCm,
+    reportingStemsHa: atThreshold?.stemsHa ?? null,
+    reportingBasalAreaM2Ha: atThreshold?.basalAreaM2Ha ?? null,
+    reportingAgbMgHa: atThreshold?.agbMgHa ?? null,
+    reportingCarbonMgHa: atThreshold === null ? null : carbonFromBiomass(atThreshold.agbMgHa, carbonFraction),
   };
 
   const unresolvedNames = [...unresolved.entries()]
@@ -408,6 +440,7 @@ export function computePlotMetrics(
         : null,
     modelledOutsideFitRange: outsideRange,
     liveStemsBelowDbhMin: belowMin,
+    standTable: { thresholdCm: reportingDbhMinCm, classes: standTable },
     unresolvedNames,
   };
   const result: PlotMetricsResult = stemAgbKg ? { metrics, diagnostics, stemAgbKg, stemDeadKg } : { metrics, diagnostics };

@@ -1,5 +1,6 @@
 import type { Queryable } from '../connection';
-import type { plots, plotVisits, stems } from '../schema/plots';
+import type { plots, plotVisits } from '../schema/plots';
+import type { plotMetrics } from '../schema/metrics';
 import type { regions } from '../schema/regions';
 import type { regionSummaries, strata } from '../schema/reports';
 import type { batches } from '../schema/batches';
@@ -13,7 +14,7 @@ type Summary = typeof regionSummaries.$inferSelect;
 type Run = typeof recomputeRuns.$inferSelect;
 
 // Region summaries: what the report job reads to assemble a region's snapshot (latest computed visit
-// of each plot, forest areas, species names), the snapshots themselves (versioned, never updated),
+// of each plot with its metrics and species, forest areas), the snapshots themselves (versioned, never updated),
 // and the few service figures the report service shows at /metrics.
 
 const METRIC_NAMES = PLOT_METRIC_DB_COLUMNS.map(([c]) => c);
@@ -30,10 +31,15 @@ export const LATEST_VISITS = `
    where r.name = $1
    order by v.plot_id, v.survey_date desc`;
 
-export interface RegionPlotRow extends Pick<Plot, 'plotKey' | 'forestType' | 'latitude' | 'longitude' | 'elevationM'>, Pick<typeof plotVisits.$inferSelect, 'surveyDate'> {
+export interface RegionPlotRow
+  extends Pick<Plot, 'plotKey' | 'forestType' | 'latitude' | 'longitude' | 'elevationM'>,
+    Pick<typeof plotVisits.$inferSelect, 'surveyDate'>,
+    Pick<typeof plotMetrics.$inferSelect, 'speciesStems'> {
   metrics: MetricColumns;
   /** Change from the previous visit to this one (docs/methods.md#change-between-visits); every value null when the plot has no earlier visit. */
   change: Record<RegionChangeColumn, number | null>;
+  /** The visit's stand table by diameter class as its metrics stored it (diagnostics `standTable`); null for metrics computed before stand tables. */
+  standTable: unknown;
 }
 
 /** The per-plot change columns the region and national estimates of change use. */
@@ -57,8 +63,8 @@ export type RegionChangeColumn = (typeof REGION_CHANGE_COLUMNS)[number];
 export async function listRegionLatestPlots(db: Queryable, region: string): Promise<RegionPlotRow[]> {
   const rows = await db.query<Omit<RegionPlotRow, 'metrics' | 'change'> & MetricColumns & Partial<Record<RegionChangeColumn, number | null>>>(
     `with latest as (${LATEST_VISITS})
-     select p.plot_key "plotKey", p.forest_type "forestType", p.latitude, p.longitude, p.elevation_m "elevationM", l.survey_date::text "surveyDate", ${METRIC_SELECT},
-            ${REGION_CHANGE_COLUMNS.map((x) => `c.${x}`).join(', ')}
+     select p.plot_key "plotKey", p.forest_type "forestType", p.latitude, p.longitude, p.elevation_m "elevationM", l.survey_date::text "surveyDate", m.species_stems "speciesStems", ${METRIC_SELECT},
+            ${REGION_CHANGE_COLUMNS.map((x) => `c.${x}`).join(', ')}, m.diagnostics->'standTable' "standTable"
        from latest l
        join plots p on p.id = l.plot_id
        join plot_metrics m on m.visit_id = l.visit_id
@@ -73,23 +79,11 @@ export async function listRegionLatestPlots(db: Queryable, region: string): Prom
     longitude: r.longitude,
     elevationM: r.elevationM,
     surveyDate: r.surveyDate,
+    speciesStems: r.speciesStems,
     metrics: numericColumns(r, METRIC_NAMES),
     change: numericColumns(r, REGION_CHANGE_COLUMNS),
+    standTable: r.standTable ?? null,
   }));
-}
-
-/** Distinct recorded names of live main-plot stems per plot (latest computed visit), for species counts. */
-export async function listRegionStemNames(db: Queryable, region: string): Promise<Array<Pick<Plot, 'plotKey'> & { name: NonNullable<(typeof stems.$inferSelect)['species']> }>> {
-  return db.query(
-    `with latest as (${LATEST_VISITS})
-     select distinct p.plot_key "plotKey", s.species name
-       from latest l
-       join plots p on p.id = l.plot_id
-       join stems s on s.visit_id = l.visit_id
-      where s.status = 'live' and not s.in_subplot and s.species is not null
-      order by 1, 2`,
-    [region],
-  );
 }
 
 /** Forest area (ha) per forest type of a region, from strata.csv. */

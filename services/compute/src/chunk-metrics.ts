@@ -1,6 +1,6 @@
 import type { ComputeStemRow, ComputeVisitRow, PlotMetricsWrite } from '@stemwise/db';
 import { PLOT_METRICS } from '@stemwise/db/catalogue';
-import { computePlotMetrics, type CarbonMoments, type ConfiguredRootShoot, type HeightDiameterModel, type PlotDiagnostics, rootShootRelationOf, type SpeciesIndex } from '@stemwise/core/science';
+import { computePlotMetrics, type CarbonMoments, type ConfiguredRootShoot, type HeightDiameterModel, type PlotDiagnostics, type PlotMetricOptions, rootShootRelationOf, type SpeciesIndex, type StumpToDbh } from '@stemwise/core/science';
 
 // The CPU-bound part of a plot chunk: the metrics of each visit from its stems. Pure (no I/O, no
 // packages beyond the science), so that it runs the same in a worker thread (metrics-worker.ts) as in
@@ -18,6 +18,9 @@ export interface ChunkTask {
   /** Configured root-to-shoot relations (the others by climate) and the standing dead share: docs/methods.md#below-ground-biomass. */
   rootShoot: readonly ConfiguredRootShoot[];
   standingDeadShare: number;
+  /** The reporting threshold and the stump-to-DBH relation (settings; docs/methods.md). */
+  reportingDbhMinCm: number;
+  stumpToDbh: StumpToDbh;
 }
 
 /** Diagnostics of a visit as stored; `carbonMoments` are the sums the carbon uncertainty of the summaries reads (docs/methods.md#carbon-uncertainty). */
@@ -31,7 +34,16 @@ export function computeVisits(task: ChunkTask): VisitOutcome[] {
   const models = new Map(task.models);
   return task.visits.map((visit, i) => {
     try {
-      return { write: computeVisit(visit, task.stems[i], task.species, models.get(visit.forestType) ?? null, task) };
+      const options: PlotMetricOptions = {
+        heightModel: models.get(visit.forestType) ?? null,
+        defaultWoodDensity: task.defaultWoodDensity,
+        rootShoot: rootShootRelationOf(visit.forestType, visit.climate, task.rootShoot),
+        standingDeadShare: task.standingDeadShare,
+        reportingDbhMinCm: task.reportingDbhMinCm,
+        stumpToDbh: task.stumpToDbh,
+        carbonMoments: true,
+      };
+      return { write: computeVisit(visit, task.stems[i], task.species, options, task.speciesVersionId) };
     } catch (err) {
       // Input the science refuses (a RangeError) names the plot; anything else keeps its own message.
       const reason = err instanceof RangeError ? `plot ${visit.plotKey} (visit ${visit.visitId}): ${err.message}` : (err as Error).message;
@@ -44,8 +56,8 @@ function computeVisit(
   visit: ComputeVisitRow,
   stems: readonly ComputeStemRow[],
   index: SpeciesIndex,
-  heightModel: HeightDiameterModel | null,
-  task: Pick<ChunkTask, 'defaultWoodDensity' | 'speciesVersionId' | 'rootShoot' | 'standingDeadShare'>,
+  options: PlotMetricOptions,
+  speciesVersionId: number | null,
 ): VisitWrite {
   const result = computePlotMetrics(
     {
@@ -59,20 +71,30 @@ function computeVisit(
     },
     stems,
     index,
-    {
-      heightModel,
-      defaultWoodDensity: task.defaultWoodDensity,
-      rootShoot: rootShootRelationOf(visit.forestType, visit.climate, task.rootShoot),
-      standingDeadShare: task.standingDeadShare,
-      carbonMoments: true,
-    },
+    options,
   );
   const { metrics } = result;
   return {
     visitId: visit.visitId,
-    speciesVersionId: task.speciesVersionId,
+    speciesVersionId,
     // In catalogue order: the order of PLOT_METRIC_DB_COLUMNS, which the upsert's columns follow.
     values: PLOT_METRICS.map((c) => metrics[c.key]),
-    diagnostics: { ...result.diagnostics, heightModelHeights: heightModel?.n ?? null, carbonMoments: result.carbonMoments },
+    diagnostics: { ...result.diagnostics, heightModelHeights: options.heightModel?.n ?? null, carbonMoments: result.carbonMoments },
+    speciesStems: speciesStems(stems, index),
   };
+}
+
+/**
+ * Accepted name → live main-plot stems (any diameter) of one visit: synonyms and spelling variants count
+ * as their species, genus-only and unresolved names are left out. Stored with the metrics so that the
+ * region summaries count species without reading stems.
+ */
+export function speciesStems(stems: ReadonlyArray<Pick<ComputeStemRow, 'status' | 'inSubplot' | 'species'>>, index: SpeciesIndex): Record<string, number> {
+  const out: Record<string, number> = {};
+  for (const s of stems) {
+    if (s.status !== 'live' || s.inSubplot || s.species === null) continue;
+    const hit = index.resolve(s.species).species;
+    if (hit) out[hit.name] = (out[hit.name] ?? 0) + 1;
+  }
+  return out;
 }

@@ -60,7 +60,7 @@ export async function computePlotChunk(deps: Pick<ServiceDeps, 'db' | 'config'> 
 
     const stems = visits.map((v) => stemsOf.get(v.visitId) ?? []);
     // The CPU-bound part, in the worker threads when there are any (see metrics-pool.ts); the same code either way.
-    const task: ChunkTask = { visits, stems, species: species.index, models: [...models], defaultWoodDensity: config.defaultWoodDensity, speciesVersionId: species.versionId, rootShoot: config.rootShoot, standingDeadShare: config.standingDeadShare };
+    const task: ChunkTask = { visits, stems, species: species.index, models: [...models], defaultWoodDensity: config.defaultWoodDensity, speciesVersionId: species.versionId, rootShoot: config.rootShoot, standingDeadShare: config.standingDeadShare, reportingDbhMinCm: config.reportingDbhMinCm, stumpToDbh: config.stumpToDbh };
     const outcomes = config.computeThreads > 0 ? await metricsPool(config.computeThreads).compute(task) : computeVisits(task);
 
     const writes: PlotMetricsWrite[] = [];

@@ -3,20 +3,19 @@ import {
   insertNationalSnapshot,
   listLatestSummaryVersions,
   listRegionForestAreas,
-  listRegionLatestPlots,
   listRegionNames,
   type Queryable,
 } from '@stemwise/db';
-import { cautionSettings, type NationalSummary, type ServiceDeps } from '@stemwise/core';
+import { cautionSettings, standTableValues, type NationalSummary, type ServiceDeps } from '@stemwise/core';
 import { renderMeansChartSvg } from '@stemwise/core/charts';
 import type { Logger } from '@stemwise/platform';
 import { nationalCarbonUncertainty, withWholeInterval, type CarbonUncertaintySection } from './carbon-uncertainty';
 import { summariseNation, type NationalRegionInput } from './summary/national-summary';
 import { summaryVariables } from './summary/region-summary';
 import type { SnapshotData, SnapshotMethod } from './snapshot-payload';
-import { payloadEtag, samplingErrorMultiplier } from './snapshots';
+import { payloadEtag, regionPlots, samplingErrorMultiplier, type RegionPlotsCache } from './snapshots';
 
-type Deps = Pick<ServiceDeps, 'db' | 'config'> & { log?: Logger };
+type Deps = Pick<ServiceDeps, 'db' | 'config'> & { log?: Logger; /** The region plots the stage has read already. */ plots?: RegionPlotsCache };
 
 // What one national_summaries.payload holds (format 1): the national rows and how they were made,
 // the visits they use, and the region summary versions current when it was assembled. The latter
@@ -59,9 +58,9 @@ export async function assembleNationalSnapshot(deps: Deps, sources: Readonly<Rec
   const regions: NationalRegionInput[] = [];
   const dates: string[] = [];
   for (const region of await listRegionNames(db)) {
-    const [plots, forestAreas] = await Promise.all([listRegionLatestPlots(db, region), listRegionForestAreas(db, region)]);
+    const [plots, forestAreas] = await Promise.all([regionPlots(db, region, deps.plots), listRegionForestAreas(db, region)]);
     for (const p of plots) dates.push(p.surveyDate);
-    regions.push({ region, forestAreas, plots: plots.map((p) => ({ plotId: p.plotKey, forestType: p.forestType, values: { ...p.metrics, ...p.change } })) });
+    regions.push({ region, forestAreas, plots: plots.map((p) => ({ plotId: p.plotKey, forestType: p.forestType, values: { ...p.metrics, ...p.change, ...standTableValues(p.standTable) } })) });
   }
   const estimated = summariseNation({ regions, variables: summaryVariables(regions.flatMap((r) => r.plots)), options: { samplingErrorT: samplingErrorMultiplier(config), caution: cautionSettings(config) } });
   const carbon = await nationalCarbonUncertainty(db, config, regions);

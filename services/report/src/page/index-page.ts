@@ -34,7 +34,7 @@ function nationalSection(n: IndexNational): Markup {
 }
 
 /** The list of regions the viewer may see, and the national figures when it may see them. */
-export function renderIndexPage(entries: readonly IndexEntry[], options: { carbonFraction: number; signOut: string | null; national?: IndexNational | null }): string {
+export function renderIndexPage(entries: readonly IndexEntry[], options: { carbonFraction: number; signOut: string | null; national?: IndexNational | null; map?: Markup | null }): string {
   const body = html`
 <header class="top"><div>
   <div class="where">stemwise</div>
@@ -49,6 +49,7 @@ export function renderIndexPage(entries: readonly IndexEntry[], options: { carbo
         (e) => html`<tr><td>${e.href ? html`<a href="${e.href}">${e.region}</a>` : e.region}</td><td class="num">${e.plots}</td><td class="num">${e.version ?? '–'}</td><td>${e.updatedAt ? isoMinute(e.updatedAt) : 'not yet: waiting for the next recompute'}</td></tr>`,
       )}</tbody></table>`
     : html`<p>No region to show: none has been loaded yet, or this token may see none.</p>`}
+  ${options.map ? html`<h2 id="where">Where the plots are</h2>${options.map}` : null}
 </main>
 <footer><div>${options.signOut ? html`<a class="no-print" href="${options.signOut}">Sign out</a>` : null}</div></footer>`;
   return pageShell('Regional forest inventory summaries', body);
