@@ -230,9 +230,8 @@ describe('report pages in a browser', () => {
     expect((await page.goto(`${server.url}/regions/Northvale/plots/SM-1`))?.status()).toBe(404);
   });
 
-  // ENABLE when the fit charts' axes carry catalogue labels (another branch changes them): the axis
-  // titles of the fit charts must not be raw column names.
-  it.skip('titles the fit charts\' axes with catalogue labels, not raw column names', async () => {
+  // The axis titles of the fit charts are catalogue labels, never raw column names.
+  it('titles the fit charts\' axes with catalogue labels, not raw column names', async () => {
     const page = await context.newPage();
     await page.goto(`${server.url}/regions/Northvale`);
     const texts = await svgTexts(page, 'figure.fit-chart[data-forest-type="wet"] svg');

@@ -40,6 +40,8 @@ export interface RegionPlotRow
   change: Record<RegionChangeColumn, number | null>;
   /** The visit's stand table by diameter class as its metrics stored it (diagnostics `standTable`); null for metrics computed before stand tables. */
   standTable: unknown;
+  /** The pair of visits that change comes from: the earlier visit's date and the years between; null when the plot has no earlier visit. */
+  pair: { dateFrom: NonNullable<(typeof plotVisits.$inferSelect)['surveyDate']>; years: number } | null;
 }
 
 /** The per-plot change columns the region and national estimates of change use. */
@@ -56,19 +58,22 @@ export const REGION_CHANGE_COLUMNS = [
   'bgb_net_change_mg_ha_yr',
   'standing_dead_net_change_mg_ha_yr',
   'tree_carbon_net_change_mg_ha_yr',
+  'agb_died_mg_ha_yr',
+  'agb_removed_mg_ha_yr',
 ] as const satisfies readonly PlotChangeDbColumn[];
 export type RegionChangeColumn = (typeof REGION_CHANGE_COLUMNS)[number];
 
 /** The latest computed visit of every plot of a region with its metrics and its change from the visit before, by plot key (byte order). */
 export async function listRegionLatestPlots(db: Queryable, region: string): Promise<RegionPlotRow[]> {
-  const rows = await db.query<Omit<RegionPlotRow, 'metrics' | 'change'> & MetricColumns & Partial<Record<RegionChangeColumn, number | null>>>(
+  const rows = await db.query<Omit<RegionPlotRow, 'metrics' | 'change' | 'pair'> & MetricColumns & Partial<Record<RegionChangeColumn, number | null>> & { pairFrom: string | null; pairYears: number | null }>(
     `with latest as (${LATEST_VISITS})
      select p.plot_key "plotKey", p.forest_type "forestType", p.latitude, p.longitude, p.elevation_m "elevationM", l.survey_date::text "surveyDate", m.species_stems "speciesStems", ${METRIC_SELECT},
-            ${REGION_CHANGE_COLUMNS.map((x) => `c.${x}`).join(', ')}, m.diagnostics->'standTable' "standTable"
+            ${REGION_CHANGE_COLUMNS.map((x) => `c.${x}`).join(', ')}, m.diagnostics->'standTable' "standTable", a.survey_date::text "pairFrom", c.years "pairYears"
        from latest l
        join plots p on p.id = l.plot_id
        join plot_metrics m on m.visit_id = l.visit_id
        left join plot_change c on c.visit_to_id = l.visit_id
+       left join plot_visits a on a.id = c.visit_from_id
       order by p.plot_key collate "C"`,
     [region],
   );
@@ -83,6 +88,7 @@ export async function listRegionLatestPlots(db: Queryable, region: string): Prom
     metrics: numericColumns(r, METRIC_NAMES),
     change: numericColumns(r, REGION_CHANGE_COLUMNS),
     standTable: r.standTable ?? null,
+    pair: r.pairFrom === null || r.pairYears === null ? null : { dateFrom: r.pairFrom, years: Number(r.pairYears) },
   }));
 }
 
@@ -126,7 +132,8 @@ export async function insertSummarySnapshot(db: Queryable, region: string, etag:
 
 /**
  * The charts (SVG) of a region's latest snapshot with the key of the specification each was drawn from
- * (payload.charts.fits[].drawn_from, payload.charts.drawn_from.means and .guilds): the report reuses a
+ * (payload.charts.fits[].drawn_from, and payload.charts.drawn_from.<name> for each chart payload.charts.<name>:
+ * means, guilds, change …): the report reuses a
  * chart whose key is unchanged instead of drawing it again.
  */
 export async function listLatestChartSvgs(db: Queryable, region: string): Promise<Array<{ key: string; svg: string }>> {
@@ -137,8 +144,9 @@ export async function listLatestChartSvgs(db: Queryable, region: string): Promis
             lateral (
               select f->>'drawn_from' key, f->>'svg' svg
                 from jsonb_array_elements(case when jsonb_typeof(latest.c->'fits') = 'array' then latest.c->'fits' else '[]'::jsonb end) f
-              union all select latest.c->'drawn_from'->>'means', latest.c->>'means'
-              union all select latest.c->'drawn_from'->>'guilds', latest.c->>'guilds') k
+              union all
+              select d.value #>> '{}', latest.c->>d.key
+                from jsonb_each(case when jsonb_typeof(latest.c->'drawn_from') = 'object' then latest.c->'drawn_from' else '{}'::jsonb end) d) k
       where k.key is not null and k.svg is not null`,
     [region],
   );

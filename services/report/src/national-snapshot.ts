@@ -7,11 +7,12 @@ import {
   type Queryable,
 } from '@stemwise/db';
 import { cautionSettings, standTableValues, type NationalSummary, type ServiceDeps } from '@stemwise/core';
-import { renderMeansChartSvg } from '@stemwise/core/charts';
+import { renderChangeChartSvg, renderMeansChartSvg } from '@stemwise/core/charts';
 import type { Logger } from '@stemwise/platform';
 import { nationalCarbonUncertainty, withWholeInterval, type CarbonUncertaintySection } from './carbon-uncertainty';
 import { summariseNation, type NationalRegionInput } from './summary/national-summary';
 import { summaryVariables } from './summary/region-summary';
+import { changeCoverage, type ChangeCoverage, type PlotPair } from './summary/change-coverage';
 import type { SnapshotData, SnapshotMethod } from './snapshot-payload';
 import { payloadEtag, regionPlots, samplingErrorMultiplier, type RegionPlotsCache } from './snapshots';
 
@@ -33,7 +34,9 @@ export interface NationalPayload {
   readonly sources: Readonly<Record<string, number | null>>;
   /** Whole uncertainty of the above-ground carbon stock (docs/methods.md#carbon-uncertainty); null when off, absent in older snapshots. */
   readonly carbon_uncertainty?: CarbonUncertaintySection | null;
-  readonly charts: { readonly means: string | null };
+  /** The pairs of visits behind the national estimates of change (null: no plot measured twice); absent in older snapshots. */
+  readonly change?: ChangeCoverage | null;
+  readonly charts: { readonly means: string | null; readonly change?: string | null };
 }
 
 export interface NationalSnapshot {
@@ -57,9 +60,11 @@ export async function assembleNationalSnapshot(deps: Deps, sources: Readonly<Rec
   const { db, config } = deps;
   const regions: NationalRegionInput[] = [];
   const dates: string[] = [];
+  const pairs: PlotPair[] = [];
   for (const region of await listRegionNames(db)) {
     const [plots, forestAreas] = await Promise.all([regionPlots(db, region, deps.plots), listRegionForestAreas(db, region)]);
     for (const p of plots) dates.push(p.surveyDate);
+    pairs.push(...plots);
     regions.push({ region, forestAreas, plots: plots.map((p) => ({ plotId: p.plotKey, forestType: p.forestType, values: { ...p.metrics, ...p.change, ...standTableValues(p.standTable) } })) });
   }
   const estimated = summariseNation({ regions, variables: summaryVariables(regions.flatMap((r) => r.plots)), options: { samplingErrorT: samplingErrorMultiplier(config), caution: cautionSettings(config) } });
@@ -67,10 +72,16 @@ export async function assembleNationalSnapshot(deps: Deps, sources: Readonly<Rec
   const summary = { ...estimated, rows: withWholeInterval(estimated.rows, carbon) };
   dates.sort();
   let means: string | null = null;
+  let change: string | null = null;
   try {
     means = await renderMeansChartSvg(summary.rows, { label: 'whole country', subtitle: 'dark: all regions together (stratified by region × forest type); light: each forest type nationally' });
   } catch (err) {
     deps.log?.error({ err }, 'national means chart could not be rendered');
+  }
+  try {
+    change = await renderChangeChartSvg(summary.rows, { label: 'whole country' });
+  } catch (err) {
+    deps.log?.error({ err }, 'national change chart could not be rendered');
   }
   return {
     format: NATIONAL_FORMAT,
@@ -79,7 +90,8 @@ export async function assembleNationalSnapshot(deps: Deps, sources: Readonly<Rec
     summary,
     sources,
     carbon_uncertainty: carbon,
-    charts: { means },
+    change: changeCoverage(pairs),
+    charts: { means, change },
   };
 }
 

@@ -17,6 +17,7 @@ export function summaryJson(s: Snapshot): string {
     summary: rest.summary,
     fits: rest.fits,
     carbon_uncertainty: rest.carbon_uncertainty ?? null,
+    ...(rest.change === undefined ? {} : { change: rest.change }),
   });
 }
 
@@ -29,7 +30,7 @@ export function summaryCsv(s: Snapshot | NationalSnapshot): string {
 
 /** The national snapshot as JSON (everything but the chart SVG). */
 export function nationalJson(s: NationalSnapshot): string {
-  const { data, method, summary, sources } = s.payload;
+  const { data, method, summary, sources, change } = s.payload;
   const carbon_uncertainty = s.payload.carbon_uncertainty ?? null;
-  return JSON.stringify({ region: 'national', version: s.version, created_at: s.createdAt.toISOString(), etag: s.etag, data, method, summary, sources, carbon_uncertainty });
+  return JSON.stringify({ region: 'national', version: s.version, created_at: s.createdAt.toISOString(), etag: s.etag, data, method, summary, sources, ...(change === undefined ? {} : { change }), carbon_uncertainty });
 }

@@ -13,12 +13,13 @@ import {
   recordProblems,
   regionExists,
 } from '@stemwise/db';
-import { asStoredFitChart, cautionSettings, currentSpecies, IPCC_2006_CARBON_FRACTION, standTableValues, toFitRow, type SamplingErrorT, type ServiceDeps, type StoredFitChart } from '@stemwise/core';
+import { asStoredFitChart, cautionSettings, currentSpecies, IPCC_2006_CARBON_FRACTION, standTableValues, toFitRow, variableLabel, type SamplingErrorT, type ServiceDeps, type StoredFitChart } from '@stemwise/core';
 import { isInfrastructureError, PermanentError, type Config, type Logger } from '@stemwise/platform';
 import { plotPagePath } from './plot-map';
-import { buildFitChartSpec, buildGuildChartSpec, buildMeansChartSpec, chartSpecKey, regionChartPoints, renderVegaLiteSvg, type TopLevelSpec } from '@stemwise/core/charts';
+import { buildChangeChartSpec, buildFitChartSpec, buildGuildChartSpec, buildMeansChartSpec, chartSpecKey, regionChartPoints, renderVegaLiteSvg, type TopLevelSpec } from '@stemwise/core/charts';
 import { regionCarbonUncertainty, withWholeInterval } from './carbon-uncertainty';
 import { RegionSummaryInputError, summariseRegion, summaryVariables, type PlotMetrics } from './summary/region-summary';
+import { changeCoverage } from './summary/change-coverage';
 import { SNAPSHOT_FORMAT, type FitChart, type SnapshotFitRow, type SnapshotMethod, type SnapshotPayload } from './snapshot-payload';
 
 type Deps = Pick<ServiceDeps, 'db' | 'config'> & { log?: Logger };
@@ -51,7 +52,7 @@ export function methodOf(config: Pick<Config, 'fitMetric' | 'fitAxis'>): Snapsho
       'Above-ground biomass per stem by Chave et al. 2014 (wood density, diameter, height; heights measured or from a local height–diameter model), or by Chave et al. 2005 for the climate class where no height is available.',
     carbon_fraction: IPCC_2006_CARBON_FRACTION,
     carbon: `Carbon = ${IPCC_2006_CARBON_FRACTION} × above-ground biomass (IPCC 2006 default carbon fraction). Not a substitute for the national greenhouse-gas inventory method.`,
-    fits: `${config.fitMetric} against ${config.fitAxis}: straight line and parabola by least squares per forest type, with the hump tests and a plain verdict.`,
+    fits: `${variableLabel(config.fitMetric).name} against ${variableLabel(config.fitAxis).name}: straight line and parabola by least squares per forest type, with the hump tests and a plain verdict.`,
   };
 }
 
@@ -81,7 +82,7 @@ async function fitChart(deps: Deps, region: string, forestType: string, charts: 
   if (!stored) return { ...base, svg: null, missing: `no stored fit of ${metric} against ${axis} for ${forestType}: the fits stage has not stored its chart`, drawn_from: null };
   if (!stored.points.x.length) return { ...base, svg: null, missing: `no plot of ${forestType} has both ${metric} and ${axis}`, drawn_from: null };
   try {
-    const { svg, key } = await draw(buildFitChartSpec({ forestType, metric, axis, points: regionChartPoints(stored.points, region, (plot) => plotPagePath(region, plot)), chart: stored }), drawn);
+    const { svg, key } = await draw(buildFitChartSpec({ forestType, metric, axis, points: regionChartPoints(stored.points, region, (plot) => plotPagePath(region, plot)), chart: stored, highlightLabel: `plots of ${region}` }), drawn);
     return { ...base, svg, missing: null, drawn_from: key };
   } catch (err) {
     deps.log?.error({ err, region, forestType }, 'fit chart could not be rendered');
@@ -133,6 +134,7 @@ export async function assembleRegionSnapshot(deps: Deps, region: string, charts:
 
   const means = await optionalChart(deps, 'means', () => buildMeansChartSpec(summary.rows), drawn);
   const guilds = await optionalChart(deps, 'guilds', () => buildGuildChartSpec(summary.guild_composition), drawn);
+  const change = await optionalChart(deps, 'change', () => buildChangeChartSpec(summary.rows), drawn);
 
   const dates = plots.map((p) => p.surveyDate).sort();
   return {
@@ -143,7 +145,8 @@ export async function assembleRegionSnapshot(deps: Deps, region: string, charts:
     summary,
     fits,
     carbon_uncertainty: carbon,
-    charts: { means: means.svg, guilds: guilds.svg, fits: fitCharts, drawn_from: { means: means.key, guilds: guilds.key } },
+    change: changeCoverage(plots),
+    charts: { means: means.svg, guilds: guilds.svg, change: change.svg, fits: fitCharts, drawn_from: { means: means.key, guilds: guilds.key, change: change.key } },
   };
 }
 

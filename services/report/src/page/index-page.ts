@@ -1,6 +1,6 @@
 import type { NationalSnapshot } from '../national-snapshot';
 import { HEADLINE_VARIABLES, variableLabel } from '@stemwise/core';
-import { cautions, visitsSentence } from './region-page';
+import { cautions, shownRow, visitsSentence } from './region-page';
 import { estimate, estimateInterval, isoMinute, samplingError } from './figures';
 import { html, type Markup } from './html';
 import { pageShell } from './shell';
@@ -22,7 +22,9 @@ export interface IndexNational {
 
 function nationalSection(n: IndexNational): Markup {
   const { summary, data } = n.snapshot.payload;
-  const rows = HEADLINE_VARIABLES.map((v) => summary.rows.find((r) => r.forest_type === 'all' && r.variable === v)).filter((r) => r !== undefined);
+  const rows = HEADLINE_VARIABLES.map((v) => summary.rows.find((r) => r.forest_type === 'all' && r.variable === v))
+    .filter((r) => r !== undefined)
+    .map(shownRow);
   return html`<section id="national">
   <h2>All regions together</h2>
   <p>Stratified by region × forest type over ${data.plots} plots in ${data.regions} regions. ${visitsSentence(data.first_survey, data.last_survey)} <a href="${n.href}">National figures by forest type</a> (version ${n.snapshot.version}, ${isoMinute(n.snapshot.createdAt)}).</p>

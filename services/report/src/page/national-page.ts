@@ -1,7 +1,8 @@
 import type { NationalSnapshot } from '../national-snapshot';
 import { figure, isoMinute } from './figures';
 import { html, safeSvg, type Markup } from './html';
-import { cautionLegend, cautions, estimatesTable, headlineCards, versionsList, visitsSentence } from './region-page';
+import { cautionLegend, cautions, estimatesTable, headlineCards, versionsList, visitsSentence, withoutChange } from './region-page';
+import { changeSection } from './change-section';
 import { poolsSection } from './pools-section';
 import { pageShell } from './shell';
 import { carbonUncertaintySection } from './carbon-uncertainty-section';
@@ -58,8 +59,10 @@ export function renderNationalPage(input: NationalPageInput): string {
   ${means ? html`<h2>Charts</h2><figure id="means-chart">${means}<figcaption>Means per hectare with their 95 % confidence intervals: all regions together (dark) and each forest type nationally.</figcaption></figure>` : null}
   ${input.map ? html`<h2 id="where">Where the plots are</h2>${input.map}` : null}
   <h2>Estimates by forest type, nationally</h2>
-  ${estimatesTable(summary.rows, WHOLE_COUNTRY)}
+  ${estimatesTable(withoutChange(summary.rows), WHOLE_COUNTRY)}
   ${cautionLegend(summary.caution)}
+  <h2 id="change-between-visits">Change between visits</h2>
+  ${changeSection({ rows: summary.rows, coverage: s.payload.change, chartSvg: s.payload.charts.change, whole: WHOLE_COUNTRY, scope: 'country' })}
   <h2 id="stand-table-heading">Stand table by diameter class</h2>
   ${standTableSection(summary.rows, WHOLE_COUNTRY) ?? html`<p class="muted">No stand table in this version of the summary.</p>`}
   <h2>Strata</h2>
