@@ -5,6 +5,7 @@ import { migrateDatabase, openDatabase, syncForestTypes } from '@stemwise/db';
 import { filesInDir, submitBatch, type ServiceDeps } from '@stemwise/core';
 import { checkOwnFolder, claimOwnFolder } from './own-folder';
 import { allProcessors } from './processors';
+import type { CarbonUncertaintySection } from '@stemwise/report';
 
 export interface DemoOptions {
   /** Folder holding plots.csv(.gz), trees.csv(.gz), optionally strata and species. */
@@ -39,6 +40,8 @@ export interface DemoResult {
   outDir: string;
   index: string;
   seconds: number;
+  /** The national carbon stock's whole uncertainty (printed by demoCarbonLines). */
+  carbon: CarbonUncertaintySection | null;
 }
 
 /**
@@ -110,6 +113,7 @@ export async function runDemo(o: DemoOptions): Promise<DemoResult> {
       outDir: o.outDir,
       index: pages.index,
       seconds: (Date.now() - started) / 1000,
+      carbon: (await report.readNationalSnapshot(db))?.payload.carbon_uncertainty ?? null,
     };
   } finally {
     await queue.close();

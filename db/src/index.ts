@@ -17,4 +17,5 @@ export * from './queries/batches';
 export * from './queries/load';
 export * from './queries/species-reference';
 export * from './queries/change';
+export * from './queries/carbon-moments';
 export * from './queries/plot-page';

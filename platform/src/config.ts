@@ -70,6 +70,9 @@ const envSchema = z.object({
   STEMWISE_FIT_AXIS: z.string().min(1).default('disturbance_index'),
   STEMWISE_BOOTSTRAP: intIn(0, 100_000).default(1000),
   STEMWISE_SEED: intIn(0, 2 ** 31 - 1).default(20261201),
+  STEMWISE_CARBON_DRAWS: intIn(0, 1_000_000).refine((n) => n === 0 || n >= 100, '0 (off) or at least 100').default(20_000),
+  STEMWISE_CARBON_ALLOMETRY_RSE: num().pipe(z.number().min(0).max(2)).default(0.357),
+  STEMWISE_CARBON_WOOD_DENSITY_SD: num().pipe(z.number().min(0).max(1)).default(0.1),
 });
 
 export type Climate = 'dry' | 'moist' | 'wet';
@@ -147,6 +150,12 @@ export interface Config {
   fitAxis: string;
   bootstrap: number;
   seed: number;
+  /** Monte Carlo draws of the carbon uncertainty in the summaries; 0: not computed. */
+  carbonDraws: number;
+  /** ln-scale residual SE of the biomass model (Chave et al. 2014 eq. 4: 0.357, from memory). */
+  carbonAllometryRse: number;
+  /** Relative SD of a tree's wood density around its reference value (0.10, common practice). */
+  carbonWoodDensitySd: number;
 }
 
 /** Settings with their defaults and meaning, for the README and `--help`. */
@@ -196,7 +205,10 @@ export const SETTINGS: ReadonlyArray<{ name: string; default: string; meaning: s
   { name: 'STEMWISE_FIT_METRIC', default: 'fisher_alpha', meaning: 'diversity column of the nightly curve fits; `rarefied_50` is the size-fair choice where plot areas differ much ([methods](docs/methods.md#plots-of-different-sizes))' },
   { name: 'STEMWISE_FIT_AXIS', default: 'disturbance_index', meaning: 'disturbance column of the nightly curve fits' },
   { name: 'STEMWISE_BOOTSTRAP', default: '1000', meaning: 'bootstrap resamples for the vertex interval' },
-  { name: 'STEMWISE_SEED', default: '20261201', meaning: 'seed of the bootstrap, so reruns give the same intervals' },
+  { name: 'STEMWISE_SEED', default: '20261201', meaning: 'seed of the bootstrap and of the carbon Monte Carlo, so reruns give the same intervals' },
+  { name: 'STEMWISE_CARBON_DRAWS', default: '20000', meaning: 'Monte Carlo draws of the whole carbon uncertainty in the region and national summaries (0: not computed; else at least 100)' },
+  { name: 'STEMWISE_CARBON_ALLOMETRY_RSE', default: '0.357', meaning: 'residual standard error (ln scale) of the biomass model with height: Chave et al. 2014 eq. 4 (value from memory)' },
+  { name: 'STEMWISE_CARBON_WOOD_DENSITY_SD', default: '0.1', meaning: "relative SD of a tree's wood density around its reference value (common practice, no single source)" },
 ];
 
 function parseTrustProxy(v: string): boolean | number | string[] {
@@ -286,5 +298,8 @@ export function loadConfig(env: Readonly<Record<string, string | undefined>> = p
     fitAxis: e.STEMWISE_FIT_AXIS,
     bootstrap: e.STEMWISE_BOOTSTRAP,
     seed: e.STEMWISE_SEED,
+    carbonDraws: e.STEMWISE_CARBON_DRAWS,
+    carbonAllometryRse: e.STEMWISE_CARBON_ALLOMETRY_RSE,
+    carbonWoodDensitySd: e.STEMWISE_CARBON_WOOD_DENSITY_SD,
   };
 }

@@ -121,7 +121,7 @@ describe('stemwise recompute and export', () => {
     expect(rows[0].axis).toBe('fire_score');
     const regions = await inProcess(['export', 'regions']); // the report service's export, behind the same command
     expect(regions.code, regions.stderr).toBe(0);
-    expect(regions.stdout).toMatch(/^region,forest_type,variable,n_plots,mean,se,ci_low,ci_high,sampling_error_pct,forest_area_ha,total,caution_flag\n/);
+    expect(regions.stdout).toMatch(/^region,forest_type,variable,n_plots,mean,se,ci_low,ci_high,sampling_error_pct,forest_area_ha,total,caution_flag,whole_se,whole_ci_low,whole_ci_high,total_whole_ci_low,total_whole_ci_high\n/);
     const gj = await inProcess(['export', 'plots', '--format', 'geojson', '--region', 'Sallowfen']);
     expect(gj.code, gj.stderr).toBe(0);
     expect(JSON.parse(gj.stdout).features.every((f: { properties: { region: string } }) => f.properties.region === 'Sallowfen')).toBe(true);

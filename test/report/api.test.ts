@@ -104,7 +104,7 @@ describe('report API', () => {
     const res = await app.inject({ url: `/v1/regions/${encodeURIComponent('@Lakeside')}/summary?format=csv`, headers: auth });
     expect(res.statusCode).toBe(200);
     const lines = res.body.trimEnd().split('\n');
-    expect(lines[0]).toBe('region,forest_type,variable,n_plots,mean,se,ci_low,ci_high,sampling_error_pct,forest_area_ha,total,caution_flag');
+    expect(lines[0]).toBe('region,forest_type,variable,n_plots,mean,se,ci_low,ci_high,sampling_error_pct,forest_area_ha,total,caution_flag,whole_se,whole_ci_low,whole_ci_high,total_whole_ci_low,total_whole_ci_high');
     expect(lines[1].startsWith("'@Lakeside,all,")).toBe(true);
     const hs = await app.inject({ url: `/v1/regions/${encodeURIComponent('=HYPERLINK("x")')}/summary?format=csv`, headers: auth });
     const row = hs.body.split('\n').find((l) => l.includes(',basal_area_m2_ha,') && l.includes(',all,'))!;

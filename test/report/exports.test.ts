@@ -11,7 +11,7 @@ import { envFor, testLogger, useServices, type TestServices } from '../support/s
 import { jobContext, seedRun } from './fixture';
 import { seedScenario } from './seed-scenario';
 
-const COLUMNS = 'region,forest_type,variable,n_plots,mean,se,ci_low,ci_high,sampling_error_pct,forest_area_ha,total,caution_flag';
+const COLUMNS = 'region,forest_type,variable,n_plots,mean,se,ci_low,ci_high,sampling_error_pct,forest_area_ha,total,caution_flag,whole_se,whole_ci_low,whole_ci_high,total_whole_ci_low,total_whole_ci_high';
 let s: TestServices;
 let deps: ServiceDeps;
 const out = fs.mkdtempSync(path.join(os.tmpdir(), 'stemwise-exports-'));
@@ -44,7 +44,7 @@ describe('export regions and the static report', () => {
     expect(regionOf.length - first).toBe(22 * 4);
     // 12 plots of three regions with plot-count weights: ȳ = 18.5 (by hand, see summaries.test.ts), no total
     // 12 plots are fewer than the default 20: flagged few_plots (with the sampling error of 12 %, not above 20 %)
-    expect(lines.filter((l) => /^national,all,basal_area_m2_ha,12,18\.5,[^,]+,[^,]+,[^,]+,[^,]+,,,few_plots$/.test(l))).toHaveLength(1);
+    expect(lines.filter((l) => /^national,all,basal_area_m2_ha,12,18\.5,[^,]+,[^,]+,[^,]+,[^,]+,,,few_plots,,,,,$/.test(l))).toHaveLength(1);
     // mean 21 and SE √3.25 (computed by hand, see summaries.test.ts) in shortest round-trip form
     expect(lines.filter((l) => l.startsWith('Northvale,all,basal_area_m2_ha,5,21,1.8027756377319946,'))).toHaveLength(1);
 

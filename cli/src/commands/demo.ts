@@ -3,6 +3,7 @@ import { defineCommand } from '../command';
 import { printErr, printOut } from '../output';
 import { OWN_FOLDER_MARKER } from '../own-folder';
 import { runDemo, type DemoResult } from '../demo-pipeline';
+import { demoCarbonLines } from '../demo-carbon';
 
 const fmt = (x: number | null, digits = 3) => (x === null || x === undefined ? '—' : x.toFixed(digits));
 
@@ -48,6 +49,7 @@ embedded database of its own, and writes a report folder: pages, exports and cha
       [
         `Diversity (Fisher's alpha) against the disturbance index, invented demo inventory:`,
         demoTable(result),
+        ...demoCarbonLines(result.carbon),
         '',
         `Report: ${result.index}`,
         `Exports and charts: ${path.join(outDir, 'exports')}, ${path.join(outDir, 'charts')}`,

@@ -50,21 +50,30 @@ export function heightModelRow(forestType: string, m: HeightDiameterModel): Heig
     forestType,
     form: HEIGHT_MODEL_FORM,
     coefficients: { a: m.a, b: m.b, c: m.c, biasCorrection: m.biasCorrection },
-    stats: { n: m.n, rse: m.rse, r2: m.r2, dbhMinCm: m.dbhMinCm, dbhMaxCm: m.dbhMaxCm },
+    stats: { n: m.n, rse: m.rse, r2: m.r2, dbhMinCm: m.dbhMinCm, dbhMaxCm: m.dbhMaxCm, ...(m.covariance ? { covariance: m.covariance } : {}) },
   };
 }
 
 /** A stored model back as the science's HeightDiameterModel. */
 export function heightModelFromRow(row: HeightModelRow): HeightDiameterModel {
   const c = row.coefficients;
-  const s = row.stats as { n: number; rse: number; r2: number | null; dbhMinCm: number; dbhMaxCm: number };
-  return { a: c.a, b: c.b, c: c.c, biasCorrection: c.biasCorrection, n: s.n, rse: s.rse, r2: s.r2, dbhMinCm: s.dbhMinCm, dbhMaxCm: s.dbhMaxCm };
+  const s = row.stats as { n: number; rse: number; r2: number | null; dbhMinCm: number; dbhMaxCm: number; covariance?: number[] };
+  const m = { a: c.a, b: c.b, c: c.c, biasCorrection: c.biasCorrection, n: s.n, rse: s.rse, r2: s.r2, dbhMinCm: s.dbhMinCm, dbhMaxCm: s.dbhMaxCm };
+  return s.covariance ? { ...m, covariance: s.covariance } : m;
 }
 
 // Keys sorted: a stored model comes back from jsonb with its keys in jsonb's order, not the order written.
 const canonical = (o: Record<string, unknown>): string => JSON.stringify(Object.keys(o).sort().map((k) => [k, o[k]]));
+// The parameter covariance is left out of the comparison: it changes no prediction (only the carbon
+// uncertainty reads it), so a model stored before it was kept gets it without marking visits stale.
+const predictive = (stats: Record<string, unknown>): Record<string, unknown> => {
+  const { covariance: _, ...rest } = stats;
+  return rest;
+};
 const same = (a: HeightModelRow | undefined, b: HeightModelRow | null): boolean =>
-  a === undefined ? b === null : b !== null && a.form === b.form && canonical(a.coefficients) === canonical(b.coefficients) && canonical(a.stats) === canonical(b.stats);
+  a === undefined
+    ? b === null
+    : b !== null && a.form === b.form && canonical(a.coefficients) === canonical(b.coefficients) && canonical(predictive(a.stats)) === canonical(predictive(b.stats));
 
 export interface RefitPolicy {
   minHeights: number;
@@ -98,6 +107,8 @@ export async function refitHeightModels(db: Db, forestTypes: readonly string[], 
     }
     const before = stored.get(forestType);
     if (same(before, next)) {
+      // Same predictions; a model stored before its covariance was kept gets it, without marking visits stale.
+      if (next && before && (before.stats as Record<string, unknown>).covariance === undefined && next.stats.covariance !== undefined) await upsertHeightModel(db, next);
       changes.push({ forestType, heights: dbhCm.length, outcome: 'unchanged', visitsMarked: 0, biomassShift: before ? 0 : null });
       continue;
     }

@@ -18,6 +18,11 @@ export const REGION_COLUMNS = [
   'forest_area_ha',
   'total',
   'caution_flag',
+  'whole_se',
+  'whole_ci_low',
+  'whole_ci_high',
+  'total_whole_ci_low',
+  'total_whole_ci_high',
 ] as const;
 
 export type RegionColumn = (typeof REGION_COLUMNS)[number];
@@ -46,6 +51,15 @@ export interface RegionRow {
   readonly total: number | null;
   /** Few plots or a wide sampling error (docs/exports.md); absent in summaries made before it existed. */
   readonly caution_flag?: CautionFlag;
+  /**
+   * carbon_mg_ha rows only: SD and percentile interval of the Monte Carlo of every error source (sampling,
+   * biomass and height models, wood density; docs/methods.md#carbon-uncertainty), and that interval of the total.
+   */
+  readonly whole_se?: number | null;
+  readonly whole_ci_low?: number | null;
+  readonly whole_ci_high?: number | null;
+  readonly total_whole_ci_low?: number | null;
+  readonly total_whole_ci_high?: number | null;
 }
 
 /** A total over forest area with its uncertainty (per-hectare variables, known areas). */

@@ -133,6 +133,31 @@ describe('minHeights, extrapolation and the 100 m cap', () => {
   });
 });
 
+describe('fitHeightDiameter parameter covariance', () => {
+  // RSE² (XᵀX)⁻¹ with X = [1, ln D, (ln D)²] (the OLS covariance, Seber & Lee 2003 ch. 3), computed
+  // here independently by the adjugate of XᵀX on the unscaled columns; 1e-6 relative (XᵀX is badly conditioned).
+  const d = [10, 12, 15, 19, 24, 30, 37, 45, 55, 68, 80, 95];
+  const h = d.map((x, i) => Math.exp(0.893 + 0.76 * Math.log(x) - 0.034 * Math.log(x) ** 2 + 0.2 * Math.cos(2.1 * i)));
+  const model = fitHeightDiameter(d, h, { minHeights: 4 });
+
+  it('equals RSE² (XᵀX)⁻¹', () => {
+    const m = [0, 0, 0, 0, 0, 0, 0, 0, 0];
+    for (const x of d) {
+      const row = [1, Math.log(x), Math.log(x) ** 2];
+      for (let i = 0; i < 3; i += 1) for (let j = 0; j < 3; j += 1) m[i * 3 + j] += row[i] * row[j];
+    }
+    const [a, b, c, dd, e, f, g, hh, k] = m;
+    const det = a * (e * k - f * hh) - b * (dd * k - f * g) + c * (dd * hh - e * g);
+    const adj = [e * k - f * hh, c * hh - b * k, b * f - c * e, f * g - dd * k, a * k - c * g, c * dd - a * f, dd * hh - e * g, b * g - a * hh, a * e - b * dd];
+    const cov = model.covariance as readonly number[];
+    expect(cov).toHaveLength(9);
+    for (let i = 0; i < 9; i += 1) {
+      const want = (model.rse * model.rse * adj[i]) / det;
+      expect(Math.abs(cov[i] - want)).toBeLessThan(1e-6 * Math.abs(want));
+    }
+  });
+});
+
 describe('heightModelBiomassShift (the bound on a plot biomass change behind the height-model tolerance, docs/methods.md#height-model-releases)', () => {
   // Chave et al. 2014 eq. 6a at E = 0 (a = 0.893, b = 0.760, c = −0.0340), fitted on 10–150 cm, no bias correction.
   const base = { a: 0.893, b: 0.76, c: -0.034, n: 100, rse: 0, r2: 1, dbhMinCm: 10, dbhMaxCm: 150, biasCorrection: 1 };

@@ -24,6 +24,11 @@ export interface HeightDiameterModel {
   readonly dbhMaxCm: number;
   /** exp(RSE²/2), the back-transformation factor (Baskerville 1972). */
   readonly biasCorrection: number;
+  /**
+   * Covariance of the estimates (a, b, c), 3 × 3 row-major: RSE² (XᵀX)⁻¹ of the OLS fit. Absent on
+   * models stored before it was kept (their parameter uncertainty is then not propagated).
+   */
+  readonly covariance?: readonly number[];
 }
 
 /**
@@ -123,6 +128,7 @@ export function fitHeightDiameter(
   const b = g1 / scale - 2 * c * mean;
   const a = g0 - (g1 / scale) * mean + c * mean * mean;
   return {
+    covariance: parameterCovariance(r, rse, mean, scale),
     a,
     b,
     c,
@@ -133,6 +139,29 @@ export function fitHeightDiameter(
     dbhMaxCm: dMax,
     biasCorrection: Math.exp((rse * rse) / 2),
   };
+}
+
+// Cov(a, b, c) = J · RSE² (RᵀR)⁻¹ · Jᵀ, R from the QR of [1, t, t²], J the map from (g0, g1, g2) on t = (ln D − m)/s to (a, b, c) — OLS covariance (Seber & Lee 2003, Linear Regression Analysis, ch. 3)
+function parameterCovariance(r: readonly (readonly number[])[], rse: number, m: number, s: number): number[] {
+  // R⁻¹ of the upper-triangular 3 × 3 R
+  const inv = [
+    [1 / r[0][0], 0, 0],
+    [0, 1 / r[1][1], 0],
+    [0, 0, 1 / r[2][2]],
+  ];
+  inv[0][1] = -r[0][1] / (r[0][0] * r[1][1]);
+  inv[1][2] = -r[1][2] / (r[1][1] * r[2][2]);
+  inv[0][2] = -(r[0][1] * inv[1][2] + r[0][2] * inv[2][2]) / r[0][0];
+  const j = [
+    [1, -m / s, (m * m) / (s * s)],
+    [0, 1 / s, (-2 * m) / (s * s)],
+    [0, 0, 1 / (s * s)],
+  ];
+  // B = J R⁻¹; Cov = RSE² B Bᵀ
+  const b = j.map((row) => [0, 1, 2].map((k) => row[0] * inv[0][k] + row[1] * inv[1][k] + row[2] * inv[2][k]));
+  const out: number[] = [];
+  for (let x = 0; x < 3; x += 1) for (let y = 0; y < 3; y += 1) out.push(rse * rse * (b[x][0] * b[y][0] + b[x][1] * b[y][1] + b[x][2] * b[y][2]));
+  return out;
 }
 
 // H = min(100, exp(a + b ln D + c (ln D)²) · exp(RSE²/2)) m — Chave et al. 2014 eq. 6a form, Baskerville 1972

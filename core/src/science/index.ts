@@ -22,6 +22,7 @@ export * from './stratified';
 export * from './sample-moments';
 export * from './estimator-errors';
 export * from './change';
+export * from './carbon-uncertainty';
 export * from './root-shoot';
 export * from './dead-wood';
 export * from './stump';

@@ -37,6 +37,7 @@ import {
   shannon,
   simpson,
 } from './diversity';
+import { CarbonMomentsBuilder, type CarbonMoments } from './carbon-uncertainty';
 import { standingDeadBiomass, DEFAULT_STANDING_DEAD_SHARE } from './dead-wood';
 import { type HeightDiameterModel, predictHeight } from './height-diameter';
 import { DEFAULT_ROOT_SHOOT_BY_CLIMATE, type RootShootRelation, rootShootRatio } from './root-shoot';
@@ -94,6 +95,8 @@ export interface PlotMetricOptions {
    * models and wood densities as the plot's figures (change between visits needs it per tree).
    */
   readonly stemAgb?: boolean;
+  /** Also return the sums the carbon uncertainty needs (`carbonMoments`, docs/methods.md#carbon-uncertainty). */
+  readonly carbonMoments?: boolean;
   /** Root-to-shoot relation of the plot's forest type (default: DEFAULT_ROOT_SHOOT_BY_CLIMATE of its climate). */
   readonly rootShoot?: RootShootRelation;
   /** Share of the allometric biomass a standing dead stem keeps (default DEFAULT_STANDING_DEAD_SHARE = 0.7, common practice). */
@@ -137,6 +140,8 @@ export interface PlotMetricsResult {
   diagnostics: PlotDiagnostics;
   /** With `stemAgb`: AGB in kg of each input stem, in input order; null for stems that are not live. */
   stemAgbKg?: (number | null)[];
+  /** With `carbonMoments`: the plot's above-ground biomass sums by height source (Mg/ha). */
+  carbonMoments?: CarbonMoments;
   /** With `stemAgb`: standing dead wood in kg of each dead stem at or above its minimum, in input order; null for the others. */
   stemDeadKg?: (number | null)[];
 }
@@ -301,6 +306,7 @@ export function computePlotMetrics(
   const wdAgb: Record<WoodDensityLevel, number> = { species: 0, genus: 0, family: 0, plot: 0, default: 0 };
   let outsideRange = 0;
   let agbKgHa = 0;
+  const moments = options.carbonMoments ? new CarbonMomentsBuilder() : null;
   const agbStem = new Array<number>(nLive);
   for (let i = 0; i < nLive; i += 1) {
     const d = dbh[i];
@@ -313,6 +319,10 @@ export function computePlotMetrics(
     const agb = agbOf(rho, d, measured);
     agbStem[i] = agb;
     if (stemAgbKg) stemAgbKg[includedAt[i]] = agb;
+    if (moments) {
+      const source = measured !== null ? 'measured' : heightModel !== null ? 'modelled' : 'noHeight';
+      moments.addTree(source, [{ weight: weight[i], coef: 1, agbMg: agb / 1000, dbhCm: d, modelled: source === 'modelled' }]);
+    }
     agbKgHa += weight[i] * agb;
     heightAgb[source] += weight[i] * agb;
     wdAgb[wd.levels[i]] += weight[i] * agb;
@@ -445,5 +455,7 @@ export function computePlotMetrics(
     standTable: { thresholdCm: reportingDbhMinCm, classes: standTable },
     unresolvedNames,
   };
-  return stemAgbKg ? { metrics, diagnostics, stemAgbKg, stemDeadKg } : { metrics, diagnostics };
+  const result: PlotMetricsResult = stemAgbKg ? { metrics, diagnostics, stemAgbKg, stemDeadKg } : { metrics, diagnostics };
+  if (moments) result.carbonMoments = moments.build();
+  return result;
 }

@@ -21,8 +21,8 @@ const METRIC_NAMES = PLOT_METRIC_DB_COLUMNS.map(([c]) => c);
 // Built once from the constant (never from input).
 const METRIC_SELECT = METRIC_NAMES.map((c) => `m.${c}`).join(', ');
 
-// The latest visit that has metrics, per plot of one region (a visit not computed yet is skipped).
-const LATEST_VISITS = `
+// The latest visit that has metrics, per plot of one region $1 (a visit not computed yet is skipped); also read by carbon-moments.ts.
+export const LATEST_VISITS = `
   select distinct on (v.plot_id) v.id visit_id, v.plot_id, v.survey_date
     from plot_visits v
     join plots p on p.id = v.plot_id

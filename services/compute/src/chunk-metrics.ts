@@ -1,6 +1,6 @@
 import type { ComputeStemRow, ComputeVisitRow, PlotMetricsWrite } from '@stemwise/db';
 import { PLOT_METRICS } from '@stemwise/db/catalogue';
-import { computePlotMetrics, type ConfiguredRootShoot, type HeightDiameterModel, type PlotDiagnostics, type PlotMetricOptions, rootShootRelationOf, type SpeciesIndex, type StumpToDbh } from '@stemwise/core/science';
+import { computePlotMetrics, type CarbonMoments, type ConfiguredRootShoot, type HeightDiameterModel, type PlotDiagnostics, type PlotMetricOptions, rootShootRelationOf, type SpeciesIndex, type StumpToDbh } from '@stemwise/core/science';
 
 // The CPU-bound part of a plot chunk: the metrics of each visit from its stems. Pure (no I/O, no
 // packages beyond the science), so that it runs the same in a worker thread (metrics-worker.ts) as in
@@ -23,7 +23,8 @@ export interface ChunkTask {
   stumpToDbh: StumpToDbh;
 }
 
-export type VisitWrite = PlotMetricsWrite & { diagnostics: PlotDiagnostics & { heightModelHeights: number | null } };
+/** Diagnostics of a visit as stored; `carbonMoments` are the sums the carbon uncertainty of the summaries reads (docs/methods.md#carbon-uncertainty). */
+export type VisitWrite = PlotMetricsWrite & { diagnostics: PlotDiagnostics & { heightModelHeights: number | null; carbonMoments?: CarbonMoments } };
 
 /** A visit's metrics row, or why it could not be computed. */
 export type VisitOutcome = { write: VisitWrite } | { reason: string };
@@ -40,6 +41,7 @@ export function computeVisits(task: ChunkTask): VisitOutcome[] {
         standingDeadShare: task.standingDeadShare,
         reportingDbhMinCm: task.reportingDbhMinCm,
         stumpToDbh: task.stumpToDbh,
+        carbonMoments: true,
       };
       return { write: computeVisit(visit, task.stems[i], task.species, options, task.speciesVersionId) };
     } catch (err) {
@@ -77,7 +79,7 @@ function computeVisit(
     speciesVersionId,
     // In catalogue order: the order of PLOT_METRIC_DB_COLUMNS, which the upsert's columns follow.
     values: PLOT_METRICS.map((c) => metrics[c.key]),
-    diagnostics: { ...result.diagnostics, heightModelHeights: options.heightModel?.n ?? null },
+    diagnostics: { ...result.diagnostics, heightModelHeights: options.heightModel?.n ?? null, carbonMoments: result.carbonMoments },
     speciesStems: speciesStems(stems, index),
   };
 }

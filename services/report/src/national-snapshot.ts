@@ -9,6 +9,7 @@ import {
 import { cautionSettings, standTableValues, type NationalSummary, type ServiceDeps } from '@stemwise/core';
 import { renderChangeChartSvg, renderMeansChartSvg } from '@stemwise/core/charts';
 import type { Logger } from '@stemwise/platform';
+import { nationalCarbonUncertainty, withWholeInterval, type CarbonUncertaintySection } from './carbon-uncertainty';
 import { summariseNation, type NationalRegionInput } from './summary/national-summary';
 import { summaryVariables } from './summary/region-summary';
 import { changeCoverage, type ChangeCoverage, type PlotPair } from './summary/change-coverage';
@@ -32,6 +33,8 @@ export interface NationalPayload {
   readonly summary: NationalSummary;
   /** Region → its latest summary version (null: none yet) when this was assembled. */
   readonly sources: Readonly<Record<string, number | null>>;
+  /** Whole uncertainty of the above-ground carbon stock (docs/methods.md#carbon-uncertainty); null when off, absent in older snapshots. */
+  readonly carbon_uncertainty?: CarbonUncertaintySection | null;
   /** The pairs of visits behind the national estimates of change (null: no plot measured twice); absent in older snapshots. */
   readonly change?: ChangeCoverage | null;
   /** Share of the AGB from each height source and wood-density level, over every plot (absent in older snapshots). */
@@ -67,7 +70,9 @@ export async function assembleNationalSnapshot(deps: Deps, sources: Readonly<Rec
     pairs.push(...plots);
     regions.push({ region, forestAreas, plots: plots.map((p) => ({ plotId: p.plotKey, forestType: p.forestType, values: { ...p.metrics, ...p.change, ...standTableValues(p.standTable) } })) });
   }
-  const summary = summariseNation({ regions, variables: summaryVariables(regions.flatMap((r) => r.plots)), options: { samplingErrorT: samplingErrorMultiplier(config), caution: cautionSettings(config) } });
+  const estimated = summariseNation({ regions, variables: summaryVariables(regions.flatMap((r) => r.plots)), options: { samplingErrorT: samplingErrorMultiplier(config), caution: cautionSettings(config) } });
+  const carbon = await nationalCarbonUncertainty(db, config, regions);
+  const summary = { ...estimated, rows: withWholeInterval(estimated.rows, carbon) };
   dates.sort();
   let means: string | null = null;
   let change: string | null = null;
@@ -88,6 +93,7 @@ export async function assembleNationalSnapshot(deps: Deps, sources: Readonly<Rec
     summary,
     sources,
     biomass_method: biomassMethodShares(regions.flatMap((r) => r.plots)),
+    carbon_uncertainty: carbon,
     change: changeCoverage(pairs),
     charts: { means, change },
   };

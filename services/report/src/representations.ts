@@ -16,6 +16,7 @@ export function summaryJson(s: Snapshot): string {
     method: rest.method,
     summary: rest.summary,
     fits: rest.fits,
+    carbon_uncertainty: rest.carbon_uncertainty ?? null,
     ...(rest.change === undefined ? {} : { change: rest.change }),
     biomass_method: rest.biomass_method ?? null,
     plot_sizes: rest.plot_sizes ?? null,
@@ -32,5 +33,6 @@ export function summaryCsv(s: Snapshot | NationalSnapshot): string {
 /** The national snapshot as JSON (everything but the chart SVG). */
 export function nationalJson(s: NationalSnapshot): string {
   const { data, method, summary, sources, change, biomass_method } = s.payload;
-  return JSON.stringify({ region: 'national', version: s.version, created_at: s.createdAt.toISOString(), etag: s.etag, data, method, summary, sources, ...(change === undefined ? {} : { change }), biomass_method: biomass_method ?? null });
+  const carbon_uncertainty = s.payload.carbon_uncertainty ?? null;
+  return JSON.stringify({ region: 'national', version: s.version, created_at: s.createdAt.toISOString(), etag: s.etag, data, method, summary, sources, ...(change === undefined ? {} : { change }), biomass_method: biomass_method ?? null, carbon_uncertainty });
 }

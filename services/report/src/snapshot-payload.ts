@@ -1,4 +1,5 @@
 import type { RegionSummary, TestOutcome } from '@stemwise/core';
+import type { CarbonUncertaintySection } from './carbon-uncertainty';
 import type { ChangeCoverage } from './summary/change-coverage';
 import type { BiomassMethodRow } from './summary/biomass-method';
 
@@ -92,6 +93,8 @@ export interface SnapshotPayload {
   readonly method: SnapshotMethod;
   readonly summary: RegionSummary;
   readonly fits: readonly SnapshotFitRow[];
+  /** Whole uncertainty of the above-ground carbon stock (docs/methods.md#carbon-uncertainty); null when off, absent in older snapshots. */
+  readonly carbon_uncertainty?: CarbonUncertaintySection | null;
   /** The pairs of visits behind the estimates of change (null: no plot measured twice); absent in snapshots made before it. */
   readonly change?: ChangeCoverage | null;
   /** Share of the AGB from each height source and wood-density level (absent in older snapshots). */

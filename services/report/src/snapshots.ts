@@ -19,6 +19,7 @@ import { asStoredFitChart, cautionSettings, currentSpecies, IPCC_2006_CARBON_FRA
 import { isInfrastructureError, PermanentError, type Config, type Logger } from '@stemwise/platform';
 import { plotPagePath } from './plot-map';
 import { buildChangeChartSpec, buildFitChartSpec, buildGuildChartSpec, buildMeansChartSpec, chartSpecKey, regionChartPoints, renderVegaLiteSvg, type TopLevelSpec } from '@stemwise/core/charts';
+import { regionCarbonUncertainty, withWholeInterval } from './carbon-uncertainty';
 import { RegionSummaryInputError, summariseRegion, summaryVariables, type PlotMetrics } from './summary/region-summary';
 import { changeCoverage } from './summary/change-coverage';
 import { SNAPSHOT_FORMAT, type FitChart, type SnapshotFitRow, type SnapshotMethod, type SnapshotPayload } from './snapshot-payload';
@@ -120,7 +121,9 @@ export async function assembleRegionSnapshot(deps: Deps, region: string, charts:
     values: { ...p.metrics, ...p.change, ...standTableValues(p.standTable) },
     ...(p.speciesStems ? { speciesNames: Object.keys(p.speciesStems) } : {}),
   }));
-  const summary = summariseRegion({ region, plots: inputPlots, forestAreas: areas, variables: summaryVariables(inputPlots), options: { samplingErrorT: samplingErrorMultiplier(config), caution: cautionSettings(config) } });
+  const estimated = summariseRegion({ region, plots: inputPlots, forestAreas: areas, variables: summaryVariables(inputPlots), options: { samplingErrorT: samplingErrorMultiplier(config), caution: cautionSettings(config) } });
+  const carbon = await regionCarbonUncertainty(db, config, region, areas);
+  const summary = { ...estimated, rows: withWholeInterval(estimated.rows, carbon) };
 
   const fits: SnapshotFitRow[] = [];
   for (const scope of [{ kind: 'forest_type' }, { kind: 'region', region }] as const) {
@@ -147,6 +150,7 @@ export async function assembleRegionSnapshot(deps: Deps, region: string, charts:
     fits,
     biomass_method: biomassMethodShares(inputPlots),
     plot_sizes: sizes.map((z) => ({ forest_type: z.forestType, area_ha: z.areaHa, n_plots: z.plots })),
+    carbon_uncertainty: carbon,
     change: changeCoverage(plots),
     charts: { means: means.svg, guilds: guilds.svg, change: change.svg, fits: fitCharts, drawn_from: { means: means.key, guilds: guilds.key, change: change.key } },
   };

@@ -6,6 +6,7 @@ import { cautionLegend, cautions, estimatesTable, headlineCards, versionsList, v
 import { changeSection } from './change-section';
 import { poolsSection } from './pools-section';
 import { pageShell } from './shell';
+import { carbonUncertaintySection } from './carbon-uncertainty-section';
 import { reportingThresholdNote, standTableSection } from './stand-table-section';
 
 export interface NationalPageInput {
@@ -55,6 +56,7 @@ export function renderNationalPage(input: NationalPageInput): string {
   ${cautionLegend(summary.caution)}
   <h2 id="carbon-pools">Carbon pools</h2>
   ${poolsSection(summary.rows, summary.totals, input.carbonFraction) ?? html`<p class="muted">This summary was made before the carbon pools were estimated; the next recompute adds them.</p>`}
+  ${carbonUncertaintySection(s.payload.carbon_uncertainty, 'All regions together (stratified)')}
   ${means ? html`<h2>Charts</h2><figure id="means-chart">${means}<figcaption>Means per hectare with their 95 % confidence intervals: all regions together (dark) and each forest type nationally.</figcaption></figure>` : null}
   ${input.map ? html`<h2 id="where">Where the plots are</h2>${input.map}` : null}
   <h2>Estimates by forest type, nationally</h2>

@@ -5,6 +5,7 @@ import { estimate, estimateInterval, figure, isoMinute, samplingError, sharePerc
 import { html, safeSvg, type Markup } from './html';
 import { pageShell } from './shell';
 import { fitsSection } from './fits-section';
+import { carbonUncertaintySection } from './carbon-uncertainty-section';
 import { changeSection } from './change-section';
 import { changeRows } from '../summary/change-view';
 import { poolsSection } from './pools-section';
@@ -243,6 +244,7 @@ export function renderRegionPage(input: RegionPageInput): string {
   ${cautionLegend(summary.caution)}
   <h2 id="carbon-pools">Carbon pools</h2>
   ${poolsSection(summary.rows, summary.totals, method.carbon_fraction) ?? html`<p class="muted">This summary was made before the carbon pools were estimated; the next recompute adds them.</p>`}
+  ${carbonUncertaintySection(s.payload.carbon_uncertainty, 'Whole region (stratified)')}
   <h2>Charts</h2>
   ${means ? html`<figure id="means-chart">${means}<figcaption>Means per hectare with their 95 % confidence intervals: the whole region (dark) and each forest type. Wide intervals come from few plots.</figcaption></figure>` : null}
   ${guilds ? html`<figure id="guild-chart">${guilds}<figcaption>Guild composition: the mean share of live basal area per plot.</figcaption></figure>` : null}

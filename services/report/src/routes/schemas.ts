@@ -60,7 +60,56 @@ export const RegionRowSchema = z.object({
   forest_area_ha: num,
   total: num.describe('mean × forest area, for per-hectare variables with known areas'),
   caution_flag: z.enum(['none', 'few_plots', 'wide_error', 'few_plots_wide_error', 'no_error_estimate']).optional().describe('few plots or a wide sampling error (docs/exports.md); absent in summaries made before it existed'),
+  whole_se: num.optional().describe('carbon_mg_ha rows: SD of the Monte Carlo of every error source (docs/methods.md#carbon-uncertainty)'),
+  whole_ci_low: num.optional().describe('carbon_mg_ha rows: the whole interval (sampling and model errors)'),
+  whole_ci_high: num.optional(),
+  total_whole_ci_low: num.optional().describe('carbon_mg_ha rows: the whole interval of the total'),
+  total_whole_ci_high: num.optional(),
 });
+
+const SharesSchema = z.object({
+  sampling: z.number(),
+  allometry: z.number(),
+  heightResidual: z.number(),
+  woodDensity: z.number(),
+  heightParameters: z.number(),
+  rootShoot: z.number(),
+});
+
+export const CarbonUncertaintySchema = z
+  .object({
+    variable: z.literal('carbon_mg_ha'),
+    pool: z.literal('above-ground'),
+    rows: z.array(
+      z.object({
+        forest_type: z.string(),
+        n_plots: z.number().int(),
+        mean: z.number(),
+        sampling_se: z.number(),
+        sampling_ci_low: z.number(),
+        sampling_ci_high: z.number(),
+        whole_se: z.number(),
+        whole_ci_low: z.number(),
+        whole_ci_high: z.number(),
+        forest_area_ha: num,
+        total: num,
+        total_sampling_ci_low: num,
+        total_sampling_ci_high: num,
+        total_whole_ci_low: num,
+        total_whole_ci_high: num,
+        shares: SharesSchema.describe('share of each source in the sum of the sources’ variances'),
+      }),
+    ),
+    draws: z.number().int(),
+    seed: z.number().int(),
+    confidence: z.number(),
+    tree_error_scope: z.enum(['forest', 'plots']).nullable(),
+    missing: z.string().nullable(),
+    covers: z.array(z.string()),
+    not_covered: z.array(z.string()),
+  })
+  .nullable()
+  .describe('whole uncertainty of the above-ground carbon stock (docs/methods.md#carbon-uncertainty); null when STEMWISE_CARBON_DRAWS is 0 or the summary predates it');
 
 const CautionSchema = z.object({ min_plots: z.number().int(), max_sampling_error_pct: z.number() }).optional().describe('thresholds of caution_flag');
 
@@ -201,6 +250,7 @@ export const SummaryResponse = z.object({
   method: z.object({ estimator: z.string(), biomass: z.string(), carbon_fraction: z.number(), carbon: z.string(), fits: z.string() }),
   summary: RegionSummarySchema,
   fits: z.array(FitRowSchema),
+  carbon_uncertainty: CarbonUncertaintySchema,
   change: ChangeCoverageSchema.nullable().optional().describe('the pairs of visits behind the estimates of change (absent in summaries made before it was recorded)'),
 });
 

@@ -68,7 +68,7 @@ function assertPlainJson(value: unknown, path = '$'): void {
 
 describe('summariseRegion rows', () => {
   it('REGION_COLUMNS is the `export regions` column list of docs/exports.md, and every row has exactly those keys in that order', () => {
-    expect(REGION_COLUMNS).toEqual(['region', 'forest_type', 'variable', 'n_plots', 'mean', 'se', 'ci_low', 'ci_high', 'sampling_error_pct', 'forest_area_ha', 'total', 'caution_flag']);
+    expect(REGION_COLUMNS).toEqual(['region', 'forest_type', 'variable', 'n_plots', 'mean', 'se', 'ci_low', 'ci_high', 'sampling_error_pct', 'forest_area_ha', 'total', 'caution_flag', 'whole_se', 'whole_ci_low', 'whole_ci_high', 'total_whole_ci_low', 'total_whole_ci_high']);
     const s = summariseRegion(base());
     for (const r of s.rows) expect(Object.keys(r)).toEqual([...REGION_COLUMNS]);
   });

@@ -194,6 +194,12 @@ export function regionRow(region: string, forestType: string, variable: string, 
     forest_area_ha: area,
     total,
     caution_flag: cautionFlag(n, e.samplingErrorPct, caution),
+    // The whole interval of carbon_mg_ha is added by the summaries job (carbon-uncertainty.ts); empty elsewhere.
+    whole_se: null,
+    whole_ci_low: null,
+    whole_ci_high: null,
+    total_whole_ci_low: null,
+    total_whole_ci_high: null,
   };
 }
 

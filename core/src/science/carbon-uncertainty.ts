@@ -1,0 +1,467 @@
+// Whole uncertainty of carbon stocks and carbon change: Monte Carlo propagation (IPCC 2006 Guidelines,
+// Vol. 1, Ch. 3, approach 2) of the biomass models' errors together with the sampling error of the
+// stratified estimate. Method, assumptions and what is not covered: docs/methods.md#carbon-uncertainty.
+//
+// Two kinds of error, treated apart:
+//  - per tree (the allometry's residual, the height model's residual, the tree's wood density around
+//    its reference value): independent from tree to tree, so they average out over many trees. Their
+//    variance on a stratum mean is known analytically from two sums per plot (Σ w·v², Σ w²·v² by height
+//    source, v the tree's value); the Monte Carlo draws that aggregate once per stratum and iteration,
+//    never per tree;
+//  - shared by all trees (the height model's parameters of a forest type, the root-to-shoot ratio of a
+//    forest type): drawn once per iteration and forest type. A height-parameter draw changes every
+//    modelled tree's biomass nonlinearly; its effect on a plot is taken to second order from five sums
+//    per plot, Σ w·v·(ln D)^k, k = 0..4 (accuracy tested against the tree-by-tree effect).
+// The sampling error enters as a stratified draw whose marginal is the t distribution of the sampling
+// interval (Satterthwaite df), so the sampling-only part of the whole interval agrees with it.
+
+import { percentileInterval } from './bootstrap';
+import { createRng, type Rng } from './random';
+import type { RootShootRatio } from './root-shoot';
+import { stratifiedEstimate, type StratifiedOptions } from './stratified';
+
+/** Exponent of ρD²H in Chave et al. 2014 eq. 4 (AGB ∝ H^0.976 and ρ^0.976). */
+export const CHAVE_2014_EXPONENT = 0.976;
+
+/**
+ * Residual standard error of Chave et al. 2014 eq. 4 on the ln AGB scale: 0.357 (Chave et al. 2014,
+ * Global Change Biology 20:3177–3190; from memory — eq. 6a's 0.243 is the height model's, not this).
+ */
+export const CHAVE_2014_EQ4_RSE = 0.357;
+
+/**
+ * Relative standard deviation of a tree's wood density around the reference value it was given:
+ * 0.10, common practice (the order of within-species variation, from memory; no single source). A setting.
+ */
+export const DEFAULT_WOOD_DENSITY_TREE_SD = 0.1;
+
+/**
+ * Monte Carlo draws (a setting): 20 000. The Monte Carlo error of a 2.5 % or 97.5 % quantile of a normal is
+ * about sqrt(p(1 − p)/draws)/φ(1.96) ≈ 0.019 SD at 20 000 draws (0.038 SD at 5000), small beside the interval.
+ */
+export const DEFAULT_CARBON_DRAWS = 20_000;
+
+/** Where a tree's height came from: measured, the local model, or none (the no-height biomass model). */
+export type HeightSource = 'measured' | 'modelled' | 'noHeight';
+export const HEIGHT_SOURCES: readonly HeightSource[] = ['measured', 'modelled', 'noHeight'];
+const SOURCE_INDEX: Readonly<Record<HeightSource, number>> = { measured: 0, modelled: 1, noHeight: 2 };
+
+/**
+ * The few sums of one plot (or pair of visits) that the Monte Carlo needs, per hectare. `value` is the
+ * plot's figure (Mg/ha, or Mg/ha/yr for change); v is a tree's own value (Mg, or Mg/yr).
+ */
+export interface CarbonMoments {
+  /** Σ w·v over trees, the plot's figure. */
+  readonly value: number;
+  /** Σ w·v² by height source (measured, modelled, noHeight): the per-hectare density of squared tree values. */
+  readonly sq: readonly [number, number, number];
+  /** Σ w²·v² by height source: the variance of this plot's figure per unit of (e^{σ²} − 1). */
+  readonly sqPlot: readonly [number, number, number];
+  /** Σ w·v·(ln D)^k, k = 0..4, over modelled-height terms. */
+  readonly lnD: readonly [number, number, number, number, number];
+}
+
+/** One visit's part of a tree's value: its weight (stems/ha it stands for), sign or 1/years, biomass in Mg and dbh. */
+export interface MomentTerm {
+  readonly weight: number;
+  readonly coef: number;
+  readonly agbMg: number;
+  readonly dbhCm: number;
+  readonly modelled: boolean;
+}
+
+/** Builds the sums of one plot, tree by tree (a stock: one term per tree; a change: a survivor has two). */
+export class CarbonMomentsBuilder {
+  private value = 0;
+  private readonly sq: [number, number, number] = [0, 0, 0];
+  private readonly sqPlot: [number, number, number] = [0, 0, 0];
+  private readonly lnD: [number, number, number, number, number] = [0, 0, 0, 0, 0];
+
+  // u = Σ_j w_j c_j v_j (the tree's per-hectare part); Σu, Σu²/w₁, Σu², Σ_mod w c v L^k — docs/methods.md#carbon-uncertainty
+  addTree(source: HeightSource, terms: readonly MomentTerm[]): void {
+    const s = SOURCE_INDEX[source];
+    if (s === undefined) throw new RangeError(`CarbonMomentsBuilder.addTree: unknown height source ${String(source)}`);
+    if (terms.length === 0) return;
+    let u = 0;
+    for (const t of terms) {
+      if (!(t.weight > 0) || !Number.isFinite(t.weight) || !Number.isFinite(t.coef) || !(t.agbMg >= 0) || !(t.dbhCm > 0)) {
+        throw new RangeError(`CarbonMomentsBuilder.addTree: weight and dbh must be > 0, biomass >= 0 (got ${t.weight}, ${t.dbhCm}, ${t.agbMg})`);
+      }
+      const x = t.weight * t.coef * t.agbMg;
+      u += x;
+      if (t.modelled) {
+        const l = Math.log(t.dbhCm);
+        let p = x;
+        for (let k = 0; k < 5; k += 1) {
+          this.lnD[k] += p;
+          p *= l;
+        }
+      }
+    }
+    this.value += u;
+    this.sq[s] += (u * u) / terms[0].weight;
+    this.sqPlot[s] += u * u;
+  }
+
+  build(): CarbonMoments {
+    return { value: this.value, sq: [...this.sq], sqPlot: [...this.sqPlot], lnD: [...this.lnD] };
+  }
+}
+
+/** A forest type's height model as the Monte Carlo needs it: residual SE (ln H) and the covariance of (a, b, c). */
+export interface HeightModelError {
+  readonly rse: number;
+  /** 3 × 3 covariance of (a, b, c), row-major; null: parameter uncertainty unknown (not drawn). */
+  readonly covariance: readonly number[] | null;
+}
+
+export interface CarbonStratum {
+  readonly name: string;
+  /** Key of the shared models (height model, root-to-shoot ratio) this stratum's trees use. */
+  readonly forestType: string;
+  /** Forest area in ha; null when unknown. */
+  readonly size: number | null;
+  readonly plots: readonly CarbonMoments[];
+}
+
+export interface CarbonUncertaintySettings {
+  /** Monte Carlo draws (default DEFAULT_CARBON_DRAWS = 20 000; at least 100). */
+  readonly draws?: number;
+  /** Seed of the generator (same inputs and seed, same intervals). Default 1. */
+  readonly seed?: number;
+  /** Confidence of both intervals (default 0.95). */
+  readonly confidence?: number;
+  /** Carbon fraction of biomass (default 0.47, IPCC 2006 Vol. 4 Table 4.3). */
+  readonly carbonFraction?: number;
+  /** ln-scale residual SE of the biomass model with height (default CHAVE_2014_EQ4_RSE). */
+  readonly allometryRse?: number;
+  /** ln-scale residual SE of the no-height biomass models (default: the same as allometryRse; see docs). */
+  readonly allometryRseNoHeight?: number;
+  /** Relative SD of a tree's wood density around its reference value (default 0.10, common practice). */
+  readonly woodDensityTreeSd?: number;
+  /**
+   * Over which trees the per-tree errors average out: 'forest' (every tree of the stratum's forest area,
+   * the default where the area is known) or 'plots' (the measured trees only: larger, used where the
+   * area is unknown).
+   */
+  readonly treeErrorScope?: 'forest' | 'plots';
+  /** Height models by forest type; a type without one has no modelled heights. */
+  readonly heightModels?: ReadonlyMap<string, HeightModelError>;
+  /** Root-to-shoot ratio R and its SD by forest type (root-shoot.ts): given, the figure is above- plus below-ground; else above-ground only. */
+  readonly rootShoot?: ReadonlyMap<string, RootShootRatio>;
+  /** Options of the stratified estimator (df, weighting, fpc) — those of the sampling interval beside it. */
+  readonly stratified?: Omit<StratifiedOptions, 'confidence'>;
+}
+
+export const CARBON_ERROR_SOURCES = ['sampling', 'allometry', 'heightResidual', 'woodDensity', 'heightParameters', 'rootShoot'] as const;
+export type CarbonErrorSource = (typeof CARBON_ERROR_SOURCES)[number];
+
+export interface CarbonInterval {
+  readonly low: number;
+  readonly high: number;
+}
+
+export interface CarbonUncertainty {
+  readonly n: number;
+  /** Per-hectare estimate (Mg C/ha, or Mg C/ha/yr): carbon fraction × (1 + R) × stratified mean. */
+  readonly mean: number;
+  /** Total over the forest area (Mg C, or Mg C/yr); null unless every stratum's area is known. */
+  readonly total: number | null;
+  readonly area: number | null;
+  /** The stratified estimator's t interval and SE (sampling error only). */
+  readonly samplingSe: number;
+  readonly sampling: CarbonInterval;
+  /** Percentile interval of the Monte Carlo draws (every source) and their SD. */
+  readonly wholeSe: number;
+  readonly whole: CarbonInterval;
+  /** Mean of the draws (differs from `mean` by Monte Carlo error and the second-order height-parameter term). */
+  readonly drawsMean: number;
+  /** Share of each source's variance in the sum of the sources' variances (0..1, summing to 1). */
+  readonly shares: Readonly<Record<CarbonErrorSource, number>>;
+  readonly draws: number;
+  readonly seed: number;
+  readonly confidence: number;
+  /** How the per-tree errors were scoped (see treeErrorScope). */
+  readonly treeErrorScope: 'forest' | 'plots';
+}
+
+function fail(message: string): never {
+  throw new RangeError(`carbonUncertainty: ${message}`);
+}
+
+// Standard normal by Box–Muller (Box & Muller 1958, Ann. Math. Stat. 29:610–611), both values used.
+export function normalSampler(rng: Rng): () => number {
+  let spare: number | null = null;
+  return () => {
+    if (spare !== null) {
+      const s = spare;
+      spare = null;
+      return s;
+    }
+    let u = rng.next();
+    while (u === 0) u = rng.next();
+    const r = Math.sqrt(-2 * Math.log(u));
+    const a = 2 * Math.PI * rng.next();
+    spare = r * Math.sin(a);
+    return r * Math.cos(a);
+  };
+}
+
+// Gamma(shape k, scale 1) by Marsaglia & Tsang 2000 (ACM TOMS 26:363–372), k < 1 via G(k+1)·U^(1/k)
+export function gammaDraw(rng: Rng, normal: () => number, shape: number): number {
+  if (!(shape > 0) || !Number.isFinite(shape)) throw new RangeError(`gammaDraw: shape must be > 0 (got ${shape})`);
+  if (shape < 1) {
+    let u = rng.next();
+    while (u === 0) u = rng.next();
+    return gammaDraw(rng, normal, shape + 1) * Math.pow(u, 1 / shape);
+  }
+  const d = shape - 1 / 3;
+  const c = 1 / Math.sqrt(9 * d);
+  for (;;) {
+    let x: number;
+    let v: number;
+    do {
+      x = normal();
+      v = 1 + c * x;
+    } while (v <= 0);
+    v = v * v * v;
+    const u = rng.next();
+    if (u < 1 - 0.0331 * x * x * x * x) return d * v;
+    if (u > 0 && Math.log(u) < 0.5 * x * x + d * (1 - v + Math.log(v))) return d * v;
+  }
+}
+
+// Lower Cholesky factor L (LLᵀ = Σ) of a 3 × 3 covariance, row-major; semidefinite pivots become 0 (Golub & Van Loan, Matrix Computations, Cholesky algorithm)
+export function cholesky3(cov: readonly number[], fn: string): number[] {
+  if (cov.length !== 9 || cov.some((x) => !Number.isFinite(x))) throw new RangeError(`${fn}: a covariance must be 9 finite numbers`);
+  const l = [0, 0, 0, 0, 0, 0, 0, 0, 0];
+  for (let i = 0; i < 3; i += 1) {
+    for (let j = 0; j <= i; j += 1) {
+      let s = cov[i * 3 + j];
+      for (let k = 0; k < j; k += 1) s -= l[i * 3 + k] * l[j * 3 + k];
+      if (i === j) {
+        if (s < -1e-12 * Math.max(1, Math.abs(cov[i * 3 + i]))) throw new RangeError(`${fn}: the covariance is not positive semidefinite`);
+        l[i * 3 + i] = s > 0 ? Math.sqrt(s) : 0;
+      } else l[i * 3 + j] = l[j * 3 + j] > 0 ? s / l[j * 3 + j] : 0;
+    }
+  }
+  return l;
+}
+
+// Σ_i w v_i (e^{β x_i} − 1), x = δa + δb L + δc L², to second order: β Σ wvx + β²/2 Σ wvx², from Σ w v L^k (k = 0..4)
+export function heightShiftEffect(lnD: ArrayLike<number>, delta: ArrayLike<number>, beta: number = CHAVE_2014_EXPONENT): number {
+  const a = delta[0];
+  const b = delta[1];
+  const c = delta[2];
+  const first = a * lnD[0] + b * lnD[1] + c * lnD[2];
+  const second = a * a * lnD[0] + 2 * a * b * lnD[1] + (b * b + 2 * a * c) * lnD[2] + 2 * b * c * lnD[3] + c * c * lnD[4];
+  return beta * first + 0.5 * beta * beta * second;
+}
+
+interface StratumPlan {
+  readonly weight: number;
+  readonly mean: number;
+  readonly se: number;
+  readonly forestType: string;
+  /** SD of the stratum mean from each per-tree source: allometry, height residual, wood density. */
+  readonly treeSd: readonly [number, number, number];
+  readonly lnD: readonly number[];
+}
+
+// Var of a stratum mean from per-tree errors: Σ_s (e^{σ_s²} − 1) · (mean Σ w v² / A_h  or  Σ_plots Σ w² v² / n_h²), split by source in proportion to e^{σ²} − 1
+function treeErrorSds(
+  plots: readonly CarbonMoments[],
+  area: number | null,
+  scope: 'forest' | 'plots',
+  logVars: readonly (readonly [number, number, number])[],
+): [number, number, number] {
+  const n = plots.length;
+  const out: [number, number, number] = [0, 0, 0];
+  for (let s = 0; s < 3; s += 1) {
+    let sum = 0;
+    for (const p of plots) sum += scope === 'forest' ? p.sq[s] : p.sqPlot[s];
+    const density = scope === 'forest' ? sum / n / (area as number) : sum / (n * n);
+    const parts = logVars[s];
+    const whole = Math.expm1(parts[0] + parts[1] + parts[2]);
+    const sumParts = Math.expm1(parts[0]) + Math.expm1(parts[1]) + Math.expm1(parts[2]);
+    for (let k = 0; k < 3; k += 1) if (sumParts > 0) out[k] += (density * whole * Math.expm1(parts[k])) / sumParts;
+  }
+  return [Math.sqrt(out[0]), Math.sqrt(out[1]), Math.sqrt(out[2])];
+}
+
+// Monte Carlo (IPCC 2006 Vol. 1 Ch. 3, approach 2) of CF·(1+R)·Σ W_h ȳ_h with sampling, per-tree and shared model errors — docs/methods.md#carbon-uncertainty
+export function carbonUncertainty(strata: readonly CarbonStratum[], settings: CarbonUncertaintySettings = {}): CarbonUncertainty | null {
+  const draws = settings.draws ?? DEFAULT_CARBON_DRAWS;
+  const seed = settings.seed ?? 1;
+  const confidence = settings.confidence ?? 0.95;
+  const cf = settings.carbonFraction ?? 0.47;
+  const rseA = settings.allometryRse ?? CHAVE_2014_EQ4_RSE;
+  const rseA0 = settings.allometryRseNoHeight ?? rseA;
+  const wdSd = settings.woodDensityTreeSd ?? DEFAULT_WOOD_DENSITY_TREE_SD;
+  if (!Number.isInteger(draws) || draws < 100) fail(`draws must be an integer >= 100 (got ${draws})`);
+  if (!Number.isFinite(seed)) fail(`seed must be a finite number (got ${seed})`);
+  if (!(confidence > 0 && confidence < 1)) fail(`confidence must be in (0, 1) (got ${confidence})`);
+  if (!(cf > 0 && cf <= 1)) fail(`carbon fraction must be in (0, 1] (got ${cf})`);
+  for (const [name, v] of [['allometryRse', rseA], ['allometryRseNoHeight', rseA0], ['woodDensityTreeSd', wdSd]] as const) {
+    if (!(v >= 0) || !Number.isFinite(v)) fail(`${name} must be finite and >= 0 (got ${v})`);
+  }
+  for (const [t, r] of settings.rootShoot ?? []) {
+    if (!(r.ratio >= 0) || !(r.sd >= 0) || !Number.isFinite(r.ratio) || !Number.isFinite(r.sd)) fail(`root-to-shoot ratio of '${t}' must have ratio and sd >= 0`);
+  }
+  const used = strata.filter((s) => s.plots.length > 0);
+  if (used.length === 0) return null;
+  const scope = settings.treeErrorScope ?? (used.every((s) => s.size !== null && s.size > 0) ? 'forest' : 'plots');
+  if (scope === 'forest' && used.some((s) => !(s.size !== null && s.size > 0))) fail("treeErrorScope 'forest' needs every stratum's forest area");
+
+  // Per-tree log variances by height source: (allometry, height residual, wood density).
+  const rootShoot = settings.rootShoot ?? new Map<string, RootShootRatio>();
+  const heightModels = settings.heightModels ?? new Map<string, HeightModelError>();
+  // The sampling interval is the stratified estimator's on the carbon figures themselves, CF·(1 + R̄)·value.
+  const factorOf = (forestType: string): number => cf * (1 + (rootShoot.get(forestType)?.ratio ?? 0));
+  const est = stratifiedEstimate(
+    used.map((s) => ({ name: s.name, size: s.size, values: s.plots.map((p) => factorOf(s.forestType) * p.value) })),
+    { ...settings.stratified, confidence },
+  );
+  if (est.mean === null || est.se === null || est.df === null || est.ciLow === null || est.ciHigh === null) return null;
+  const plans: StratumPlan[] = used.map((s, h) => {
+    const hm = heightModels.get(s.forestType);
+    const bw = CHAVE_2014_EXPONENT * wdSd;
+    const logVars: [number, number, number][] = [
+      [rseA * rseA, 0, bw * bw],
+      [rseA * rseA, hm ? (CHAVE_2014_EXPONENT * hm.rse) ** 2 : 0, bw * bw],
+      [rseA0 * rseA0, 0, wdSd * wdSd], // the no-height models are linear in ρ
+    ];
+    const st = est.strata[h];
+    const f = factorOf(s.forestType);
+    return {
+      weight: st.weight as number,
+      mean: (st.mean as number) / f,
+      se: (st.se ?? 0) / f,
+      forestType: s.forestType,
+      treeSd: treeErrorSds(s.plots, s.size, scope, logVars),
+      lnD: [0, 1, 2, 3, 4].map((k) => s.plots.reduce((acc, p) => acc + p.lnD[k], 0) / s.plots.length),
+    };
+  });
+
+  // Forest types in a fixed (sorted) order, so the stream of draws does not depend on the input order.
+  const types = [...new Set(plans.map((p) => p.forestType))].sort();
+  const typeIndex = new Map(types.map((t, i) => [t, i]));
+  const chol = types.map((t) => {
+    const cov = heightModels.get(t)?.covariance ?? null;
+    return cov === null ? null : cholesky3(cov, 'carbonUncertainty');
+  });
+  const rMean = types.map((t) => rootShoot.get(t)?.ratio ?? 0);
+  const rSd = types.map((t) => rootShoot.get(t)?.sd ?? 0);
+
+  // Everything a draw needs is linear in the strata of one forest type (they share R and δ), so the
+  // strata are summed per forest type first and a draw costs a few normals per forest type:
+  // sampling Σ W_h SE_h z_h is one normal of SD sqrt(Σ W_h² SE_h²), the per-tree errors likewise, and the
+  // height-parameter effect of Σ W_h·(sums of ln D) is the sum of the strata's effects.
+  const T = types.length;
+  const mean = new Float64Array(T);
+  const samplingSd = new Float64Array(T);
+  const treeVarBySource = [new Float64Array(T), new Float64Array(T), new Float64Array(T)];
+  const lnDSum = types.map(() => new Float64Array(5));
+  for (const p of plans) {
+    const t = typeIndex.get(p.forestType) as number;
+    mean[t] += p.weight * p.mean;
+    samplingSd[t] += (p.weight * p.se) ** 2;
+    for (let k = 0; k < 3; k += 1) treeVarBySource[k][t] += (p.weight * p.treeSd[k]) ** 2;
+    for (let k = 0; k < 5; k += 1) lnDSum[t][k] += p.weight * p.lnD[k];
+  }
+  for (let t = 0; t < T; t += 1) samplingSd[t] = Math.sqrt(samplingSd[t]);
+  const treeVar = Float64Array.from(types, (_, t) => treeVarBySource[0][t] + treeVarBySource[1][t] + treeVarBySource[2][t]);
+
+  const rng = createRng(seed);
+  const normal = normalSampler(rng);
+  const df = est.df;
+  const totalDraws = new Float64Array(draws);
+  // Parts of each draw (the others at their centre): sampling, per-tree errors together, height parameters, R.
+  const parts = [new Float64Array(draws), new Float64Array(draws), new Float64Array(draws), new Float64Array(draws)];
+  const delta = new Float64Array(3);
+  for (let i = 0; i < draws; i += 1) {
+    // One scale for every stratum's sampling draw: the stratified sum is then t with df degrees of freedom.
+    const tScale = Math.sqrt(df / (2 * gammaDraw(rng, normal, df / 2)));
+    let total = 0;
+    let cSampling = 0;
+    let cTree = 0;
+    let cHeight = 0;
+    let cRoot = 0;
+    for (let t = 0; t < T; t += 1) {
+      const base = cf * (1 + rMean[t]);
+      let factor = base;
+      if (rSd[t] > 0) {
+        const r = rMean[t] + rSd[t] * normal();
+        factor = cf * (1 + (r > 0 ? r : 0)); // a ratio below 0 has no meaning: truncated at 0
+      }
+      let heightParameters = 0;
+      const l = chol[t];
+      if (l !== null) {
+        const z0 = normal();
+        const z1 = normal();
+        const z2 = normal();
+        delta[0] = l[0] * z0;
+        delta[1] = l[3] * z0 + l[4] * z1;
+        delta[2] = l[6] * z0 + l[7] * z1 + l[8] * z2;
+        heightParameters = heightShiftEffect(lnDSum[t], delta);
+      }
+      const sampling = samplingSd[t] * normal() * tScale;
+      const tree = treeVar[t] > 0 ? Math.sqrt(treeVar[t]) * normal() : 0;
+      total += factor * (mean[t] + sampling + tree + heightParameters);
+      cSampling += base * sampling;
+      cTree += base * tree;
+      cHeight += base * heightParameters;
+      cRoot += (factor - base) * mean[t];
+    }
+    totalDraws[i] = total;
+    parts[0][i] = cSampling;
+    parts[1][i] = cTree;
+    parts[2][i] = cHeight;
+    parts[3][i] = cRoot;
+  }
+
+  const variance = (x: Float64Array): number => {
+    let m = 0;
+    for (const v of x) m += v;
+    m /= x.length;
+    let s = 0;
+    for (const v of x) s += (v - m) * (v - m);
+    return s / (x.length - 1);
+  };
+  // The per-tree part is one normal per forest type; its variance is split among its three sources by
+  // their known variances Σ_t (CF (1 + R̄_t))² Σ_h W_h² sd_{h,k}².
+  const [vSampling, vTree, vHeight, vRoot] = parts.map(variance);
+  const sourceVar = [0, 1, 2].map((k) => types.reduce((acc, _, t) => acc + (cf * (1 + rMean[t])) ** 2 * treeVarBySource[k][t], 0));
+  const sourceVarSum = sourceVar[0] + sourceVar[1] + sourceVar[2];
+  const split = (k: number): number => (sourceVarSum > 0 ? (vTree * sourceVar[k]) / sourceVarSum : 0);
+  const vars: Record<CarbonErrorSource, number> = { sampling: vSampling, allometry: split(0), heightResidual: split(1), woodDensity: split(2), heightParameters: vHeight, rootShoot: vRoot };
+  const sumVars = vSampling + vTree + vHeight + vRoot;
+  const shares = Object.fromEntries(CARBON_ERROR_SOURCES.map((k) => [k, sumVars > 0 ? vars[k] / sumVars : 0])) as Record<CarbonErrorSource, number>;
+  const interval = percentileInterval(totalDraws, 1 - confidence);
+  let drawsMean = 0;
+  for (const v of totalDraws) drawsMean += v;
+  drawsMean /= draws;
+
+  const area = est.size;
+  return {
+    n: est.n,
+    mean: est.mean,
+    total: area === null ? null : est.mean * area,
+    area,
+    samplingSe: est.se,
+    sampling: { low: est.ciLow, high: est.ciHigh },
+    wholeSe: Math.sqrt(variance(totalDraws)),
+    whole: { low: interval.low, high: interval.high },
+    drawsMean,
+    shares,
+    draws,
+    seed,
+    confidence,
+    treeErrorScope: scope,
+  };
+}
+
+/** The interval of a total: the per-hectare interval times the forest area. */
+export function scaleInterval(i: CarbonInterval, area: number): CarbonInterval {
+  return { low: i.low * area, high: i.high * area };
+}

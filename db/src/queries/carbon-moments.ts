@@ -1,0 +1,24 @@
+import type { plots, plotVisits } from '../schema/plots';
+import type { Queryable } from '../connection';
+import { LATEST_VISITS } from './summaries';
+
+/** A plot's latest visit with the sums its carbon uncertainty needs (null: computed before they were kept). */
+export interface PlotCarbonMomentsRow extends Pick<typeof plots.$inferSelect, 'plotKey' | 'forestType'>, Pick<typeof plotVisits.$inferSelect, 'areaHa'> {
+  /** The `carbonMoments` of the visit's diagnostics (core's CarbonMoments), as stored. */
+  moments: unknown;
+}
+
+/** The carbon-uncertainty sums of the latest computed visit of each plot of a region that has a carbon figure (docs/methods.md#carbon-uncertainty). */
+export async function listRegionCarbonMoments(db: Queryable, region: string): Promise<PlotCarbonMomentsRow[]> {
+  return db.query<PlotCarbonMomentsRow>(
+    `with latest as (${LATEST_VISITS})
+     select p.plot_key "plotKey", p.forest_type "forestType", v.area_ha "areaHa", m.diagnostics->'carbonMoments' moments
+       from latest l
+       join plots p on p.id = l.plot_id
+       join plot_visits v on v.id = l.visit_id
+       join plot_metrics m on m.visit_id = l.visit_id
+      where m.carbon_mg_ha is not null
+      order by p.plot_key collate "C"`,
+    [region],
+  );
+}

@@ -1,0 +1,43 @@
+import { figure, estimate, estimateInterval, standardError } from './figures';
+import { html, type Markup } from './html';
+import type { CarbonUncertaintySection } from '../carbon-uncertainty';
+
+// The section "Carbon stock: the whole uncertainty" of the region and national pages: the sampling-only
+// and the whole interval side by side, the share of each source, and what the intervals do and do not
+// cover (docs/methods.md#carbon-uncertainty).
+
+const SOURCE_NAMES = {
+  sampling: 'sampling (plots)',
+  allometry: 'biomass model, tree by tree',
+  heightResidual: 'height model, tree by tree',
+  woodDensity: 'wood density, tree by tree',
+  heightParameters: 'height model parameters (shared)',
+  rootShoot: 'root-to-shoot ratio (shared)',
+} as const;
+
+const pct = (x: number): string => (x < 0.0005 ? '< 0.1 %' : `${(100 * x).toFixed(1)} %`);
+
+/** The section, or null for a summary made before it existed or with the setting off. */
+export function carbonUncertaintySection(section: CarbonUncertaintySection | null | undefined, whole: string): Markup | null {
+  if (!section) return null;
+  const head = html`<h2 id="carbon-uncertainty">Carbon stock: the whole uncertainty</h2>`;
+  if (section.missing !== null) return html`${head}<p class="muted">Not available: ${section.missing}</p>`;
+  const name = (t: string): string => (t === 'all' ? whole : t);
+  const sources = Object.keys(SOURCE_NAMES) as (keyof typeof SOURCE_NAMES)[];
+  const used = sources.filter((k) => section.rows.some((r) => r.shares[k] > 0));
+  return html`${head}
+<p class="muted">Above-ground carbon of live trees (Mg C/ha; totals in Mg C). Beside the sampling interval, the whole interval adds the error of the biomass and height models and of wood density, by a Monte Carlo of ${section.draws} draws (IPCC 2006 Guidelines, Vol. 1, Ch. 3, approach 2; seed ${section.seed}, so the same data give the same interval).</p>
+<table id="carbon-whole"><thead><tr><th>Stratum</th><th class="num">Plots</th><th class="num">Mean</th><th class="num">95 % CI, sampling only</th><th class="num">95 % CI, whole</th><th class="num">Total</th><th class="num">Total, sampling only</th><th class="num">Total, whole</th></tr></thead><tbody>${section.rows.map(
+    (r) => html`<tr class="${r.forest_type === 'all' ? 'whole' : ''}"><td>${name(r.forest_type)}</td><td class="num">${r.n_plots}</td><td class="num">${estimate(r.mean, r.sampling_se)}</td>
+<td class="num">${estimateInterval(r.sampling_ci_low, r.sampling_ci_high, r.sampling_se)}</td><td class="num">${estimateInterval(r.whole_ci_low, r.whole_ci_high, r.whole_se)} <span class="muted">(SE ${standardError(r.whole_se)})</span></td>
+<td class="num">${r.total === null ? '–' : figure(r.total)}</td><td class="num">${r.total_sampling_ci_low === null ? '–' : `${figure(r.total_sampling_ci_low)} – ${figure(r.total_sampling_ci_high)}`}</td><td class="num">${r.total_whole_ci_low === null ? '–' : `${figure(r.total_whole_ci_low)} – ${figure(r.total_whole_ci_high)}`}</td></tr>`,
+  )}</tbody></table>
+<table id="carbon-shares"><thead><tr><th>Stratum</th>${used.map((k) => html`<th class="num">${SOURCE_NAMES[k]}</th>`)}</tr></thead><tbody>${section.rows.map(
+    (r) => html`<tr class="${r.forest_type === 'all' ? 'whole' : ''}"><td>${name(r.forest_type)}</td>${used.map((k) => html`<td class="num">${pct(r.shares[k])}</td>`)}</tr>`,
+  )}</tbody></table>
+<p class="muted">Share of each source in the variance of the estimate. Errors of single trees average out over the ${section.tree_error_scope === 'forest' ? 'trees of the whole forest area' : 'measured trees'}; errors shared by every tree of a forest type do not.</p>
+<section class="caution" aria-label="What the intervals cover">
+  <p>The whole interval covers: ${section.covers.join('; ')}.</p>
+  <p>It does not cover: ${section.not_covered.join('; ')}. The true uncertainty is therefore larger. Defer to national methods for greenhouse-gas reporting.</p>
+</section>`;
+}

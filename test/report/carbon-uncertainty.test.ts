@@ -1,0 +1,108 @@
+import fs from 'node:fs';
+import os from 'node:os';
+import path from 'node:path';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { getNationalSnapshot, getSummarySnapshot, markStale } from '@stemwise/db';
+import type { RegionRow, ServiceDeps } from '@stemwise/core';
+import { InProcessQueue } from '@stemwise/platform';
+import { createProcessors, listRegionExportRows, writeRegionPages, type NationalPayload, type SnapshotPayload } from '@stemwise/report';
+import { testLogger, useServices, type TestServices } from '../support/services';
+import { jobContext, seedRun } from './fixture';
+import { seedScenario } from './seed-scenario';
+
+// The whole carbon uncertainty in the summaries job (docs/methods.md#carbon-uncertainty): plots whose
+// metrics kept no sums get a note instead of an interval; with sums, the region and national summaries
+// carry the section, the carbon_mg_ha rows carry the whole interval, its sampling interval is the
+// summary's own (two code paths, one estimator), the same data give the same version, and the page says
+// what the intervals do not cover.
+
+let s: TestServices;
+let deps: ServiceDeps;
+const out = fs.mkdtempSync(path.join(os.tmpdir(), 'stemwise-carbon-'));
+
+async function runSummaries(): Promise<void> {
+  await createProcessors(deps)['report.summaries']!({ runId: await seedRun(s.db) }, jobContext(testLogger()));
+}
+const region = async (name: string): Promise<{ version: number; payload: SnapshotPayload }> => {
+  const snap = await getSummarySnapshot(s.db, name);
+  if (!snap) throw new Error(`no snapshot of ${name}`);
+  return { version: snap.version, payload: snap.payload as SnapshotPayload };
+};
+const carbonRow = (rows: readonly RegionRow[], forestType: string): RegionRow => rows.find((r) => r.variable === 'carbon_mg_ha' && r.forest_type === forestType) as RegionRow;
+
+describe('carbon uncertainty in the summaries', () => {
+  beforeAll(async () => {
+    s = await useServices({ STEMWISE_CARBON_DRAWS: '2000' });
+    deps = { config: s.config, db: s.db, log: testLogger(), queue: new InProcessQueue(testLogger()) };
+    await seedScenario(s.db);
+    await markStale(s.db, 'summary', ['Northvale', 'Southmere']);
+  });
+  afterAll(async () => {
+    await s?.cleanup();
+    fs.rmSync(out, { recursive: true, force: true });
+  });
+
+  it('says why there is no whole interval when the plots kept no sums', async () => {
+    await runSummaries();
+    const { payload } = await region('Northvale');
+    expect(payload.carbon_uncertainty?.rows).toEqual([]);
+    expect(payload.carbon_uncertainty?.missing).toMatch(/5 plot\(s\) were computed before .*recompute --all/);
+    expect(carbonRow(payload.summary.rows, 'all').whole_ci_low).toBeNull();
+  });
+
+  it('with sums: the section, the whole interval on the carbon rows, the summary’s own sampling interval', async () => {
+    // Sums as the metrics stage keeps them: the plot's AGB (carbon / 0.47), and per-tree sums of a
+    // plot of 0.1 ha whose measured-height trees weigh 10 stems/ha each.
+    await s.db.query(
+      `update plot_metrics m set diagnostics = jsonb_build_object('carbonMoments', jsonb_build_object(
+         'value', m.carbon_mg_ha / 0.47, 'sq', jsonb_build_array(m.carbon_mg_ha / 0.47 * 0.8, 0, 0),
+         'sqPlot', jsonb_build_array(m.carbon_mg_ha / 0.47 * 8, 0, 0), 'lnD', jsonb_build_array(0, 0, 0, 0, 0)))
+        where m.carbon_mg_ha is not null`,
+    );
+    await markStale(s.db, 'summary', ['Northvale', 'Southmere']);
+    await runSummaries();
+    const { version, payload } = await region('Northvale');
+    const section = payload.carbon_uncertainty!;
+    expect(section.missing).toBeNull();
+    expect(section.tree_error_scope).toBe('forest');
+    expect(section.rows.map((r) => r.forest_type)).toEqual(['all', 'dry', 'wet']);
+    const row = carbonRow(payload.summary.rows, 'all');
+    const whole = section.rows[0];
+    expect(whole.mean).toBeCloseTo(row.mean as number, 9);
+    expect(whole.sampling_ci_low).toBeCloseTo(row.ci_low as number, 9);
+    expect(whole.sampling_ci_high).toBeCloseTo(row.ci_high as number, 9);
+    expect(row.whole_ci_low).toBe(whole.whole_ci_low);
+    expect(row.total_whole_ci_high).toBe(whole.total_whole_ci_high);
+    expect(whole.whole_ci_low).toBeLessThan(row.mean as number);
+    expect(whole.whole_ci_high).toBeGreaterThan(row.mean as number);
+    expect(Object.values(whole.shares).reduce((a, b) => a + b, 0)).toBeCloseTo(1, 12);
+    // Southmere has no forest areas: per-tree errors over its measured trees only, no totals
+    const south = (await region('Southmere')).payload.carbon_uncertainty!;
+    expect(south.tree_error_scope).toBe('plots');
+    expect(south.rows[0].total).toBeNull();
+    // national rows too, and export regions carries the columns
+    const national = (await getNationalSnapshot(s.db))!.payload as NationalPayload;
+    expect(national.carbon_uncertainty?.rows[0].forest_type).toBe('all');
+    expect(carbonRow(national.summary.rows, 'all').whole_ci_high).toBe(national.carbon_uncertainty?.rows[0].whole_ci_high);
+    const exported = await listRegionExportRows(s.db, 'Northvale');
+    expect(carbonRow(exported, 'all').whole_se).toBe(whole.whole_se);
+    expect(carbonRow(exported, 'all').whole_se).toBeGreaterThan(0);
+    expect(exported.find((r) => r.variable === 'basal_area_m2_ha')?.whole_se).toBeNull();
+
+    // Seeded: the same data again give the same content, so no new version
+    await markStale(s.db, 'summary', ['Northvale']);
+    await runSummaries();
+    expect((await region('Northvale')).version).toBe(version);
+  });
+
+  it('the region and national pages show both intervals and what they do not cover', async () => {
+    const written = await writeRegionPages(deps, out);
+    const page = fs.readFileSync(written.regions.find((r) => r.region === 'Northvale')!.page, 'utf8');
+    expect(page).toContain('id="carbon-uncertainty"');
+    expect(page).toMatch(/95 % CI, sampling only[^]*95 % CI, whole/);
+    expect(page).toContain('field measurement error');
+    expect(page).toContain('forest-area map');
+    const national = fs.readFileSync(written.national as string, 'utf8');
+    expect(national).toContain('id="carbon-shares"');
+  });
+});
