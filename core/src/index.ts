@@ -16,6 +16,7 @@ export * from './species/species-cache';
 export * from './region-summary/types';
 export * from './region-summary/variables';
 export * from './region-summary/caution-flag';
+export * from './region-summary/stand-table';
 export * from './intake/rules/rule';
 export * from './intake/rules/catalogue';
 export * from './intake/rules/structure';

@@ -8,13 +8,13 @@ const s = (dbhCm: number, status: IndexStem['status'], extra: Partial<IndexStem>
   dbhCm, status, stumpCause: status === 'stump' ? 'logged' : null, fireDamage: 0, inSubplot: false, ...extra,
 });
 
-// A plot worked by hand (computed): live 30 cm (fire 2) and 20 cm (fire 0), a logged stump of 40 cm;
-// a natural stump, a dead stem and a subplot stem must not count. Basal areas go as D², so
-// f = 40² / (30² + 20² + 40²) = 1600 / 2900; w̄ = (900·2 + 400·0) / 1300.
+// A plot worked by hand (computed): live 30 cm (fire 2) and 20 cm (fire 0), a logged stump of 50 cm cut
+// surface (DBH 0.8 · 50 = 40 cm); a natural stump, a dead stem and a subplot stem must not count. Basal
+// areas go as D², so f = 40² / (30² + 20² + 40²) = 1600 / 2900; w̄ = (900·2 + 400·0) / 1300.
 const plot: IndexStem[] = [
   s(30, 'live', { fireDamage: 2 }),
   s(20, 'live'),
-  s(40, 'stump'),
+  s(50, 'stump'),
   s(50, 'stump', { stumpCause: 'natural' }),
   s(35, 'dead', { fireDamage: 3 }),
   s(8, 'live', { inSubplot: true, fireDamage: 3 }),

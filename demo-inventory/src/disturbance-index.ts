@@ -11,6 +11,13 @@ export interface IndexStem {
   readonly inSubplot: boolean;
 }
 
+/**
+ * DBH = this × the diameter of a stump's cut surface: the pipeline's default stump-to-DBH relation
+ * (docs/methods.md#stump-diameter-to-dbh, a = 0, b = 0.8, common practice). Stumps are recorded at their
+ * cut surface, as crews measure them.
+ */
+export const STUMP_DBH_RATIO = 0.8;
+
 /** Basal area at which logging counts as total (removed share 0.5 → score 1), a tool default. */
 export const LOGGING_SATURATION_FRAC = 0.5;
 
@@ -21,14 +28,14 @@ export function basalAreaM2(dbhCm: number): number {
   return Math.PI * r * r;
 }
 
-// f = BA(logged stumps) / (BA(live) + BA(logged stumps)), main plot only (project definition, docs/methods.md#removed-basal-area-fraction); null when both are 0.
+// f = BA(logged stumps at DBH = 0.8 × stump diameter) / (BA(live) + BA(logged stumps)), main plot only (project definition, docs/methods.md#removed-basal-area-fraction); null when both are 0.
 export function loggingRemovedBaFrac(stems: readonly IndexStem[]): number | null {
   let live = 0;
   let logged = 0;
   for (const s of stems) {
     if (s.inSubplot) continue;
     if (s.status === 'live') live += basalAreaM2(s.dbhCm);
-    else if (s.status === 'stump' && s.stumpCause === 'logged') logged += basalAreaM2(s.dbhCm);
+    else if (s.status === 'stump' && s.stumpCause === 'logged') logged += basalAreaM2(STUMP_DBH_RATIO * s.dbhCm);
   }
   return live + logged > 0 ? logged / (live + logged) : null;
 }

@@ -135,7 +135,8 @@ beforeAll(async () => {
     const counts = new Map<string, number>();
     for (const t of stemsOf.get(p.plot_id) ?? []) {
       if (t.in_subplot === '1') continue;
-      if (t.status === 'stump' && t.stump_cause === 'logged') logged += ba(t.dbh_cm);
+      // A stump's recorded diameter is its cut surface: DBH = 0.8 × it (the default of docs/methods.md#stump-diameter-to-dbh).
+      if (t.status === 'stump' && t.stump_cause === 'logged') logged += ba(String(0.8 * Number(t.dbh_cm)));
       if (t.status !== 'live') continue;
       live += ba(t.dbh_cm);
       fireSum += ba(t.dbh_cm) * Number(t.fire_damage);

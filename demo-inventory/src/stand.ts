@@ -2,7 +2,7 @@
 // stems, stumps, small stems on the subplot, fire damage and heights — all shaped by the plot's
 // latent disturbance so that the disturbance index the pipeline computes follows it.
 
-import { basalAreaM2, LOGGING_SATURATION_FRAC, type IndexStem } from './disturbance-index';
+import { basalAreaM2, LOGGING_SATURATION_FRAC, STUMP_DBH_RATIO, type IndexStem } from './disturbance-index';
 import type { Rng } from './random';
 import type { ForestTypeProfile } from './scenario';
 
@@ -99,7 +99,9 @@ function addLoggedStumps(stems: StandStem[], targetBa: number, rng: Rng): void {
     const g = basalAreaM2(dbh);
     if (sum + g - targetBa > targetBa - sum) break;
     sum += g;
-    stems.push(stem(dbh, 'stump', 'logged', false));
+    // The felled tree had this DBH; the crew records the wider cut surface of its stump (to 0.1 cm),
+    // which the pipeline converts back (docs/methods.md#stump-diameter-to-dbh).
+    stems.push(stem(Math.round((dbh / STUMP_DBH_RATIO) * 10) / 10, 'stump', 'logged', false));
   }
 }
 

@@ -26,6 +26,11 @@ const envSchema = z.object({
     .string()
     .regex(/^[A-Za-z0-9_.-]+:(dry|moist|wet)(,[A-Za-z0-9_.-]+:(dry|moist|wet))*$/, 'a list like wet:wet,moist:moist,dry:dry (code:climate)')
     .default('wet:wet,moist:moist,dry:dry'),
+  STEMWISE_ROOT_SHOOT: z
+    .string()
+    .regex(/^[A-Za-z0-9_.-]+:[a-z0-9_]+(,[A-Za-z0-9_.-]+:[a-z0-9_]+)*$/, 'a list like moist:mokany_2006,dry:tropical_dry (forest_type:relation)')
+    .optional(),
+  STEMWISE_STANDING_DEAD_SHARE: num().pipe(z.number().gt(0).max(1)).default(0.7),
   STEMWISE_COMPUTE_CONCURRENCY: intIn(1, 64).default(2),
   STEMWISE_COMPUTE_THREADS: intIn(0, 64).default(0),
   STEMWISE_INGEST_CONCURRENCY: intIn(1, 16).default(1),
@@ -54,6 +59,9 @@ const envSchema = z.object({
   STEMWISE_TOKEN_CACHE_SIZE: intIn(1, 10_000_000).default(10_000),
   STEMWISE_DEFAULT_WOOD_DENSITY: num().pipe(z.number().min(0.1).max(1.5)).default(0.58),
   STEMWISE_MIN_HEIGHTS: intIn(3, 100_000).default(30),
+  STEMWISE_REPORTING_DBH_MIN_CM: num().pipe(z.number().gt(0).max(200)).default(10),
+  STEMWISE_STUMP_DBH_INTERCEPT_CM: num().pipe(z.number().min(-50).max(50)).default(0),
+  STEMWISE_STUMP_DBH_SLOPE: num().pipe(z.number().gt(0).max(2)).default(0.8),
   STEMWISE_SAMPLING_ERROR_T: z.enum(['t', '1.96', '2']).default('t'),
   STEMWISE_CAUTION_MIN_PLOTS: intIn(1, 1_000_000).default(20),
   STEMWISE_CAUTION_MAX_SAMPLING_ERROR_PCT: num().pipe(z.number().gt(0).max(1000)).default(20),
@@ -65,6 +73,13 @@ const envSchema = z.object({
 
 export type Climate = 'dry' | 'moist' | 'wet';
 
+/**
+ * Root-to-shoot relations a forest type may use (docs/methods.md#below-ground-biomass); the science
+ * (core/src/science/root-shoot.ts) defines each one and its test holds the two lists equal.
+ */
+export const ROOT_SHOOT_RELATION_NAMES = ['tropical_rainforest', 'tropical_moist_deciduous', 'tropical_dry', 'tropical_mountain', 'mokany_2006'] as const;
+export type RootShootRelationName = (typeof ROOT_SHOOT_RELATION_NAMES)[number];
+
 export interface Config {
   databaseUrl: string | undefined;
   redisUrl: string | undefined;
@@ -75,6 +90,10 @@ export interface Config {
   logFormat: LogFormat | undefined;
   queuePrefix: string;
   forestTypes: ReadonlyArray<{ code: string; climate: Climate }>;
+  /** Root-to-shoot relation chosen per forest type (STEMWISE_ROOT_SHOOT); a type not listed uses its climate's default. */
+  rootShoot: ReadonlyArray<{ forestType: string; relation: RootShootRelationName }>;
+  /** Share of the live-tree allometric biomass a standing dead stem keeps (common practice default 0.7). */
+  standingDeadShare: number;
   computeConcurrency: number;
   /** Worker threads that compute plot metrics (0: in the job's own thread). */
   computeThreads: number;
@@ -112,6 +131,10 @@ export interface Config {
   tokenCacheSize: number;
   defaultWoodDensity: number;
   minHeights: number;
+  /** Diameter (cm) from which the `reporting_*` figures and the stand tables count stems. */
+  reportingDbhMinCm: number;
+  /** DBH = intercept + slope · stump diameter (cm): the stump-to-DBH relation of logged stumps. */
+  stumpToDbh: { interceptCm: number; slope: number };
   samplingErrorT: 't' | '1.96' | '2';
   /** Estimates from fewer plots are flagged `few_plots` (caution_flag). */
   cautionMinPlots: number;
@@ -133,6 +156,8 @@ export const SETTINGS: ReadonlyArray<{ name: string; default: string; meaning: s
   { name: 'STEMWISE_LOG_FORMAT', default: '(unset: json for serve, text for other commands)', meaning: 'json: one JSON object per line; text: a line for a person (`stemwise: warning: …`)' },
   { name: 'STEMWISE_QUEUE_PREFIX', default: 'stemwise', meaning: 'Redis key prefix of the queues' },
   { name: 'STEMWISE_FOREST_TYPES', default: 'wet:wet,moist:moist,dry:dry', meaning: 'known forest type codes and the climate class of their no-height biomass model' },
+  { name: 'STEMWISE_ROOT_SHOOT', default: '(unset: by climate, wet:tropical_rainforest, moist:tropical_moist_deciduous, dry:tropical_dry)', meaning: `root-to-shoot relation of each forest type, forest_type:relation pairs (relations: ${ROOT_SHOOT_RELATION_NAMES.join(', ')}; docs/methods.md#below-ground-biomass); run stemwise recompute --all after changing it` },
+  { name: 'STEMWISE_STANDING_DEAD_SHARE', default: '0.7', meaning: 'share of the live-tree allometric biomass a standing dead stem keeps (common practice, no single source; docs/methods.md#standing-dead-wood); run stemwise recompute --all after changing it' },
   { name: 'STEMWISE_COMPUTE_CONCURRENCY', default: '2', meaning: 'jobs a compute worker runs at once' },
   { name: 'STEMWISE_COMPUTE_THREADS', default: '0', meaning: 'worker threads that compute plot metrics, shared by the jobs of a process (0: in the job itself; with PostgreSQL on the same 2-core machine threads were slower)' },
   { name: 'STEMWISE_INGEST_CONCURRENCY', default: '1', meaning: 'batches an ingest worker loads at once' },
@@ -158,6 +183,9 @@ export const SETTINGS: ReadonlyArray<{ name: string; default: string; meaning: s
   { name: 'STEMWISE_TOKEN_CACHE_SIZE', default: '10000', meaning: 'token checks the report service remembers (least recently used dropped first)' },
   { name: 'STEMWISE_DEFAULT_WOOD_DENSITY', default: '0.58', meaning: 'regional default wood density (g/cm³) when nothing better is known' },
   { name: 'STEMWISE_MIN_HEIGHTS', default: '30', meaning: 'measured heights a forest type needs before a height–diameter model is fitted' },
+  { name: 'STEMWISE_REPORTING_DBH_MIN_CM', default: '10', meaning: 'reporting threshold (cm): the headline and regional stems/ha, basal area, biomass and carbon, and the stand tables, count live stems from this diameter up, so plots with other diameter minima or without a subplot compare; plots that did not measure down to it are left out of those figures (docs/methods.md#reporting-threshold); changing it needs a full recompute (`stemwise recompute --all`)' },
+  { name: 'STEMWISE_STUMP_DBH_INTERCEPT_CM', default: '0', meaning: 'a of DBH = a + b · stump diameter (cm), the conversion of logged stumps before their basal area counts as removed (docs/methods.md#stump-diameter-to-dbh)' },
+  { name: 'STEMWISE_STUMP_DBH_SLOPE', default: '0.8', meaning: 'b of DBH = a + b · stump diameter; the default is common practice, not a published value: set a relation fitted to local paired measurements' },
   { name: 'STEMWISE_SAMPLING_ERROR_T', default: 't', meaning: 'multiplier of the sampling error %: Student t, 1.96 or 2' },
   { name: 'STEMWISE_CAUTION_MIN_PLOTS', default: '20', meaning: 'estimates from fewer plots are marked on the pages and flagged `few_plots` in `caution_flag` (common practice, no single source)' },
   { name: 'STEMWISE_CAUTION_MAX_SAMPLING_ERROR_PCT', default: '20', meaning: 'estimates with a larger sampling error (%) are marked on the pages and flagged `wide_error` in `caution_flag` (common practice, no single source)' },
@@ -174,6 +202,22 @@ function parseTrustProxy(v: string): boolean | number | string[] {
   return v.split(',');
 }
 
+function parseRootShoot(v: string | undefined, forestTypes: ReadonlyArray<{ code: string }>): Config['rootShoot'] {
+  if (v === undefined) return [];
+  const known = new Set(forestTypes.map((t) => t.code));
+  const seen = new Set<string>();
+  return v.split(',').map((pair) => {
+    const [forestType, relation] = pair.split(':');
+    if (!known.has(forestType)) throw new ConfigError('STEMWISE_ROOT_SHOOT', `${forestType} is not a forest type of STEMWISE_FOREST_TYPES (${[...known].join(', ')})`);
+    if (seen.has(forestType)) throw new ConfigError('STEMWISE_ROOT_SHOOT', `${forestType} is listed twice`);
+    seen.add(forestType);
+    if (!(ROOT_SHOOT_RELATION_NAMES as readonly string[]).includes(relation)) {
+      throw new ConfigError('STEMWISE_ROOT_SHOOT', `${relation} is not a root-to-shoot relation (known: ${ROOT_SHOOT_RELATION_NAMES.join(', ')})`);
+    }
+    return { forestType, relation: relation as RootShootRelationName };
+  });
+}
+
 /** Parses the environment once into a typed configuration; a bad value throws a ConfigError naming it. */
 export function loadConfig(env: Readonly<Record<string, string | undefined>> = process.env): Config {
   const cleaned: Record<string, string> = {};
@@ -187,6 +231,10 @@ export function loadConfig(env: Readonly<Record<string, string | undefined>> = p
     throw new ConfigError(String(issue.path[0] ?? 'environment'), issue.message);
   }
   const e = parsed.data;
+  const forestTypes = e.STEMWISE_FOREST_TYPES.split(',').map((pair) => {
+    const [code, climate] = pair.split(':');
+    return { code, climate: climate as Climate };
+  });
   const dataDir = path.resolve(e.STEMWISE_DATA_DIR);
   return {
     databaseUrl: e.DATABASE_URL,
@@ -196,10 +244,9 @@ export function loadConfig(env: Readonly<Record<string, string | undefined>> = p
     logLevel: e.STEMWISE_LOG_LEVEL,
     logFormat: e.STEMWISE_LOG_FORMAT,
     queuePrefix: e.STEMWISE_QUEUE_PREFIX,
-    forestTypes: e.STEMWISE_FOREST_TYPES.split(',').map((pair) => {
-      const [code, climate] = pair.split(':');
-      return { code, climate: climate as Climate };
-    }),
+    forestTypes,
+    rootShoot: parseRootShoot(e.STEMWISE_ROOT_SHOOT, forestTypes),
+    standingDeadShare: e.STEMWISE_STANDING_DEAD_SHARE,
     computeConcurrency: e.STEMWISE_COMPUTE_CONCURRENCY,
     computeThreads: e.STEMWISE_COMPUTE_THREADS,
     ingestConcurrency: e.STEMWISE_INGEST_CONCURRENCY,
@@ -225,6 +272,8 @@ export function loadConfig(env: Readonly<Record<string, string | undefined>> = p
     tokenCacheSize: e.STEMWISE_TOKEN_CACHE_SIZE,
     defaultWoodDensity: e.STEMWISE_DEFAULT_WOOD_DENSITY,
     minHeights: e.STEMWISE_MIN_HEIGHTS,
+    reportingDbhMinCm: e.STEMWISE_REPORTING_DBH_MIN_CM,
+    stumpToDbh: { interceptCm: e.STEMWISE_STUMP_DBH_INTERCEPT_CM, slope: e.STEMWISE_STUMP_DBH_SLOPE },
     samplingErrorT: e.STEMWISE_SAMPLING_ERROR_T,
     cautionMinPlots: e.STEMWISE_CAUTION_MIN_PLOTS,
     cautionMaxSamplingErrorPct: e.STEMWISE_CAUTION_MAX_SAMPLING_ERROR_PCT,

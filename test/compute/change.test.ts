@@ -128,6 +128,26 @@ describe('change between visits (compute)', () => {
     }
   });
 
+  it('holds the carbon pools of every pair to their rules: BGB change = R × AGB net where both visits share R, tree carbon = 0.47 × the three pools', async () => {
+    const rows = await s.db.query<{ r1: number | null; r2: number | null; agb: number; bgb: number | null; dead: number | null; tree: number | null }>(
+      `select m1.root_shoot_ratio r1, m2.root_shoot_ratio r2, c.agb_net_change_mg_ha_yr agb, c.bgb_net_change_mg_ha_yr bgb,
+              c.standing_dead_net_change_mg_ha_yr dead, c.tree_carbon_net_change_mg_ha_yr tree
+         from plot_change c join plot_metrics m1 on m1.visit_id = c.visit_from_id join plot_metrics m2 on m2.visit_id = c.visit_to_id`,
+    );
+    expect(rows.length).toBeGreaterThan(0);
+    let sameRatio = 0;
+    for (const r of rows) {
+      expect(r.bgb).not.toBeNull();
+      expect(r.dead).not.toBeNull();
+      if (r.r1 !== null && r.r1 === r.r2) {
+        sameRatio++;
+        expect(r.bgb as number).toBeCloseTo(r.r1 * r.agb, 10);
+      }
+      expect(r.tree as number).toBeCloseTo(0.47 * (r.agb + (r.bgb as number) + (r.dead as number)), 10);
+    }
+    expect(sameRatio).toBeGreaterThan(0);
+  });
+
   it('a recompute of everything writes the same figures', async () => {
     const before = (await storedPairs(s)).map(({ computed_at: _, ...rest }) => rest);
     const { failures } = await recomputeInProcess(s.config, s.db, true);
@@ -167,6 +187,7 @@ describe('change between visits (compute)', () => {
       'mortality_rate', 'recruitment_rate', 'mortality_annual', 'recruitment_annual', 'dbh_increment_cm_yr', 'ba_change_m2_ha_yr', 'agb_growth_mg_ha_yr',
       'agb_recruitment_mg_ha_yr', 'agb_loss_mg_ha_yr', 'agb_net_change_mg_ha_yr', 'carbon_net_change_mg_ha_yr',
       'n_absent', 'ba_growth_m2_ha_yr', 'ba_recruitment_m2_ha_yr', 'ba_loss_m2_ha_yr', 'agb_died_mg_ha_yr', 'agb_removed_mg_ha_yr',
+      'bgb_net_change_mg_ha_yr', 'standing_dead_net_change_mg_ha_yr', 'tree_carbon_net_change_mg_ha_yr',
     ];
 
     it('writes CSV with the documented columns, one row per stored pair, by plot then date, with the stored values', async () => {

@@ -65,7 +65,7 @@ describe('region page in a browser', () => {
       expect(box?.width, id).toBeGreaterThan(200);
       expect(box?.height, id).toBeGreaterThan(100);
     }
-    const ba = page.locator('#headline .card[data-variable="basal_area_m2_ha"]');
+    const ba = page.locator('#headline .card[data-variable="reporting_basal_area_m2_ha"]');
     // rounded to the SE's second significant digit (an SE between 1 and 10 here: one decimal), a trailing zero kept
     await expect.poll(() => ba.locator('.value').innerText()).toMatch(/^21\.0 m²\/ha$/);
     expect(await ba.locator('.ci').innerText()).toMatch(/^95 % CI: \d+\.\d – \d+\.\d$/);

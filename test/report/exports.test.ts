@@ -37,10 +37,11 @@ describe('export regions and the static report', () => {
     expect(all.rows).toBe(lines.length - 1);
     const regionOf = lines.slice(1).map((l) => l.split(',')[0]);
     expect(new Set(regionOf)).toEqual(new Set(['Northvale', 'Southmere', 'national'])); // Ostmark has no summary
-    // the national rows come last: `all` then each forest type, every default variable (13 × 4)
+    // the national rows come last: `all` then each forest type, every default variable (13 of version 1,
+    // the 5 carbon pools and the 4 at the reporting threshold: 22 × 4; seeded plots have no stand tables)
     const first = regionOf.indexOf('national');
     expect(regionOf.slice(first).every((r) => r === 'national')).toBe(true);
-    expect(regionOf.length - first).toBe(13 * 4);
+    expect(regionOf.length - first).toBe(22 * 4);
     // 12 plots of three regions with plot-count weights: ȳ = 18.5 (by hand, see summaries.test.ts), no total
     // 12 plots are fewer than the default 20: flagged few_plots (with the sampling error of 12 %, not above 20 %)
     expect(lines.filter((l) => /^national,all,basal_area_m2_ha,12,18\.5,[^,]+,[^,]+,[^,]+,[^,]+,,,few_plots$/.test(l))).toHaveLength(1);
@@ -98,6 +99,9 @@ describe('export regions and the static report', () => {
     expect(fs.readFileSync(path.join(dir, 'regions', 'northvale-summary.csv'), 'utf8').split('\n')[0]).toBe(COLUMNS);
     expect(JSON.parse(fs.readFileSync(path.join(dir, 'regions', 'northvale-plots.geojson'), 'utf8')).features).toHaveLength(5);
     expect(page).toContain('Uses the latest visit of each plot, surveyed 2025–2026.');
+    // the carbon pools: three covered with their estimates, three named as not covered, with the caution
+    expect(page).toMatch(/<table id="pools">[^]*data-pool="tree_carbon_mg_ha"[^]*<td>Lying dead wood<\/td><td><strong>not covered<\/strong>[^]*<td>Litter<\/td>[^]*<td>Soil organic carbon<\/td>/);
+    expect(page).toContain('National methods and the IPCC reporting rules decide which pools are reported');
   });
 
   it('writes the national page with its figures, the visits it uses and its downloads, linked from the index', async () => {
@@ -107,12 +111,13 @@ describe('export regions and the static report', () => {
     const index = fs.readFileSync(path.join(dir, 'index.html'), 'utf8');
     expect(index).toContain('href="national.html"');
     // rounded to the precision of the SE (two significant digits of an SE below 1 → two decimals): 18.50, trailing zero kept
-    expect(index).toMatch(/<tr data-variable="basal_area_m2_ha"><td>Basal area[^]*?<td class="num">18\.50<\/td><td class="num">16\.28 – 20\.72<\/td>/);
+    expect(index).toMatch(/<tr data-variable="reporting_basal_area_m2_ha"><td>Basal area from the reporting threshold[^]*?<td class="num">18\.50<\/td><td class="num">16\.28 – 20\.72<\/td>/);
     const page = fs.readFileSync(written.national!, 'utf8');
     expect(page).toContain('<h1>National figures</h1>');
     expect(page).toContain('Uses the latest visit of each plot, surveyed 2025–2026.');
     expect(page).toContain('All regions (stratified by region × forest type)');
-    expect(page).toMatch(/<div class="card" data-variable="basal_area_m2_ha">[^]*?<div class="value">18\.50 [^]*?SE 0\.\d\d<\/div>/);
+    expect(page).toMatch(/<h2 id="carbon-pools">Carbon pools<\/h2>\s*<table id="pools">[^]*<td>Soil organic carbon<\/td><td><strong>not covered<\/strong>/);
+    expect(page).toMatch(/<div class="card" data-variable="reporting_basal_area_m2_ha">[^]*?<div class="value">18\.50 [^]*?SE 0\.\d\d<\/div>/);
     // the JSON keeps full precision
     const rows = JSON.parse(fs.readFileSync(path.join(dir, 'national-summary.json'), 'utf8')).summary.rows as Array<{ forest_type: string; variable: string; mean: number }>;
     expect(rows.find((r) => r.forest_type === 'all' && r.variable === 'basal_area_m2_ha')?.mean).toBeCloseTo(18.5, 10);

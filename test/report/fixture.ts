@@ -72,9 +72,17 @@ export async function seedPlots(db: Db, plots: readonly FixturePlot[], batchId?:
         [plotId, p.date ?? '2026-03-01', batch],
       );
       const cols = PLOT_METRIC_DB_COLUMNS.map(([c]) => c);
+      // Seeded plots measured every stem from the reporting threshold: their reporting_* figures are the
+      // all-stems ones unless given (docs/methods.md#reporting-threshold).
+      const valueOf = (c: PlotMetricDbColumn): number | null => {
+        const given = p.metrics[c];
+        if (given !== undefined) return given;
+        const restated = c.startsWith('reporting_') ? (c.slice('reporting_'.length) as PlotMetricDbColumn) : null;
+        return restated !== null && cols.includes(restated) ? (p.metrics[restated] ?? null) : null;
+      };
       await tx.query(
         `insert into plot_metrics (visit_id, ${cols.join(', ')}) values ($1, ${cols.map((_, k) => `$${k + 2}`).join(', ')})`,
-        [visitId, ...cols.map((c) => p.metrics[c] ?? null)],
+        [visitId, ...cols.map(valueOf)],
       );
       for (const [k, name] of (p.species ?? []).entries()) {
         await tx.query(`insert into stems (visit_id, tree_id, species, dbh_cm, status) values ($1, $2, $3, 20, 'live')`, [visitId, `t${k}`, name]);

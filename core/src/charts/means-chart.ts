@@ -4,7 +4,8 @@ import { REPORT_CHART_CONFIG, REPORT_COLOURS, WHOLE_REGION_LABEL, renderVegaLite
 import { variableLabel } from '../region-summary/variables';
 
 /** Variables drawn in the means chart, one panel each. */
-export const MEANS_CHART_VARIABLES = ['stems_ha', 'basal_area_m2_ha', 'agb_mg_ha', 'carbon_mg_ha'] as const;
+/** The per-hectare figures at the reporting threshold (docs/methods.md#reporting-threshold): comparable between plots. */
+export const MEANS_CHART_VARIABLES = ['reporting_stems_ha', 'reporting_basal_area_m2_ha', 'reporting_agb_mg_ha', 'reporting_carbon_mg_ha'] as const;
 
 interface Bar {
   stratum: string;

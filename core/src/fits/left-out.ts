@@ -10,6 +10,7 @@ export type LeftOutReason =
   | 'one_species'
   | 'under_50_identified'
   | 'no_live_stem'
+  | 'measured_from_larger_dbh'
   | 'no_value';
 
 /** Plain words for each reason, for the pages. */
@@ -20,11 +21,14 @@ export const LEFT_OUT_WORDS: Readonly<Record<LeftOutReason, string>> = {
   one_species: 'one species only (evenness undefined)',
   under_50_identified: 'fewer than 50 identified stems (rarefaction to 50 impossible)',
   no_live_stem: 'no live stem',
+  measured_from_larger_dbh: 'stems measured only from a larger diameter than the reporting threshold or class (dbh_min_cm)',
   no_value: 'no value',
 };
 
 const DIVERSITY = new Set(['shannon', 'simpson', 'inv_simpson', 'pielou', 'fisher_alpha', 'rarefied_50', 'chao1']);
 const NEEDS_LIVE_STEMS = new Set(['qmd_cm', 'pioneer_ba_share', 'light_demander_ba_share', 'shade_tolerant_ba_share', 'unassigned_ba_share', 'logging_removed_ba_frac']);
+
+const FROM_THRESHOLD = /^(reporting_(stems|basal_area_m2|agb_mg|carbon_mg)_ha|stand_.+_ha)$/;
 
 type Values = Readonly<Record<string, number | null | undefined>>;
 
@@ -40,6 +44,8 @@ export function leftOutReason(values: Values, column: string): LeftOutReason {
     if (column === 'rarefied_50' && n < 50) return 'under_50_identified';
   }
   if (NEEDS_LIVE_STEMS.has(column) && values.stems_ha === 0) return 'no_live_stem';
+  // Empty only where the plot did not measure every stem from the threshold (or the class) up: docs/methods.md#reporting-threshold.
+  if (FROM_THRESHOLD.test(column)) return 'measured_from_larger_dbh';
   return 'no_value';
 }
 

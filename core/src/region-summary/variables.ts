@@ -1,6 +1,7 @@
 // How the summary's variables (columns of `export plots`) are named for people on the page and in
 // charts, and which of them a region summary estimates: all read from the plot-metric catalogue.
 import { HEADLINE_METRIC_COLUMNS, plotMetricByColumn, REGION_METRIC_COLUMNS } from '@stemwise/db/catalogue';
+import { standLabel } from './stand-table';
 
 export interface VariableLabel {
   /** Full name for tables. */
@@ -21,16 +22,22 @@ const CHANGE_LABELS: Readonly<Record<string, VariableLabel>> = {
   mortality_annual: { name: 'Annual mortality (share of trees per year)', short: 'Mortality per year', unit: '' },
   recruitment_annual: { name: 'Annual recruitment (share of trees per year)', short: 'Recruitment per year', unit: '' },
   dbh_increment_cm_yr: { name: 'Diameter growth of survivors', short: 'Diameter growth (cm/yr)', unit: 'cm/yr' },
+  bgb_net_change_mg_ha_yr: { name: 'Net below-ground biomass change between visits', short: 'Root biomass change (Mg/ha/yr)', unit: 'Mg/ha/yr' },
+  standing_dead_net_change_mg_ha_yr: { name: 'Net standing dead wood change between visits', short: 'Standing dead wood change (Mg/ha/yr)', unit: 'Mg/ha/yr' },
+  tree_carbon_net_change_mg_ha_yr: { name: 'Net tree carbon change between visits (three pools)', short: 'Tree carbon change (Mg C/ha/yr)', unit: 'Mg C/ha/yr' },
 };
 
 export function variableLabel(variable: string): VariableLabel {
   const m = plotMetricByColumn(variable);
-  return m === undefined ? (CHANGE_LABELS[variable] ?? { name: variable, short: variable, unit: '' }) : { name: m.label, short: m.short, unit: m.unit };
+  if (m !== undefined) return { name: m.label, short: m.short, unit: m.unit };
+  const stand = standLabel(variable);
+  if (stand !== null) return { name: stand.name, short: stand.short, unit: stand.unit };
+  return CHANGE_LABELS[variable] ?? { name: variable, short: variable, unit: '' };
 }
 
 /** Unit of a total (mean × forest area) of a per-hectare variable; '' for any other variable. */
 export function totalUnit(variable: string): string {
-  return plotMetricByColumn(variable)?.totalUnit ?? '';
+  return plotMetricByColumn(variable)?.totalUnit ?? standLabel(variable)?.totalUnit ?? '';
 }
 
 /** Totals are meaningful for densities only: the per-hectare variables (those with a total unit). */

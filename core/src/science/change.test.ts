@@ -126,6 +126,38 @@ describe('plotChange: a hand-computed plot', () => {
     expect(rel(c.carbonNetChangeMgHaYr, -0.33605)).toBeLessThan(1e-12);
     expect(rel(plotChange(first, second, 0.5).carbonNetChangeMgHaYr, -0.3575)).toBeLessThan(1e-12);
   });
+  it('without root-to-shoot ratios or dead-stem biomass, the pool changes are empty (null), never 0', () => {
+    expect(c.bgbNetChangeMgHaYr).toBeNull();
+    expect(c.standingDeadNetChangeMgHaYr).toBeNull();
+    expect(c.treeCarbonNetChangeMgHaYr).toBeNull();
+  });
+  describe('carbon pools (docs/methods.md#change-between-visits; computed by hand)', () => {
+    // Stock of the trees that count: first (200 + 500 + 100 + 1000 + 80)·2 = 3760 kg/ha, second (250 + 90 +
+    // 60 + 50)·2 = 900 kg/ha, so AGB net = (900 − 3760)/1000/4 = −0.715. Dead stems at or above 10 cm on the
+    // main plot: first K 150 kg → 300 kg/ha; second B 300, J 40, K 150 kg → 980 kg/ha.
+    const deadKg: Record<string, number> = { B: 300, J: 40, K: 150 };
+    const withPools = (v: ChangeVisit, ratio: number | null): ChangeVisit => ({
+      ...v,
+      rootShootRatio: ratio,
+      trees: v.trees.map((t) => (t.status === 'dead' ? { ...t, deadKg: deadKg[t.treeId] } : t)),
+    });
+    it('one ratio at both visits (0.24): BGB net = 0.24 · AGB net = −0.1716 Mg/ha/yr', () => {
+      const p = plotChange(withPools(first, 0.24), withPools(second, 0.24));
+      expect(rel(p.bgbNetChangeMgHaYr, 0.24 * -0.715)).toBeLessThan(1e-12);
+    });
+    it('ratio 0.24 then 0.20 (a plot that fell below 125 Mg/ha): (0.20·900 − 0.24·3760)/4000 = −0.1806 Mg/ha/yr', () => {
+      const p = plotChange(withPools(first, 0.24), withPools(second, 0.2));
+      expect(rel(p.bgbNetChangeMgHaYr, -0.1806)).toBeLessThan(1e-12);
+      expect(rel(p.standingDeadNetChangeMgHaYr, (980 - 300) / 4000)).toBeLessThan(1e-12);
+      // 0.47 · (−0.715 − 0.1806 + 0.17) = −0.341032 Mg C/ha/yr
+      expect(rel(p.treeCarbonNetChangeMgHaYr, -0.341032)).toBeLessThan(1e-12);
+      expect(p.agbNetChangeMgHaYr).toBe(c.agbNetChangeMgHaYr);
+    });
+    it('a null ratio (no ratio applies) counts as no below-ground biomass at that visit', () => {
+      const p = plotChange(withPools(first, null), withPools(second, 0.2));
+      expect(rel(p.bgbNetChangeMgHaYr, (0.2 * 900) / 4000)).toBeLessThan(1e-12);
+    });
+  });
   it('basal area per ha per year: growth 2·π/40000·(22² − 20² + 13² − 12²)/4, recruitment 2·π/40000·(11² + 10.5²)/4, loss 2·π/40000·(30² + 15² + 40²)/4', () => {
     const k = (2 * Math.PI) / 40000 / 4;
     expect(rel(c.baGrowthM2HaYr, k * (484 - 400 + 169 - 144))).toBeLessThan(1e-12);

@@ -10,7 +10,10 @@
 //    there below the threshold (or on the subplot); a tree recorded dead or as a stump at the first and
 //    live at the second is an error in the data, counted nowhere (the ingest checks refuse it);
 //  - Nt = Ns + Nr (live at the second visit among trees that count);
-//  - biomass of each live stem is the caller's, from the same models at both visits (plot-metrics.ts).
+//  - biomass of each live stem is the caller's, from the same models at both visits (plot-metrics.ts);
+//  - below-ground change: each visit's root-to-shoot ratio (of its plot figures) times the stock of the trees
+//    that count, so with one ratio at both visits it is the ratio times the AGB net change; standing dead
+//    wood change: the dead main-plot stems at or above the threshold, stock at the second minus the first.
 // Rates are null where a count makes them undefined, never 0 or infinity.
 
 import { carbonFromBiomass, IPCC_2006_CARBON_FRACTION } from './allometry';
@@ -27,6 +30,8 @@ export interface ChangeTree {
   readonly inSubplot: boolean;
   /** Above-ground biomass of the stem in kg when live (same models at both visits); null otherwise. */
   readonly agbKg: number | null;
+  /** Standing dead wood biomass of the stem in kg when dead (docs/methods.md#standing-dead-wood); absent: unknown. */
+  readonly deadKg?: number | null;
 }
 
 export interface ChangeVisit {
@@ -35,6 +40,8 @@ export interface ChangeVisit {
   readonly areaHa: number;
   readonly dbhMinCm: number;
   readonly trees: readonly ChangeTree[];
+  /** Root-to-shoot ratio applied to the visit's plot figures (null: none applies, BGB 0); absent: no below-ground change. */
+  readonly rootShootRatio?: number | null;
 }
 
 export interface PlotChange {
@@ -64,6 +71,12 @@ export interface PlotChange {
   agbLossMgHaYr: number;
   agbNetChangeMgHaYr: number;
   carbonNetChangeMgHaYr: number;
+  /** (R₂ · stock₂ − R₁ · stock₁) / t of the trees that count; null without both visits' ratios. */
+  bgbNetChangeMgHaYr: number | null;
+  /** Change of the standing dead wood stock of dead main-plot stems at or above the threshold; null without their biomass. */
+  standingDeadNetChangeMgHaYr: number | null;
+  /** Carbon fraction × (AGB + BGB + standing dead wood net change); null where one of them is. */
+  treeCarbonNetChangeMgHaYr: number | null;
 }
 
 function fail(fn: string, message: string): never {
@@ -130,6 +143,11 @@ function checkVisit(fn: string, which: string, v: ChangeVisit): Map<string, Chan
 
 const counts = (t: ChangeTree, threshold: number): boolean => t.status === 'live' && !t.inSubplot && t.dbhCm >= threshold;
 
+// ΔC = sign(ΔB) · CF · |ΔB| — carbonFromBiomass takes a stock (>= 0); a change may be negative, so the fraction is applied to its size
+function carbonOfChange(changeMgHaYr: number, carbonFraction: number): number {
+  return Math.sign(changeMgHaYr) * carbonFromBiomass(Math.abs(changeMgHaYr), carbonFraction);
+}
+
 // ΔX/ha/yr = [Σ_surv (x₂/A₂ − x₁/A₁) + Σ_recr x₂/A₂ − Σ_lost x₁/A₁] / t, net = growth + recruitment − losses — docs/methods.md#change-between-visits
 export function plotChange(first: ChangeVisit, second: ChangeVisit, carbonFraction: number = IPCC_2006_CARBON_FRACTION): PlotChange {
   const fn = 'plotChange';
@@ -154,18 +172,22 @@ export function plotChange(first: ChangeVisit, second: ChangeVisit, carbonFracti
   let agbRecruitment = 0;
   let agbDied = 0;
   let agbRemoved = 0;
+  let stock1 = 0; // kg/ha of the N0 trees at the first visit
+  let stock2 = 0; // kg/ha of survivors and recruits at the second visit
 
   for (const t1 of first.trees) {
     if (!counts(t1, threshold)) continue;
     nStart += 1;
     const g1 = basalAreaM2(t1.dbhCm) / a1;
     const b1 = (t1.agbKg as number) / a1;
+    stock1 += b1;
     const t2 = at2.get(t1.treeId);
     if (t2 !== undefined && t2.status === 'live') {
       nSurvivors += 1;
       increment += t2.dbhCm - t1.dbhCm;
       baGrowth += basalAreaM2(t2.dbhCm) / a2 - g1;
       agbGrowth += (t2.agbKg as number) / a2 - b1;
+      stock2 += (t2.agbKg as number) / a2;
     } else if (t2 !== undefined && t2.status === 'stump' && t2.stumpCause === 'logged') {
       nRemoved += 1;
       baLoss += g1;
@@ -185,7 +207,20 @@ export function plotChange(first: ChangeVisit, second: ChangeVisit, carbonFracti
     nRecruits += 1;
     baRecruitment += basalAreaM2(t2.dbhCm) / a2;
     agbRecruitment += (t2.agbKg as number) / a2;
+    stock2 += (t2.agbKg as number) / a2;
   }
+  const deadStock = (v: ChangeVisit): number | null => {
+    let kgHa = 0;
+    for (const t of v.trees) {
+      if (t.status !== 'dead' || t.inSubplot || t.dbhCm < threshold) continue;
+      if (t.deadKg === undefined || t.deadKg === null) return null;
+      if (!(t.deadKg >= 0) || !Number.isFinite(t.deadKg)) fail(fn, `dead tree ${t.treeId} biomass must be finite and >= 0 (got ${t.deadKg})`);
+      kgHa += t.deadKg / v.areaHa;
+    }
+    return kgHa;
+  };
+  const dead1 = deadStock(first);
+  const dead2 = deadStock(second);
 
   const perYearMg = (kgHa: number): number => kgHa / 1000 / years;
   const agbGrowthMgHaYr = perYearMg(agbGrowth);
@@ -198,6 +233,11 @@ export function plotChange(first: ChangeVisit, second: ChangeVisit, carbonFracti
   const baRecruitmentM2HaYr = baRecruitment / years;
   const baLossM2HaYr = baLoss / years;
   const nEnd = nSurvivors + nRecruits;
+  const r1 = first.rootShootRatio;
+  const r2 = second.rootShootRatio;
+  const bgbNetChangeMgHaYr = r1 === undefined || r2 === undefined ? null : perYearMg((r2 ?? 0) * stock2 - (r1 ?? 0) * stock1);
+  const standingDeadNetChangeMgHaYr = dead1 === null || dead2 === null ? null : perYearMg(dead2 - dead1);
+  const treeNet = bgbNetChangeMgHaYr === null || standingDeadNetChangeMgHaYr === null ? null : agbNetChangeMgHaYr + bgbNetChangeMgHaYr + standingDeadNetChangeMgHaYr;
   return {
     years,
     dbhThresholdCm: threshold,
@@ -224,7 +264,10 @@ export function plotChange(first: ChangeVisit, second: ChangeVisit, carbonFracti
     agbLossMgHaYr,
     agbNetChangeMgHaYr,
     // carbonFromBiomass takes a stock (>= 0); a change may be negative, so the fraction is applied to its size.
-    carbonNetChangeMgHaYr: Math.sign(agbNetChangeMgHaYr) * carbonFromBiomass(Math.abs(agbNetChangeMgHaYr), carbonFraction),
+    carbonNetChangeMgHaYr: carbonOfChange(agbNetChangeMgHaYr, carbonFraction),
+    bgbNetChangeMgHaYr,
+    standingDeadNetChangeMgHaYr,
+    treeCarbonNetChangeMgHaYr: treeNet === null ? null : carbonOfChange(treeNet, carbonFraction),
   };
 }
 
@@ -254,4 +297,7 @@ export const PLOT_CHANGE_COLUMNS = [
   { column: 'ba_loss_m2_ha_yr', key: 'baLossM2HaYr' },
   { column: 'agb_died_mg_ha_yr', key: 'agbDiedMgHaYr' },
   { column: 'agb_removed_mg_ha_yr', key: 'agbRemovedMgHaYr' },
+  { column: 'bgb_net_change_mg_ha_yr', key: 'bgbNetChangeMgHaYr' },
+  { column: 'standing_dead_net_change_mg_ha_yr', key: 'standingDeadNetChangeMgHaYr' },
+  { column: 'tree_carbon_net_change_mg_ha_yr', key: 'treeCarbonNetChangeMgHaYr' },
 ] as const satisfies readonly { column: string; key: keyof PlotChange }[];

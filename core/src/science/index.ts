@@ -20,3 +20,7 @@ export * from './stratified';
 export * from './sample-moments';
 export * from './estimator-errors';
 export * from './change';
+export * from './root-shoot';
+export * from './dead-wood';
+export * from './stump';
+export * from './stand-table';

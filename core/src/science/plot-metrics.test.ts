@@ -42,7 +42,7 @@ const STEMS: StemInput[] = [
   stem('Pellamo rubra', 8, { inSubplot: true }), // 6
   stem('Xenoa spinosa', 6, { inSubplot: true }), // 7 unresolved → plot mean ρ
   stem('Veltria magna', 25, { status: 'dead' }), // 8 dead: ignored
-  stem(null, 30, { status: 'stump', stumpCause: 'logged' }), // 9 logged stump, main plot
+  stem(null, 30, { status: 'stump', stumpCause: 'logged' }), // 9 logged stump, main plot (cut surface 30 cm: DBH 24 cm)
   stem(null, 50, { status: 'stump', stumpCause: 'natural' }), // 10 natural stump: ignored
   stem(null, 7, { status: 'stump', stumpCause: 'logged', inSubplot: true }), // 11 subplot stump: ignored
   stem('Ostra lenta', 8), // 12 live main-plot stem below dbh_min 10: left out
@@ -96,6 +96,18 @@ describe('computePlotMetrics on a small plot (every expected value computed by h
     expect(computePlotMetrics(VISIT, STEMS, index).stemAgbKg).toBeUndefined();
   });
 
+  it('carbon pools: BGB = 0.20 · AGB (moist → IPCC 2006 Table 4.4 tropical moist deciduous, AGB < 125 Mg/ha, memory); dead stem 8 kept apart', () => {
+    expect(m.agbMgHa).toBeLessThan(125);
+    expect(m.rootShootRatio).toBe(0.2);
+    expect(rel(m.bgbMgHa, 0.2 * m.agbMgHa)).toBeLessThan(1e-15);
+    expect(rel(m.bgbCarbonMgHa, 0.47 * 0.2 * m.agbMgHa)).toBeLessThan(1e-14);
+    // Stem 8: Veltria magna ρ 0.4, 25 cm, no height, main plot (w = 2): 0.7 · AGB_2005,moist · 2 / 1000.
+    const dead = (0.7 * agbChave2005(0.4, 25, 'moist') * 2) / 1000;
+    expect(rel(m.standingDeadMgHa, dead)).toBeLessThan(1e-13);
+    expect(rel(m.standingDeadCarbonMgHa, 0.47 * dead)).toBeLessThan(1e-13);
+    expect(rel(m.treeCarbonMgHa, 0.47 * (1.2 * m.agbMgHa + dead))).toBeLessThan(1e-13);
+  });
+
   it('diversity on main-plot identified stems: counts 2 (incl. the synonym), 1, 1; N = 4', () => {
     expect(m.nIdentified).toBe(4);
     expect(m.richness).toBe(3);
@@ -120,8 +132,8 @@ describe('computePlotMetrics on a small plot (every expected value computed by h
     expect(Math.abs(sum - 1)).toBeLessThan(1e-15);
   });
 
-  it('disturbance: f = 900/(3400 + 900); L = (f/0.5 + 1/3)/2; F = ((4400/7800)/3 + 0)/2; I = 1 − (1 − L)(1 − F)', () => {
-    const f = 900 / 4300;
+  it('disturbance: stump 30 cm → DBH 0.8 · 30 = 24 cm, f = 576/(3400 + 576); L = (f/0.5 + 1/3)/2; F = ((4400/7800)/3 + 0)/2; I = 1 − (1 − L)(1 − F)', () => {
+    const f = 576 / 3976; // the logged stump at its DBH (docs/methods.md#stump-diameter-to-dbh)
     const l = (f / 0.5 + 1 / 3) / 2;
     const fs = (4400 / 7800 / 3) / 2; // fire damage: stem 2 (1800·2) and stem 5 (800·1)
     expect(rel(m.loggingRemovedBaFrac, f)).toBeLessThan(1e-14);
@@ -166,6 +178,43 @@ describe('computePlotMetrics with a local height–diameter model', () => {
   it('reports modelled stems and those outside the fitted dbh range (10, 8 and 6 cm < 15 cm)', () => {
     expect(d.heightSourceShare).toEqual({ measured: 2 / 7, modelled: 5 / 7, noHeightModel: 0 });
     expect(d.modelledOutsideFitRange).toBe(3);
+  });
+});
+
+describe('computePlotMetrics: standing dead wood on hand-computed stems (docs/methods.md#standing-dead-wood)', () => {
+  // Main plot 0.5 ha (w = 2), subplot 0.1 ha (w = 10), moist. One live stem gives the plot's wood density
+  // (Ostra lenta ρ 0.8); the dead stems: (a) Ostra lenta 30 cm with a measured 20 m → Chave 2014 eq. 4;
+  // (b) unidentified 20 cm → the plot's live mean ρ 0.8, Chave 2005 moist; (c) Pellamo rubra ρ 0.6, 7 cm on
+  // the subplot (w = 10); (d) Pellamo rubra 9 cm on the main plot, below dbh_min 10 → left out.
+  const stems: StemInput[] = [
+    stem('Ostra lenta', 40),
+    stem('Ostra lenta', 30, { status: 'dead', heightM: 20 }),
+    stem(null, 20, { status: 'dead' }),
+    stem('Pellamo rubra', 7, { status: 'dead', inSubplot: true }),
+    stem('Pellamo rubra', 9, { status: 'dead' }),
+  ];
+  const perStemKg = (share: number): number =>
+    share * (2 * agbChave2014(0.8, 30, 20) + 2 * agbChave2005(0.8, 20, 'moist') + 10 * agbChave2005(0.6, 7, 'moist'));
+
+  it('Σ w · s · AGB_allometry / 1000 with the default share 0.7 (rel 1e-13); live figures unchanged by dead stems', () => {
+    const { metrics: m } = computePlotMetrics(VISIT, stems, index);
+    expect(rel(m.standingDeadMgHa, perStemKg(0.7) / 1000)).toBeLessThan(1e-13);
+    expect(rel(m.agbMgHa, (2 * agbChave2005(0.8, 40, 'moist')) / 1000)).toBeLessThan(1e-13);
+    expect(m.stemsHa).toBe(2);
+    const liveOnly = computePlotMetrics(VISIT, [stems[0]], index).metrics;
+    expect(liveOnly.standingDeadMgHa).toBe(0);
+    expect({ ...m, standingDeadMgHa: 0, standingDeadCarbonMgHa: 0, treeCarbonMgHa: 0 }).toEqual({ ...liveOnly, treeCarbonMgHa: 0 });
+  });
+  it('with another share (0.4) and a configured relation (Mokany et al. 2006)', () => {
+    const { metrics: m } = computePlotMetrics(VISIT, stems, index, { standingDeadShare: 0.4, rootShoot: 'mokany_2006' });
+    expect(rel(m.standingDeadMgHa, perStemKg(0.4) / 1000)).toBeLessThan(1e-13);
+    expect(rel(m.bgbMgHa, 0.489 * Math.pow(m.agbMgHa, 0.89))).toBeLessThan(1e-13);
+  });
+  it('a plot without live stems: no root-to-shoot ratio under the equation, BGB 0, dead wood still counted', () => {
+    const { metrics: m } = computePlotMetrics(VISIT, stems.slice(1), index, { rootShoot: 'mokany_2006' });
+    expect(m.rootShootRatio).toBeNull();
+    expect(m.bgbMgHa).toBe(0);
+    expect(m.standingDeadMgHa).toBeGreaterThan(0);
   });
 });
 

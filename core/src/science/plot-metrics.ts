@@ -6,9 +6,15 @@
 //  - diversity: live main-plot stems identified to species (exact, synonym or normalised match;
 //    synonyms count as their accepted species; genus-only and unresolved names are not identified);
 //  - guild shares: of live basal area (expanded), with unassigned = unidentified or not a listed species;
-//  - disturbance: logged stumps against live basal area on the main plot only; stem fire damage
-//    weighted by expanded live basal area (main plot and subplot);
-//  - heights: measured, else the local height–diameter model, else the Chave et al. 2005 no-height model.
+//  - disturbance: logged stumps (their cut-surface diameter converted to DBH, stump.ts) against live
+//    basal area on the main plot only; stem fire damage weighted by expanded live basal area (main plot
+//    and subplot);
+//  - the `reporting_*` columns and the stand table: the same live stems from the reporting threshold
+//    up, null where the plot did not measure every stem from the threshold up (stand-table.ts);
+//  - heights: measured, else the local height–diameter model, else the Chave et al. 2005 no-height model;
+//  - below-ground biomass: the plot's live AGB times the ratio of its forest type's root-to-shoot relation
+//    at that AGB (root-shoot.ts); standing dead wood: dead stems at or above their area's dbh minimum, by
+//    the live model choice times the share a dead stem keeps (dead-wood.ts), never in the live columns.
 // AGB and carbon are model estimates with their own uncertainty (see allometry.ts).
 
 import type { PlotMetricValues } from '@stemwise/db/catalogue';
@@ -31,9 +37,13 @@ import {
   shannon,
   simpson,
 } from './diversity';
+import { standingDeadBiomass, DEFAULT_STANDING_DEAD_SHARE } from './dead-wood';
 import { type HeightDiameterModel, predictHeight } from './height-diameter';
+import { DEFAULT_ROOT_SHOOT_BY_CLIMATE, type RootShootRelation, rootShootRatio } from './root-shoot';
 import type { SpeciesIndex, SpeciesReference } from './species-names';
+import { DEFAULT_REPORTING_DBH_MIN_CM, diameterClasses, figuresAtThreshold, measuredFromCm, plotStandTable } from './stand-table';
 import { basalAreaM2, basalAreaPerHa, expansionFactor, quadraticMeanDiameter, stemsPerHa } from './structure';
+import { assertStumpToDbh, DEFAULT_STUMP_TO_DBH, dbhFromStump, type StumpToDbh } from './stump';
 import {
   DEFAULT_WOOD_DENSITY,
   stemWoodDensities,
@@ -84,6 +94,14 @@ export interface PlotMetricOptions {
    * models and wood densities as the plot's figures (change between visits needs it per tree).
    */
   readonly stemAgb?: boolean;
+  /** Root-to-shoot relation of the plot's forest type (default: DEFAULT_ROOT_SHOOT_BY_CLIMATE of its climate). */
+  readonly rootShoot?: RootShootRelation;
+  /** Share of the allometric biomass a standing dead stem keeps (default DEFAULT_STANDING_DEAD_SHARE = 0.7, common practice). */
+  readonly standingDeadShare?: number;
+  /** Reporting threshold of the `reporting_*` columns and the stand table, cm (default 10, a setting). */
+  readonly reportingDbhMinCm?: number;
+  /** DBH from a stump's cut-surface diameter (default DEFAULT_STUMP_TO_DBH, a setting). */
+  readonly stumpToDbh?: StumpToDbh;
 }
 
 export const DEFAULT_MIN_STEMS_FOR_DIVERSITY = 2;
@@ -105,6 +123,11 @@ export interface PlotDiagnostics {
   modelledOutsideFitRange: number;
   /** Live stems below the dbh minimum of the area they were recorded on (left out of every column). */
   liveStemsBelowDbhMin: number;
+  /**
+   * Stand table of the live stems: per class of `diameterClasses(thresholdCm)`, [stems/ha, m²/ha, Mg/ha],
+   * or null where the plot did not measure the class (docs/methods.md#stand-tables).
+   */
+  standTable: { thresholdCm: number; classes: ([number, number, number] | null)[] };
   /** Recorded names of the visit's stems (every status and size) not matched to a listed species: `genus` when the genus is listed, else `unresolved`. */
   unresolvedNames: { name: string; level: 'genus' | 'unresolved'; stems: number }[];
 }
@@ -114,6 +137,8 @@ export interface PlotMetricsResult {
   diagnostics: PlotDiagnostics;
   /** With `stemAgb`: AGB in kg of each input stem, in input order; null for stems that are not live. */
   stemAgbKg?: (number | null)[];
+  /** With `stemAgb`: standing dead wood in kg of each dead stem at or above its minimum, in input order; null for the others. */
+  stemDeadKg?: (number | null)[];
 }
 
 const tables = new WeakMap<SpeciesIndex, WoodDensityTable>();
@@ -179,10 +204,15 @@ export function computePlotMetrics(
   }
   const carbonFraction = options.carbonFraction ?? IPCC_2006_CARBON_FRACTION;
   const table = options.woodDensityTable ?? tableFor(index);
+  const reportingDbhMinCm = options.reportingDbhMinCm ?? DEFAULT_REPORTING_DBH_MIN_CM;
+  const classes = diameterClasses(reportingDbhMinCm);
+  const stumpToDbh = options.stumpToDbh ?? DEFAULT_STUMP_TO_DBH;
+  assertStumpToDbh('computePlotMetrics', stumpToDbh);
 
   // Included live stems, one entry per stem in each array.
   const dbh: number[] = [];
   const weight: number[] = [];
+  const baStem: number[] = []; // basal area, m²
   const baHa: number[] = []; // basal area × expansion, m²/ha
   const height: (number | null)[] = [];
   const hits: (WoodDensityHit | null)[] = [];
@@ -195,6 +225,8 @@ export function computePlotMetrics(
   // With stemAgb: input positions of the included live stems, and the live stems below their minimum.
   const includedAt: number[] = [];
   const below: { at: number; hit: WoodDensityHit | null }[] = [];
+  // Standing dead stems at or above their minimum: input position, weight and wood-density hit.
+  const dead: { at: number; w: number; hit: WoodDensityHit | null }[] = [];
   const unresolved = new Map<string, { level: 'genus' | 'unresolved'; stems: number }>();
 
   const mainWeight = expansionFactor(false, visit.areaHa, visit.subplotAreaHa);
@@ -212,12 +244,17 @@ export function computePlotMetrics(
       else u.stems += 1;
     }
     if (s.status === 'stump') {
-      if (s.stumpCause === 'logged' && !s.inSubplot) loggedStumpBa += basalAreaM2(s.dbhCm);
+      if (s.stumpCause === 'logged' && !s.inSubplot) loggedStumpBa += basalAreaM2(dbhFromStump(s.dbhCm, stumpToDbh));
       continue;
     }
-    if (s.status !== 'live') continue;
     if (s.inSubplot && subplotWeight === null) {
       fail(`stem ${i}: a subplot stem on a plot without a subplot (subplot_area_ha = ${visit.subplotAreaHa})`);
+    }
+    if (s.status === 'dead') {
+      if (s.dbhCm >= (s.inSubplot ? visit.subplotDbhMinCm : visit.dbhMinCm)) {
+        dead.push({ at: i, w: s.inSubplot ? (subplotWeight as number) : mainWeight, hit: table.lookup(index.resolve(s.species)) });
+      }
+      continue;
     }
     if (s.dbhCm < (s.inSubplot ? visit.subplotDbhMinCm : visit.dbhMinCm)) {
       belowMin += 1;
@@ -230,6 +267,7 @@ export function computePlotMetrics(
     const r = index.resolve(s.species);
     dbh.push(s.dbhCm);
     weight.push(w);
+    baStem.push(g);
     baHa.push(g * w);
     height.push(s.heightM);
     hits.push(table.lookup(r));
@@ -245,9 +283,9 @@ export function computePlotMetrics(
   const totalBaHa = basalAreaPerHa(dbh, weight);
 
   // Wood density and biomass
-  // Stems below their minimum get a density too (with stemAgb) but weigh nothing in the plot's mean.
-  const wd = below.length
-    ? stemWoodDensities([...hits, ...below.map((b) => b.hit)], [...baHa, ...below.map(() => 0)], options.defaultWoodDensity ?? DEFAULT_WOOD_DENSITY)
+  // Stems below their minimum (with stemAgb) and dead stems get a density too but weigh nothing in the plot's mean.
+  const wd = below.length || dead.length
+    ? stemWoodDensities([...hits, ...below.map((b) => b.hit), ...dead.map((b) => b.hit)], [...baHa, ...below.map(() => 0), ...dead.map(() => 0)], options.defaultWoodDensity ?? DEFAULT_WOOD_DENSITY)
     : stemWoodDensities(hits, baHa, options.defaultWoodDensity ?? DEFAULT_WOOD_DENSITY);
   // One biomass model choice for every stem: measured height, else the local model, else no height.
   const agbOf = (rho: number, d: number, measured: number | null): number =>
@@ -261,6 +299,7 @@ export function computePlotMetrics(
   const heightCount = [0, 0, 0];
   let outsideRange = 0;
   let agbKgHa = 0;
+  const agbStem = new Array<number>(nLive);
   for (let i = 0; i < nLive; i += 1) {
     const d = dbh[i];
     const rho = wd.values[i];
@@ -272,6 +311,7 @@ export function computePlotMetrics(
       if (d < heightModel.dbhMinCm || d > heightModel.dbhMaxCm) outsideRange += 1;
     } else heightCount[HEIGHT_NONE] += 1;
     const agb = agbOf(rho, d, measured);
+    agbStem[i] = agb;
     if (stemAgbKg) stemAgbKg[includedAt[i]] = agb;
     agbKgHa += weight[i] * agb;
   }
@@ -280,6 +320,29 @@ export function computePlotMetrics(
     (stemAgbKg as (number | null)[])[below[j].at] = agbOf(wd.values[nLive + j], s.dbhCm, s.heightM);
   }
   const agbMgHa = agbKgHa / 1000;
+
+  // Carbon pools: below-ground from the plot's AGB, standing dead wood from the dead stems.
+  const relation = options.rootShoot ?? DEFAULT_ROOT_SHOOT_BY_CLIMATE[visit.climate];
+  const ratio = rootShootRatio(relation, agbMgHa);
+  const bgbMgHa = ratio === null ? 0 : ratio.ratio * agbMgHa;
+  const deadShare = options.standingDeadShare ?? DEFAULT_STANDING_DEAD_SHARE;
+  const stemDeadKg: (number | null)[] | undefined = options.stemAgb ? new Array<number | null>(stems.length).fill(null) : undefined;
+  let deadKgHa = 0;
+  for (let j = 0; j < dead.length; j += 1) {
+    const s = stems[dead[j].at];
+    const kg = standingDeadBiomass(agbOf(wd.values[nLive + below.length + j], s.dbhCm, s.heightM), deadShare);
+    if (stemDeadKg) stemDeadKg[dead[j].at] = kg;
+    deadKgHa += dead[j].w * kg;
+  }
+  const standingDeadMgHa = deadKgHa / 1000;
+  const carbonMgHa = carbonFromBiomass(agbMgHa, carbonFraction);
+  const bgbCarbonMgHa = carbonFromBiomass(bgbMgHa, carbonFraction);
+  const standingDeadCarbonMgHa = carbonFromBiomass(standingDeadMgHa, carbonFraction);
+  // The same stems from the reporting threshold up, and by diameter class.
+  const expanded = { dbhCm: dbh, weight, basalAreaM2: baStem, agbKg: agbStem };
+  const fromCm = measuredFromCm(visit.dbhMinCm, visit.subplotAreaHa, visit.subplotDbhMinCm);
+  const atThreshold = figuresAtThreshold(expanded, reportingDbhMinCm, fromCm);
+  const standTable = plotStandTable(expanded, classes, fromCm).map((f): [number, number, number] | null => (f === null ? null : [f.stemsHa, f.basalAreaM2Ha, f.agbMgHa]));
 
   // Guild shares of live basal area
   let pioneer = 0;
@@ -311,7 +374,7 @@ export function computePlotMetrics(
     basalAreaM2Ha: totalBaHa,
     qmdCm: quadraticMeanDiameter(dbh, weight),
     agbMgHa,
-    carbonMgHa: carbonFromBiomass(agbMgHa, carbonFraction),
+    carbonMgHa,
     nIdentified,
     richness: richness(counts),
     shannon: enough ? shannon(counts) : null,
@@ -329,6 +392,18 @@ export function computePlotMetrics(
     loggingScore: logging,
     fireScore: fireValue,
     disturbanceIndex: disturbanceIndex(logging, fireValue),
+    rootShootRatio: ratio === null ? null : ratio.ratio,
+    bgbMgHa,
+    bgbCarbonMgHa,
+    standingDeadMgHa,
+    standingDeadCarbonMgHa,
+    // C_trees = C_AGB + C_BGB + C_dead — the sum of the covered pools (docs/methods.md#pools-not-covered)
+    treeCarbonMgHa: carbonMgHa + bgbCarbonMgHa + standingDeadCarbonMgHa,
+    reportingDbhMinCm,
+    reportingStemsHa: atThreshold?.stemsHa ?? null,
+    reportingBasalAreaM2Ha: atThreshold?.basalAreaM2Ha ?? null,
+    reportingAgbMgHa: atThreshold?.agbMgHa ?? null,
+    reportingCarbonMgHa: atThreshold === null ? null : carbonFromBiomass(atThreshold.agbMgHa, carbonFraction),
   };
 
   const unresolvedNames = [...unresolved.entries()]
@@ -355,7 +430,8 @@ export function computePlotMetrics(
         : null,
     modelledOutsideFitRange: outsideRange,
     liveStemsBelowDbhMin: belowMin,
+    standTable: { thresholdCm: reportingDbhMinCm, classes: standTable },
     unresolvedNames,
   };
-  return stemAgbKg ? { metrics, diagnostics, stemAgbKg } : { metrics, diagnostics };
+  return stemAgbKg ? { metrics, diagnostics, stemAgbKg, stemDeadKg } : { metrics, diagnostics };
 }

@@ -2,7 +2,7 @@ import fs from 'node:fs';
 import { getTableColumns } from 'drizzle-orm';
 import { describe, expect, it } from 'vitest';
 import { plotMetrics } from '../schema/metrics';
-import { FITTABLE_METRIC_COLUMNS, HEADLINE_METRIC_COLUMNS, PLOT_METRICS, plotMetricByColumn, REGION_METRIC_COLUMNS } from './plot-metrics';
+import { FITTABLE_METRIC_COLUMNS, HEADLINE_METRIC_COLUMNS, PLOT_METRICS, plotMetricByColumn, REGION_METRIC_COLUMNS, reportingColumnOf } from './plot-metrics';
 
 // The columns of `export plots` (docs/exports.md, a contract): new ones may follow, none moves or goes.
 const EXPORT_COLUMNS_V1 = [
@@ -42,14 +42,19 @@ describe('the plot-metric catalogue', () => {
     const rows = PLOT_METRICS.flatMap((m) => (m.regionRow === null ? [] : [m.regionRow])).sort((a, b) => a - b);
     expect(rows).toEqual(rows.map((_, i) => i + 1));
     expect(REGION_METRIC_COLUMNS.slice(0, REGION_VARIABLES_V1.length)).toEqual(REGION_VARIABLES_V1);
-    expect(HEADLINE_METRIC_COLUMNS.slice(0, HEADLINE_V1.length)).toEqual(HEADLINE_V1);
+    // The cards of version 1 keep their places; the four structure and biomass cards show the same
+    // figures at the reporting threshold (docs/methods.md#reporting-threshold).
+    const atThreshold: Record<string, string> = { stems_ha: 'reporting_stems_ha', basal_area_m2_ha: 'reporting_basal_area_m2_ha', agb_mg_ha: 'reporting_agb_mg_ha', carbon_mg_ha: 'reporting_carbon_mg_ha' };
+    expect(HEADLINE_METRIC_COLUMNS.slice(0, HEADLINE_V1.length)).toEqual(HEADLINE_V1.map((c) => atThreshold[c] ?? c));
+    for (const [c, r] of Object.entries(atThreshold)) expect(reportingColumnOf(c)).toBe(r);
+    expect(reportingColumnOf('fisher_alpha')).toBe('fisher_alpha');
     for (const m of PLOT_METRICS) if (m.headline) expect(m.regionRow, m.column).not.toBeNull();
   });
 
   it('gives a total unit to the per-hectare metrics, and only to them', () => {
     const perHa = PLOT_METRICS.filter((m) => m.unit.endsWith('/ha')).map((m) => m.column);
     expect(PLOT_METRICS.filter((m) => 'totalUnit' in m).map((m) => m.column)).toEqual(perHa);
-    expect(perHa).toEqual(['stems_ha', 'basal_area_m2_ha', 'agb_mg_ha', 'carbon_mg_ha']);
+    expect(perHa).toEqual(['stems_ha', 'basal_area_m2_ha', 'agb_mg_ha', 'carbon_mg_ha', 'bgb_mg_ha', 'bgb_carbon_mg_ha', 'standing_dead_mg_ha', 'standing_dead_carbon_mg_ha', 'tree_carbon_mg_ha', 'reporting_stems_ha', 'reporting_basal_area_m2_ha', 'reporting_agb_mg_ha', 'reporting_carbon_mg_ha']);
   });
 
   it('lets a fit use every metric marked fittable, in export order', () => {

@@ -34,6 +34,11 @@ export interface PlotMetricSpec {
   readonly headline: boolean;
   /** May be the metric or the axis of a diversity–disturbance fit. */
   readonly fittable: boolean;
+  /**
+   * The column this one restates at the reporting threshold: its headline card and chart panel take
+   * that column's place on the pages (both stay in the exports).
+   */
+  readonly restates?: string;
 }
 
 export const PLOT_METRICS = [
@@ -169,6 +174,75 @@ export const PLOT_METRICS = [
     description: 'Combined disturbance index of the logging and fire scores, 0 none to 1 severe.',
     regionRow: 7, headline: true, fittable: true,
   },
+  // Carbon pools (docs/methods.md#below-ground-biomass, #standing-dead-wood): kept together.
+  {
+    key: 'rootShootRatio', column: 'root_shoot_ratio', sqlType: 'float8', nullable: true,
+    label: 'Root-to-shoot ratio applied', short: 'Root-to-shoot ratio', unit: '',
+    description: "Ratio of below-ground to above-ground biomass applied to the plot (its forest type's relation at its biomass); null where none applies.",
+    regionRow: null, headline: false, fittable: false,
+  },
+  {
+    key: 'bgbMgHa', column: 'bgb_mg_ha', sqlType: 'float8', nullable: false,
+    label: 'Below-ground biomass', short: 'Root biomass (Mg/ha)', unit: 'Mg/ha', totalUnit: 'Mg',
+    description: 'Below-ground (root) biomass of live trees from above-ground biomass by a published root-to-shoot relation, a model estimate.',
+    regionRow: 14, headline: false, fittable: false,
+  },
+  {
+    key: 'bgbCarbonMgHa', column: 'bgb_carbon_mg_ha', sqlType: 'float8', nullable: false,
+    label: 'Carbon in below-ground biomass', short: 'Root carbon (Mg C/ha)', unit: 'Mg C/ha', totalUnit: 'Mg C',
+    description: 'Carbon in below-ground biomass (biomass × carbon fraction), a model estimate.',
+    regionRow: 15, headline: false, fittable: false,
+  },
+  {
+    key: 'standingDeadMgHa', column: 'standing_dead_mg_ha', sqlType: 'float8', nullable: false,
+    label: 'Standing dead wood biomass', short: 'Standing dead wood (Mg/ha)', unit: 'Mg/ha', totalUnit: 'Mg',
+    description: 'Biomass of standing dead stems: the allometry of a live stem times the share a dead stem keeps, a model estimate.',
+    regionRow: 16, headline: false, fittable: false,
+  },
+  {
+    key: 'standingDeadCarbonMgHa', column: 'standing_dead_carbon_mg_ha', sqlType: 'float8', nullable: false,
+    label: 'Carbon in standing dead wood', short: 'Dead wood carbon (Mg C/ha)', unit: 'Mg C/ha', totalUnit: 'Mg C',
+    description: 'Carbon in standing dead wood (biomass × carbon fraction), a model estimate.',
+    regionRow: 17, headline: false, fittable: false,
+  },
+  {
+    key: 'treeCarbonMgHa', column: 'tree_carbon_mg_ha', sqlType: 'float8', nullable: false,
+    label: 'Carbon in trees (above-ground, below-ground, standing dead)', short: 'Tree carbon (Mg C/ha)', unit: 'Mg C/ha', totalUnit: 'Mg C',
+    description: 'Carbon of the three pools the tally covers: live above-ground and below-ground biomass and standing dead wood (not lying dead wood, litter or soil).',
+    regionRow: 18, headline: false, fittable: false,
+  },
+  // Figures at the reporting threshold (a setting, default 10 cm; docs/methods.md#reporting-threshold):
+  // comparable between plots whatever their diameter minima and subplots. Kept together.
+  {
+    key: 'reportingDbhMinCm', column: 'reporting_dbh_min_cm', sqlType: 'float8', nullable: false,
+    label: 'Reporting threshold of the reporting_ columns', short: 'Reporting threshold (cm)', unit: 'cm',
+    description: 'The diameter from which the reporting_ columns and the stand table count stems (STEMWISE_REPORTING_DBH_MIN_CM when the visit was computed).',
+    regionRow: null, headline: false, fittable: false,
+  },
+  {
+    key: 'reportingStemsHa', column: 'reporting_stems_ha', sqlType: 'float8', nullable: true,
+    label: 'Stem density from the reporting threshold', short: 'Stems per ha ≥ threshold', unit: 'stems/ha', totalUnit: 'stems',
+    description: 'Live stems per hectare from the reporting threshold up; null when the plot did not measure every stem from the threshold up.',
+    regionRow: 19, headline: true, fittable: true, restates: 'stems_ha',
+  },
+  {
+    key: 'reportingBasalAreaM2Ha', column: 'reporting_basal_area_m2_ha', sqlType: 'float8', nullable: true,
+    label: 'Basal area from the reporting threshold', short: 'Basal area ≥ threshold (m²/ha)', unit: 'm²/ha', totalUnit: 'm²',
+    description: 'Basal area of live stems from the reporting threshold up; null when the plot did not measure every stem from the threshold up.',
+    regionRow: 20, headline: true, fittable: true, restates: 'basal_area_m2_ha',
+  },
+  {
+    key: 'reportingAgbMgHa', column: 'reporting_agb_mg_ha', sqlType: 'float8', nullable: true,
+    label: 'Above-ground biomass from the reporting threshold', short: 'Biomass ≥ threshold (Mg/ha)', unit: 'Mg/ha', totalUnit: 'Mg',
+    description: 'Above-ground biomass of live stems from the reporting threshold up, a model estimate; null when the plot did not measure every stem from the threshold up.',
+    regionRow: 21, headline: true, fittable: true, restates: 'agb_mg_ha',
+  },
+  {
+    key: 'reportingCarbonMgHa', column: 'reporting_carbon_mg_ha', sqlType: 'float8', nullable: true,
+    label: 'Carbon in above-ground biomass from the reporting threshold', short: 'Carbon ≥ threshold (Mg C/ha)', unit: 'Mg C/ha', totalUnit: 'Mg C',
+    description: 'Carbon in the above-ground biomass of live stems from the reporting threshold up, a model estimate; null when the plot did not measure every stem from the threshold up.',
+    regionRow: 22, headline: true, fittable: true, restates: 'carbon_mg_ha',
+  },
 ] as const satisfies readonly PlotMetricSpec[];
 
 export type PlotMetricEntry = (typeof PLOT_METRICS)[number];
@@ -192,8 +266,19 @@ export const REGION_METRIC_COLUMNS: readonly PlotMetricColumn[] = PLOT_METRICS.f
   .sort((a, b) => (a.regionRow as number) - (b.regionRow as number))
   .map((m) => m.column);
 
-/** Columns shown as headline cards, in region row order. */
-export const HEADLINE_METRIC_COLUMNS: readonly PlotMetricColumn[] = REGION_METRIC_COLUMNS.filter((c) => BY_COLUMN.get(c)?.headline === true);
+/** The column that restates `column` at the reporting threshold, or `column` itself when none does. */
+export function reportingColumnOf(column: string): string {
+  return PLOT_METRICS.find((m) => 'restates' in m && m.restates === column)?.column ?? column;
+}
+
+/**
+ * Columns shown as headline cards, in region row order; a column restated at the reporting threshold
+ * gives its place to the restating column.
+ */
+export const HEADLINE_METRIC_COLUMNS: readonly PlotMetricColumn[] = REGION_METRIC_COLUMNS.filter((c) => {
+  const m = BY_COLUMN.get(c);
+  return m?.headline === true && m.restates === undefined;
+}).map((c) => reportingColumnOf(c) as PlotMetricColumn);
 
 /** Columns a fit may use as its metric or axis, in export order. */
 export const FITTABLE_METRIC_COLUMNS: readonly PlotMetricColumn[] = PLOT_METRICS.filter((m) => m.fittable).map((m) => m.column);

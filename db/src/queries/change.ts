@@ -38,6 +38,9 @@ export const PLOT_CHANGE_DB_COLUMNS = [
   ['ba_loss_m2_ha_yr', 'float8'],
   ['agb_died_mg_ha_yr', 'float8'],
   ['agb_removed_mg_ha_yr', 'float8'],
+  ['bgb_net_change_mg_ha_yr', 'float8'],
+  ['standing_dead_net_change_mg_ha_yr', 'float8'],
+  ['tree_carbon_net_change_mg_ha_yr', 'float8'],
 ] as const;
 
 export type PlotChangeDbColumn = (typeof PLOT_CHANGE_DB_COLUMNS)[number][0];

@@ -34,6 +34,8 @@ export interface RegionPlotRow extends Pick<Plot, 'plotKey' | 'forestType' | 'la
   metrics: MetricColumns;
   /** Change from the previous visit to this one (docs/methods.md#change-between-visits); every value null when the plot has no earlier visit. */
   change: Record<RegionChangeColumn, number | null>;
+  /** The visit's stand table by diameter class as its metrics stored it (diagnostics `standTable`); null for metrics computed before stand tables. */
+  standTable: unknown;
 }
 
 /** The per-plot change columns the region and national estimates of change use. */
@@ -46,6 +48,10 @@ export const REGION_CHANGE_COLUMNS = [
   'mortality_annual',
   'recruitment_annual',
   'dbh_increment_cm_yr',
+  // Carbon pools (docs/methods.md#change-between-visits)
+  'bgb_net_change_mg_ha_yr',
+  'standing_dead_net_change_mg_ha_yr',
+  'tree_carbon_net_change_mg_ha_yr',
 ] as const satisfies readonly PlotChangeDbColumn[];
 export type RegionChangeColumn = (typeof REGION_CHANGE_COLUMNS)[number];
 
@@ -54,7 +60,7 @@ export async function listRegionLatestPlots(db: Queryable, region: string): Prom
   const rows = await db.query<Omit<RegionPlotRow, 'metrics' | 'change'> & MetricColumns & Partial<Record<RegionChangeColumn, number | null>>>(
     `with latest as (${LATEST_VISITS})
      select p.plot_key "plotKey", p.forest_type "forestType", p.latitude, p.longitude, p.elevation_m "elevationM", l.survey_date::text "surveyDate", ${METRIC_SELECT},
-            ${REGION_CHANGE_COLUMNS.map((x) => `c.${x}`).join(', ')}
+            ${REGION_CHANGE_COLUMNS.map((x) => `c.${x}`).join(', ')}, m.diagnostics->'standTable' "standTable"
        from latest l
        join plots p on p.id = l.plot_id
        join plot_metrics m on m.visit_id = l.visit_id
@@ -71,6 +77,7 @@ export async function listRegionLatestPlots(db: Queryable, region: string): Prom
     surveyDate: r.surveyDate,
     metrics: numericColumns(r, METRIC_NAMES),
     change: numericColumns(r, REGION_CHANGE_COLUMNS),
+    standTable: r.standTable ?? null,
   }));
 }
 

@@ -44,6 +44,10 @@ export const plotChange = pgTable(
     baLossM2HaYr: doublePrecision('ba_loss_m2_ha_yr').notNull(),
     agbDiedMgHaYr: doublePrecision('agb_died_mg_ha_yr').notNull(),
     agbRemovedMgHaYr: doublePrecision('agb_removed_mg_ha_yr').notNull(),
+    // Carbon pools (docs/methods.md#change-between-visits); empty in rows written before they existed.
+    bgbNetChangeMgHaYr: doublePrecision('bgb_net_change_mg_ha_yr'),
+    standingDeadNetChangeMgHaYr: doublePrecision('standing_dead_net_change_mg_ha_yr'),
+    treeCarbonNetChangeMgHaYr: doublePrecision('tree_carbon_net_change_mg_ha_yr'),
     computedAt: timestamp('computed_at', { withTimezone: true }).notNull().defaultNow(),
   },
   (t) => [primaryKey({ name: 'plot_change_pk', columns: [t.visitFromId, t.visitToId] }), index('plot_change_plot_idx').on(t.plotId)],

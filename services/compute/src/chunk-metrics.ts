@@ -1,6 +1,6 @@
 import type { ComputeStemRow, ComputeVisitRow, PlotMetricsWrite } from '@stemwise/db';
 import { PLOT_METRICS } from '@stemwise/db/catalogue';
-import { computePlotMetrics, type HeightDiameterModel, type PlotDiagnostics, type SpeciesIndex } from '@stemwise/core/science';
+import { computePlotMetrics, type ConfiguredRootShoot, type HeightDiameterModel, type PlotDiagnostics, type PlotMetricOptions, rootShootRelationOf, type SpeciesIndex, type StumpToDbh } from '@stemwise/core/science';
 
 // The CPU-bound part of a plot chunk: the metrics of each visit from its stems. Pure (no I/O, no
 // packages beyond the science), so that it runs the same in a worker thread (metrics-worker.ts) as in
@@ -15,6 +15,12 @@ export interface ChunkTask {
   models: ReadonlyArray<readonly [string, HeightDiameterModel]>;
   defaultWoodDensity: number;
   speciesVersionId: number | null;
+  /** Configured root-to-shoot relations (the others by climate) and the standing dead share: docs/methods.md#below-ground-biomass. */
+  rootShoot: readonly ConfiguredRootShoot[];
+  standingDeadShare: number;
+  /** The reporting threshold and the stump-to-DBH relation (settings; docs/methods.md). */
+  reportingDbhMinCm: number;
+  stumpToDbh: StumpToDbh;
 }
 
 export type VisitWrite = PlotMetricsWrite & { diagnostics: PlotDiagnostics & { heightModelHeights: number | null } };
@@ -27,7 +33,15 @@ export function computeVisits(task: ChunkTask): VisitOutcome[] {
   const models = new Map(task.models);
   return task.visits.map((visit, i) => {
     try {
-      return { write: computeVisit(visit, task.stems[i], task.species, models.get(visit.forestType) ?? null, task.defaultWoodDensity, task.speciesVersionId) };
+      const options: PlotMetricOptions = {
+        heightModel: models.get(visit.forestType) ?? null,
+        defaultWoodDensity: task.defaultWoodDensity,
+        rootShoot: rootShootRelationOf(visit.forestType, visit.climate, task.rootShoot),
+        standingDeadShare: task.standingDeadShare,
+        reportingDbhMinCm: task.reportingDbhMinCm,
+        stumpToDbh: task.stumpToDbh,
+      };
+      return { write: computeVisit(visit, task.stems[i], task.species, options, task.speciesVersionId) };
     } catch (err) {
       // Input the science refuses (a RangeError) names the plot; anything else keeps its own message.
       const reason = err instanceof RangeError ? `plot ${visit.plotKey} (visit ${visit.visitId}): ${err.message}` : (err as Error).message;
@@ -40,8 +54,7 @@ function computeVisit(
   visit: ComputeVisitRow,
   stems: readonly ComputeStemRow[],
   index: SpeciesIndex,
-  heightModel: HeightDiameterModel | null,
-  defaultWoodDensity: number,
+  options: PlotMetricOptions,
   speciesVersionId: number | null,
 ): VisitWrite {
   const result = computePlotMetrics(
@@ -56,7 +69,7 @@ function computeVisit(
     },
     stems,
     index,
-    { heightModel, defaultWoodDensity },
+    options,
   );
   const { metrics } = result;
   return {
@@ -64,6 +77,6 @@ function computeVisit(
     speciesVersionId,
     // In catalogue order: the order of PLOT_METRIC_DB_COLUMNS, which the upsert's columns follow.
     values: PLOT_METRICS.map((c) => metrics[c.key]),
-    diagnostics: { ...result.diagnostics, heightModelHeights: heightModel?.n ?? null },
+    diagnostics: { ...result.diagnostics, heightModelHeights: options.heightModel?.n ?? null },
   };
 }

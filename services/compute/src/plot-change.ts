@@ -1,5 +1,5 @@
 import { clearProblems, listVisitsForChange, loadStemsWithTreeIds, PLOT_CHANGE_DB_COLUMNS, recordProblems, replacePlotChanges, type ChangeStemRow, type ChangeVisitRow, type PlotChangeWrite, type Queryable } from '@stemwise/db';
-import { computePlotMetrics, PLOT_CHANGE_COLUMNS, plotChange, type ChangeVisit, type HeightDiameterModel, type PlotChange, type SpeciesIndex } from '@stemwise/core';
+import { computePlotMetrics, type ConfiguredRootShoot, PLOT_CHANGE_COLUMNS, plotChange, rootShootRelationOf, type ChangeVisit, type HeightDiameterModel, type PlotChange, type SpeciesIndex } from '@stemwise/core';
 import { isInfrastructureError, type Logger } from '@stemwise/platform';
 
 // The science's change columns and the stored ones must be the same columns in the same order.
@@ -14,19 +14,30 @@ export interface PlotChangeContext {
   models: ReadonlyMap<string, HeightDiameterModel>;
   defaultWoodDensity: number;
   speciesVersionId: number | null;
+  /** As in the plot metrics: docs/methods.md#below-ground-biomass, #standing-dead-wood. */
+  rootShoot: readonly ConfiguredRootShoot[];
+  standingDeadShare: number;
   runId: string;
   log?: Logger;
 }
 
-/** One visit's trees with the biomass of each live stem, from the same models as its plot metrics. */
+/** One visit's trees with the biomass of each live (and dead) stem, from the same models and settings as its plot metrics. */
 function changeVisit(visit: ChangeVisitRow, stems: readonly ChangeStemRow[], ctx: PlotChangeContext): ChangeVisit {
-  const { stemAgbKg } = computePlotMetrics(visit, stems, ctx.index, { heightModel: ctx.models.get(visit.forestType) ?? null, defaultWoodDensity: ctx.defaultWoodDensity, stemAgb: true });
+  const { metrics, stemAgbKg, stemDeadKg } = computePlotMetrics(visit, stems, ctx.index, {
+    heightModel: ctx.models.get(visit.forestType) ?? null,
+    defaultWoodDensity: ctx.defaultWoodDensity,
+    rootShoot: rootShootRelationOf(visit.forestType, visit.climate, ctx.rootShoot),
+    standingDeadShare: ctx.standingDeadShare,
+    stemAgb: true,
+  });
   const agb = stemAgbKg as (number | null)[];
+  const dead = stemDeadKg as (number | null)[];
   return {
     surveyDate: visit.surveyDate,
     areaHa: visit.areaHa,
     dbhMinCm: visit.dbhMinCm,
-    trees: stems.map((s, i) => ({ treeId: s.treeId, dbhCm: s.dbhCm, status: s.status, stumpCause: s.stumpCause, inSubplot: s.inSubplot, agbKg: agb[i] })),
+    rootShootRatio: metrics.rootShootRatio,
+    trees: stems.map((s, i) => ({ treeId: s.treeId, dbhCm: s.dbhCm, status: s.status, stumpCause: s.stumpCause, inSubplot: s.inSubplot, agbKg: agb[i], deadKg: dead[i] })),
   };
 }
 

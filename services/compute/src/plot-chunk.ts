@@ -60,7 +60,7 @@ export async function computePlotChunk(deps: Pick<ServiceDeps, 'db' | 'config'> 
 
     const stems = visits.map((v) => stemsOf.get(v.visitId) ?? []);
     // The CPU-bound part, in the worker threads when there are any (see metrics-pool.ts); the same code either way.
-    const task: ChunkTask = { visits, stems, species: species.index, models: [...models], defaultWoodDensity: config.defaultWoodDensity, speciesVersionId: species.versionId };
+    const task: ChunkTask = { visits, stems, species: species.index, models: [...models], defaultWoodDensity: config.defaultWoodDensity, speciesVersionId: species.versionId, rootShoot: config.rootShoot, standingDeadShare: config.standingDeadShare, reportingDbhMinCm: config.reportingDbhMinCm, stumpToDbh: config.stumpToDbh };
     const outcomes = config.computeThreads > 0 ? await metricsPool(config.computeThreads).compute(task) : computeVisits(task);
 
     const writes: PlotMetricsWrite[] = [];
@@ -88,7 +88,7 @@ export async function computePlotChunk(deps: Pick<ServiceDeps, 'db' | 'config'> 
     await clearProblems(tx, 'plot', computed.map(String));
     await recordProblems(tx, runId, failed);
     await markVisitsComputed(tx, ids);
-    const change = await writePlotChanges(tx, plotIds, { index: species.index, models, defaultWoodDensity: config.defaultWoodDensity, speciesVersionId: species.versionId, runId, log });
+    const change = await writePlotChanges(tx, plotIds, { index: species.index, models, defaultWoodDensity: config.defaultWoodDensity, speciesVersionId: species.versionId, rootShoot: config.rootShoot, standingDeadShare: config.standingDeadShare, runId, log });
     await markStale(tx, 'fits', forestTypes);
     await markStale(tx, 'summary', [...new Set(visits.map((v) => v.region))].sort());
     const counts: ChunkCounts = {

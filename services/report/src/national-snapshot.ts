@@ -7,7 +7,7 @@ import {
   listRegionNames,
   type Queryable,
 } from '@stemwise/db';
-import { cautionSettings, type NationalSummary, type ServiceDeps } from '@stemwise/core';
+import { cautionSettings, standTableValues, type NationalSummary, type ServiceDeps } from '@stemwise/core';
 import { renderMeansChartSvg } from '@stemwise/core/charts';
 import type { Logger } from '@stemwise/platform';
 import { summariseNation, type NationalRegionInput } from './summary/national-summary';
@@ -58,7 +58,7 @@ export async function assembleNationalSnapshot(deps: Deps, sources: Readonly<Rec
   for (const region of await listRegionNames(db)) {
     const [plots, forestAreas] = await Promise.all([listRegionLatestPlots(db, region), listRegionForestAreas(db, region)]);
     for (const p of plots) dates.push(p.surveyDate);
-    regions.push({ region, forestAreas, plots: plots.map((p) => ({ plotId: p.plotKey, forestType: p.forestType, values: { ...p.metrics, ...p.change } })) });
+    regions.push({ region, forestAreas, plots: plots.map((p) => ({ plotId: p.plotKey, forestType: p.forestType, values: { ...p.metrics, ...p.change, ...standTableValues(p.standTable) } })) });
   }
   const summary = summariseNation({ regions, variables: summaryVariables(regions.flatMap((r) => r.plots)), options: { samplingErrorT: samplingErrorMultiplier(config), caution: cautionSettings(config) } });
   dates.sort();

@@ -13,7 +13,7 @@ import {
   recordProblems,
   regionExists,
 } from '@stemwise/db';
-import { asStoredFitChart, cautionSettings, currentSpecies, IPCC_2006_CARBON_FRACTION, toFitRow, type SamplingErrorT, type ServiceDeps, type StoredFitChart } from '@stemwise/core';
+import { asStoredFitChart, cautionSettings, currentSpecies, IPCC_2006_CARBON_FRACTION, standTableValues, toFitRow, type SamplingErrorT, type ServiceDeps, type StoredFitChart } from '@stemwise/core';
 import { isInfrastructureError, PermanentError, type Config, type Logger } from '@stemwise/platform';
 import { buildFitChartSpec, buildGuildChartSpec, buildMeansChartSpec, chartSpecKey, regionChartPoints, renderVegaLiteSvg, type TopLevelSpec } from '@stemwise/core/charts';
 import { RegionSummaryInputError, summariseRegion, summaryVariables, type PlotMetrics } from './summary/region-summary';
@@ -106,7 +106,7 @@ export async function assembleRegionSnapshot(deps: Deps, region: string, charts:
   const inputPlots: PlotMetrics[] = plots.map((p) => ({
     plotId: p.plotKey,
     forestType: p.forestType,
-    values: { ...p.metrics, ...p.change },
+    values: { ...p.metrics, ...p.change, ...standTableValues(p.standTable) },
     speciesNames: accepted.get(p.plotKey) ?? [],
   }));
   const summary = summariseRegion({ region, plots: inputPlots, forestAreas: areas, variables: summaryVariables(inputPlots), options: { samplingErrorT: samplingErrorMultiplier(config), caution: cautionSettings(config) } });

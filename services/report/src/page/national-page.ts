@@ -2,7 +2,9 @@ import type { NationalSnapshot } from '../national-snapshot';
 import { figure, isoMinute } from './figures';
 import { html, safeSvg } from './html';
 import { cautionLegend, cautions, estimatesTable, headlineCards, versionsList, visitsSentence } from './region-page';
+import { poolsSection } from './pools-section';
 import { pageShell } from './shell';
+import { reportingThresholdNote, standTableSection } from './stand-table-section';
 
 export interface NationalPageInput {
   snapshot: NationalSnapshot;
@@ -45,11 +47,16 @@ export function renderNationalPage(input: NationalPageInput): string {
   <h2 id="headline-figures">Headline figures for all regions together</h2>
   <p class="muted">Stratified estimates with every region × forest type as a stratum; 95 % intervals use Student t at Satterthwaite degrees of freedom.</p>
   ${headlineCards(summary.rows, summary.totals)}
+  ${reportingThresholdNote(summary.rows)}
   ${cautionLegend(summary.caution)}
+  <h2 id="carbon-pools">Carbon pools</h2>
+  ${poolsSection(summary.rows, summary.totals, input.carbonFraction) ?? html`<p class="muted">This summary was made before the carbon pools were estimated; the next recompute adds them.</p>`}
   ${means ? html`<h2>Charts</h2><figure id="means-chart">${means}<figcaption>Means per hectare with their 95 % confidence intervals: all regions together (dark) and each forest type nationally.</figcaption></figure>` : null}
   <h2>Estimates by forest type, nationally</h2>
   ${estimatesTable(summary.rows, WHOLE_COUNTRY)}
   ${cautionLegend(summary.caution)}
+  <h2 id="stand-table-heading">Stand table by diameter class</h2>
+  ${standTableSection(summary.rows, WHOLE_COUNTRY) ?? html`<p class="muted">No stand table in this version of the summary.</p>`}
   <h2>Strata</h2>
   <table id="strata"><thead><tr><th>Region</th><th>Forest type</th><th class="num">Plots</th><th class="num">Forest area (ha)</th></tr></thead><tbody>${summary.strata.map(
     (t) => html`<tr><td>${t.region}</td><td>${t.forest_type}</td><td class="num">${t.n_plots}</td><td class="num">${figure(t.forest_area_ha)}</td></tr>`,

@@ -1,10 +1,12 @@
 import { problemLine, type ProblemView } from '@stemwise/db';
 import type { Snapshot } from '../snapshot-payload';
-import { CAUTION_WORDS, HEADLINE_VARIABLES, totalUnit, variableLabel, type CautionSettings, type DisturbanceRow, type RegionRow, type TotalRow } from '@stemwise/core';
+import { CAUTION_WORDS, HEADLINE_VARIABLES, isStandVariable, totalUnit, variableLabel, type CautionSettings, type DisturbanceRow, type RegionRow, type TotalRow } from '@stemwise/core';
 import { estimate, estimateInterval, figure, isoMinute, samplingError, sharePercent, standardError } from './figures';
 import { html, safeSvg, type Markup } from './html';
 import { pageShell } from './shell';
 import { fitsSection } from './fits-section';
+import { poolsSection } from './pools-section';
+import { reportingThresholdNote, standTableSection } from './stand-table-section';
 
 export interface RegionPageLinks {
   index: string;
@@ -85,7 +87,8 @@ export function headlineCards(rows: readonly RegionRow[], totals: readonly Total
 const totalSe = (r: RegionRow): number | null => (r.se !== null && r.forest_area_ha !== null ? r.se * r.forest_area_ha : null);
 
 export function estimatesTable(rows: readonly RegionRow[], whole?: string): Markup {
-  const variables = [...new Set(rows.map((r) => r.variable))];
+  // The stand-table classes have a table of their own (stand-table-section.ts).
+  const variables = [...new Set(rows.map((r) => r.variable))].filter((v) => !isStandVariable(v));
   const body = variables.map((v) => {
     const group = rows.filter((r) => r.variable === v).sort((a, b) => (a.forest_type === WHOLE ? -1 : b.forest_type === WHOLE ? 1 : a.forest_type < b.forest_type ? -1 : 1));
     const label = variableLabel(v);
@@ -196,7 +199,10 @@ export function renderRegionPage(input: RegionPageInput): string {
   <h2 id="headline-figures">Headline figures for the whole region</h2>
   <p class="muted">Stratified estimates over the forest types; 95 % intervals use Student t (degrees of freedom in the notes below).</p>
   ${headlineCards(summary.rows, summary.totals)}
+  ${reportingThresholdNote(summary.rows)}
   ${cautionLegend(summary.caution)}
+  <h2 id="carbon-pools">Carbon pools</h2>
+  ${poolsSection(summary.rows, summary.totals, method.carbon_fraction) ?? html`<p class="muted">This summary was made before the carbon pools were estimated; the next recompute adds them.</p>`}
   <h2>Charts</h2>
   ${means ? html`<figure id="means-chart">${means}<figcaption>Means per hectare with their 95 % confidence intervals: the whole region (dark) and each forest type. Wide intervals come from few plots.</figcaption></figure>` : null}
   ${guilds ? html`<figure id="guild-chart">${guilds}<figcaption>Guild composition: the mean share of live basal area per plot.</figcaption></figure>` : null}
@@ -205,6 +211,8 @@ export function renderRegionPage(input: RegionPageInput): string {
   <h2>Estimates by forest type</h2>
   ${estimatesTable(summary.rows)}
   ${cautionLegend(summary.caution)}
+  <h2 id="stand-table-heading">Stand table by diameter class</h2>
+  ${standTableSection(summary.rows, 'Whole region (stratified)') ?? html`<p class="muted">No stand table in this version of the summary.</p>`}
   <h2>Guild composition</h2>
   ${guildTable(s) ?? html`<p class="muted">No guild shares.</p>`}
   <h2>Plots by disturbance class</h2>

@@ -1,5 +1,5 @@
 import { REGION_CHANGE_COLUMNS } from '@stemwise/db';
-import { assertCautionSettings, assertStratifiedOptions, cautionFlag, countLeftOut, DEFAULT_CAUTION, DEFAULT_REGION_VARIABLES, isPerHectare, leftOutSentence, leftOutText, stratifiedEstimate, WHOLE_REGION, type CautionSettings, type DisturbanceSummary, type EstimateDetail, type GuildRow, type PlotMetricColumn, type RegionRow, type RegionSummary, type StratifiedEstimate, type StratifiedOptions, type SummaryGuild, type SummaryNote, type TotalRow } from '@stemwise/core';
+import { assertCautionSettings, standTableVariables, assertStratifiedOptions, cautionFlag, countLeftOut, DEFAULT_CAUTION, DEFAULT_REGION_VARIABLES, isPerHectare, leftOutSentence, leftOutText, stratifiedEstimate, WHOLE_REGION, type CautionSettings, type DisturbanceSummary, type EstimateDetail, type GuildRow, type PlotMetricColumn, type RegionRow, type RegionSummary, type StratifiedEstimate, type StratifiedOptions, type SummaryGuild, type SummaryNote, type TotalRow } from '@stemwise/core';
 import { DEFAULT_DISTURBANCE_CLASSES, assertDisturbanceClasses, disturbanceClassIndex } from './disturbance-classes';
 import { resolveForestAreas } from './forest-areas';
 import { validateInput, type PlotMetrics, type RegionSummaryInput } from './input';
@@ -15,10 +15,10 @@ export { RegionSummaryInputError, type PlotMetrics, type RegionSummaryInput, typ
  */
 export const CHANGE_VARIABLES: readonly string[] = REGION_CHANGE_COLUMNS;
 
-/** The default variables, and those of change when any plot has a change value (a plot measured twice). */
+/** The default variables, those of change when any plot has a change value (a plot measured twice), and the stand-table classes of the plots (docs/methods.md#stand-tables). */
 export function summaryVariables(plots: ReadonlyArray<{ readonly values: Readonly<Record<string, number | null | undefined>> }>): readonly string[] {
   const change = plots.some((p) => CHANGE_VARIABLES.some((v) => p.values[v] !== undefined && p.values[v] !== null));
-  return change ? [...DEFAULT_REGION_VARIABLES, ...CHANGE_VARIABLES] : DEFAULT_REGION_VARIABLES;
+  return [...DEFAULT_REGION_VARIABLES, ...(change ? CHANGE_VARIABLES : []), ...standTableVariables(plots)];
 }
 
 export const GUILD_VARIABLES: Readonly<Record<SummaryGuild, PlotMetricColumn>> = {
