@@ -5,7 +5,7 @@
 // the plot's target: recruits continue the plot's Chinese restaurant process, deaths are blind to species.
 
 import { SpeciesPool } from './community';
-import { plotDisturbance, type PlotDisturbance } from './disturbance-index';
+import { plotDisturbance, STUMP_DBH_RATIO, type PlotDisturbance } from './disturbance-index';
 import { DAY_MS, type GeneratedPlot, type PlotRow, type TreeStem, unidentifiedName, writtenName } from './plot-generator';
 import { PLANTED_CHANGE, plotRates, REVISIT } from './planted-change';
 import { rngFor, type Rng } from './random';
@@ -54,7 +54,8 @@ export function secondVisit(seed: number, flora: Flora, plot: GeneratedPlot, ind
     }
     if (!s.inSubplot) nLiveMain += 1;
     if (!s.inSubplot && s.dbhCm >= REVISIT.harvestMinDbhCm && rng.chance(pFelled)) {
-      stems.push({ ...s, status: 'stump', stumpCause: 'logged', fireDamage: 0, heightM: null });
+      // The crew records the wider cut surface of the stump (to 0.1 cm), as at the first visit (stand.ts).
+      stems.push({ ...s, dbhCm: Math.round((s.dbhCm / STUMP_DBH_RATIO) * 10) / 10, status: 'stump', stumpCause: 'logged', fireDamage: 0, heightM: null });
       continue;
     }
     if (rng.chance(pDie)) {
