@@ -16,3 +16,4 @@ export * from './queries/batches';
 export * from './queries/load';
 export * from './queries/species-reference';
 export * from './queries/change';
+export * from './queries/plot-page';

@@ -62,6 +62,7 @@ const envSchema = z.object({
   STEMWISE_REPORTING_DBH_MIN_CM: num().pipe(z.number().gt(0).max(200)).default(10),
   STEMWISE_STUMP_DBH_INTERCEPT_CM: num().pipe(z.number().min(-50).max(50)).default(0),
   STEMWISE_STUMP_DBH_SLOPE: num().pipe(z.number().gt(0).max(2)).default(0.8),
+  STEMWISE_HEIGHT_MODEL_TOLERANCE: num().pipe(z.number().min(0).max(1)).default(0.005),
   STEMWISE_SAMPLING_ERROR_T: z.enum(['t', '1.96', '2']).default('t'),
   STEMWISE_CAUTION_MIN_PLOTS: intIn(1, 1_000_000).default(20),
   STEMWISE_CAUTION_MAX_SAMPLING_ERROR_PCT: num().pipe(z.number().gt(0).max(1000)).default(20),
@@ -135,6 +136,8 @@ export interface Config {
   reportingDbhMinCm: number;
   /** DBH = intercept + slope · stump diameter (cm): the stump-to-DBH relation of logged stumps. */
   stumpToDbh: { interceptCm: number; slope: number };
+  /** A refitted height–diameter model replaces the stored one only when it moves some stem's biomass by more than this share (docs/methods.md#height-model-releases). */
+  heightModelTolerance: number;
   samplingErrorT: 't' | '1.96' | '2';
   /** Estimates from fewer plots are flagged `few_plots` (caution_flag). */
   cautionMinPlots: number;
@@ -186,6 +189,7 @@ export const SETTINGS: ReadonlyArray<{ name: string; default: string; meaning: s
   { name: 'STEMWISE_REPORTING_DBH_MIN_CM', default: '10', meaning: 'reporting threshold (cm): the headline and regional stems/ha, basal area, biomass and carbon, and the stand tables, count live stems from this diameter up, so plots with other diameter minima or without a subplot compare; plots that did not measure down to it are left out of those figures (docs/methods.md#reporting-threshold); changing it needs a full recompute (`stemwise recompute --all`)' },
   { name: 'STEMWISE_STUMP_DBH_INTERCEPT_CM', default: '0', meaning: 'a of DBH = a + b · stump diameter (cm), the conversion of logged stumps before their basal area counts as removed (docs/methods.md#stump-diameter-to-dbh)' },
   { name: 'STEMWISE_STUMP_DBH_SLOPE', default: '0.8', meaning: 'b of DBH = a + b · stump diameter; the default is common practice, not a published value: set a relation fitted to local paired measurements' },
+  { name: 'STEMWISE_HEIGHT_MODEL_TOLERANCE', default: '0.005', meaning: "a refitted height–diameter model replaces the stored one (and its forest type is recomputed) only when it moves some stem's biomass by more than this share; `recompute --all` always takes the refit" },
   { name: 'STEMWISE_SAMPLING_ERROR_T', default: 't', meaning: 'multiplier of the sampling error %: Student t, 1.96 or 2' },
   { name: 'STEMWISE_CAUTION_MIN_PLOTS', default: '20', meaning: 'estimates from fewer plots are marked on the pages and flagged `few_plots` in `caution_flag` (common practice, no single source)' },
   { name: 'STEMWISE_CAUTION_MAX_SAMPLING_ERROR_PCT', default: '20', meaning: 'estimates with a larger sampling error (%) are marked on the pages and flagged `wide_error` in `caution_flag` (common practice, no single source)' },
@@ -274,6 +278,7 @@ export function loadConfig(env: Readonly<Record<string, string | undefined>> = p
     minHeights: e.STEMWISE_MIN_HEIGHTS,
     reportingDbhMinCm: e.STEMWISE_REPORTING_DBH_MIN_CM,
     stumpToDbh: { interceptCm: e.STEMWISE_STUMP_DBH_INTERCEPT_CM, slope: e.STEMWISE_STUMP_DBH_SLOPE },
+    heightModelTolerance: e.STEMWISE_HEIGHT_MODEL_TOLERANCE,
     samplingErrorT: e.STEMWISE_SAMPLING_ERROR_T,
     cautionMinPlots: e.STEMWISE_CAUTION_MIN_PLOTS,
     cautionMaxSamplingErrorPct: e.STEMWISE_CAUTION_MAX_SAMPLING_ERROR_PCT,

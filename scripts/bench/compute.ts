@@ -10,14 +10,13 @@
 //   DATABASE_URL=postgres://postgres@127.0.0.1:5432/postgres npx tsx scripts/bench/compute.ts [--big] [--sizes 250000,1000000] [--in-process]
 //
 // DATABASE_URL (default: the local server) names a database used only to create and drop a scratch database per size.
-import crypto from 'node:crypto';
 import { parseArgs } from 'node:util';
 import { createLogger, InProcessQueue, loadConfig, type JobQueue } from '@stemwise/platform';
 import { getRecomputeRun, markStale, migrateDatabase, openDatabase, syncForestTypes, type Db } from '@stemwise/db';
 import { computePlotChunk, refreshStaleFits, service as computeService } from '@stemwise/compute';
 import { refreshStaleSummaries, service as reportService } from '@stemwise/report';
 import { finishPlotsStage, planRecompute, stageTimeLines, type StageTime } from '@stemwise/core';
-import { fixtureSpecies, loadSpecies, rng } from '../../test/compute/fixtures';
+import { load, REGIONS } from './support/inventory';
 
 const { values } = parseArgs({
   options: { big: { type: 'boolean', default: false }, sizes: { type: 'string' }, keep: { type: 'boolean', default: false }, 'in-process': { type: 'boolean', default: false } },
@@ -26,69 +25,11 @@ const sizes = values.sizes ? values.sizes.split(',').map(Number) : [250_000, 1_0
 // The local server when DATABASE_URL is unset, as the other benchmarks do.
 const config = { ...loadConfig(), databaseUrl: loadConfig().databaseUrl ?? 'postgres://postgres@127.0.0.1:5432/postgres' };
 const log = createLogger('warn');
-const STEMS_PER_PLOT = 125;
-const FOREST_TYPES = ['wet', 'moist', 'dry'];
-const REGIONS = ['Harrowmere', 'Kestrel Downs', 'Sallowfen', 'Brackenholt'];
 
 function withDatabase(url: string, name: string): string {
   const u = new URL(url);
   u.pathname = `/${name}`;
   return u.toString();
-}
-
-/** Plots and visits by unnest, stems by COPY; returns the number of stems loaded. */
-async function load(db: Db, nStems: number): Promise<number> {
-  const species = fixtureSpecies();
-  await loadSpecies(db, species);
-  const r = rng(nStems);
-  const nPlots = Math.round(nStems / STEMS_PER_PLOT);
-  const batchId = crypto.randomUUID();
-  await db.query(`insert into batches (id, state, content_hash, files) values ($1, 'loaded', $2, '{}'::jsonb)`, [batchId, batchId]);
-  await db.query(`insert into regions (name) select unnest($1::text[]) on conflict do nothing`, [REGIONS]);
-  const regionIds = await db.query<{ id: number }>(`select id from regions order by id`);
-  const keys = Array.from({ length: nPlots }, (_, i) => `B${String(i).padStart(6, '0')}`);
-  await db.query(
-    `insert into plots (plot_key, region_id, forest_type, latitude, longitude)
-     select k, ($2::int[])[1 + (i % 4)], ($3::text[])[1 + (i % 3)], -2 - (i % 100) * 0.01, 20 + (i % 97) * 0.01
-       from unnest($1::text[]) with ordinality t(k, i)`,
-    [keys, regionIds.map((x) => x.id), FOREST_TYPES],
-  );
-  const visits = await db.query<{ id: string }>(
-    `insert into plot_visits (plot_id, survey_date, batch_id, area_ha, logging_class, fire_class)
-     select id, date '2024-03-01', $1, 0.25, id % 4, (id / 4) % 4 from plots order by id returning id`,
-    [batchId],
-  );
-  let stems = 0;
-  await db.transaction(async (tx) => {
-    async function* rows(): AsyncGenerator<string> {
-      let buf = '';
-      for (const v of visits) {
-        const n = 100 + Math.floor(r() * 51);
-        const heights = r() < 0.2;
-        const disturbance = r();
-        for (let t = 0; t < n; t++) {
-          const sp = species[Math.floor(species.length * r() * r())];
-          const u = r();
-          const status = u < 0.04 ? 'dead' : u < 0.04 + 0.2 * disturbance ? 'stump' : 'live';
-          const d = Math.min(250, 10 + -Math.log(1 - r()) * 14);
-          const lnD = Math.log(d);
-          const h = heights && status === 'live' ? Math.min(60, Math.max(1.5, Math.exp(0.893 + 0.76 * lnD - 0.034 * lnD * lnD + (r() - 0.5) * 0.5))).toFixed(1) : '';
-          const style = r();
-          const name = style < 0.03 ? '' : style < 0.05 ? 'indet' : style < 0.07 ? sp.name.toUpperCase() : sp.name;
-          buf += `${v.id},T${t},${name},${d.toFixed(1)},${h},${status},${status === 'stump' ? 'logged' : ''},${status === 'stump' ? 0 : Math.floor(r() * 2)},f\n`;
-          stems++;
-        }
-        if (buf.length > 1 << 20) {
-          yield buf;
-          buf = '';
-        }
-      }
-      if (buf) yield buf;
-    }
-    await tx.copyFrom(`copy stems (visit_id, tree_id, species, dbh_cm, height_m, status, stump_cause, fire_damage, in_subplot) from stdin (format csv)`, rows());
-  });
-  await db.query(`analyze`);
-  return stems;
 }
 
 async function pool<T>(items: readonly T[], concurrency: number, fn: (item: T) => Promise<void>): Promise<void> {

@@ -137,4 +137,38 @@ describe('recompute pipeline', () => {
     const [{ stale }] = await s.db.query<{ stale: number }>(`select count(*)::int stale from plot_visits where stale`);
     expect(stale).toBe(0);
   });
+
+  it("a batch's run keeps the stored height models; a later run keeps a refit within the tolerance and releases one beyond it (docs/methods.md#height-model-releases)", async () => {
+    await computed();
+    const models = () => s.db.query(`select forest_type, coefficients, stats from height_models order by 1`);
+    const before = await models();
+    expect(before.length).toBeGreaterThan(0);
+    const more = generateInventory({ seed: 8, plotsPerCell: 1, stemsPerPlot: 40, prefix: 'R', heightsShare: 1 });
+    await loadInventory(s.db, more);
+    const newVisits = more.reduce((a, p) => a + p.visits.length, 0);
+
+    const batch = await recomputeInProcess(s.config, s.db, false, undefined, 'batch');
+    expect(batch.failures).toEqual([]);
+    expect(batch.plan!.heightModels).toEqual([]); // every type has a model: none is read or refitted
+    expect(batch.plan!.visits).toBe(newVisits);
+    expect(await models()).toEqual(before);
+
+    // Any refit moves biomass by less than 100 %: every changed model is kept, nothing is recomputed.
+    const kept = await recomputeInProcess({ ...s.config, heightModelTolerance: 1 }, s.db);
+    expect(kept.plan).toBeNull();
+    expect(await models()).toEqual(before);
+
+    // No tolerance: the refits are released and every visit of their types computed again.
+    const released = await recomputeInProcess({ ...s.config, heightModelTolerance: 0 }, s.db);
+    expect(released.failures).toEqual([]);
+    const changed = released.plan!.heightModels.filter((h) => h.outcome === 'fitted');
+    expect(changed.length).toBeGreaterThan(0);
+    for (const h of changed) expect(h.biomassShift!).toBeGreaterThan(0);
+    const [{ n }] = await s.db.query<{ n: number }>(
+      `select count(*)::int n from plot_visits v join plots p on p.id = v.plot_id where p.forest_type = any($1::text[])`,
+      [changed.map((h) => h.forestType)],
+    );
+    expect(released.plan!.visits).toBe(n);
+    expect(await models()).not.toEqual(before);
+  });
 });

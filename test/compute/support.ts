@@ -3,7 +3,7 @@ import os from 'node:os';
 import path from 'node:path';
 import { PassThrough } from 'node:stream';
 import { clearStale, finishRecomputeRun, listStaleMarks, migrateDatabase, openDatabase, syncForestTypes, type Db } from '@stemwise/db';
-import { planRecompute, type RecomputePlan, type ServiceDeps } from '@stemwise/core';
+import { planRecompute, type RecomputePlan, type RecomputeTrigger, type ServiceDeps } from '@stemwise/core';
 import { InProcessQueue, loadConfig, parsePayload, type Config, type JobQueue, type ProcessorMap } from '@stemwise/platform';
 import { createProcessors, exportChange, exportFits, exportPlots, type PlotExportFormat } from '@stemwise/compute';
 import { testLogger } from '../support/services';
@@ -29,12 +29,13 @@ export async function recomputeInProcess(
   db: Db,
   all = false,
   report: (deps: ServiceDeps) => ProcessorMap = () => standInSummaries(db),
+  trigger: RecomputeTrigger = 'manual',
 ): Promise<{ plan: RecomputePlan | null; failures: readonly { jobId: string; error: string }[] }> {
   const log = testLogger();
   const queue: JobQueue = new InProcessQueue(log);
   const deps: ServiceDeps = { config, db, log, queue };
   await queue.work({ ...createProcessors(deps), ...report(deps) }, { queues: ['compute', 'report'] });
-  const plan = await planRecompute(deps, 'manual', all);
+  const plan = await planRecompute(deps, trigger, all);
   const failures = await queue.drain();
   await queue.close();
   return { plan, failures };

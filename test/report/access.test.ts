@@ -6,7 +6,8 @@ import { InProcessQueue } from '@stemwise/platform';
 import { buildServer, createProcessors } from '@stemwise/report';
 import { testLogger, useServices, type TestServices } from '../support/services';
 import { jobContext, seedBatch, seedRun } from './fixture';
-import { seedScenario } from './seed-scenario';
+import { budget, seedChangePairs } from './change-fixture';
+import { NORTHVALE, SOUTHMERE, seedScenario } from './seed-scenario';
 import { createToken, revokedToken, type TestToken } from './tokens';
 
 // Every role against every endpoint (table-driven). "ok" means the request passes the access check and
@@ -61,6 +62,10 @@ const CASES: Case[] = [
   { method: 'GET', url: '/v1/national/summary?format=csv', expect: ADMIN_ONLY },
   { method: 'GET', url: '/v1/national/summary?version=1', expect: ADMIN_ONLY },
   { method: 'GET', url: '/v1/national/versions', expect: ADMIN_ONLY },
+  { method: 'GET', url: '/v1/regions/Northvale/change', expect: REGION_N },
+  { method: 'GET', url: '/v1/regions/Northvale/change?version=1', expect: REGION_N },
+  { method: 'GET', url: '/v1/national/change', expect: ADMIN_ONLY },
+  { method: 'GET', url: '/v1/national/change?version=1', expect: ADMIN_ONLY },
   { method: 'GET', url: '/v1/fits', expect: ANY_REGION_READER },
   { method: 'GET', url: '/v1/fits?scope=Northvale', expect: REGION_N },
   { method: 'POST', url: '/v1/batches', expect: SUBMIT, ok: BATCH_OK },
@@ -68,6 +73,11 @@ const CASES: Case[] = [
   { method: 'GET', url: '/v1/batches/{batch}/errors.csv', expect: BATCH_OWNER, ok: BATCH_OK },
   { method: 'GET', url: '/', expect: ANY_REGION_READER },
   { method: 'GET', url: '/regions/Northvale', expect: REGION_N },
+  { method: 'GET', url: '/regions/Northvale?colour=fisher_alpha&sort=agb_mg_ha&dir=desc', expect: REGION_N },
+  { method: 'GET', url: '/regions/Northvale/plots/NV-W1', expect: REGION_N },
+  // a plot of Southmere asked for under Northvale: the region's reader gets 404 (no such plot in its region), never the plot
+  { method: 'GET', url: '/regions/Northvale/plots/SM-1', expect: { ...REGION_N, admin: 404, readerN: 404 } },
+  { method: 'GET', url: '/regions/Southmere/plots/SM-1', expect: { ...DENIED_TOKENS, admin: 'ok', uploader: 403, otherUploader: 403, readerN: 403, readerS: 'ok' } },
   { method: 'GET', url: '/national', expect: ADMIN_ONLY },
 ];
 
@@ -77,6 +87,8 @@ describe('access by role', () => {
     s = await useServices({ STEMWISE_AUTH_FAILURES_PER_MINUTE: '100000' });
     const deps: ServiceDeps = { config: s.config, db: s.db, log: testLogger(), queue: new InProcessQueue(testLogger()) };
     await seedScenario(s.db);
+    // Every summarised plot measured twice, so that each region and the nation have estimates of change.
+    await seedChangePairs(s.db, [...NORTHVALE, ...SOUTHMERE].map((p, i) => ({ plotKey: p.key, dateFrom: '2021-03-01', years: 4.5, values: { ...budget(3 + i / 10, 0.5, 1, p.region === 'Southmere' ? 0.25 : 0), mortality_annual: 0.01 + i / 1000 } })));
     await markStale(s.db, 'summary', ['Northvale', 'Southmere']);
     await createProcessors(deps)['report.summaries']!({ runId: await seedRun(s.db) }, jobContext(testLogger()));
     tokens = {
@@ -142,6 +154,56 @@ describe('access by role', () => {
     const index = await app.inject({ url: '/', headers: headers('admin') });
     expect(index.body).toContain('id="national"');
     expect(index.body).toContain('href="/national"');
+  });
+
+  // Every region route, read by each reader with its own region in the URL: what it gets (status as in the
+  // table above) never names the other region, never carries national rows or links, and the change
+  // routes and page give its own region's estimates of change.
+  const READERS = [
+    { who: 'readerN', own: 'Northvale', other: 'Southmere' },
+    { who: 'readerS', own: 'Southmere', other: 'Northvale' },
+  ] as const;
+  // readerS reads the table's URLs with the two regions (and their plots) swapped, so each keeps readerN's expectation.
+  const SWAP: Record<string, string> = { Northvale: 'Southmere', Southmere: 'Northvale', 'NV-W1': 'SM-1', 'SM-1': 'NV-W1' };
+  const swap = (url: string) => url.replace(/Northvale|Southmere|NV-W1|SM-1/g, (m) => SWAP[m]);
+  const scoped = READERS.flatMap((reader) =>
+    CASES.filter((c) => c.method === 'GET' && !c.url.includes('{batch}')).map((c) => ({ reader, c, url: reader.who === 'readerN' ? c.url : swap(c.url), want: c.expect.readerN ?? 403 })),
+  );
+  it.each(scoped.map((r) => [`${r.url} as ${r.reader.who}: ${r.reader.own} only, no national rows`, r] as const))('%s', async (_name, r) => {
+    const res = await app.inject({ url: r.url, headers: headers(r.reader.who) });
+    if (r.want === 'ok') expect(r.c.ok ?? [200]).toContain(res.statusCode);
+    else expect(res.statusCode).toBe(r.want);
+    // The API document describes every route (national ones too) and holds no data.
+    const body = r.url === '/openapi.json' ? '' : res.body;
+    if (res.statusCode === 200) expect(body).not.toContain(r.reader.other); // a refusal may repeat the name asked for
+    expect(body).not.toMatch(/"region":\s*"national"/);
+    expect(body).not.toMatch(/^national,/m);
+    expect(body).not.toContain('href="/national"');
+    expect(body).not.toContain('/v1/national/change');
+    if (res.statusCode === 200 && r.url.includes('/change')) {
+      const view = res.json() as { region: string; estimates: Array<{ region: string; variable: string }>; coverage: { n_plots_with_pair: number } };
+      expect(view.region).toBe(r.reader.own);
+      expect(view.estimates.length).toBeGreaterThan(0);
+      expect(new Set(view.estimates.map((e) => e.region))).toEqual(new Set([r.reader.own]));
+      expect(view.coverage.n_plots_with_pair).toBe(5);
+    }
+    if (res.statusCode === 200 && r.url === `/regions/${r.reader.own}`) {
+      expect(body).toContain('id="change-chart"');
+      expect(body).toContain('id="change-estimates"');
+    }
+  });
+
+  it('shows admins the national estimates of change: API and page', async () => {
+    const view = (await app.inject({ url: '/v1/national/change', headers: headers('admin') })).json() as { region: string; estimates: Array<{ region: string; forest_type: string; variable: string; n_plots: number }>; coverage: { n_plots_with_pair: number; n_plots: number } };
+    expect(view.region).toBe('national');
+    expect(new Set(view.estimates.map((e) => e.region))).toEqual(new Set(['national']));
+    expect(view.coverage).toMatchObject({ n_plots_with_pair: 10, n_plots: 12 }); // Ostmark's two plots were measured once
+    expect(view.estimates.find((e) => e.forest_type === 'all' && e.variable === 'carbon_net_change_mg_ha_yr')?.n_plots).toBe(10);
+    const page = await app.inject({ url: '/national', headers: headers('admin') });
+    expect(page.body).toContain('id="change-chart"');
+    expect(page.body).toContain('id="change-estimates"');
+    const csv = (await app.inject({ url: '/v1/national/summary?format=csv', headers: headers('admin') })).body;
+    expect(csv).toMatch(/^national,all,agb_removed_mg_ha_yr,10,/m);
   });
 
   it('answers 404 to an admin and 403 to a reader for a region that does not exist', async () => {

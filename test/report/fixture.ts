@@ -1,6 +1,8 @@
 import crypto from 'node:crypto';
 import { PLOT_METRIC_DB_COLUMNS, type Db, type PlotMetricDbColumn, type Queryable } from '@stemwise/db';
 import { InProcessQueue, type JobContext, type Logger } from '@stemwise/platform';
+import { currentSpecies } from '@stemwise/core';
+import { speciesStems } from '@stemwise/compute';
 
 // Plots, metrics, strata and species inserted directly with SQL (no ingest, no compute), in an
 // invented scenario: the country of Tessaly, its regions and made-up tree species.
@@ -59,6 +61,8 @@ export async function ensureRegion(db: Queryable, name: string): Promise<number>
 /** Inserts plots with one computed visit each (metrics as given, the rest null). */
 export async function seedPlots(db: Db, plots: readonly FixturePlot[], batchId?: string): Promise<void> {
   const batch = batchId ?? (await seedBatch(db));
+  // The accepted species the metrics stage would store with each visit's metrics (plot_metrics.species_stems).
+  const index = plots.some((p) => p.species?.length) ? (await currentSpecies(db)).index : null;
   await db.transaction(async (tx) => {
     for (const [i, p] of plots.entries()) {
       const regionId = await ensureRegion(tx, p.region);
@@ -81,8 +85,8 @@ export async function seedPlots(db: Db, plots: readonly FixturePlot[], batchId?:
         return restated !== null && cols.includes(restated) ? (p.metrics[restated] ?? null) : null;
       };
       await tx.query(
-        `insert into plot_metrics (visit_id, ${cols.join(', ')}) values ($1, ${cols.map((_, k) => `$${k + 2}`).join(', ')})`,
-        [visitId, ...cols.map(valueOf)],
+        `insert into plot_metrics (visit_id, species_stems, ${cols.join(', ')}) values ($1, $2::jsonb, ${cols.map((_, k) => `$${k + 3}`).join(', ')})`,
+        [visitId, JSON.stringify(index ? speciesStems((p.species ?? []).map((species) => ({ species, status: 'live', inSubplot: false })), index) : {}), ...cols.map(valueOf)],
       );
       for (const [k, name] of (p.species ?? []).entries()) {
         await tx.query(`insert into stems (visit_id, tree_id, species, dbh_cm, status) values ($1, $2, $3, 20, 'live')`, [visitId, `t${k}`, name]);

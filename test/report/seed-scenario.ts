@@ -56,7 +56,7 @@ export const WET_EVIDENCE = {
 /** What the fits job stores for a forest type's chart, from the scenario's plots in plot-key order. */
 export function scenarioChart(forestType: string): object {
   const plots = [...NORTHVALE, ...SOUTHMERE, ...OSTMARK].filter((p) => p.forestType === forestType).sort((a, b) => (a.key < b.key ? -1 : 1));
-  const points = plots.map((p) => ({ x: p.metrics.disturbance_index!, y: p.metrics.fisher_alpha!, region: p.region }));
+  const points = plots.map((p) => ({ x: p.metrics.disturbance_index!, y: p.metrics.fisher_alpha!, region: p.region, plot: p.key }));
   return { ...fitChartData(fitCurves(points.map(({ x, y }) => ({ x, y })))), points: fitChartPoints(points) };
 }
 

@@ -70,7 +70,10 @@ describe('region page charts from stored fits', () => {
     const chart = (await latest('Fernhollow')).payload.charts.fits.find((c) => c.forest_type === 'wet')!;
     expect(chart).toMatchObject({ points: 24, highlighted: 12, missing: null });
     expect(chart.svg).toMatch(/^<svg/);
-    expect(chart.svg).toContain('wet: fisher_alpha against disturbance_index');
+    // drawn with the catalogue's labels and units, the region's points named in the legend
+    expect(chart.svg).toContain("wet: Fisher's alpha against Disturbance index");
+    expect(chart.svg).toContain('Disturbance index (0 none – 1 severe)');
+    expect(chart.svg).toMatch(/Symbol legend[^"]*plots of Fernhollow/);
   });
 
   it('no file of the report service names a fitting function', () => {

@@ -101,7 +101,7 @@ async function printRun(deps: ServiceDeps, runId: string): Promise<void> {
   const run = await getRecomputeRun(deps.db, runId);
   if (!run) return;
   const d = run.details as {
-    plan?: { visits: number; chunks: number; outdatedSpecies: number; heightModels: Array<{ forestType: string; heights: number; outcome: string }> };
+    plan?: { visits: number; chunks: number; outdatedSpecies: number; heightModels: Array<{ forestType: string; heights: number; outcome: string; biomassShift?: number | null }> };
     metrics?: { visits: number; stems: number; chunks: number };
     fits?: Array<{ forestType: string; n: number; verdict: string; regions: number }>;
     stages?: Record<string, StageTime>;
@@ -111,7 +111,15 @@ async function printRun(deps: ServiceDeps, runId: string): Promise<void> {
   else if (d.plan) lines.push(`plot metrics: ${d.plan.visits} plot visits planned in ${d.plan.chunks} chunks`);
   if (d.plan?.outdatedSpecies) lines.push(`species reference changed: ${d.plan.outdatedSpecies} visits recomputed`);
   for (const h of d.plan?.heightModels ?? []) {
-    const what = h.outcome === 'fitted' ? 'refitted' : h.outcome === 'none' ? 'none (too few heights; Chave et al. 2005 without height)' : 'unchanged';
+    const shift = h.biomassShift == null ? '' : ` (moves some stem's biomass by ${(100 * h.biomassShift).toFixed(2)} %)`;
+    const what =
+      h.outcome === 'fitted'
+        ? `refitted${shift}`
+        : h.outcome === 'none'
+          ? 'none (too few heights; Chave et al. 2005 without height)'
+          : h.outcome === 'kept'
+            ? `kept: the refit moves some stem's biomass by ${(100 * (h.biomassShift ?? 0)).toFixed(2)} %, within the tolerance`
+            : 'unchanged';
     lines.push(`height model ${h.forestType}: ${what}, ${h.heights} measured heights`);
   }
   for (const f of d.fits ?? []) lines.push(`fits ${f.forestType}: ${f.verdict} (n = ${f.n}${f.regions ? `, ${f.regions} region fits` : ''})`);

@@ -2,7 +2,7 @@ import { describe, expect, it } from 'vitest';
 import { simulateCurve } from '../../test/random-test-data';
 import { fitCurves } from '../science/verdict';
 import { chartModel, fitChartData } from '../fits/chart-data';
-import { buildFitChartSpec, fitChartCaption, renderFitChartSvg } from './fit-chart';
+import { buildFitChartSpec, fitChartCaption, fitChartCaptionLines, renderFitChartSvg } from './fit-chart';
 
 // The symbols drawn by one named layer: vega writes a <g class="mark-symbol role-mark NAME_marks">
 // holding one <path> per point.
@@ -30,8 +30,10 @@ const humpFit = fitCurves(humpPoints, { bootstrapN: 100 });
 
 describe('renderFitChartSvg', () => {
   it('returns well-formed SVG with one mark per plot, highlighted plots drawn apart', async () => {
-    const svg = await renderFitChartSvg({ forestType: 'Lowland moist', metric: 'fisher_alpha', axis: 'disturbance_index', points: humpPoints, chart: fitChartData(humpFit) });
+    const svg = await renderFitChartSvg({ forestType: 'Lowland moist', metric: 'fisher_alpha', axis: 'disturbance_index', points: humpPoints, chart: fitChartData(humpFit), highlightLabel: 'plots of Northvale' });
     expect(svg.startsWith('<svg')).toBe(true);
+    // the points' legend names both kinds of plots
+    expect(svg).toMatch(/aria-label="Symbol legend[^"]*other plots of the forest type, plots of Northvale"/);
     expect(svg.trimEnd().endsWith('</svg>')).toBe(true);
     expect(isBalanced(svg)).toBe(true);
     expect(markPaths(svg, 'plots')).toBe(270);
@@ -43,8 +45,11 @@ describe('renderFitChartSvg', () => {
     expect(humpFit.verdict).toBe('hump');
     const caption = fitChartCaption(fitChartData(humpFit));
     expect(caption).toMatch(/^R² = 0\.\d+ \(quadratic\) · n = 300 · verdict: hump · band: 95 % CI of the fitted mean · peak at 0\.\d+ \(95 % CI/);
-    expect(svg).toContain(caption);
-    expect(svg).toContain('Lowland moist: fisher_alpha against disturbance_index');
+    for (const line of fitChartCaptionLines(fitChartData(humpFit))) expect(svg).toContain(line);
+    // Catalogue labels with their units, never the raw column names (docs/exports.md names the columns).
+    expect(svg).toContain("Lowland moist: Fisher's alpha against Disturbance index");
+    expect(svg).toContain('Disturbance index (0 none – 1 severe)');
+    expect(svg).not.toMatch(/fisher_alpha|disturbance_index/);
     expect(svg).toMatch(/role-mark curve_marks/);
     expect(svg).toMatch(/role-mark band_marks/);
     expect(svg).toMatch(/role-mark peak_marks/);

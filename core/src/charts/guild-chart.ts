@@ -26,7 +26,7 @@ export function buildGuildChartSpec(rows: readonly GuildRow[]): TopLevelSpec | n
     $schema: 'https://vega.github.io/schema/vega-lite/v6.json',
     background: 'white',
     padding: 8,
-    width: 460,
+    width: 520,
     height: { step: 26 },
     title: { text: 'Guild composition', subtitle: 'mean share of live basal area per plot' },
     data: { values },

@@ -15,12 +15,12 @@ describe('means chart', () => {
       row('all', 'reporting_basal_area_m2_ha', 21, 14.2, 27.8),
       row('all', 'fisher_alpha', 8, 5, 11), // not a panel of this chart
       row('all', 'carbon_mg_ha', 90, 50, 130), // all stems whatever the plot's diameter minimum: the chart shows the reporting-threshold figures
-    ]) as unknown as { hconcat: Array<{ title: { text: string }; layer: Array<{ encoding: { y: { scale: { domain: [number, number] } } } }> }> };
-    expect(spec.hconcat.map((p) => p.title.text)).toEqual(['Basal area ≥ threshold (m²/ha)', 'Carbon ≥ threshold (Mg C/ha)']);
-    const [lo, hi] = spec.hconcat[1].layer[0].encoding.y.scale.domain;
+    ]) as unknown as { concat: Array<{ title: { text: string }; layer: Array<{ encoding: { y: { scale: { domain: [number, number] } } } }> }> };
+    expect(spec.concat.map((p) => p.title.text)).toEqual(['Basal area ≥ threshold (m²/ha)', 'Carbon ≥ threshold (Mg C/ha)']);
+    const [lo, hi] = spec.concat[1].layer[0].encoding.y.scale.domain;
     expect(lo).toBeLessThan(-53.6);
     expect(hi).toBeGreaterThan(159.7);
-    expect(spec.hconcat[0].layer[0].encoding.y.scale.domain[0]).toBe(0); // bars start at zero when every interval is positive
+    expect(spec.concat[0].layer[0].encoding.y.scale.domain[0]).toBe(0); // bars start at zero when every interval is positive
   });
 
   it('has nothing to draw without means', () => {

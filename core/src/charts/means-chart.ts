@@ -1,7 +1,7 @@
 import type { TopLevelSpec } from 'vega-lite';
 import type { RegionRow } from '../region-summary/types';
 import { REPORT_CHART_CONFIG, REPORT_COLOURS, WHOLE_REGION_LABEL, renderVegaLiteSvg } from './render';
-import { variableLabel } from '../region-summary/variables';
+import { shortTitle } from '../region-summary/variables';
 
 /** Variables drawn in the means chart, one panel each. */
 /** The per-hectare figures at the reporting threshold (docs/methods.md#reporting-threshold): comparable between plots. */
@@ -26,8 +26,8 @@ function panel(title: string, bars: Bar[], order: string[]): Record<string, unkn
   const y = { type: 'quantitative', title: null, scale: { domain: [lo, hi], nice: true } };
   return {
     title: { text: title, fontSize: 12, fontWeight: 'normal' },
-    width: 170,
-    height: 200,
+    width: 262,
+    height: 110,
     data: { values: bars },
     layer: [
       {
@@ -63,7 +63,7 @@ export function buildMeansChartSpec(rows: readonly RegionRow[], whole: WholeLabe
       }));
     if (!bars.length) continue;
     const order = [whole.label, ...bars.filter((b) => !b.whole).map((b) => b.stratum).sort()];
-    panels.push(panel(variableLabel(variable).short, bars, order));
+    panels.push(panel(shortTitle(variable), bars, order));
   }
   if (!panels.length) return null;
   return {
@@ -71,7 +71,9 @@ export function buildMeansChartSpec(rows: readonly RegionRow[], whole: WholeLabe
     background: 'white',
     padding: 8,
     title: { text: 'Means with 95 % confidence intervals', subtitle: whole.subtitle },
-    hconcat: panels,
+    // Two panels a row: the chart keeps the report's width (REPORT_CHART_SIZE) with readable panels.
+    concat: panels,
+    columns: 2,
     spacing: 24,
     config: REPORT_CHART_CONFIG,
   } as unknown as TopLevelSpec;

@@ -41,6 +41,20 @@ describe('stored fit charts', () => {
     expect(key('Ashgrove')).not.toBe(key('Brenmoor'));
   });
 
+  it('link the highlighted region\'s points to their plot pages when the plot keys are stored', async () => {
+    const keyed = fitChartPoints(points.map((p, i) => ({ ...p, plot: `P-${i}` })));
+    expect(keyed.plots).toHaveLength(points.length);
+    expect(stored.points.plots).toBeUndefined(); // points without keys store none
+    const drawn = regionChartPoints(keyed, 'Ashgrove', (k) => `/plots/${k}`);
+    const mine = drawn.filter((p) => p.highlight);
+    expect(mine.every((p) => p.href?.startsWith('/plots/P-'))).toBe(true);
+    expect(drawn.filter((p) => !p.highlight).some((p) => p.href !== undefined)).toBe(false); // other regions' plots are not links
+    const svg = await renderFitChartSvg({ ...labels, points: drawn, chart: stored });
+    expect((svg.match(/<a [^>]*href="\/plots\/P-\d+"/g) ?? []).length).toBe(mine.length);
+    expect(asStoredFitChart(JSON.parse(JSON.stringify({ ...stored, points: keyed })))?.points.plots).toEqual(keyed.plots);
+    expect(asStoredFitChart({ ...stored, points: { ...keyed, plots: ['only one'] } })).toBeNull();
+  });
+
   it('refuse a stored value that is not a chart', () => {
     expect(asStoredFitChart(null)).toBeNull();
     expect(asStoredFitChart({ ...stored, curve: { ...stored.curve, low: [1] } })).toBeNull();

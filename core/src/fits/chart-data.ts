@@ -43,6 +43,8 @@ export interface FitChartPoints {
   readonly x: readonly number[];
   readonly y: readonly number[];
   readonly region: readonly number[];
+  /** The plot key of each point (absent in charts stored before plots were kept). */
+  readonly plots?: readonly string[];
 }
 
 /** What fit_charts.chart holds for one forest type × metric × axis. */
@@ -80,10 +82,11 @@ export function fitChartData(fit: CurveResult): FitChartData {
   };
 }
 
-/** Points with their region, stored column-wise with each region's name once (in order of first appearance). */
-export function fitChartPoints(points: ReadonlyArray<{ x: number; y: number; region: string }>): FitChartPoints {
+/** Points with their region (and plot key, when every point has one), stored column-wise with each region's name once (in order of first appearance). */
+export function fitChartPoints(points: ReadonlyArray<{ x: number; y: number; region: string; plot?: string }>): FitChartPoints {
   const index = new Map<string, number>();
-  const out = { regions: [] as string[], x: [] as number[], y: [] as number[], region: [] as number[] };
+  const out: { regions: string[]; x: number[]; y: number[]; region: number[]; plots?: string[] } = { regions: [], x: [], y: [], region: [] };
+  if (points.length && points.every((p) => p.plot !== undefined)) out.plots = points.map((p) => p.plot as string);
   for (const p of points) {
     let i = index.get(p.region);
     if (i === undefined) {
@@ -110,5 +113,6 @@ export function asStoredFitChart(v: unknown): StoredFitChart | null {
   if (!curve || !isNumbers(curve.x) || ![curve.y, curve.low, curve.high].every((a) => isNumbers(a, (curve.x as number[]).length))) return null;
   if (!points || !isNumbers(points.x) || !isNumbers(points.y, points.x.length) || !isNumbers(points.region, points.x.length)) return null;
   if (!Array.isArray(points.regions) || !points.regions.every((r) => typeof r === 'string')) return null;
+  if (points.plots !== undefined && !(Array.isArray(points.plots) && points.plots.length === points.x.length && points.plots.every((k) => typeof k === 'string'))) return null;
   return v as StoredFitChart;
 }

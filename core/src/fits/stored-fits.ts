@@ -4,13 +4,13 @@ import { WHOLE_FOREST_TYPE_SCOPE, type CurveFitRow, type FitScope, type LatestPl
 import { verdictEvidence, type CurvePoint, type CurveResult, type CurveTests, type FitLeftOut, type FitRow, type PeakEstimate } from '../science/verdict';
 import { countLeftOut, leftOutText, leftOutTotal } from './left-out';
 
-/** Points (x = axis, y = metric) of the latest visit of each plot, where both are known. */
-export function pointsOf(plots: readonly LatestPlotMetrics[], axis: string, metric: string): Array<CurvePoint & { region: string }> {
-  const out: Array<CurvePoint & { region: string }> = [];
+/** Points (x = axis, y = metric) of the latest visit of each plot, where both are known, with the plot's key. */
+export function pointsOf(plots: readonly LatestPlotMetrics[], axis: string, metric: string): Array<CurvePoint & { region: string; plot: string }> {
+  const out: Array<CurvePoint & { region: string; plot: string }> = [];
   for (const p of plots) {
     const x = p.metrics[axis as PlotMetricDbColumn];
     const y = p.metrics[metric as PlotMetricDbColumn];
-    if (x !== null && y !== null && Number.isFinite(x) && Number.isFinite(y)) out.push({ x, y, region: p.region });
+    if (x !== null && y !== null && Number.isFinite(x) && Number.isFinite(y)) out.push({ x, y, region: p.region, plot: p.plotKey });
   }
   return out;
 }

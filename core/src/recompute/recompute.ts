@@ -42,8 +42,8 @@ export function recomputeFlow(runId: string, visitIds: readonly number[], chunkP
 
 /**
  * Plans a recompute (the `maintenance.recompute` job, `stemwise recompute`, the nightly schedule):
- * marks stale what an older species reference computed, refits the height–diameter models of the
- * forest types with stale visits (see height-models.ts), records a run, and queues its flow with
+ * marks stale what an older species reference computed, fits or refits the height–diameter models
+ * (see height-models.ts for which and when), records a run, and queues its flow with
  * deterministic job ids. Returns null when nothing is stale (nothing is queued).
  */
 export async function planRecompute(deps: ServiceDeps, trigger: RecomputeTrigger, all = false): Promise<RecomputePlan | null> {
@@ -60,8 +60,10 @@ export async function planRecompute(deps: ServiceDeps, trigger: RecomputeTrigger
       return null;
     }
     const outdatedSpecies = await markOutdatedSpeciesVisitsStale(db, await currentSpeciesVersion(db));
-    const types = all ? await forestTypesWithPlots(db) : await forestTypesWithStaleVisits(db);
-    const heightModels = await refitHeightModels(db, types, config.minHeights);
+    // A batch's run fits only the models its stale types lack; the others check every type's model (see height-models.ts).
+    const batch = trigger === 'batch' && !all;
+    const types = batch ? await forestTypesWithStaleVisits(db) : await forestTypesWithPlots(db);
+    const heightModels = await refitHeightModels(db, types, { minHeights: config.minHeights, tolerance: config.heightModelTolerance, release: all, newOnly: batch });
     const run = await startRecomputeRun(db, trigger, all);
     if (!run) {
       log.info({ trigger }, 'nothing stale');

@@ -43,7 +43,7 @@ export function classWords(lowerCm: number, upperCm: number | null): string {
 }
 
 /** Label of a stand-table variable; null for any other name. */
-export function standLabel(variable: string): (VariableLabel & { totalUnit: string }) | null {
+export function standLabel(variable: string): (Pick<VariableLabel, 'name' | 'short' | 'unit'> & { totalUnit: string }) | null {
   const v = parseStandVariable(variable);
   if (v === null) return null;
   const f = STAND_FIGURES.find((x) => x.key === v.figure) as (typeof STAND_FIGURES)[number];

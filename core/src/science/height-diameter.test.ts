@@ -3,10 +3,12 @@ import {
   DEFAULT_MIN_HEIGHTS,
   fitHeightDiameter,
   hasEnoughHeights,
+  heightModelBiomassShift,
   type HeightDiameterModel,
   MAX_PREDICTED_HEIGHT_M,
   predictHeight,
 } from './height-diameter';
+import { agbChave2014 } from './allometry';
 
 const rel = (got: number, want: number): number => Math.abs(got - want) / Math.abs(want);
 
@@ -128,5 +130,36 @@ describe('minHeights, extrapolation and the 100 m cap', () => {
     expect(rel(predictHeight(model, 300), eq6a(300))).toBeLessThan(1e-14);
     const tall: HeightDiameterModel = { ...model, a: 3, b: 0.5, c: 0 }; // exp(3) · 400^0.5 ≈ 402 m
     expect(predictHeight(tall, 400)).toBe(MAX_PREDICTED_HEIGHT_M);
+  });
+});
+
+describe('heightModelBiomassShift (the bound on a plot biomass change behind the height-model tolerance, docs/methods.md#height-model-releases)', () => {
+  // Chave et al. 2014 eq. 6a at E = 0 (a = 0.893, b = 0.760, c = −0.0340), fitted on 10–150 cm, no bias correction.
+  const base = { a: 0.893, b: 0.76, c: -0.034, n: 100, rse: 0, r2: 1, dbhMinCm: 10, dbhMaxCm: 150, biasCorrection: 1 };
+
+  it('is 0 for the same model', () => {
+    expect(heightModelBiomassShift(base, base)).toBe(0);
+  });
+
+  it('a shift of a by ln 1.01 (every height 1 % taller) moves biomass by 1.01^0.976 − 1 (AGB ∝ H^0.976, Chave et al. 2014 eq. 4; computed by hand)', () => {
+    expect(heightModelBiomassShift(base, { ...base, a: base.a + Math.log(1.01) })).toBeCloseTo(0.0097588, 7);
+    // the Baskerville factor counts like a
+    expect(heightModelBiomassShift(base, { ...base, biasCorrection: 1.01 })).toBeCloseTo(0.0097588, 7);
+  });
+
+  it('finds the largest change inside the range, at the vertex of the quadratic (computed by hand)', () => {
+    // Δc = 0.01, Δb = −0.02 ln 30: ln(H₁/H₀) = 0.01 ((ln D)² − 2 ln 30 ln D), lowest at D = 30 cm: −0.01 (ln 30)²
+    // (the ends, 10 and 150 cm, give only −0.1036 and −0.0898)
+    const to = { ...base, b: base.b - 0.02 * Math.log(30), c: base.c + 0.01 };
+    expect(heightModelBiomassShift(base, to)).toBeCloseTo(1 - Math.exp(-0.976 * 0.01 * Math.log(30) ** 2), 12);
+  });
+
+  it('bounds the biomass ratio of every diameter in the range (checked on a grid with predictHeight and agbChave2014)', () => {
+    const to = { ...base, a: 0.95, b: 0.7, c: -0.03, dbhMinCm: 5, biasCorrection: 1.02 };
+    const bound = heightModelBiomassShift(base, to);
+    let worst = 0;
+    for (let d = 5; d <= 150; d += 0.25) worst = Math.max(worst, Math.abs(agbChave2014(0.6, d, predictHeight(to, d)) / agbChave2014(0.6, d, predictHeight(base, d)) - 1));
+    expect(worst).toBeLessThanOrEqual(bound + 1e-12);
+    expect(worst).toBeGreaterThan(bound * 0.99);
   });
 });

@@ -145,3 +145,29 @@ export function predictHeight(model: HeightDiameterModel, dbhCm: number): number
   const h = Math.exp(model.a + model.b * l + model.c * l * l) * model.biasCorrection;
   return h < MAX_PREDICTED_HEIGHT_M ? h : MAX_PREDICTED_HEIGHT_M;
 }
+
+// max over D of |(H₁(D) / H₀(D))^0.976 − 1|, D over both models' fitted ranges: the largest relative change of a
+// stem's AGB = 0.0673 (ρ D² H)^0.976 (Chave et al. 2014 eq. 4) when its modelled height moves from model 0 to
+// model 1, and so a bound on the relative change of a plot's biomass (a weighted mean of its stems' ratios).
+// ln(H₁/H₀) = Δa + Δb ln D + Δc (ln D)² + ln(bias₁/bias₀) is a quadratic in ln D: its extremes are at the ends
+// of the range or at its vertex. The 100 m cap only draws the two heights closer; it is left out (an upper bound).
+export function heightModelBiomassShift(from: HeightDiameterModel, to: HeightDiameterModel): number {
+  const lo = Math.log(Math.min(from.dbhMinCm, to.dbhMinCm));
+  const hi = Math.log(Math.max(from.dbhMaxCm, to.dbhMaxCm));
+  if (!Number.isFinite(lo) || !Number.isFinite(hi) || lo > hi) {
+    throw new RangeError(`heightModelBiomassShift: the models' diameter ranges must be finite and above 0 cm`);
+  }
+  const da = to.a - from.a + Math.log(to.biasCorrection / from.biasCorrection);
+  const db = to.b - from.b;
+  const dc = to.c - from.c;
+  const g = (l: number) => da + db * l + dc * l * l;
+  const at = [lo, hi];
+  if (dc !== 0) {
+    const vertex = -db / (2 * dc);
+    if (vertex > lo && vertex < hi) at.push(vertex);
+  }
+  const logs = at.map(g);
+  const up = Math.exp(0.976 * Math.max(...logs)) - 1;
+  const down = 1 - Math.exp(0.976 * Math.min(...logs));
+  return Math.max(up, down, 0);
+}

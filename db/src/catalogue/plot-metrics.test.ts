@@ -71,7 +71,7 @@ describe('the plot-metric catalogue', () => {
       expect(columns[m.key].getSQLType(), m.column).toBe(sqlType[m.sqlType]);
     }
     const others = Object.keys(columns).filter((k) => !PLOT_METRICS.some((m) => m.key === k));
-    expect(others).toEqual(['visitId', 'speciesVersionId', 'diagnostics', 'computedAt']);
+    expect(others).toEqual(['visitId', 'speciesVersionId', 'diagnostics', 'speciesStems', 'computedAt']);
   });
 
   it('is documented: docs/exports.md names every column in its `export plots` table', () => {

@@ -21,6 +21,8 @@ export interface PlotMetricSpec {
   readonly short: string;
   /** Unit, or '' for a plain number. */
   readonly unit: string;
+  /** A share stored as 0–1 (unit ''): the pages and charts show it × 100, in percent. */
+  readonly share?: true;
   /** Per-hectare figures only: the unit of a total (mean × forest area). Its presence marks a density. */
   readonly totalUnit?: string;
   /** What the value is, in one sentence. */
@@ -128,31 +130,31 @@ export const PLOT_METRICS = [
   },
   {
     key: 'pioneerBaShare', column: 'pioneer_ba_share', sqlType: 'float8', nullable: true,
-    label: 'Pioneer share of basal area', short: 'Pioneer share', unit: '',
+    label: 'Pioneer share of basal area', short: 'Pioneer share', unit: '', share: true,
     description: 'Share of live basal area in pioneer species.',
     regionRow: 8, headline: false, fittable: true,
   },
   {
     key: 'lightDemanderBaShare', column: 'light_demander_ba_share', sqlType: 'float8', nullable: true,
-    label: 'Light-demanding share of basal area', short: 'Light-demanding share', unit: '',
+    label: 'Light-demanding share of basal area', short: 'Light-demanding share', unit: '', share: true,
     description: 'Share of live basal area in light-demanding species.',
     regionRow: 9, headline: false, fittable: true,
   },
   {
     key: 'shadeTolerantBaShare', column: 'shade_tolerant_ba_share', sqlType: 'float8', nullable: true,
-    label: 'Shade-tolerant share of basal area', short: 'Shade-tolerant share', unit: '',
+    label: 'Shade-tolerant share of basal area', short: 'Shade-tolerant share', unit: '', share: true,
     description: 'Share of live basal area in shade-tolerant species.',
     regionRow: 10, headline: false, fittable: true,
   },
   {
     key: 'unassignedBaShare', column: 'unassigned_ba_share', sqlType: 'float8', nullable: true,
-    label: 'Unassigned share of basal area', short: 'Unassigned share', unit: '',
+    label: 'Unassigned share of basal area', short: 'Unassigned share', unit: '', share: true,
     description: 'Share of live basal area in unidentified stems or names not in the species list.',
     regionRow: 11, headline: false, fittable: true,
   },
   {
     key: 'loggingRemovedBaFrac', column: 'logging_removed_ba_frac', sqlType: 'float8', nullable: true,
-    label: 'Basal area removed by logging (fraction)', short: 'Logged basal area', unit: '',
+    label: 'Share of basal area removed by logging', short: 'Logged basal area', unit: '', share: true,
     description: 'Basal area of logged stumps over live basal area plus logged stumps, main plot.',
     regionRow: null, headline: false, fittable: true,
   },

@@ -111,6 +111,15 @@ export async function listCurveFits(db: Queryable, filter: { scope: FitScope; me
   );
 }
 
+/** The verdict stored for a forest type as a whole (its models share it), or null before its first fit. */
+export async function getWholeTypeVerdict(db: Queryable, forestType: string, metric: string, axis: string): Promise<string | null> {
+  const rows = await db.query<Pick<typeof curveFits.$inferSelect, 'verdict'>>(
+    `select verdict from curve_fits where scope_kind = 'forest_type' and forest_type = $1 and metric = $2 and axis = $3 order by model limit 1`,
+    [forestType, metric, axis],
+  );
+  return rows[0]?.verdict ?? null;
+}
+
 /** The stored chart of a forest type × metric × axis (fit_charts.chart, a StoredFitChart of @stemwise/core), or null. */
 export async function getFitChart(db: Queryable, forestType: string, metric: string, axis: string): Promise<unknown> {
   const rows = await db.query<Pick<typeof fitCharts.$inferSelect, 'chart'>>(`select chart from fit_charts where forest_type = $1 and metric = $2 and axis = $3`, [forestType, metric, axis]);

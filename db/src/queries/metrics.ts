@@ -175,16 +175,18 @@ export interface PlotMetricsWrite {
   /** One value per PLOT_METRIC_DB_COLUMNS entry, in that order; null where not computable. */
   values: ReadonlyArray<number | null>;
   diagnostics: unknown;
+  /** Accepted name → live main-plot stems of the visit (plot_metrics.species_stems). */
+  speciesStems: Readonly<Record<string, number>>;
 }
 
-const UPSERT_SQL = `insert into plot_metrics (visit_id, species_version_id, ${METRIC_NAMES.join(', ')}, diagnostics, computed_at)
+const UPSERT_SQL = `insert into plot_metrics (visit_id, species_version_id, ${METRIC_NAMES.join(', ')}, diagnostics, species_stems, computed_at)
   select u.*, now() from (
-    select u0 visit_id, u1 species_version_id, ${METRIC_NAMES.map((c, i) => `u${i + 2} ${c}`).join(', ')}, u${METRIC_NAMES.length + 2}::jsonb diagnostics
-      from unnest($1::bigint[], $2::int[], ${PLOT_METRIC_DB_COLUMNS.map(([, t], i) => `$${i + 3}::${t}[]`).join(', ')}, $${METRIC_NAMES.length + 3}::text[])
-        as t(u0, u1, ${METRIC_NAMES.map((_, i) => `u${i + 2}`).join(', ')}, u${METRIC_NAMES.length + 2})
+    select u0 visit_id, u1 species_version_id, ${METRIC_NAMES.map((c, i) => `u${i + 2} ${c}`).join(', ')}, u${METRIC_NAMES.length + 2}::jsonb diagnostics, u${METRIC_NAMES.length + 3}::jsonb species_stems
+      from unnest($1::bigint[], $2::int[], ${PLOT_METRIC_DB_COLUMNS.map(([, t], i) => `$${i + 3}::${t}[]`).join(', ')}, $${METRIC_NAMES.length + 3}::text[], $${METRIC_NAMES.length + 4}::text[])
+        as t(u0, u1, ${METRIC_NAMES.map((_, i) => `u${i + 2}`).join(', ')}, u${METRIC_NAMES.length + 2}, u${METRIC_NAMES.length + 3})
   ) u
   on conflict (visit_id) do update set species_version_id = excluded.species_version_id,
-    ${METRIC_NAMES.map((c) => `${c} = excluded.${c}`).join(', ')}, diagnostics = excluded.diagnostics, computed_at = excluded.computed_at`;
+    ${METRIC_NAMES.map((c) => `${c} = excluded.${c}`).join(', ')}, diagnostics = excluded.diagnostics, species_stems = excluded.species_stems, computed_at = excluded.computed_at`;
 
 /** Writes the metrics of many visits in one statement; a rerun overwrites the same rows. */
 export async function upsertPlotMetrics(tx: Queryable, rows: readonly PlotMetricsWrite[]): Promise<void> {
@@ -192,6 +194,7 @@ export async function upsertPlotMetrics(tx: Queryable, rows: readonly PlotMetric
   const params: unknown[] = [rows.map((r) => r.visitId), rows.map((r) => r.speciesVersionId)];
   for (let c = 0; c < METRIC_NAMES.length; c++) params.push(rows.map((r) => r.values[c]));
   params.push(rows.map((r) => JSON.stringify(r.diagnostics ?? {})));
+  params.push(rows.map((r) => JSON.stringify(r.speciesStems)));
   await tx.query(UPSERT_SQL, params);
 }
 

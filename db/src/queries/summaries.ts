@@ -1,5 +1,6 @@
 import type { Queryable } from '../connection';
-import type { plots, plotVisits, stems } from '../schema/plots';
+import type { plots, plotVisits } from '../schema/plots';
+import type { plotMetrics } from '../schema/metrics';
 import type { regions } from '../schema/regions';
 import type { regionSummaries, strata } from '../schema/reports';
 import type { batches } from '../schema/batches';
@@ -13,7 +14,7 @@ type Summary = typeof regionSummaries.$inferSelect;
 type Run = typeof recomputeRuns.$inferSelect;
 
 // Region summaries: what the report job reads to assemble a region's snapshot (latest computed visit
-// of each plot, forest areas, species names), the snapshots themselves (versioned, never updated),
+// of each plot with its metrics and species, forest areas), the snapshots themselves (versioned, never updated),
 // and the few service figures the report service shows at /metrics.
 
 const METRIC_NAMES = PLOT_METRIC_DB_COLUMNS.map(([c]) => c);
@@ -30,12 +31,17 @@ const LATEST_VISITS = `
    where r.name = $1
    order by v.plot_id, v.survey_date desc`;
 
-export interface RegionPlotRow extends Pick<Plot, 'plotKey' | 'forestType' | 'latitude' | 'longitude' | 'elevationM'>, Pick<typeof plotVisits.$inferSelect, 'surveyDate'> {
+export interface RegionPlotRow
+  extends Pick<Plot, 'plotKey' | 'forestType' | 'latitude' | 'longitude' | 'elevationM'>,
+    Pick<typeof plotVisits.$inferSelect, 'surveyDate'>,
+    Pick<typeof plotMetrics.$inferSelect, 'speciesStems'> {
   metrics: MetricColumns;
   /** Change from the previous visit to this one (docs/methods.md#change-between-visits); every value null when the plot has no earlier visit. */
   change: Record<RegionChangeColumn, number | null>;
   /** The visit's stand table by diameter class as its metrics stored it (diagnostics `standTable`); null for metrics computed before stand tables. */
   standTable: unknown;
+  /** The pair of visits that change comes from: the earlier visit's date and the years between; null when the plot has no earlier visit. */
+  pair: { dateFrom: NonNullable<(typeof plotVisits.$inferSelect)['surveyDate']>; years: number } | null;
 }
 
 /** The per-plot change columns the region and national estimates of change use. */
@@ -52,19 +58,22 @@ export const REGION_CHANGE_COLUMNS = [
   'bgb_net_change_mg_ha_yr',
   'standing_dead_net_change_mg_ha_yr',
   'tree_carbon_net_change_mg_ha_yr',
+  'agb_died_mg_ha_yr',
+  'agb_removed_mg_ha_yr',
 ] as const satisfies readonly PlotChangeDbColumn[];
 export type RegionChangeColumn = (typeof REGION_CHANGE_COLUMNS)[number];
 
 /** The latest computed visit of every plot of a region with its metrics and its change from the visit before, by plot key (byte order). */
 export async function listRegionLatestPlots(db: Queryable, region: string): Promise<RegionPlotRow[]> {
-  const rows = await db.query<Omit<RegionPlotRow, 'metrics' | 'change'> & MetricColumns & Partial<Record<RegionChangeColumn, number | null>>>(
+  const rows = await db.query<Omit<RegionPlotRow, 'metrics' | 'change' | 'pair'> & MetricColumns & Partial<Record<RegionChangeColumn, number | null>> & { pairFrom: string | null; pairYears: number | null }>(
     `with latest as (${LATEST_VISITS})
-     select p.plot_key "plotKey", p.forest_type "forestType", p.latitude, p.longitude, p.elevation_m "elevationM", l.survey_date::text "surveyDate", ${METRIC_SELECT},
-            ${REGION_CHANGE_COLUMNS.map((x) => `c.${x}`).join(', ')}, m.diagnostics->'standTable' "standTable"
+     select p.plot_key "plotKey", p.forest_type "forestType", p.latitude, p.longitude, p.elevation_m "elevationM", l.survey_date::text "surveyDate", m.species_stems "speciesStems", ${METRIC_SELECT},
+            ${REGION_CHANGE_COLUMNS.map((x) => `c.${x}`).join(', ')}, m.diagnostics->'standTable' "standTable", a.survey_date::text "pairFrom", c.years "pairYears"
        from latest l
        join plots p on p.id = l.plot_id
        join plot_metrics m on m.visit_id = l.visit_id
        left join plot_change c on c.visit_to_id = l.visit_id
+       left join plot_visits a on a.id = c.visit_from_id
       order by p.plot_key collate "C"`,
     [region],
   );
@@ -75,24 +84,12 @@ export async function listRegionLatestPlots(db: Queryable, region: string): Prom
     longitude: r.longitude,
     elevationM: r.elevationM,
     surveyDate: r.surveyDate,
+    speciesStems: r.speciesStems,
     metrics: numericColumns(r, METRIC_NAMES),
     change: numericColumns(r, REGION_CHANGE_COLUMNS),
     standTable: r.standTable ?? null,
+    pair: r.pairFrom === null || r.pairYears === null ? null : { dateFrom: r.pairFrom, years: Number(r.pairYears) },
   }));
-}
-
-/** Distinct recorded names of live main-plot stems per plot (latest computed visit), for species counts. */
-export async function listRegionStemNames(db: Queryable, region: string): Promise<Array<Pick<Plot, 'plotKey'> & { name: NonNullable<(typeof stems.$inferSelect)['species']> }>> {
-  return db.query(
-    `with latest as (${LATEST_VISITS})
-     select distinct p.plot_key "plotKey", s.species name
-       from latest l
-       join plots p on p.id = l.plot_id
-       join stems s on s.visit_id = l.visit_id
-      where s.status = 'live' and not s.in_subplot and s.species is not null
-      order by 1, 2`,
-    [region],
-  );
 }
 
 /** Forest area (ha) per forest type of a region, from strata.csv. */
@@ -135,7 +132,8 @@ export async function insertSummarySnapshot(db: Queryable, region: string, etag:
 
 /**
  * The charts (SVG) of a region's latest snapshot with the key of the specification each was drawn from
- * (payload.charts.fits[].drawn_from, payload.charts.drawn_from.means and .guilds): the report reuses a
+ * (payload.charts.fits[].drawn_from, and payload.charts.drawn_from.<name> for each chart payload.charts.<name>:
+ * means, guilds, change …): the report reuses a
  * chart whose key is unchanged instead of drawing it again.
  */
 export async function listLatestChartSvgs(db: Queryable, region: string): Promise<Array<{ key: string; svg: string }>> {
@@ -146,8 +144,9 @@ export async function listLatestChartSvgs(db: Queryable, region: string): Promis
             lateral (
               select f->>'drawn_from' key, f->>'svg' svg
                 from jsonb_array_elements(case when jsonb_typeof(latest.c->'fits') = 'array' then latest.c->'fits' else '[]'::jsonb end) f
-              union all select latest.c->'drawn_from'->>'means', latest.c->>'means'
-              union all select latest.c->'drawn_from'->>'guilds', latest.c->>'guilds') k
+              union all
+              select d.value #>> '{}', latest.c->>d.key
+                from jsonb_each(case when jsonb_typeof(latest.c->'drawn_from') = 'object' then latest.c->'drawn_from' else '{}'::jsonb end) d) k
       where k.key is not null and k.svg is not null`,
     [region],
   );

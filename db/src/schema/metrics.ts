@@ -32,6 +32,12 @@ export const plotMetrics = pgTable('plot_metrics', {
   ...plotMetricColumns(),
   /** Wood-density level shares, height sources, unresolved names. */
   diagnostics: jsonb('diagnostics').notNull().default({}),
+  /**
+   * Accepted name → live main-plot stems (any diameter) of the visit, resolved against the reference of
+   * species_version_id: what the region summaries count species from, so they never read stems. Null: the
+   * row was written before this column existed (its visit is due again).
+   */
+  speciesStems: jsonb('species_stems').$type<Record<string, number>>(),
   computedAt: timestamp('computed_at', { withTimezone: true }).notNull().defaultNow(),
 });
 

@@ -78,5 +78,21 @@ function computeVisit(
     // In catalogue order: the order of PLOT_METRIC_DB_COLUMNS, which the upsert's columns follow.
     values: PLOT_METRICS.map((c) => metrics[c.key]),
     diagnostics: { ...result.diagnostics, heightModelHeights: options.heightModel?.n ?? null },
+    speciesStems: speciesStems(stems, index),
   };
+}
+
+/**
+ * Accepted name → live main-plot stems (any diameter) of one visit: synonyms and spelling variants count
+ * as their species, genus-only and unresolved names are left out. Stored with the metrics so that the
+ * region summaries count species without reading stems.
+ */
+export function speciesStems(stems: ReadonlyArray<Pick<ComputeStemRow, 'status' | 'inSubplot' | 'species'>>, index: SpeciesIndex): Record<string, number> {
+  const out: Record<string, number> = {};
+  for (const s of stems) {
+    if (s.status !== 'live' || s.inSubplot || s.species === null) continue;
+    const hit = index.resolve(s.species).species;
+    if (hit) out[hit.name] = (out[hit.name] ?? 0) + 1;
+  }
+  return out;
 }

@@ -3,6 +3,7 @@ import {
   clearStale,
   deleteCurveFitsExcept,
   deleteFitChart,
+  getWholeTypeVerdict,
   listLatestPlotMetrics,
   listStale,
   listStaleMarks,
@@ -125,7 +126,7 @@ export interface StoredFits {
  * Fits the given forest types with the configured metric and axis and stores them: rows for the whole
  * forest type (scope kind `forest_type`, with the chart SVG in details.chart_svg) and per region with
  * enough plots, and what the region pages' charts show (fit_charts: the points with their region, the
- * curve, the turning point), so the report draws them without fitting again; clears the types' `fits` marks and marks the summaries of their regions stale — per
+ * curve, the turning point), so the report draws them without fitting again; clears the types' `fits` marks and, when a type's verdict changed, marks the summaries of its regions stale — per
  * forest type, in one transaction. A forest type or region whose fit throws is recorded in
  * compute_problems (with `runId`), logged, and its mark cleared so no run retries it until its data
  * change; the other forest types are fitted all the same. Read and write errors still fail the job.
@@ -168,6 +169,9 @@ export async function storeFits(deps: Pick<ServiceDeps, 'db' | 'config'> & { log
     }
     for (const f of fits.failedRegions) deps.log?.error({ runId, forestType, region: f.region, reason: f.reason }, 'region × forest type could not be fitted; the others go on');
     const regions = await regionsOfForestTypes(db, [forestType]);
+    // The regions whose plots changed are marked by their chunks; the others keep their summary (and the
+    // fit chart in it) unless the forest type's verdict changed (docs/methods.md#height-model-releases).
+    const verdictChanged = (await getWholeTypeVerdict(db, forestType, settings.metric, settings.axis)) !== fits.all.verdict;
     await db.transaction(async (tx) => {
       await deleteCurveFitsExcept(tx, forestType, settings.metric, settings.axis, { whole: regions.length > 0, regions: [...fits.regions, ...fits.failedRegions].map((r) => r.region) });
       if (regions.length) {
@@ -178,7 +182,7 @@ export async function storeFits(deps: Pick<ServiceDeps, 'db' | 'config'> & { log
       await clearProblems(tx, 'fit', fitted);
       await recordProblems(tx, runId, fits.failedRegions.map((f) => ({ stage: 'fit' as const, forestType, region: f.region, visitId: null, plotKey: null, reason: f.reason })));
       await clearStale(tx, 'fits', marks);
-      await markStale(tx, 'summary', regions);
+      if (verdictChanged) await markStale(tx, 'summary', regions);
     });
     const problems = fits.failedRegions.map((f) => `${f.region}: ${f.reason}`);
     out.push({ forestType, n: fits.all.n, verdict: fits.all.verdict, regions: fits.regions.length, ...(problems.length ? { problems } : {}) });

@@ -3,19 +3,19 @@ import {
   insertNationalSnapshot,
   listLatestSummaryVersions,
   listRegionForestAreas,
-  listRegionLatestPlots,
   listRegionNames,
   type Queryable,
 } from '@stemwise/db';
 import { cautionSettings, standTableValues, type NationalSummary, type ServiceDeps } from '@stemwise/core';
-import { renderMeansChartSvg } from '@stemwise/core/charts';
+import { renderChangeChartSvg, renderMeansChartSvg } from '@stemwise/core/charts';
 import type { Logger } from '@stemwise/platform';
 import { summariseNation, type NationalRegionInput } from './summary/national-summary';
 import { summaryVariables } from './summary/region-summary';
+import { changeCoverage, type ChangeCoverage, type PlotPair } from './summary/change-coverage';
 import type { SnapshotData, SnapshotMethod } from './snapshot-payload';
-import { payloadEtag, samplingErrorMultiplier } from './snapshots';
+import { payloadEtag, regionPlots, samplingErrorMultiplier, type RegionPlotsCache } from './snapshots';
 
-type Deps = Pick<ServiceDeps, 'db' | 'config'> & { log?: Logger };
+type Deps = Pick<ServiceDeps, 'db' | 'config'> & { log?: Logger; /** The region plots the stage has read already. */ plots?: RegionPlotsCache };
 
 // What one national_summaries.payload holds (format 1): the national rows and how they were made,
 // the visits they use, and the region summary versions current when it was assembled. The latter
@@ -31,7 +31,9 @@ export interface NationalPayload {
   readonly summary: NationalSummary;
   /** Region → its latest summary version (null: none yet) when this was assembled. */
   readonly sources: Readonly<Record<string, number | null>>;
-  readonly charts: { readonly means: string | null };
+  /** The pairs of visits behind the national estimates of change (null: no plot measured twice); absent in older snapshots. */
+  readonly change?: ChangeCoverage | null;
+  readonly charts: { readonly means: string | null; readonly change?: string | null };
 }
 
 export interface NationalSnapshot {
@@ -55,18 +57,26 @@ export async function assembleNationalSnapshot(deps: Deps, sources: Readonly<Rec
   const { db, config } = deps;
   const regions: NationalRegionInput[] = [];
   const dates: string[] = [];
+  const pairs: PlotPair[] = [];
   for (const region of await listRegionNames(db)) {
-    const [plots, forestAreas] = await Promise.all([listRegionLatestPlots(db, region), listRegionForestAreas(db, region)]);
+    const [plots, forestAreas] = await Promise.all([regionPlots(db, region, deps.plots), listRegionForestAreas(db, region)]);
     for (const p of plots) dates.push(p.surveyDate);
+    pairs.push(...plots);
     regions.push({ region, forestAreas, plots: plots.map((p) => ({ plotId: p.plotKey, forestType: p.forestType, values: { ...p.metrics, ...p.change, ...standTableValues(p.standTable) } })) });
   }
   const summary = summariseNation({ regions, variables: summaryVariables(regions.flatMap((r) => r.plots)), options: { samplingErrorT: samplingErrorMultiplier(config), caution: cautionSettings(config) } });
   dates.sort();
   let means: string | null = null;
+  let change: string | null = null;
   try {
     means = await renderMeansChartSvg(summary.rows, { label: 'whole country', subtitle: 'dark: all regions together (stratified by region × forest type); light: each forest type nationally' });
   } catch (err) {
     deps.log?.error({ err }, 'national means chart could not be rendered');
+  }
+  try {
+    change = await renderChangeChartSvg(summary.rows, { label: 'whole country' });
+  } catch (err) {
+    deps.log?.error({ err }, 'national change chart could not be rendered');
   }
   return {
     format: NATIONAL_FORMAT,
@@ -74,7 +84,8 @@ export async function assembleNationalSnapshot(deps: Deps, sources: Readonly<Rec
     method: { estimator: NATIONAL_ESTIMATOR },
     summary,
     sources,
-    charts: { means },
+    change: changeCoverage(pairs),
+    charts: { means, change },
   };
 }
 

@@ -3,7 +3,7 @@ import { NATIONAL, queueFollowUp, type ServiceDeps } from '@stemwise/core';
 import { parsePayload, PermanentError, type ProcessorMap } from '@stemwise/platform';
 import { refreshNationalSummary } from './national-snapshot';
 import { RegionSummaryInputError } from './summary/input';
-import { refreshStaleSummaries } from './snapshots';
+import { refreshStaleSummaries, type RegionPlotsCache } from './snapshots';
 
 /**
  * The report service's jobs. `report.summaries {runId}` is the last stage (the root) of a recompute
@@ -17,11 +17,12 @@ export function createProcessors(deps: ServiceDeps): ProcessorMap {
       const { db } = deps;
       const start = Date.now();
       const result = await db.withLock(SUMMARIES_LOCK, async () => {
-        const regions = await refreshStaleSummaries({ db, config: deps.config, log: ctx.log, runId });
+        const plots: RegionPlotsCache = new Map(); // each region's plots read once, for its summary and the national one
+        const regions = await refreshStaleSummaries({ db, config: deps.config, log: ctx.log, runId, plots });
         // The national summary mixes every region: only once they all went through, else it stays stale.
         if (regions.rejected.length) return { ...regions, national: null };
         try {
-          const national = await refreshNationalSummary({ db, config: deps.config, log: ctx.log });
+          const national = await refreshNationalSummary({ db, config: deps.config, log: ctx.log, plots });
           await clearProblems(db, 'summary', [NATIONAL]);
           return { ...regions, national };
         } catch (err) {

@@ -16,6 +16,7 @@ export function summaryJson(s: Snapshot): string {
     method: rest.method,
     summary: rest.summary,
     fits: rest.fits,
+    ...(rest.change === undefined ? {} : { change: rest.change }),
   });
 }
 
@@ -28,6 +29,6 @@ export function summaryCsv(s: Snapshot | NationalSnapshot): string {
 
 /** The national snapshot as JSON (everything but the chart SVG). */
 export function nationalJson(s: NationalSnapshot): string {
-  const { data, method, summary, sources } = s.payload;
-  return JSON.stringify({ region: 'national', version: s.version, created_at: s.createdAt.toISOString(), etag: s.etag, data, method, summary, sources });
+  const { data, method, summary, sources, change } = s.payload;
+  return JSON.stringify({ region: 'national', version: s.version, created_at: s.createdAt.toISOString(), etag: s.etag, data, method, summary, sources, ...(change === undefined ? {} : { change }) });
 }

@@ -10,6 +10,7 @@ import { TokenVerifier } from './access';
 import { AuditWriter } from './audit';
 import { auditTokenUse, type AuthFailureLimit, type RouteContext } from './routes/auth';
 import { batchRoutes } from './routes/batches';
+import { changeRoutes } from './routes/change';
 import { fitRoutes } from './routes/fits';
 import { healthRoutes } from './routes/health';
 import { nationalRoutes } from './routes/national';
@@ -131,6 +132,7 @@ export async function buildServer(deps: ServiceDeps, options: ReportServerOption
   healthRoutes(app, ctx);
   regionRoutes(app, ctx);
   nationalRoutes(app, ctx);
+  changeRoutes(app, ctx);
   fitRoutes(app, ctx);
   batchRoutes(app, ctx);
   pageRoutes(app, ctx);

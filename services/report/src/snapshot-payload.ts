@@ -1,4 +1,5 @@
 import type { RegionSummary, TestOutcome } from '@stemwise/core';
+import type { ChangeCoverage } from './summary/change-coverage';
 
 // What one region_summaries.payload holds (format 1). The API serves it without `charts`; the page
 // draws the charts from it. Plain JSON; null where a value cannot be computed.
@@ -84,12 +85,16 @@ export interface SnapshotPayload {
   readonly method: SnapshotMethod;
   readonly summary: RegionSummary;
   readonly fits: readonly SnapshotFitRow[];
+  /** The pairs of visits behind the estimates of change (null: no plot measured twice); absent in snapshots made before it. */
+  readonly change?: ChangeCoverage | null;
   readonly charts: {
     readonly means: string | null;
     readonly guilds: string | null;
+    /** Gains, losses and net change per forest type (null without change estimates); absent in older snapshots. */
+    readonly change?: string | null;
     readonly fits: readonly FitChart[];
-    /** Keys of the specifications the means and guild charts were drawn from (see FitChart.drawn_from). */
-    readonly drawn_from: { readonly means: string | null; readonly guilds: string | null };
+    /** Keys of the specifications the means, guild and change charts were drawn from (see FitChart.drawn_from). */
+    readonly drawn_from: { readonly means: string | null; readonly guilds: string | null; readonly change?: string | null };
   };
 }
 

@@ -8,21 +8,36 @@ import {
   listLatestChartSvgs,
   listRegionForestAreas,
   listRegionLatestPlots,
-  listRegionStemNames,
+  type RegionPlotRow,
   listStaleMarks,
   recordProblems,
   regionExists,
 } from '@stemwise/db';
-import { asStoredFitChart, cautionSettings, currentSpecies, IPCC_2006_CARBON_FRACTION, standTableValues, toFitRow, type SamplingErrorT, type ServiceDeps, type StoredFitChart } from '@stemwise/core';
+import { asStoredFitChart, cautionSettings, currentSpecies, IPCC_2006_CARBON_FRACTION, standTableValues, toFitRow, variableLabel, type SamplingErrorT, type ServiceDeps, type StoredFitChart } from '@stemwise/core';
 import { isInfrastructureError, PermanentError, type Config, type Logger } from '@stemwise/platform';
-import { buildFitChartSpec, buildGuildChartSpec, buildMeansChartSpec, chartSpecKey, regionChartPoints, renderVegaLiteSvg, type TopLevelSpec } from '@stemwise/core/charts';
+import { plotPagePath } from './plot-map';
+import { buildChangeChartSpec, buildFitChartSpec, buildGuildChartSpec, buildMeansChartSpec, chartSpecKey, regionChartPoints, renderVegaLiteSvg, type TopLevelSpec } from '@stemwise/core/charts';
 import { RegionSummaryInputError, summariseRegion, summaryVariables, type PlotMetrics } from './summary/region-summary';
+import { changeCoverage } from './summary/change-coverage';
 import { SNAPSHOT_FORMAT, type FitChart, type SnapshotFitRow, type SnapshotMethod, type SnapshotPayload } from './snapshot-payload';
 
 type Deps = Pick<ServiceDeps, 'db' | 'config'> & { log?: Logger };
 
 /** The stored charts of the forest types (fit_charts), read once per summaries run and shared by their regions. */
 export type StoredChartCache = Map<string, Promise<StoredFitChart | null>>;
+
+/** The latest plots of each region, read once per summaries stage and shared by the region summaries and the national one. */
+export type RegionPlotsCache = Map<string, Promise<RegionPlotRow[]>>;
+
+/** A region's latest plots (listRegionLatestPlots), from the stage's cache when it has read them already. */
+export function regionPlots(db: Deps['db'], region: string, cache?: RegionPlotsCache): Promise<RegionPlotRow[]> {
+  let plots = cache?.get(region);
+  if (!plots) {
+    plots = listRegionLatestPlots(db, region);
+    cache?.set(region, plots);
+  }
+  return plots;
+}
 
 export function samplingErrorMultiplier(config: Pick<Config, 'samplingErrorT'>): SamplingErrorT {
   return config.samplingErrorT === 't' ? 't' : config.samplingErrorT === '1.96' ? 1.96 : 2;
@@ -36,7 +51,7 @@ export function methodOf(config: Pick<Config, 'fitMetric' | 'fitAxis'>): Snapsho
       'Above-ground biomass per stem by Chave et al. 2014 (wood density, diameter, height; heights measured or from a local height–diameter model), or by Chave et al. 2005 for the climate class where no height is available.',
     carbon_fraction: IPCC_2006_CARBON_FRACTION,
     carbon: `Carbon = ${IPCC_2006_CARBON_FRACTION} × above-ground biomass (IPCC 2006 default carbon fraction). Not a substitute for the national greenhouse-gas inventory method.`,
-    fits: `${config.fitMetric} against ${config.fitAxis}: straight line and parabola by least squares per forest type, with the hump tests and a plain verdict.`,
+    fits: `${variableLabel(config.fitMetric).name} against ${variableLabel(config.fitAxis).name}: straight line and parabola by least squares per forest type, with the hump tests and a plain verdict.`,
   };
 }
 
@@ -66,7 +81,7 @@ async function fitChart(deps: Deps, region: string, forestType: string, charts: 
   if (!stored) return { ...base, svg: null, missing: `no stored fit of ${metric} against ${axis} for ${forestType}: the fits stage has not stored its chart`, drawn_from: null };
   if (!stored.points.x.length) return { ...base, svg: null, missing: `no plot of ${forestType} has both ${metric} and ${axis}`, drawn_from: null };
   try {
-    const { svg, key } = await draw(buildFitChartSpec({ forestType, metric, axis, points: regionChartPoints(stored.points, region), chart: stored }), drawn);
+    const { svg, key } = await draw(buildFitChartSpec({ forestType, metric, axis, points: regionChartPoints(stored.points, region, (plot) => plotPagePath(region, plot)), chart: stored, highlightLabel: `plots of ${region}` }), drawn);
     return { ...base, svg, missing: null, drawn_from: key };
   } catch (err) {
     deps.log?.error({ err, region, forestType }, 'fit chart could not be rendered');
@@ -85,29 +100,21 @@ async function optionalChart(deps: Deps, what: string, spec: () => TopLevelSpec 
 }
 
 /** Assembles a region's snapshot payload from the database (no write). */
-export async function assembleRegionSnapshot(deps: Deps, region: string, charts: StoredChartCache = new Map()): Promise<SnapshotPayload> {
+export async function assembleRegionSnapshot(deps: Deps, region: string, charts: StoredChartCache = new Map(), plotsCache?: RegionPlotsCache): Promise<SnapshotPayload> {
   const { db, config } = deps;
-  const [plots, areas, names, species, drawnBefore] = await Promise.all([
-    listRegionLatestPlots(db, region),
+  const [plots, areas, species, drawnBefore] = await Promise.all([
+    regionPlots(db, region, plotsCache),
     listRegionForestAreas(db, region),
-    listRegionStemNames(db, region),
     currentSpecies(db),
     listLatestChartSvgs(db, region),
   ]);
-  // Species counts use accepted names (synonyms and spelling variants count as their species), like richness.
-  const accepted = new Map<string, string[]>();
-  for (const { plotKey, name } of names) {
-    const hit = species.index.resolve(name).species;
-    if (!hit) continue;
-    const list = accepted.get(plotKey);
-    if (list) list.push(hit.name);
-    else accepted.set(plotKey, [hit.name]);
-  }
+  // Species counts use the accepted names the metrics stage stored per visit (synonyms and spelling
+  // variants count as their species), like richness; a visit computed before they were stored has none.
   const inputPlots: PlotMetrics[] = plots.map((p) => ({
     plotId: p.plotKey,
     forestType: p.forestType,
     values: { ...p.metrics, ...p.change, ...standTableValues(p.standTable) },
-    speciesNames: accepted.get(p.plotKey) ?? [],
+    ...(p.speciesStems ? { speciesNames: Object.keys(p.speciesStems) } : {}),
   }));
   const summary = summariseRegion({ region, plots: inputPlots, forestAreas: areas, variables: summaryVariables(inputPlots), options: { samplingErrorT: samplingErrorMultiplier(config), caution: cautionSettings(config) } });
 
@@ -124,6 +131,7 @@ export async function assembleRegionSnapshot(deps: Deps, region: string, charts:
 
   const means = await optionalChart(deps, 'means', () => buildMeansChartSpec(summary.rows), drawn);
   const guilds = await optionalChart(deps, 'guilds', () => buildGuildChartSpec(summary.guild_composition), drawn);
+  const change = await optionalChart(deps, 'change', () => buildChangeChartSpec(summary.rows), drawn);
 
   const dates = plots.map((p) => p.surveyDate).sort();
   return {
@@ -133,7 +141,8 @@ export async function assembleRegionSnapshot(deps: Deps, region: string, charts:
     method: methodOf(config),
     summary,
     fits,
-    charts: { means: means.svg, guilds: guilds.svg, fits: fitCharts, drawn_from: { means: means.key, guilds: guilds.key } },
+    change: changeCoverage(plots),
+    charts: { means: means.svg, guilds: guilds.svg, change: change.svg, fits: fitCharts, drawn_from: { means: means.key, guilds: guilds.key, change: change.key } },
   };
 }
 
@@ -155,7 +164,7 @@ export interface RefreshedRegion {
  * region whose summary cannot be built is recorded in compute_problems, unmarked and reported in
  * `rejected`; the others are still stored.
  */
-export async function refreshStaleSummaries(deps: Deps & { runId?: string }): Promise<{ regions: RefreshedRegion[]; rejected: Array<{ region: string; reason: string }> }> {
+export async function refreshStaleSummaries(deps: Deps & { runId?: string; plots?: RegionPlotsCache }): Promise<{ regions: RefreshedRegion[]; rejected: Array<{ region: string; reason: string }> }> {
   const { db } = deps;
   const charts: StoredChartCache = new Map();
   const regions: RefreshedRegion[] = [];
@@ -168,7 +177,7 @@ export async function refreshStaleSummaries(deps: Deps & { runId?: string }): Pr
     }
     let payload: SnapshotPayload;
     try {
-      payload = await assembleRegionSnapshot(deps, region, charts);
+      payload = await assembleRegionSnapshot(deps, region, charts, deps.plots);
     } catch (err) {
       if (isInfrastructureError(err)) throw err;
       // This region's summary cannot be built from its data: the latest snapshot stays, the reason is

@@ -1,4 +1,4 @@
-import { leftOutSentence } from '@stemwise/core';
+import { leftOutSentence, variableLabel } from '@stemwise/core';
 import type { Snapshot, SnapshotFitRow } from '../snapshot-payload';
 import { figure, interval } from './figures';
 import { html, safeSvg, type Markup } from './html';
@@ -57,7 +57,7 @@ export function fitsSection(s: Snapshot): Markup {
   const figures = charts.fits.map((c) => {
     const svg = safeSvg(c.svg);
     return html`<figure class="fit-chart" data-forest-type="${c.forest_type}">${svg ?? html`<p class="muted">No chart for ${c.forest_type}: ${c.missing ?? 'not available'}.</p>`}
-<figcaption>${c.forest_type}: ${c.metric} against ${c.axis} for all ${c.points} plots of this forest type in the inventory; the ${c.highlighted} plots of ${s.region} are drawn highlighted. The curve and the verdict are those of the forest type as a whole.</figcaption></figure>`;
+<figcaption>${c.forest_type}: ${variableLabel(c.metric).name} against ${variableLabel(c.axis).name} for all ${c.points} plots of this forest type in the inventory; the ${c.highlighted} plots of ${s.region} are drawn highlighted. The curve and the verdict are those of the forest type as a whole.</figcaption></figure>`;
   });
   if (!fits.length) return html`${figures}<p class="muted">No fits stored yet for these forest types.</p>`;
   return html`${figures}

@@ -1,6 +1,6 @@
 import type { NationalSnapshot } from '../national-snapshot';
 import { HEADLINE_VARIABLES, variableLabel } from '@stemwise/core';
-import { cautions, visitsSentence } from './region-page';
+import { cautions, shownRow, visitsSentence } from './region-page';
 import { estimate, estimateInterval, isoMinute, samplingError } from './figures';
 import { html, type Markup } from './html';
 import { pageShell } from './shell';
@@ -22,7 +22,9 @@ export interface IndexNational {
 
 function nationalSection(n: IndexNational): Markup {
   const { summary, data } = n.snapshot.payload;
-  const rows = HEADLINE_VARIABLES.map((v) => summary.rows.find((r) => r.forest_type === 'all' && r.variable === v)).filter((r) => r !== undefined);
+  const rows = HEADLINE_VARIABLES.map((v) => summary.rows.find((r) => r.forest_type === 'all' && r.variable === v))
+    .filter((r) => r !== undefined)
+    .map(shownRow);
   return html`<section id="national">
   <h2>All regions together</h2>
   <p>Stratified by region × forest type over ${data.plots} plots in ${data.regions} regions. ${visitsSentence(data.first_survey, data.last_survey)} <a href="${n.href}">National figures by forest type</a> (version ${n.snapshot.version}, ${isoMinute(n.snapshot.createdAt)}).</p>
@@ -34,7 +36,7 @@ function nationalSection(n: IndexNational): Markup {
 }
 
 /** The list of regions the viewer may see, and the national figures when it may see them. */
-export function renderIndexPage(entries: readonly IndexEntry[], options: { carbonFraction: number; signOut: string | null; national?: IndexNational | null }): string {
+export function renderIndexPage(entries: readonly IndexEntry[], options: { carbonFraction: number; signOut: string | null; national?: IndexNational | null; map?: Markup | null }): string {
   const body = html`
 <header class="top"><div>
   <div class="where">stemwise</div>
@@ -49,6 +51,7 @@ export function renderIndexPage(entries: readonly IndexEntry[], options: { carbo
         (e) => html`<tr><td>${e.href ? html`<a href="${e.href}">${e.region}</a>` : e.region}</td><td class="num">${e.plots}</td><td class="num">${e.version ?? '–'}</td><td>${e.updatedAt ? isoMinute(e.updatedAt) : 'not yet: waiting for the next recompute'}</td></tr>`,
       )}</tbody></table>`
     : html`<p>No region to show: none has been loaded yet, or this token may see none.</p>`}
+  ${options.map ? html`<h2 id="where">Where the plots are</h2>${options.map}` : null}
 </main>
 <footer><div>${options.signOut ? html`<a class="no-print" href="${options.signOut}">Sign out</a>` : null}</div></footer>`;
   return pageShell('Regional forest inventory summaries', body);

@@ -1,7 +1,8 @@
 import type { NationalSnapshot } from '../national-snapshot';
 import { figure, isoMinute } from './figures';
-import { html, safeSvg } from './html';
-import { cautionLegend, cautions, estimatesTable, headlineCards, versionsList, visitsSentence } from './region-page';
+import { html, safeSvg, type Markup } from './html';
+import { cautionLegend, cautions, estimatesTable, headlineCards, versionsList, visitsSentence, withoutChange } from './region-page';
+import { changeSection } from './change-section';
 import { poolsSection } from './pools-section';
 import { pageShell } from './shell';
 import { reportingThresholdNote, standTableSection } from './stand-table-section';
@@ -18,6 +19,8 @@ export interface NationalPageInput {
   };
   /** Every version of the national summary, newest first. */
   versions: ReadonlyArray<{ version: number; createdAt: Date }>;
+  /** The map of every region's plots (page/map-section.ts); absent: not shown. */
+  map?: Markup | null;
 }
 
 const WHOLE_COUNTRY = 'All regions (stratified by region × forest type)';
@@ -52,9 +55,12 @@ export function renderNationalPage(input: NationalPageInput): string {
   <h2 id="carbon-pools">Carbon pools</h2>
   ${poolsSection(summary.rows, summary.totals, input.carbonFraction) ?? html`<p class="muted">This summary was made before the carbon pools were estimated; the next recompute adds them.</p>`}
   ${means ? html`<h2>Charts</h2><figure id="means-chart">${means}<figcaption>Means per hectare with their 95 % confidence intervals: all regions together (dark) and each forest type nationally.</figcaption></figure>` : null}
+  ${input.map ? html`<h2 id="where">Where the plots are</h2>${input.map}` : null}
   <h2>Estimates by forest type, nationally</h2>
-  ${estimatesTable(summary.rows, WHOLE_COUNTRY)}
+  ${estimatesTable(withoutChange(summary.rows), WHOLE_COUNTRY)}
   ${cautionLegend(summary.caution)}
+  <h2 id="change-between-visits">Change between visits</h2>
+  ${changeSection({ rows: summary.rows, coverage: s.payload.change, chartSvg: s.payload.charts.change, whole: WHOLE_COUNTRY, scope: 'country' })}
   <h2 id="stand-table-heading">Stand table by diameter class</h2>
   ${standTableSection(summary.rows, WHOLE_COUNTRY) ?? html`<p class="muted">No stand table in this version of the summary.</p>`}
   <h2>Strata</h2>

@@ -1,10 +1,12 @@
 import { problemLine, type ProblemView } from '@stemwise/db';
 import type { Snapshot } from '../snapshot-payload';
-import { CAUTION_WORDS, HEADLINE_VARIABLES, isStandVariable, totalUnit, variableLabel, type CautionSettings, type DisturbanceRow, type RegionRow, type TotalRow } from '@stemwise/core';
+import { CAUTION_WORDS, HEADLINE_VARIABLES, isStandVariable, shownValue, totalUnit, variableLabel, type CautionSettings, type DisturbanceRow, type RegionRow, type TotalRow } from '@stemwise/core';
 import { estimate, estimateInterval, figure, isoMinute, samplingError, sharePercent, standardError } from './figures';
 import { html, safeSvg, type Markup } from './html';
 import { pageShell } from './shell';
 import { fitsSection } from './fits-section';
+import { changeSection } from './change-section';
+import { changeRows } from '../summary/change-view';
 import { poolsSection } from './pools-section';
 import { reportingThresholdNote, standTableSection } from './stand-table-section';
 
@@ -25,6 +27,8 @@ export interface RegionPageInput {
   versions: ReadonlyArray<{ version: number; createdAt: Date }>;
   /** What the latest recompute could not compute for this region (its plots, fits, summary); a short note when any. */
   problems?: readonly ProblemView[];
+  /** The plot map and the plot table (page/map-section.ts, page/plot-table.ts); absent: not shown. */
+  plots?: { map: Markup; table: Markup } | null;
 }
 
 const WHOLE = 'all';
@@ -67,8 +71,9 @@ export function cautionLegend(caution: CautionSettings | undefined): Markup | nu
 
 export function headlineCards(rows: readonly RegionRow[], totals: readonly TotalRow[]): Markup {
   const cards = HEADLINE_VARIABLES.map((v) => {
-    const r = rows.find((x) => x.forest_type === WHOLE && x.variable === v);
-    if (!r) return null;
+    const found = rows.find((x) => x.forest_type === WHOLE && x.variable === v);
+    if (!found) return null;
+    const r = shownRow(found);
     const label = variableLabel(v);
     const t = totals.find((x) => x.forest_type === WHOLE && x.variable === v);
     return html`<div class="card" data-variable="${v}">
@@ -86,22 +91,40 @@ export function headlineCards(rows: readonly RegionRow[], totals: readonly Total
 // SE of mean × area with the area known without error: SE × area (Cochran 1977 ch. 5)
 const totalSe = (r: RegionRow): number | null => (r.se !== null && r.forest_area_ha !== null ? r.se * r.forest_area_ha : null);
 
-export function estimatesTable(rows: readonly RegionRow[], whole?: string): Markup {
+/** A row in the unit its variable is shown in (shares × 100, in percent); totals are never shares. */
+export function shownRow(r: RegionRow): RegionRow {
+  if (!variableLabel(r.variable).percent) return r;
+  const v = (x: number | null) => shownValue(r.variable, x);
+  return { ...r, mean: v(r.mean), se: v(r.se), ci_low: v(r.ci_low), ci_high: v(r.ci_high) };
+}
+
+export interface EstimatesTableOptions {
+  /** The table's id (default `estimates`). */
+  readonly id?: string;
+  /** Show forest area and total columns (default true). */
+  readonly totals?: boolean;
+}
+
+export function estimatesTable(rows: readonly RegionRow[], whole?: string, options: EstimatesTableOptions = {}): Markup {
+  const { id = 'estimates', totals = true } = options;
   // The stand-table classes have a table of their own (stand-table-section.ts).
   const variables = [...new Set(rows.map((r) => r.variable))].filter((v) => !isStandVariable(v));
   const body = variables.map((v) => {
-    const group = rows.filter((r) => r.variable === v).sort((a, b) => (a.forest_type === WHOLE ? -1 : b.forest_type === WHOLE ? 1 : a.forest_type < b.forest_type ? -1 : 1));
+    const group = rows
+      .filter((r) => r.variable === v)
+      .sort((a, b) => (a.forest_type === WHOLE ? -1 : b.forest_type === WHOLE ? 1 : a.forest_type < b.forest_type ? -1 : 1))
+      .map(shownRow);
     const label = variableLabel(v);
     return group.map(
-      (r, i) => html`<tr class="${r.forest_type === WHOLE ? 'whole' : ''}">
+      (r, i) => html`<tr class="${r.forest_type === WHOLE ? 'whole' : ''}" data-variable="${v}" data-forest-type="${r.forest_type}">
   ${i === 0 ? html`<td rowspan="${group.length}">${label.name}${label.unit ? html` <span class="muted">(${label.unit})</span>` : null}</td>` : null}
   <td>${stratumName(r.forest_type, whole)}</td><td class="num">${r.n_plots}</td><td class="num">${estimate(r.mean, r.se)}${cautionMark(r)}</td><td class="num">${standardError(r.se)}</td>
   <td class="num">${estimateInterval(r.ci_low, r.ci_high, r.se)}</td><td class="num">${samplingError(r.sampling_error_pct)}</td>
-  <td class="num">${figure(r.forest_area_ha)}</td><td class="num">${estimate(r.total, totalSe(r))}</td>
+  ${totals ? html`<td class="num">${figure(r.forest_area_ha)}</td><td class="num">${estimate(r.total, totalSe(r))}</td>` : null}
 </tr>`,
     );
   });
-  return html`<table id="estimates"><thead><tr><th>Variable</th><th>Stratum</th><th class="num">Plots</th><th class="num">Mean</th><th class="num">SE</th><th class="num">95 % CI</th><th class="num">Sampling error</th><th class="num">Forest area (ha)</th><th class="num">Total</th></tr></thead><tbody>${body}</tbody></table>`;
+  return html`<table id="${id}"><thead><tr><th>Variable</th><th>Stratum</th><th class="num">Plots</th><th class="num">Mean</th><th class="num">SE</th><th class="num">95 % CI</th><th class="num">Sampling error</th>${totals ? html`<th class="num">Forest area (ha)</th><th class="num">Total</th>` : null}</tr></thead><tbody>${body}</tbody></table>`;
 }
 
 function guildTable(s: Snapshot): Markup | null {
@@ -124,29 +147,34 @@ function classRange(r: DisturbanceRow): string {
   return `${r.lower} to below ${r.upper}`;
 }
 
+// Counts and shares in columns of their own, each headed by what it is: a forest type's share is the
+// share of its plots; the whole region's is the stratified estimate (of forest area when areas are known).
 function disturbanceTable(s: Snapshot): Markup | null {
   const { rows, plots_without_index } = s.payload.summary.disturbance;
   if (!rows.length) return null;
   const strata = [...new Set(rows.map((r) => r.forest_type))];
   const classes = [...new Set(rows.map((r) => r.class))];
   const missing = plots_without_index.filter((p) => p.n_plots > 0);
-  return html`<table id="disturbance"><thead><tr><th>Class</th><th>Disturbance index</th>${strata.map((t) => html`<th class="num">${stratumName(t)}</th>`)}</tr></thead><tbody>${classes.map((c) => {
+  const wholeShare = s.payload.summary.weighting === 'area' ? '% of forest area (stratified)' : '% of plots (stratified, plot-count weights)';
+  return html`<table id="disturbance"><thead><tr><th rowspan="2">Class</th><th rowspan="2">Disturbance index</th>${strata.map((t) => html`<th class="num" colspan="2">${stratumName(t)}</th>`)}</tr>
+<tr>${strata.map((t) => html`<th class="num">Plots (count)</th><th class="num">${t === WHOLE ? wholeShare : '% of its plots'}</th>`)}</tr></thead><tbody>${classes.map((c) => {
     const first = rows.find((r) => r.class === c) as DisturbanceRow;
     return html`<tr><td>${c.replace(/_/g, ' ')}</td><td>${classRange(first)}</td>${strata.map((t) => {
       const r = rows.find((x) => x.forest_type === t && x.class === c);
-      return html`<td class="num">${r ? html`${plots(r.n_plots)} · ${sharePercent(r.share, r.share_se)}` : '–'}</td>`;
+      return r ? html`<td class="num">${r.n_plots}</td><td class="num">${sharePercent(r.share, r.share_se)}</td>` : html`<td class="num">–</td><td class="num">–</td>`;
     })}</tr>`;
   })}</tbody></table>
-<p class="muted">Shares per forest type are shares of its plots; the whole-region share is the stratified estimate (of forest area when areas are known).${missing.length ? ` Plots without a disturbance index: ${missing.map((m) => `${m.forest_type} ${m.n_plots}`).join(', ')}.` : ''}</p>`;
+<p class="muted">Plots (count): plots of the class. Per forest type, the share is the share of its plots with a disturbance index; for the whole region it is the stratified estimate (${s.payload.summary.weighting === 'area' ? 'forest types weighted by forest area: an estimate of the share of forest area' : 'forest types weighted by plot counts, as no forest areas were given'}), so it need not equal the pooled count over all plots.${missing.length ? ` Plots without a disturbance index: ${missing.map((m) => `${m.forest_type} ${m.n_plots}`).join(', ')}.` : ''}</p>`;
 }
 
+// Species counts are pooled (distinct species over the plots of a stratum), not stratified estimates.
 function speciesTable(s: Snapshot): Markup | null {
   const rows = s.payload.summary.species;
   if (!rows) return null;
-  return html`<table id="species"><thead><tr><th>Stratum</th><th class="num">Species recorded</th><th class="num">Plots</th></tr></thead><tbody>${rows.map(
-    (r) => html`<tr class="${r.forest_type === WHOLE ? 'whole' : ''}"><td>${stratumName(r.forest_type)}</td><td class="num">${r.n_species}</td><td class="num">${r.n_plots_with_names}</td></tr>`,
+  return html`<table id="species"><thead><tr><th>Stratum</th><th class="num">Species recorded (pooled count)</th><th class="num">Plots pooled</th></tr></thead><tbody>${rows.map(
+    (r) => html`<tr class="${r.forest_type === WHOLE ? 'whole' : ''}"><td>${stratumName(r.forest_type, 'Whole region (pooled over all plots)')}</td><td class="num">${r.n_species}</td><td class="num">${r.n_plots_with_names}</td></tr>`,
   )}</tbody></table>
-<p class="muted">Species counted among live stems of the main plots identified to species (synonyms counted as their accepted name). Observed counts grow with the number of plots: compare strata with care.</p>`;
+<p class="muted">Pooled counts, not estimates: the distinct species among the live main-plot stems identified to species of all the stratum's plots together (synonyms counted as their accepted name). They grow with the number and size of the plots pooled: compare strata with care.</p>`;
 }
 
 // A short note of what could not be computed: the figures shown leave these parts out or are older for them.
@@ -169,6 +197,12 @@ export function versionsList(input: VersionsInput): Markup {
     if (v.version === snapshot.version) return html`<li><strong>${label}</strong> (shown)</li>`;
     return html`<li>${links.versionPage ? html`<a href="${links.versionPage(v.version)}">${label}</a>` : label}</li>`;
   })}</ul>`;
+}
+
+/** The rows of the stock and diversity variables: change between visits has its own section. */
+export function withoutChange(rows: readonly RegionRow[]): RegionRow[] {
+  const change = new Set(changeRows(rows));
+  return rows.filter((r) => !change.has(r));
 }
 
 /** The HTML page of one region's summary snapshot. */
@@ -206,19 +240,23 @@ export function renderRegionPage(input: RegionPageInput): string {
   <h2>Charts</h2>
   ${means ? html`<figure id="means-chart">${means}<figcaption>Means per hectare with their 95 % confidence intervals: the whole region (dark) and each forest type. Wide intervals come from few plots.</figcaption></figure>` : null}
   ${guilds ? html`<figure id="guild-chart">${guilds}<figcaption>Guild composition: the mean share of live basal area per plot.</figcaption></figure>` : null}
+  ${input.plots ? html`<h2 id="where">Where the plots are</h2>${input.plots.map}` : null}
   <h2>Diversity and disturbance by forest type</h2>
   ${fitsSection(s)}
   <h2>Estimates by forest type</h2>
-  ${estimatesTable(summary.rows)}
+  ${estimatesTable(withoutChange(summary.rows))}
   ${cautionLegend(summary.caution)}
+  <h2 id="change-between-visits">Change between visits</h2>
+  ${changeSection({ rows: summary.rows, coverage: s.payload.change, chartSvg: charts.change, scope: 'region' })}
   <h2 id="stand-table-heading">Stand table by diameter class</h2>
   ${standTableSection(summary.rows, 'Whole region (stratified)') ?? html`<p class="muted">No stand table in this version of the summary.</p>`}
   <h2>Guild composition</h2>
   ${guildTable(s) ?? html`<p class="muted">No guild shares.</p>`}
   <h2>Plots by disturbance class</h2>
   ${disturbanceTable(s) ?? html`<p class="muted">No disturbance index.</p>`}
-  <h2>Species counts</h2>
+  <h2>Species recorded (pooled counts)</h2>
   ${speciesTable(s) ?? html`<p class="muted">No species names.</p>`}
+  ${input.plots ? html`<h2 id="plots">Plots</h2>${input.plots.table}` : null}
   <h2>Method and notes</h2>
   <ul class="notes">
     <li>${method.estimator}</li>

@@ -19,9 +19,9 @@ export function pageShell(title: string, body: Markup): string {
 `;
 }
 
-/** Headers for every page: no scripts may run, nothing loads from elsewhere, not framed, not cached by others. */
+/** Headers for every page: no scripts may run, nothing loads from elsewhere, forms go to the same server only (the map's variable), not framed, not cached by others. */
 export const PAGE_HEADERS: Readonly<Record<string, string>> = {
-  'content-security-policy': "default-src 'none'; style-src 'unsafe-inline'; img-src 'self' data:; base-uri 'none'; form-action 'none'; frame-ancestors 'none'",
+  'content-security-policy': "default-src 'none'; style-src 'unsafe-inline'; img-src 'self' data:; base-uri 'none'; form-action 'self'; frame-ancestors 'none'",
   'x-content-type-options': 'nosniff',
   'referrer-policy': 'no-referrer',
   'cache-control': 'private, no-cache',

@@ -41,6 +41,11 @@ footer { margin: 40px auto 30px; color: var(--muted); font-size: .85rem; }
 #verdict-evidence td, #verdict-evidence th { font-size: .82rem; padding: 4px 5px; }
 #verdict-evidence td.num, #verdict-evidence th.num { white-space: normal; }
 .table-scroll { overflow-x: auto; }
+.nowrap { white-space: nowrap; }
+#plot-table th.num { white-space: normal; min-width: 4.5em; }
+#plot-table td:nth-child(-n+3) { white-space: nowrap; }
+.map-choice { margin: 6px 0 8px; }
+.map-choice select { margin: 0 6px; }
 .flag { display: inline-block; margin-left: 6px; padding: 0 5px; border: 1px solid var(--warn); border-radius: 3px; color: var(--warn); background: var(--warn-soft); font-size: .75rem; font-weight: 600; white-space: nowrap; }
 @media print {
   html { font-size: 10pt; }
@@ -52,6 +57,9 @@ footer { margin: 40px auto 30px; color: var(--muted); font-size: .85rem; }
   .card, figure, table, tr, .caution { break-inside: avoid; }
   h2, h3 { break-after: avoid; }
   figure, .card { border-color: #999; }
+  .table-scroll { overflow: visible; }
+  #plot-table { font-size: 8.5pt; }
+  #plot-map svg, figure svg { max-width: 100%; height: auto; }
   @page { margin: 14mm; }
 }
 `;

@@ -14,6 +14,9 @@ import { checkToken, requireToken, routeOf, TOKEN_COOKIE, type Deny, type RouteC
 import { checkNational, NATIONAL_LINKS } from './national';
 import { checkRegion, regionLinks, visibleRegions } from './regions';
 import { RegionParams, VersionNumber } from './schemas';
+import { mapOf, MapQuery, plotPageRoutes, regionPlotSections, RegionPageQuery } from './plot-pages';
+import { readRegionPlots } from '../plot-map';
+import { MAP_PARAM } from '../page/map-section';
 
 const COOKIE_MAX_AGE_S = 30 * 24 * 3600;
 
@@ -69,7 +72,7 @@ export function pageRoutes(app: FastifyInstance, ctx: RouteContext): void {
   const auth = requireToken(ctx, { cookie: true, deny: denyHtml });
   const preValidation = [tokenFromQuery(ctx), auth];
 
-  r.get('/', { preValidation, schema: { hide: true } }, async (request, reply) => {
+  r.get('/', { preValidation, schema: { hide: true, querystring: MapQuery } }, async (request, reply) => {
     const p = request.principal as Principal;
     if (!readsRegions(p)) return denyHtml(reply, 403, 'forbidden', 'This token may submit and follow batches only; the summaries need a reader or admin token.');
     const heads = visibleRegions(p, await listRegionHeads(ctx.deps.db));
@@ -81,12 +84,13 @@ export function pageRoutes(app: FastifyInstance, ctx: RouteContext): void {
       href: h.head ? regionLinks(h.region).page : null,
     }));
     const national = canSeeNational(p) ? await readNationalSnapshot(ctx.deps.db) : null;
-    return sendPage(reply, renderIndexPage(entries, { carbonFraction: IPCC_2006_CARBON_FRACTION, signOut: '/signout', national: national && { snapshot: national, href: NATIONAL_LINKS.page } }));
+    const map = await mapOf(await readRegionPlots(ctx.deps.db, heads.map((h) => h.region)), request.query[MAP_PARAM], 'Plots of the regions listed', {});
+    return sendPage(reply, renderIndexPage(entries, { carbonFraction: IPCC_2006_CARBON_FRACTION, signOut: '/signout', national: national && { snapshot: national, href: NATIONAL_LINKS.page }, map }));
   });
 
   r.get(
     '/national',
-    { preValidation, schema: { hide: true, querystring: z.object({ version: VersionNumber.optional() }) } },
+    { preValidation, schema: { hide: true, querystring: MapQuery.extend({ version: VersionNumber.optional() }) } },
     async (request, reply) => {
       if (!checkNational(request, reply, denyHtml)) return reply;
       const snapshot = await readNationalSnapshot(ctx.deps.db, request.query.version);
@@ -94,7 +98,10 @@ export function pageRoutes(app: FastifyInstance, ctx: RouteContext): void {
         return denyHtml(reply, 404, 'not_found', request.query.version ? `Version ${request.query.version} of the national summary does not exist.` : 'No national summary yet: it is assembled by the next recompute.');
       }
       const v = snapshot.version;
+      const regions = (await listRegionHeads(ctx.deps.db)).map((h) => h.region);
+      const map = await mapOf(await readRegionPlots(ctx.deps.db, regions), request.query[MAP_PARAM], 'Plots of all regions', { version: request.query.version?.toString() });
       const body = renderNationalPage({
+        map,
         snapshot,
         carbonFraction: IPCC_2006_CARBON_FRACTION,
         versions: await listNationalVersions(ctx.deps.db),
@@ -112,7 +119,7 @@ export function pageRoutes(app: FastifyInstance, ctx: RouteContext): void {
 
   r.get(
     '/regions/:region',
-    { preValidation, schema: { hide: true, params: RegionParams, querystring: z.object({ version: VersionNumber.optional() }) } },
+    { preValidation, schema: { hide: true, params: RegionParams, querystring: RegionPageQuery } },
     async (request, reply) => {
       const { region } = request.params;
       if (!(await checkRegion(ctx, request, reply, region, denyHtml))) return reply;
@@ -125,6 +132,7 @@ export function pageRoutes(app: FastifyInstance, ctx: RouteContext): void {
       const versions = await listSummaryVersions(ctx.deps.db, region);
       const problems = (await listRegionProblems(ctx.deps.db, region, entry.snapshot.payload.summary.forest_types)).map(problemView);
       const body = renderRegionPage({
+        plots: await regionPlotSections(ctx, region, request.query),
         snapshot: entry.snapshot,
         versions,
         problems,
@@ -140,6 +148,8 @@ export function pageRoutes(app: FastifyInstance, ctx: RouteContext): void {
       return sendPage(reply, body);
     },
   );
+
+  plotPageRoutes(app, ctx, preValidation, sendPage, denyHtml);
 
   r.get('/signout', { schema: { hide: true } }, async (request, reply) => {
     return reply

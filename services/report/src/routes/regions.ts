@@ -11,10 +11,11 @@ export const regionLinks = (region: string) => ({
   summary: `/v1/regions/${enc(region)}/summary`,
   summary_csv: `/v1/regions/${enc(region)}/summary?format=csv`,
   plots: `/v1/regions/${enc(region)}/plots`,
+  change: `/v1/regions/${enc(region)}/change`,
   page: `/regions/${enc(region)}`,
 });
 
-export const NATIONAL_LINKS = { summary: '/v1/national/summary', summary_csv: '/v1/national/summary?format=csv', versions: '/v1/national/versions', page: '/national' } as const;
+export const NATIONAL_LINKS = { summary: '/v1/national/summary', summary_csv: '/v1/national/summary?format=csv', versions: '/v1/national/versions', change: '/v1/national/change', page: '/national' } as const;
 
 /** Regions a principal may see, among those that exist (a reader never learns of the others). */
 export function visibleRegions<T extends { region: string }>(p: Principal, regions: readonly T[]): T[] {

@@ -28,14 +28,14 @@ export const RegionListItem = z.object({
   plots: z.number().int(),
   latest_version: z.number().int().nullable().describe('null until the first summary is assembled'),
   updated_at: z.string().nullable(),
-  links: z.object({ summary: z.string(), summary_csv: z.string(), plots: z.string(), page: z.string() }),
+  links: z.object({ summary: z.string(), summary_csv: z.string(), plots: z.string(), change: z.string(), page: z.string() }),
 });
 export const RegionList = z.object({
   national: z
     .object({
       latest_version: z.number().int().nullable(),
       updated_at: z.string().nullable(),
-      links: z.object({ summary: z.string(), summary_csv: z.string(), versions: z.string(), page: z.string() }),
+      links: z.object({ summary: z.string(), summary_csv: z.string(), versions: z.string(), change: z.string(), page: z.string() }),
     })
     .optional()
     .describe('the national summary (all regions together): present for admin tokens only'),
@@ -164,6 +164,29 @@ export const FitRowSchema = z.object({
   peak_boot_high: num.optional(),
 });
 
+export const ChangeCoverageSchema = z
+  .object({
+    n_plots_with_pair: z.number().int().describe('plots whose latest visit has a previous one: the plots the estimates of change use'),
+    n_plots: z.number().int().describe('plots in all, measured once or more'),
+    by_forest_type: z.array(z.object({ forest_type: z.string(), n_plots_with_pair: z.number().int(), n_plots: z.number().int() })),
+    first_visit: z.string().describe('earliest first visit of a pair (ISO date)'),
+    last_visit: z.string().describe('latest second visit of a pair (ISO date)'),
+    interval_years: z.object({ min: z.number(), mean: z.number(), max: z.number() }).describe('years between the two visits of a pair'),
+  })
+  .describe('the pairs of visits behind the estimates of change');
+
+export const ChangeResponse = z.object({
+  region: z.string().describe('the region, or `national`'),
+  version: z.number().int().describe('the summary version the estimates come from'),
+  created_at: z.string(),
+  about: z.string().describe('what the estimates are'),
+  net_carbon_change: z.string().describe('what net carbon change means, and its unit'),
+  coverage: ChangeCoverageSchema.nullable().describe('null when no plot has been measured twice (or the summary predates the record)'),
+  variables: z.array(z.object({ variable: z.string(), name: z.string(), unit: z.string().describe('unit of the values as served'), description: z.string() })),
+  estimates: z.array(RegionRowSchema).describe('the `export regions` rows of the change variables: `all` first, then each forest type; empty without plots measured twice'),
+  caution: z.string(),
+});
+
 export const SummaryResponse = z.object({
   region: z.string(),
   version: z.number().int(),
@@ -178,6 +201,7 @@ export const SummaryResponse = z.object({
   method: z.object({ estimator: z.string(), biomass: z.string(), carbon_fraction: z.number(), carbon: z.string(), fits: z.string() }),
   summary: RegionSummarySchema,
   fits: z.array(FitRowSchema),
+  change: ChangeCoverageSchema.nullable().optional().describe('the pairs of visits behind the estimates of change (absent in summaries made before it was recorded)'),
 });
 
 export const NationalResponse = SummaryResponse.omit({ fits: true }).extend({
