@@ -2,7 +2,7 @@ import fs from 'node:fs';
 import path from 'node:path';
 import { InProcessQueue, loadConfig, type Config, type Logger } from '@stemwise/platform';
 import { migrateDatabase, openDatabase, syncForestTypes } from '@stemwise/db';
-import { filesInDir, submitBatch, type ServiceDeps } from '@stemwise/core';
+import { filesInDir, NATIONAL, submitBatch, type ServiceDeps } from '@stemwise/core';
 import { checkOwnFolder, claimOwnFolder } from './own-folder';
 import { allProcessors } from './processors';
 import type { CarbonUncertaintySection } from '@stemwise/report';
@@ -10,6 +10,8 @@ import type { CarbonUncertaintySection } from '@stemwise/report';
 export interface DemoOptions {
   /** Folder holding plots.csv(.gz), trees.csv(.gz), optionally strata and species. */
   inputDir: string;
+  /** Folders of later visits (plots and trees of re-measured plots), uploaded in order after the first batch. */
+  laterDirs?: readonly string[];
   /** Report folder to write: missing, empty, or one stemwise made (emptied first); any other is refused. */
   outDir: string;
   /** Folder of the demo's own embedded database (recreated each run; the same rule as outDir). */
@@ -30,6 +32,19 @@ export interface DemoFit {
   r2: number | null;
 }
 
+/** One forest type's national estimate of a change variable (docs/methods.md#change-between-visits). */
+export interface DemoChange {
+  forestType: string;
+  variable: string;
+  n: number;
+  mean: number | null;
+  ciLow: number | null;
+  ciHigh: number | null;
+}
+
+/** The change variables the demo reports per forest type. */
+export const DEMO_CHANGE_VARIABLES = ['mortality_annual', 'recruitment_annual', 'carbon_net_change_mg_ha_yr'] as const;
+
 export interface DemoResult {
   batchId: string;
   state: string;
@@ -37,6 +52,10 @@ export interface DemoResult {
   stems: number;
   regions: number;
   fits: DemoFit[];
+  /** National estimates per forest type of the change variables; empty when no plot was measured twice. */
+  change: DemoChange[];
+  /** Batches uploaded (the first and one per later visit). */
+  batches: number;
   outDir: string;
   index: string;
   seconds: number;
@@ -71,16 +90,22 @@ export async function runDemo(o: DemoOptions): Promise<DemoResult> {
     const { processors, ...work } = await allProcessors(deps);
     await queue.work(processors, work);
 
-    step(`submitting the batch in ${o.inputDir}`);
-    const submitted = await submitBatch(deps, filesInDir(o.inputDir), {}, 'demo');
-    step('validating, loading, computing plot metrics, fitting curves, assembling summaries');
-    const failures = await queue.drain();
-    if (failures.length) throw new Error(`a job failed: ${failures[0].name}: ${failures[0].error}`);
-    const [batch] = await db.query<{ state: string; plots_loaded: number; stems_loaded: number; n_errors: number }>(
-      `select state, plots_loaded, stems_loaded, n_errors from batches where id = $1`,
-      [submitted.batchId],
-    );
-    if (batch.state !== 'computed') throw new Error(`the demo batch ended ${batch.state} with ${batch.n_errors} error(s)`);
+    let batch = { state: '', plots_loaded: 0, stems_loaded: 0, n_errors: 0 };
+    let batchId = '';
+    for (const dir of [o.inputDir, ...(o.laterDirs ?? [])]) {
+      step(`submitting the batch in ${dir}`);
+      const submitted = await submitBatch(deps, filesInDir(dir), {}, 'demo');
+      step('validating, loading, computing plot metrics and change, fitting curves, assembling summaries');
+      const failures = await queue.drain();
+      if (failures.length) throw new Error(`a job failed: ${failures[0].name}: ${failures[0].error}`);
+      const [loaded] = await db.query<typeof batch>(
+        `select state, plots_loaded, stems_loaded, n_errors from batches where id = $1`,
+        [submitted.batchId],
+      );
+      if (loaded.state !== 'computed') throw new Error(`the demo batch in ${dir} ended ${loaded.state} with ${loaded.n_errors} error(s)`);
+      // The figures of the first batch: its plots and stems (a later visit re-measures the same plots).
+      if (batchId === '') [batch, batchId] = [loaded, submitted.batchId];
+    }
 
     step(`writing the report folder ${o.outDir}`);
     claimOwnFolder(o.outDir);
@@ -93,6 +118,7 @@ export async function runDemo(o: DemoOptions): Promise<DemoResult> {
     await compute.exportPlots(db, { format: 'geojson' }, { file: path.join(exportsDir, 'plots.geojson') });
     await compute.exportFits(deps, { format: 'csv' }, { file: path.join(exportsDir, 'fits.csv') });
     await report.exportRegions(deps, { format: 'csv' }, { file: path.join(exportsDir, 'regions.csv') });
+    await compute.exportChange(db, { format: 'csv' }, { file: path.join(exportsDir, 'change.csv') });
 
     const chartsDir = path.join(o.outDir, 'charts');
     fs.mkdirSync(chartsDir, { recursive: true });
@@ -103,8 +129,14 @@ export async function runDemo(o: DemoOptions): Promise<DemoResult> {
     );
     for (const f of fitRows) if (f.chart) fs.writeFileSync(path.join(chartsDir, `fit-${f.forest_type}.svg`), f.chart);
     const [{ regions }] = await db.query<{ regions: number }>(`select count(*)::int as regions from regions`);
+    const national = await report.listRegionExportRows(db, NATIONAL);
+    const change = national
+      .filter((r) => r.forest_type !== 'all' && (DEMO_CHANGE_VARIABLES as readonly string[]).includes(r.variable) && r.n_plots > 0)
+      .map((r) => ({ forestType: r.forest_type, variable: r.variable, n: r.n_plots, mean: r.mean, ciLow: r.ci_low, ciHigh: r.ci_high }));
     return {
-      batchId: submitted.batchId,
+      batchId,
+      batches: 1 + (o.laterDirs?.length ?? 0),
+      change,
       state: batch.state,
       plots: batch.plots_loaded,
       stems: batch.stems_loaded,

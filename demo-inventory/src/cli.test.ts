@@ -27,7 +27,7 @@ describe('demo-inventory command', () => {
     const io = fakeIo(false);
     const code = await main(['--plots', '12', '--seed', '3', '--out', join(dir, 'a'), '--heights', '0.5', '--bad-rows', '4'], io);
     expect(code).toBe(0);
-    expect((await readdir(join(dir, 'a'))).sort()).toEqual(['plots.csv', 'species.csv', 'strata.csv', 'trees.csv', 'truth.json']);
+    expect((await readdir(join(dir, 'a'))).sort()).toEqual(['plots.csv', 'second-visit', 'species.csv', 'strata.csv', 'trees.csv', 'truth.json']);
     expect(io.out).toMatch(/^wrote 12 plots and \d+ stems in [\d.]+ s, with 4 deliberately bad rows/);
     expect(io.err).not.toContain('\r');
     expect(io.err.trim().split('\n').at(-1)).toMatch(/^100% 12\/12 plots/);
@@ -38,7 +38,7 @@ describe('demo-inventory command', () => {
     expect(await main(['--plots', '6', '--out', join(dir, 'b'), '--gzip'], io)).toBe(0);
     expect(io.err).toMatch(/\r\[#+\] 100% 6\/6 plots/);
     expect(io.err.endsWith('\n')).toBe(true);
-    expect((await readdir(join(dir, 'b'))).sort()).toEqual(['plots.csv.gz', 'species.csv.gz', 'strata.csv.gz', 'trees.csv.gz', 'truth.json']);
+    expect((await readdir(join(dir, 'b'))).sort()).toEqual(['plots.csv.gz', 'second-visit', 'species.csv.gz', 'strata.csv.gz', 'trees.csv.gz', 'truth.json']);
   });
 
   it('prints help with --help and exits 0', async () => {

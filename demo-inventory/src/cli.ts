@@ -1,5 +1,5 @@
 // Command line of the demo inventory generator:
-//   tsx demo-inventory/src/cli.ts --plots 20000 --seed 7 --out DIR [--gzip] [--bad-rows 50] [--heights 0.2]
+//   tsx demo-inventory/src/cli.ts --plots 20000 --seed 7 --out DIR [--gzip] [--bad-rows 50] [--heights 0.2] [--expectation 600]
 // A progress bar on a terminal, plain progress lines otherwise (logs, CI).
 
 import { pathToFileURL } from 'node:url';
@@ -14,7 +14,8 @@ export interface CliIo {
 
 const USAGE = `usage: demo-inventory --out DIR [options]
 
-Writes an invented national forest inventory (plots, trees, strata, species and truth.json).
+Writes an invented national forest inventory (plots, trees, strata, species and truth.json), and
+the second visit of most plots, 4-6 years later, as a batch of its own in the folder second-visit.
 
 options:
   --out DIR          output folder (required; created when missing)
@@ -23,6 +24,8 @@ options:
   --gzip             write .csv.gz instead of .csv
   --heights F        share of plots with measured heights, 0..1 (default ${GENERATE_DEFAULTS.heightsFraction})
   --bad-rows N       add N deliberately bad rows for ingest tests (default ${GENERATE_DEFAULTS.badRows})
+  --expectation N    also simulate N independent plots per forest type (another seed) for the expected
+                     change under the planted process, written to truth.json (default ${GENERATE_DEFAULTS.expectationPlots}: none)
   -h, --help         show this help
 `;
 
@@ -69,6 +72,7 @@ interface CliArgs {
   gzip: boolean;
   heightsFraction: number;
   badRows: number;
+  expectationPlots: number;
 }
 
 function parseCli(argv: readonly string[]): CliArgs | 'help' {
@@ -83,6 +87,7 @@ function parseCli(argv: readonly string[]): CliArgs | 'help' {
       gzip: { type: 'boolean', default: false },
       heights: { type: 'string' },
       'bad-rows': { type: 'string' },
+      expectation: { type: 'string' },
       help: { type: 'boolean', short: 'h', default: false },
     },
   });
@@ -96,6 +101,7 @@ function parseCli(argv: readonly string[]): CliArgs | 'help' {
     gzip: values.gzip === true,
     heightsFraction: numberOption('--heights', values.heights, GENERATE_DEFAULTS.heightsFraction, 0, 1),
     badRows: integerOption('--bad-rows', values['bad-rows'], GENERATE_DEFAULTS.badRows, 0, 1_000_000),
+    expectationPlots: integerOption('--expectation', values.expectation, GENERATE_DEFAULTS.expectationPlots, 0, 100_000),
   };
 }
 

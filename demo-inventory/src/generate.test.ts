@@ -53,7 +53,7 @@ describe('generateInventory: the files follow the inventory batch format, versio
       expect(['1', '0.5']).toContain(p.area_ha);
       expect(Number(p.subplot_area_ha)).toBeLessThan(Number(p.area_ha));
       expect(p.dbh_min_cm).toBe('10');
-      expect(p.survey_date).toMatch(/^20(19|2[0-5])-\d\d-\d\d$/);
+      expect(p.survey_date).toMatch(/^20(1[3-9])-\d\d-\d\d$/); // first visits 2013-2019 (second visits in second-visit/)
       expect(Number.isNaN(Date.parse(p.survey_date))).toBe(false);
       for (const c of [p.logging_class, p.fire_class]) expect(['0', '1', '2', '3']).toContain(c);
     }
@@ -166,7 +166,7 @@ describe('generateInventory: runs', () => {
   });
 
   it('reports progress up to the last plot with a growing stem count', () => {
-    expect(progress.at(-1)).toEqual({ plotsDone: 36, plotsTotal: 36, stemsWritten: trees.length });
+    expect(progress.at(-1)).toEqual({ plotsDone: 36, plotsTotal: 36, stemsWritten: trees.length + plain.truth.change.second_visits.stem_rows });
     for (let i = 1; i < progress.length; i++) {
       expect(progress[i].plotsDone).toBeGreaterThan(progress[i - 1].plotsDone);
       expect(progress[i].stemsWritten).toBeGreaterThanOrEqual(progress[i - 1].stemsWritten);
@@ -191,5 +191,55 @@ describe('generateInventory: runs', () => {
     await expect(generateInventory({ outDir: join(dir, 'x'), seed: 1.5 })).rejects.toThrow(/generateInventory: seed/);
     await expect(generateInventory({ outDir: '' })).rejects.toThrow(/generateInventory: outDir/);
     await expect(stat(join(dir, 'x'))).rejects.toThrow();
+  });
+});
+
+describe('generateInventory: the second visit (second-visit/, a batch of its own)', () => {
+  it('re-measures most plots 4 to 6 years later, never after today, with the same plot rows otherwise', async () => {
+    const later = csv(await readFile(plain.files.secondVisitPlots, 'utf8'));
+    const first = new Map(plots.map((p) => [p.plot_id, p]));
+    expect(later.length).toBeGreaterThan(0.6 * plots.length);
+    expect(later.length).toBeLessThan(plots.length);
+    const today = new Date().toISOString().slice(0, 10);
+    for (const p of later) {
+      const f = first.get(p.plot_id)!;
+      const years = (Date.parse(p.survey_date) - Date.parse(f.survey_date)) / 86_400_000 / 365.25;
+      expect(years).toBeGreaterThanOrEqual(4 - 1 / 365);
+      expect(years).toBeLessThanOrEqual(6 + 1 / 365);
+      expect(p.survey_date <= today).toBe(true);
+      expect({ ...p, survey_date: '' }).toEqual({ ...f, survey_date: '' });
+    }
+  });
+
+  it('keeps every tag: no dead tree or stump comes back to life, survivors never shrink by more than 0.5 cm, recruits get new tags', async () => {
+    const later = csv(await readFile(plain.files.secondVisitTrees, 'utf8'));
+    const before = new Map(trees.map((t) => [`${t.plot_id}/${t.tree_id}`, t]));
+    const seen = new Set<string>();
+    let recruits = 0;
+    let logged = 0;
+    for (const t of later) {
+      const key = `${t.plot_id}/${t.tree_id}`;
+      expect(seen.has(key)).toBe(false);
+      seen.add(key);
+      const b = before.get(key);
+      if (b === undefined) {
+        expect(t.status).toBe('live');
+        if (t.in_subplot === '0') recruits += 1;
+        continue;
+      }
+      if (b.status !== 'live') expect([t.status, t.stump_cause]).toEqual([b.status, b.stump_cause]);
+      if (b.status === 'live' && t.status === 'live') expect(Number(t.dbh_cm)).toBeGreaterThanOrEqual(Number(b.dbh_cm) - 0.5);
+      if (b.status === 'live' && t.status === 'stump') {
+        expect(t.stump_cause).toBe('logged');
+        expect(Number(b.dbh_cm)).toBeGreaterThanOrEqual(30);
+        logged += 1;
+      }
+      if (t.in_subplot === '1') expect(Number(t.dbh_cm)).toBeLessThan(10);
+    }
+    const v = plain.truth.change.second_visits;
+    expect(recruits).toBe(v.recruits);
+    expect(logged).toBe(v.logged);
+    expect(v.died_fallen_absent).toBeGreaterThan(0);
+    expect(v.died_fallen_absent).toBeLessThan(0.3 * (v.died_fallen_absent + v.died_standing));
   });
 });

@@ -2,11 +2,13 @@
 // streams: memory stays flat whether the run has 10 plots or 20,000 (several million stems).
 
 import { mkdir, writeFile } from 'node:fs/promises';
-import { basename, join } from 'node:path';
+import { join, relative, sep } from 'node:path';
 import { badPlotLine, badTreeLine, isPlotKind, planBadRows, type BadRowRecord } from './bad-rows';
 import { PLOT_COLUMNS, plotLine, strataLines, TREE_COLUMNS, treeLine } from './csv-lines';
 import { generatePlot, type GeneratedPlot } from './plot-generator';
 import { rngFor } from './random';
+import { secondVisit } from './second-visit';
+import { expectedChange } from './change-expectation';
 import { buildFlora, speciesCsvLines } from './species';
 import { TextSink } from './text-sink';
 import { buildTruth, TruthTally, type Truth } from './truth';
@@ -24,6 +26,11 @@ export interface GenerateOptions {
   readonly heightsFraction?: number;
   /** Number of deliberately bad rows mixed in for ingest tests (default 0). */
   readonly badRows?: number;
+  /**
+   * Plots per forest type of the independent simulation that gives the expected change under the
+   * planted process (truth.json `change.expected`); 0 (the default) leaves it out. It takes a few seconds per 100.
+   */
+  readonly expectationPlots?: number;
   /** Called every ~0.5 % of the plots and once at the end. */
   readonly onProgress?: (progress: GenerateProgress) => void;
 }
@@ -40,6 +47,9 @@ export interface InventoryFiles {
   readonly strata: string;
   readonly species: string;
   readonly truth: string;
+  /** The second visits of the re-measured plots: a batch of its own, uploaded after the first. */
+  readonly secondVisitPlots: string;
+  readonly secondVisitTrees: string;
 }
 
 export interface GenerateResult {
@@ -47,13 +57,17 @@ export interface GenerateResult {
   readonly truth: Truth;
 }
 
-export const GENERATE_DEFAULTS = { seed: 1, plots: 450, gzip: false, heightsFraction: 0.2, badRows: 0 } as const;
+export const GENERATE_DEFAULTS = { seed: 1, plots: 450, gzip: false, heightsFraction: 0.2, badRows: 0, expectationPlots: 0 } as const;
+/** The folder, inside the output folder, of the second-visit batch. */
+export const SECOND_VISIT_DIR = 'second-visit';
+/** The simulation of the expected change uses the inventory's seed plus this, so it is independent of the inventory. */
+export const EXPECTATION_SEED_OFFSET = 1_000_003;
 export const MAX_PLOTS = 100_000;
 
 /** Generates the demo inventory into `options.outDir`. */
 export async function generateInventory(options: GenerateOptions): Promise<GenerateResult> {
   const o = checkOptions(options);
-  await mkdir(o.outDir, { recursive: true });
+  await mkdir(join(o.outDir, SECOND_VISIT_DIR), { recursive: true });
   const ext = o.gzip ? '.csv.gz' : '.csv';
   const files: InventoryFiles = {
     plots: join(o.outDir, `plots${ext}`),
@@ -61,6 +75,8 @@ export async function generateInventory(options: GenerateOptions): Promise<Gener
     strata: join(o.outDir, `strata${ext}`),
     species: join(o.outDir, `species${ext}`),
     truth: join(o.outDir, 'truth.json'),
+    secondVisitPlots: join(o.outDir, SECOND_VISIT_DIR, `plots${ext}`),
+    secondVisitTrees: join(o.outDir, SECOND_VISIT_DIR, `trees${ext}`),
   };
   const flora = buildFlora();
   const sinks = {
@@ -68,6 +84,8 @@ export async function generateInventory(options: GenerateOptions): Promise<Gener
     trees: new TextSink(files.trees, o.gzip),
     strata: new TextSink(files.strata, o.gzip),
     species: new TextSink(files.species, o.gzip),
+    secondVisitPlots: new TextSink(files.secondVisitPlots, o.gzip),
+    secondVisitTrees: new TextSink(files.secondVisitTrees, o.gzip),
   };
   const tally = new TruthTally(flora);
   const badRows: BadRowRecord[] = [];
@@ -76,6 +94,8 @@ export async function generateInventory(options: GenerateOptions): Promise<Gener
     await sinks.strata.lines(strataLines());
     await sinks.plots.line(PLOT_COLUMNS.join(','));
     await sinks.trees.line(TREE_COLUMNS.join(','));
+    await sinks.secondVisitPlots.line(PLOT_COLUMNS.join(','));
+    await sinks.secondVisitTrees.line(TREE_COLUMNS.join(','));
     const lineNo = { plots: 1, trees: 1 };
     const badRng = rngFor(o.seed, 'bad-rows');
     const plan = planBadRows(o.badRows, o.plots, badRng);
@@ -86,7 +106,13 @@ export async function generateInventory(options: GenerateOptions): Promise<Gener
 
     for (let i = 0; i < o.plots; i++) {
       const plot = generatePlot(context, i);
-      tally.add(plot);
+      const later = secondVisit(o.seed, flora, plot, i);
+      tally.add(plot, later);
+      if (later !== null) {
+        await sinks.secondVisitPlots.line(plotLine(later.row));
+        await sinks.secondVisitTrees.lines(later.stems.map((s) => treeLine(later.row.plotId, s)));
+        stemsWritten += later.stems.length;
+      }
       const kinds = [...carried, ...(plan.get(i) ?? [])];
       const plotKinds = kinds.filter(isPlotKind);
       const treeKinds = kinds.filter((k) => !isPlotKind(k));
@@ -139,7 +165,8 @@ export async function generateInventory(options: GenerateOptions): Promise<Gener
     heightsFraction: o.heightsFraction,
     badRowsRequested: o.badRows,
     badRows,
-    files: Object.fromEntries(Object.entries(files).map(([k, v]) => [k, basename(v)])),
+    files: Object.fromEntries(Object.entries(files).map(([k, v]) => [k, relative(o.outDir, v).split(sep).join('/')])),
+    expected: o.expectationPlots > 0 ? { seed: o.seed + EXPECTATION_SEED_OFFSET, byType: expectedChange({ plotsPerType: o.expectationPlots, seed: o.seed + EXPECTATION_SEED_OFFSET }, flora) } : null,
   });
   await writeFile(files.truth, JSON.stringify(truth, null, 2) + '\n');
   return { files, truth };
@@ -162,6 +189,9 @@ function checkOptions(options: GenerateOptions): CheckedOptions {
   }
   if (!(o.heightsFraction >= 0 && o.heightsFraction <= 1)) {
     throw new RangeError(`generateInventory: heightsFraction must be from 0 to 1, got ${o.heightsFraction}`);
+  }
+  if (!(Number.isInteger(o.expectationPlots) && o.expectationPlots >= 0 && o.expectationPlots <= 100_000)) {
+    throw new RangeError(`generateInventory: expectationPlots must be an integer from 0 to 100000, got ${o.expectationPlots}`);
   }
   if (!(Number.isInteger(o.badRows) && o.badRows >= 0 && o.badRows <= 10 * o.plots)) {
     throw new RangeError(`generateInventory: badRows must be an integer from 0 to 10 × plots, got ${o.badRows}`);

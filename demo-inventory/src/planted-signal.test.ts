@@ -93,6 +93,7 @@ const PLOTS = 600;
 let dir: string;
 let result: GenerateResult;
 let figures: PlotFigures[];
+let latest: PlotFigures[];
 
 beforeAll(async () => {
   dir = await mkdtemp(join(tmpdir(), 'demo-inventory-signal-'));
@@ -108,6 +109,17 @@ beforeAll(async () => {
   // Unidentified per the outputs spec: empty, indet, unknown (any case) or "Genus sp.".
   const unidentified = (name: string) => name === '' || /^(indet|unknown)$/i.test(name) || / sp\.$/.test(name);
   const ba = (dbh: string) => Math.PI * (Number(dbh) / 200) ** 2;
+  figures = figuresOf(plots, trees);
+  // The latest visit of each plot: the second where the plot was re-measured (what the pipeline fits).
+  const laterPlots = csv(await readFile(result.files.secondVisitPlots, 'utf8'));
+  const remeasured = new Set(laterPlots.map((p) => p.plot_id));
+  const laterTrees = csv(await readFile(result.files.secondVisitTrees, 'utf8'));
+  latest = figuresOf(
+    [...plots.filter((p) => !remeasured.has(p.plot_id)), ...laterPlots],
+    [...trees.filter((t) => !remeasured.has(t.plot_id)), ...laterTrees],
+  );
+
+  function figuresOf(plots: Row[], trees: Row[]): PlotFigures[] {
   const stemsOf = new Map<string, Row[]>();
   for (const t of trees) {
     const list = stemsOf.get(t.plot_id);
@@ -115,7 +127,7 @@ beforeAll(async () => {
     else stemsOf.set(t.plot_id, [t]);
   }
 
-  figures = plots.map((p) => {
+  return plots.map((p) => {
     let live = 0;
     let logged = 0;
     let fireSum = 0;
@@ -143,6 +155,7 @@ beforeAll(async () => {
       pioneerShare: pioneer / live,
     };
   });
+}
 });
 
 afterAll(async () => {
@@ -212,5 +225,22 @@ describe('planted signal in 600 plots (200 per forest type) read back from the f
       const fit = polyFit(rows.map((r) => r.index), rows.map((r) => r.pioneerShare), 1);
       expect(fit.coef[1] / fit.se[1]).toBeGreaterThan(5);
     }
+  });
+});
+
+describe('planted signal on the latest visit of each plot (the second where re-measured), as the pipeline fits it', () => {
+  const ofTypeLatest = (t: string) => latest.filter((f) => f.type === t);
+  it('wet: a hump with its maximum within ±0.05 of the planted vertex; moist: a decline near the planted slope; dry: flat', () => {
+    const wet = ofTypeLatest('wet');
+    const q = polyFit(wet.map((r) => r.index), wet.map((r) => r.alpha), 2);
+    expect(q.coef[2] / q.se[2]).toBeLessThan(-5);
+    expect(Math.abs(q.xMean - q.coef[1] / (2 * q.coef[2]) - PLANTED_CURVES.wet.vertex!)).toBeLessThan(0.05);
+    const moist = ofTypeLatest('moist');
+    const m = polyFit(moist.map((r) => r.index), moist.map((r) => r.alpha), 1);
+    expect(m.coef[1] / m.se[1]).toBeLessThan(-8);
+    expect(Math.abs(m.coef[1] + PLANTED_CURVES.moist.parameters.b)).toBeLessThan(6);
+    const dry = ofTypeLatest('dry');
+    const d = polyFit(dry.map((r) => r.index), dry.map((r) => r.alpha), 1);
+    expect(Math.abs(d.coef[1] / d.se[1])).toBeLessThan(3);
   });
 });

@@ -43,6 +43,12 @@ export interface GeneratedPlot {
   readonly latentDisturbance: number;
   readonly realised: PlotDisturbance;
   readonly targetAlpha: number;
+  /** Logging and fire intensities of the plot in [0, 1]: they shape its stand and raise its change rates. */
+  readonly loggingIntensity: number;
+  readonly fireIntensity: number;
+  /** Whether the crew measured heights, and the share of main-plot stems it leaves unidentified. */
+  readonly measureHeights: boolean;
+  readonly unidentifiedShare: number;
 }
 
 export interface PlotContext {
@@ -55,7 +61,7 @@ export interface PlotContext {
 const SUBPLOT_SHARE_OF_AREA = 0.1;
 const NO_SUBPLOT_SHARE = 0.04;
 const SYNONYM_USE = 0.12;
-const DAY_MS = 86_400_000;
+export const DAY_MS = 86_400_000;
 const FIRST_DAY = Date.UTC(SURVEY_YEARS[0], 0, 1);
 const SURVEY_DAYS = (Date.UTC(SURVEY_YEARS[1], 11, 31) - FIRST_DAY) / DAY_MS + 1;
 const REGION_WEIGHTS: Readonly<Record<ForestType, readonly number[]>> = {
@@ -78,14 +84,13 @@ export function generatePlot(ctx: PlotContext, index: number): GeneratedPlot {
   const d = rng.beta(profile.disturbanceBeta[0], profile.disturbanceBeta[1]);
   const m = profile.loggingShareMean;
   const loggingShare = rng.beta(6 * m, 6 * (1 - m));
-  const stand = drawStand(
-    { profile, areaHa, subplotAreaHa, disturbance: d, loggingShare, measureHeights: rng.chance(ctx.heightsFraction) },
-    rng,
-  );
+  const measureHeights = rng.chance(ctx.heightsFraction);
+  const stand = drawStand({ profile, areaHa, subplotAreaHa, disturbance: d, loggingShare, measureHeights }, rng);
   const realised = plotDisturbance(stand.stems, stand.loggingClass, stand.fireClass);
   const targetAlpha =
     plantedAlpha(forestType, realised.disturbanceIndex) * Math.exp(rng.normal(0, PLANTED_CURVES[forestType].noiseSdLog));
-  const stems = nameStems(ctx.flora, new SpeciesPool(ctx.flora, forestType, realised.disturbanceIndex), stand.stems, targetAlpha, rng);
+  const unidentifiedShare = rng.uniform(0.02, 0.08);
+  const stems = nameStems(ctx.flora, new SpeciesPool(ctx.flora, forestType, realised.disturbanceIndex), stand.stems, targetAlpha, unidentifiedShare, rng);
 
   const row: PlotRow = {
     plotId: `${region.code}-${String(index + 1).padStart(5, '0')}`,
@@ -102,7 +107,10 @@ export function generatePlot(ctx: PlotContext, index: number): GeneratedPlot {
     fireClass: stand.fireClass,
     elevationM: place.elevationM,
   };
-  return { row, regionCode: region.code, stems, latentDisturbance: d, realised, targetAlpha };
+  return {
+    row, regionCode: region.code, stems, latentDisturbance: d, realised, targetAlpha,
+    loggingIntensity: stand.loggingTarget, fireIntensity: stand.fireTarget, measureHeights, unidentifiedShare,
+  };
 }
 
 function drawPlace(region: Region, rng: Rng): { latitude: number; longitude: number; elevationM: number; surveyDate: string } {
@@ -117,8 +125,7 @@ function drawPlace(region: Region, rng: Rng): { latitude: number; longitude: num
 
 // Live main-plot stems the crew identified get their species from a Chinese restaurant process with
 // the plot's target alpha (so their Fisher's alpha follows it); every other stem draws from the pool.
-function nameStems(flora: Flora, pool: SpeciesPool, stand: readonly StandStem[], targetAlpha: number, rng: Rng): TreeStem[] {
-  const unidentifiedShare = rng.uniform(0.02, 0.08);
+function nameStems(flora: Flora, pool: SpeciesPool, stand: readonly StandStem[], targetAlpha: number, unidentifiedShare: number, rng: Rng): TreeStem[] {
   const identifiedMain: number[] = [];
   const identified = stand.map((s, i) => {
     const p = s.status === 'live' ? (s.inSubplot ? 0.85 : 1 - unidentifiedShare) : s.stumpCause === 'logged' ? 0.7 : s.status === 'dead' ? 0.45 : 0.3;
@@ -149,13 +156,13 @@ function nameStems(flora: Flora, pool: SpeciesPool, stand: readonly StandStem[],
   }));
 }
 
-function writtenName(flora: Flora, species: number, rng: Rng): string {
+export function writtenName(flora: Flora, species: number, rng: Rng): string {
   const s = flora.species[species];
   return s.synonyms.length > 0 && rng.chance(SYNONYM_USE) ? rng.choice(s.synonyms) : s.name;
 }
 
 // The forms crews write for a stem they could not name: blank, indet, unknown, or the genus with sp.
-function unidentifiedName(flora: Flora, species: number, rng: Rng): string {
+export function unidentifiedName(flora: Flora, species: number, rng: Rng): string {
   const u = rng.next();
   if (u < 0.35) return '';
   if (u < 0.6) return 'indet';

@@ -106,5 +106,5 @@ export const FOREST_TYPE_PROFILES: Readonly<Record<ForestType, ForestTypeProfile
   },
 };
 
-/** Survey campaigns ran from 2019 to 2025 (inclusive). */
-export const SURVEY_YEARS = [2019, 2025] as const;
+/** First visits ran from 2013 to 2019 (inclusive); second visits 4–6 years later, up to 2025. */
+export const SURVEY_YEARS = [2013, 2019] as const;

@@ -20,6 +20,9 @@ export interface Stand {
   readonly stems: StandStem[];
   readonly loggingClass: number;
   readonly fireClass: number;
+  /** The plot's logging and fire intensities in [0, 1] (1 − (1 − L)(1 − F) = d); they also raise its change rates. */
+  readonly loggingTarget: number;
+  readonly fireTarget: number;
 }
 
 export interface StandInput {
@@ -85,7 +88,7 @@ export function drawStand(input: StandInput, rng: Rng): Stand {
   if (input.measureHeights) {
     for (const s of stems) if (s.status === 'live') s.heightM = drawHeight(s.dbhCm, profile.heightShift, rng);
   }
-  return { stems, loggingClass, fireClass };
+  return { stems, loggingClass, fireClass, loggingTarget, fireTarget };
 }
 
 // Logged stumps (commercial sizes, 30 cm and up) until their basal area is as close as it gets to the target.
@@ -107,7 +110,7 @@ function fieldClass(target: number, rng: Rng): number {
 }
 
 // Subplot stems 5–10 cm: the same falling exponential, truncated below the main plot's 10 cm limit.
-function smallDbh(rng: Rng): number {
+export function smallDbh(rng: Rng): number {
   for (;;) {
     const dbh = cm(5 + rng.exponential(3));
     if (dbh < 10) return dbh;
@@ -129,12 +132,12 @@ export function drawHeight(dbhCm: number, shift: number, rng: Rng): number {
   return Math.min(upper, Math.max(lower, Math.round(h * 10) / 10));
 }
 
-function stem(dbhCm: number, status: StandStem['status'], stumpCause: StandStem['stumpCause'], inSubplot: boolean, fireDamage = 0): StandStem {
+export function stem(dbhCm: number, status: StandStem['status'], stumpCause: StandStem['stumpCause'], inSubplot: boolean, fireDamage = 0): StandStem {
   return { dbhCm, status, stumpCause, fireDamage, inSubplot, heightM: null };
 }
 
 // Diameters are read to the millimetre below (tape practice), capped at 250 cm.
-function cm(x: number): number {
+export function cm(x: number): number {
   return Math.floor(Math.min(MAX_DBH_CM, x) * 10) / 10;
 }
 

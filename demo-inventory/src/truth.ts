@@ -4,7 +4,10 @@
 import type { BadRowRecord } from './bad-rows';
 import { LOGGING_SATURATION_FRAC } from './disturbance-index';
 import { GUILD_RESPONSE, PLANTED_CURVES } from './planted-curves';
+import type { ExpectedChange } from './change-expectation';
+import { PLANTED_CHANGE, REVISIT } from './planted-change';
 import type { GeneratedPlot } from './plot-generator';
+import type { SecondVisit } from './second-visit';
 import { COUNTRY, FOREST_TYPE_PROFILES, FOREST_TYPES, REGIONS, SURVEY_YEARS, type ForestType } from './scenario';
 import { FLORA_DEFAULTS, type Flora } from './species';
 import { HEIGHT_CURVE } from './stand';
@@ -57,10 +60,51 @@ export class TruthTally {
   };
   readonly sums: Record<ForestType, TypeSums> = { wet: new TypeSums(), moist: new TypeSums(), dry: new TypeSums() };
   plotsWithHeights = 0;
+  readonly secondVisits = {
+    plots_by_forest_type: { wet: 0, moist: 0, dry: 0 } as Record<ForestType, number>,
+    stem_rows: 0, died_standing: 0, died_fallen_absent: 0, logged: 0, recruits: 0, ingrowth_from_subplot: 0,
+    years_min: Infinity, years_max: -Infinity, date_min: '9999-12-31', date_max: '0000-01-01',
+  };
+  private readonly indexShift: Record<ForestType, { n: number; sum: number; abs: number }> = {
+    wet: { n: 0, sum: 0, abs: 0 }, moist: { n: 0, sum: 0, abs: 0 }, dry: { n: 0, sum: 0, abs: 0 },
+  };
 
   constructor(readonly flora: Flora) {}
 
-  add(plot: GeneratedPlot): void {
+  /** The second visit's tallies: what happened to the first visit's live trees, and the shift of the disturbance index. */
+  addSecondVisit(plot: GeneratedPlot, next: SecondVisit): void {
+    const v = this.secondVisits;
+    v.plots_by_forest_type[plot.row.forestType] += 1;
+    v.stem_rows += next.stems.length;
+    v.years_min = Math.min(v.years_min, next.years);
+    v.years_max = Math.max(v.years_max, next.years);
+    if (next.row.surveyDate < v.date_min) v.date_min = next.row.surveyDate;
+    if (next.row.surveyDate > v.date_max) v.date_max = next.row.surveyDate;
+    const later = new Map(next.stems.map((s) => [s.treeId, s]));
+    const before = new Map(plot.stems.map((s) => [s.treeId, s]));
+    for (const s of plot.stems) {
+      if (s.status !== 'live') continue;
+      const t = later.get(s.treeId);
+      if (t === undefined) v.died_fallen_absent += 1;
+      else if (t.status === 'dead') v.died_standing += 1;
+      else if (t.status === 'stump') v.logged += 1;
+      else if (s.inSubplot && !t.inSubplot) v.ingrowth_from_subplot += 1;
+    }
+    for (const t of next.stems) if (!before.has(t.treeId) && !t.inSubplot) v.recruits += 1;
+    const shift = this.indexShift[plot.row.forestType];
+    const dx = next.realised.disturbanceIndex - plot.realised.disturbanceIndex;
+    shift.n += 1;
+    shift.sum += dx;
+    shift.abs += Math.abs(dx);
+  }
+
+  indexShiftOf(type: ForestType): { mean: number | null; mean_abs: number | null } {
+    const s = this.indexShift[type];
+    return { mean: s.n > 0 ? round(s.sum / s.n) : null, mean_abs: s.n > 0 ? round(s.abs / s.n) : null };
+  }
+
+  add(plot: GeneratedPlot, next: SecondVisit | null = null): void {
+    if (next !== null) this.addSecondVisit(plot, next);
     const type = plot.row.forestType;
     this.plotsByType[type] += 1;
     this.plotsByRegion[plot.row.region] = (this.plotsByRegion[plot.row.region] ?? 0) + 1;
@@ -98,6 +142,8 @@ export interface TruthRun {
   readonly badRowsRequested: number;
   readonly badRows: readonly BadRowRecord[];
   readonly files: Readonly<Record<string, string>>;
+  /** The expected change under the planted process, from an independent simulation (null when not asked for). */
+  readonly expected: { readonly seed: number; readonly byType: Record<ForestType, ExpectedChange> } | null;
 }
 
 export type Truth = ReturnType<typeof buildTruth>;
@@ -121,6 +167,7 @@ export function buildTruth(tally: TruthTally, run: TruthRun) {
       regions: REGIONS.map((r) => ({ code: r.code, name: r.name })),
       forest_types: [...FOREST_TYPES],
       survey_years: [...SURVEY_YEARS],
+      survey_years_note: 'first visits; the second visits of re-measured plots come 4-6 years later',
       plot_design: '1 ha main plots (some 0.5 ha), dbh_min_cm 10; nested subplot of a tenth of the area for stems 5-10 cm',
       height_curve: { form: 'ln H = a + shift + b ln D + c (ln D)^2 + e', ...HEIGHT_CURVE, shift: typeShift() },
     },
@@ -185,8 +232,32 @@ export function buildTruth(tally: TruthTally, run: TruthRun) {
         g: GUILD_RESPONSE,
       },
     },
+    change: {
+      how: 'a share of the plots is measured again 4-6 years after the first visit, simulated forward from it: each live stem dies with probability 1 - exp(-death t), a live main-plot stem of 30 cm and more is felled with probability 1 - exp(-harvest t) (a logged stump), survivors grow by growth t x lognormal spread (mean kept) plus a tape error, subplot stems reaching 10 cm join the main plot, and Poisson(recruitment x live main-plot stems x t) recruits of 10 cm and more get new tree_ids (less the subplot ingrowth); of the trees dying, a share has fallen and is not recorded (absent); field classes are kept; recruits continue the plot\'s Chinese restaurant process, so its Fisher\'s alpha keeps its target',
+      plot_rates: 'death = mortality (1 + mortality_logging L + mortality_fire F), harvest = harvest L, recruitment = recruitment (1 + recruitment_logging L + recruitment_fire F), growth = growth_cm_yr (1 + growth_logging L) (1 - growth_loss_per_fire_damage x fire_damage) (x 0.6 on the subplot); L and F are the plot\'s logging and fire intensities (1 - (1 - L)(1 - F) = latent d)',
+      revisit: snakeCase(REVISIT),
+      by_forest_type: Object.fromEntries(FOREST_TYPES.map((t) => [t, { ...snakeCase(PLANTED_CHANGE[t]), disturbance_index_shift: tally.indexShiftOf(t) }])),
+      second_visits: {
+        ...tally.secondVisits,
+        years_min: round(Number.isFinite(tally.secondVisits.years_min) ? tally.secondVisits.years_min : null),
+        years_max: round(Number.isFinite(tally.secondVisits.years_max) ? tally.secondVisits.years_max : null),
+      },
+      expected: run.expected === null ? null : {
+        what: 'expected value under the planted process of each re-measured plot\'s annual mortality, annual recruitment and net carbon change (docs/methods.md#change-between-visits), computed from the true stems (true species wood density, the generator\'s mean height curve, Chave et al. 2014 eq. 4, carbon fraction 0.47) of an independent simulation with another seed; se is its Monte Carlo error',
+        seed: run.expected.seed,
+        by_forest_type: Object.fromEntries(FOREST_TYPES.map((t) => {
+          const e = run.expected!.byType[t];
+          const v = (x: { mean: number; se: number }) => ({ mean: round(x.mean, 6), se: round(x.se, 6) });
+          return [t, { plots: e.plots, mortality_annual: v(e.mortality_annual), recruitment_annual: v(e.recruitment_annual), carbon_net_change_mg_ha_yr: v(e.carbon_net_change_mg_ha_yr) }];
+        })),
+      },
+    },
     bad_rows: run.badRows,
   };
+}
+
+function snakeCase(o: object): Record<string, unknown> {
+  return Object.fromEntries(Object.entries(o).map(([k, v]) => [k.replace(/[A-Z]/g, (c) => `_${c.toLowerCase()}`), v]));
 }
 
 function typeShift(): Record<ForestType, number> {

@@ -13,8 +13,8 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 const run = promisify(execFile);
 const BIN = path.resolve(__dirname, '../../bin/stemwise.mjs');
 const EXPECTED = path.resolve(__dirname, 'demo-exports');
-const FROM_DEMO = ['plots.csv', 'plots.geojson', 'fits.csv', 'regions.csv'];
-const AS_JSON = ['plots', 'fits', 'regions'];
+const FROM_DEMO = ['plots.csv', 'plots.geojson', 'fits.csv', 'regions.csv', 'change.csv'];
+const AS_JSON = ['plots', 'fits', 'regions', 'change'];
 
 describe('the demo inventory exports', () => {
   const root = fs.mkdtempSync(path.join(os.tmpdir(), 'stemwise-exports-'));
@@ -34,7 +34,7 @@ describe('the demo inventory exports', () => {
       written.set(`${kind}.json`, out);
     }
     if (process.env.STEMWISE_UPDATE_EXPECTED === '1') for (const [name, file] of written) fs.copyFileSync(file, path.join(EXPECTED, name));
-  }, 240_000);
+  }, 900_000);
   afterAll(() => fs.rmSync(root, { recursive: true, force: true }));
 
   it.each([...FROM_DEMO, ...AS_JSON.map((k) => `${k}.json`)])('%s is byte-identical to the expected file', (name) => {
@@ -48,5 +48,22 @@ describe('the demo inventory exports', () => {
       expect.fail(`${name} differs from the expected file at line ${i + 1}:\n  expected ${JSON.stringify(e[i]?.slice(0, 300))}\n  written  ${JSON.stringify(a[i]?.slice(0, 300))}`);
     }
     expect(actual.length).toBe(expected.length);
+  });
+
+  // docs/methods.md#change-between-visits: net change = growth + recruitment − losses, on every re-measured
+  // plot of the demo (biomass: died + removed = loss; basal area: growth + recruitment − loss = change).
+  it('holds gains minus losses equal to the net change on every demo plot measured twice', () => {
+    const rows = JSON.parse(fs.readFileSync(written.get('change.json')!, 'utf8')) as Record<string, number>[];
+    const truth = JSON.parse(fs.readFileSync(path.resolve(__dirname, '../../demo-inventory/data/truth.json'), 'utf8'));
+    expect(rows.length).toBe(Object.values(truth.change.second_visits.plots_by_forest_type as Record<string, number>).reduce((a, b) => a + b, 0));
+    const close = (a: number, b: number) => Math.abs(a - b) <= 1e-12 * Math.max(1, Math.abs(a), Math.abs(b));
+    for (const r of rows) {
+      const at = `${r.plot_id} ${r.date_from}`;
+      expect(close(r.agb_loss_mg_ha_yr, r.agb_died_mg_ha_yr + r.agb_removed_mg_ha_yr), at).toBe(true);
+      expect(close(r.agb_net_change_mg_ha_yr, r.agb_growth_mg_ha_yr + r.agb_recruitment_mg_ha_yr - r.agb_loss_mg_ha_yr), at).toBe(true);
+      expect(close(r.ba_change_m2_ha_yr, r.ba_growth_m2_ha_yr + r.ba_recruitment_m2_ha_yr - r.ba_loss_m2_ha_yr), at).toBe(true);
+      expect(close(r.carbon_net_change_mg_ha_yr, 0.47 * r.agb_net_change_mg_ha_yr), at).toBe(true);
+      expect(r.n_start).toBe(r.n_survivors + r.n_died + r.n_removed);
+    }
   });
 });

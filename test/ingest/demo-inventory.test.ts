@@ -1,7 +1,7 @@
 import fs from 'node:fs';
 import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { generateInventory } from '@stemwise/demo-inventory';
+import { generateInventory, SECOND_VISIT_DIR } from '@stemwise/demo-inventory';
 import type { ServiceDeps } from '@stemwise/core';
 import { useServices, type TestServices } from '../support/services';
 import { counts, depsFor, ingestDir, tempDir } from './support';
@@ -83,5 +83,16 @@ describe('the demo inventory through ingest', () => {
     expect(report.counts.plotsLoaded).toBe(truth.counts.plots);
     const again = await ingestDir(deps, out);
     expect(again.submitted).toMatchObject({ duplicate: true, batchId: submitted.batchId });
+    // The second visit, a batch of its own, passes every cross-visit rule: no tree revived, none shrunk
+    // by more than 1 cm or grown more than 5 cm a year, no name changed; fallen trees are only warned about.
+    const second = await ingestDir(deps, path.join(out, SECOND_VISIT_DIR));
+    expect(second.report.counts.errors).toBe(0);
+    expect(second.report.state).toBe('loaded');
+    expect(second.report.counts.stemsLoaded).toBe(truth.change.second_visits.stem_rows);
+    expect(second.report.counts.plotsLoaded).toBe(Object.values(truth.change.second_visits.plots_by_forest_type).reduce((a, b) => a + b, 0));
+    const warned = second.report.issues.map((g) => g.rule).filter((r) => !r.startsWith('plausibility_species_') || r === 'plausibility_species_changed');
+    // (a stump is recorded at its cut surface, DBH / 0.8, so a felled giant may read over 250 cm)
+    expect(warned).toContain('plausibility_trees_absent');
+    expect(warned.filter((r) => r !== 'plausibility_trees_absent' && r !== 'plausibility_dbh_large')).toEqual([]);
   });
 });

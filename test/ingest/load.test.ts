@@ -148,6 +148,33 @@ describe('ingest on PostgreSQL', () => {
     expect(ok.report.issues.find((g) => g.rule === 'plausibility_trees_absent')?.first[0].message).toMatch(/1 tree live at the previous visit \(2019-05-01\) is not in trees\.csv \(tree_id 5\)/);
   });
 
+  // One malformed re-measurement per cross-visit rule, each on a plot of its own: the issue names the
+  // line (file and column) of this visit and the previous visit it was checked against by its date (and
+  // batch, where the message gives one). Stored stems keep no line of their upload, so the previous
+  // visit is named by date and batch, not by line.
+  it.each([
+    { rule: 'cross_tree_revived', severity: 'error', second: '1,Tikka rubra,20,,live,,0,0\n2,Ossara lumen,30,,live,,0,0', file: 'trees.csv', line: 3, column: 'status', value: 'live', says: /tree 2 of plot MW-27\d is live, but was recorded dead at the previous visit \(2019-05-01, batch / },
+    { rule: 'plausibility_dbh_shrank', severity: 'warning', second: '1,Tikka rubra,18.5,,live,,0,0\n2,Ossara lumen,30,,dead,,0,0', file: 'trees.csv', line: 2, column: 'dbh_cm', value: '18.5', says: /but 20 at the previous visit \(2019-05-01\)/ },
+    { rule: 'plausibility_dbh_growth_fast', severity: 'warning', second: '1,Tikka rubra,50,,live,,0,0\n2,Ossara lumen,30,,dead,,0,0', file: 'trees.csv', line: 2, column: 'dbh_cm', value: '50', says: /grew from 20 cm \(2019-05-01\) to 50 cm/ },
+    { rule: 'plausibility_species_changed', severity: 'warning', second: '1,Ossara lumen,20.5,,live,,0,0\n2,Ossara lumen,30,,dead,,0,0', file: 'trees.csv', line: 2, column: 'species', value: 'Ossara lumen', says: /as Tikka rubra at the previous visit \(2019-05-01\)/ },
+    { rule: 'plausibility_trees_absent', severity: 'warning', second: '2,Ossara lumen,30,,dead,,0,0', file: 'plots.csv', line: 2, column: undefined, value: undefined, says: /1 tree live at the previous visit \(2019-05-01\) is not in trees\.csv \(tree_id 1\)/ },
+    { rule: 'cross_visit_before_latest', severity: 'error', second: '1,Tikka rubra,20,,live,,0,0', file: 'plots.csv', line: 2, column: 'survey_date', value: '2018-05-01', says: /is dated 2018-05-01, before its latest stored visit of 2019-05-01/ },
+  ])('$rule: a malformed re-measurement is reported on its line, naming the previous visit', async (c) => {
+    const key = `MW-27${['cross_tree_revived', 'plausibility_dbh_shrank', 'plausibility_dbh_growth_fast', 'plausibility_species_changed', 'plausibility_trees_absent', 'cross_visit_before_latest'].indexOf(c.rule)}`;
+    const plots = (date: string) => `${PLOTS_HEADER}\n${key},Lowmere,dry,-3.68,28.28,1,10,0,5,${date},0,0,`;
+    const stems = (lines: string) => `${TREES_HEADER}\n${lines.split('\n').map((l) => `${key},${l}`).join('\n')}`;
+    const first = await ingestDir(deps, writeUpload({ plots: plots('2019-05-01'), trees: stems('1,Tikka rubra,20,,live,,0,0\n2,Ossara lumen,30,,dead,,0,0') }));
+    expect(first.report.state).toBe('loaded');
+    const date = c.rule === 'cross_visit_before_latest' ? '2018-05-01' : '2024-05-01';
+    const { report } = await ingestDir(deps, writeUpload({ plots: plots(date), trees: stems(c.second) }));
+    expect(report.state).toBe(c.severity === 'error' ? 'rejected' : 'loaded');
+    const issue = report.issues.find((g) => g.rule === c.rule);
+    expect(issue?.severity).toBe(c.severity);
+    expect(issue?.first[0]).toMatchObject({ file: c.file, line: c.line, ...(c.column ? { column: c.column, value: c.value } : {}) });
+    expect(issue?.first[0].message).toMatch(c.says);
+    if (c.rule === 'cross_tree_revived') expect(issue?.first[0].message).toContain(first.submitted.batchId);
+  });
+
   it('attaches stems of a stored plot without a plots row to its latest visit, and refuses a tree id already stored there', async () => {
     const plots = `${PLOTS_HEADER}\nMW-201,Lowmere,dry,-3.61,28.1,1,10,0,5,2022-04-01,0,0,`;
     const own = `${TREES_HEADER}\nMW-201,1,Tikka rubra,20,,live,,0,0`;

@@ -59,7 +59,8 @@ export function writeUpload(files: Partial<Record<'plots' | 'trees' | 'strata' |
 }
 
 export function uploadFiles(dir: string): SubmittedFile[] {
-  return fs.readdirSync(dir).map((name) => ({ kind: name.split('.')[0] as SubmittedFile['kind'], name, source: path.join(dir, name) }));
+  // Files only: a generated inventory keeps its second visit in a folder of its own (a batch of its own).
+  return fs.readdirSync(dir).filter((name) => fs.statSync(path.join(dir, name)).isFile()).map((name) => ({ kind: name.split('.')[0] as SubmittedFile['kind'], name, source: path.join(dir, name) }));
 }
 
 export function depsFor(config: Config, db: Db, queue: JobQueue = new InProcessQueue(testLogger())): ServiceDeps {

@@ -31,7 +31,11 @@ describe('yearsBetween', () => {
   });
 });
 
-describe('rates (computed by hand; no published worked value is pinned here)', () => {
+// Every value below is computed by hand from the formula in docs/methods.md#change-between-visits (a
+// calculator for the logarithms and roots). No published worked value is pinned: none is recalled with
+// enough certainty to quote its digits (from memory, the permanent-plot literature reports such rates
+// in %/yr without the counts needed to redo them).
+describe('rates (computed by hand from the formula in docs/methods.md#change-between-visits)', () => {
   it('m = ln(N0/Ns)/t: N0 = 100, Ns = 90, t = 5 → ln(10/9)/5 = 0.105360515657826/5 = 0.0210721031315652', () => {
     expect(rel(instantaneousMortality(100, 90, 5), 0.0210721031315652)).toBeLessThan(1e-13);
   });
@@ -66,6 +70,7 @@ describe('rates (computed by hand; no published worked value is pinned here)', (
 });
 
 describe('plotChange: a hand-computed plot', () => {
+  // Computed by hand from the formula in docs/methods.md#change-between-visits.
   // 0.5 ha at both visits, 2016-03-01 → 2020-03-01 (t = 4 years); dbh minimum 5 cm then 10 cm, so the
   // common threshold is 10 cm. Biomass per stem is given (kg); the function only adds it up.
   const first: ChangeVisit = {
@@ -174,6 +179,53 @@ describe('plotChange: a hand-computed plot', () => {
     expect(() => plotChange({ ...first, trees: [live('A', 20, 1), live('A', 21, 1)] }, second)).toThrow(/plotChange: first visit: tree A recorded twice/);
     expect(() => plotChange(first, { ...second, trees: [{ ...live('A', 20, 1), agbKg: null }] })).toThrow(/plotChange: second visit: live tree A needs its biomass/);
     expect(() => plotChange(second, first)).toThrow(/yearsBetween/);
+  });
+});
+
+describe('plotChange: a second hand-computed plot, a leap-year interval and a corrected area (1 ha, then 0.8 ha)', () => {
+  // Computed by hand from the formula in docs/methods.md#change-between-visits.
+  // 2018-01-01 → 2023-01-01 is 1826 days (2020 is a leap year): t = 1826 / 365.25 = 4.999315537303217 years.
+  // A: live 30 cm 600 kg → live 32 cm 700 kg (survivor); B: live 20 cm 200 kg → dead (died);
+  // C: live 50 cm 2000 kg → logged stump (removed); R: absent → live 11 cm 40 kg (recruit).
+  const c = plotChange(
+    { surveyDate: '2018-01-01', areaHa: 1, dbhMinCm: 10, trees: [live('A', 30, 600), live('B', 20, 200), live('C', 50, 2000)] },
+    { surveyDate: '2023-01-01', areaHa: 0.8, dbhMinCm: 10, trees: [live('A', 32, 700), dead('B', 20), stump('C', 50, 'logged'), live('R', 11, 40)] },
+  );
+  const t = 4.999315537303217;
+
+  it('t = 1826/365.25; N0 = 3, Ns = 1, died 1, removed 1, Nr = 1, Nt = 2', () => {
+    expect(c.years).toBe(t);
+    expect([c.nStart, c.nSurvivors, c.nDied, c.nRemoved, c.nRecruits, c.nEnd]).toEqual([3, 1, 1, 1, 1, 2]);
+  });
+  it('m = ln 3 / t = 1.0986122886681098 / 4.999315537303217 = 0.21975254021688; r = ln 2 / t = 0.13864841604574', () => {
+    expect(rel(c.mortalityRate, 0.21975254021688229)).toBeLessThan(1e-13);
+    expect(rel(c.recruitmentRate, 0.13864841604573933)).toBeLessThan(1e-13);
+  });
+  it('annual: 1 − (1/3)^(1/t) = 0.19728258633614; 1 − (1 − 1/2)^(1/t) = 0.12946595953909; each = 1 − e^(−rate)', () => {
+    expect(rel(c.mortalityAnnual, 0.19728258633614415)).toBeLessThan(1e-13);
+    expect(rel(c.recruitmentAnnual, 0.1294659595390918)).toBeLessThan(1e-13);
+    expect(rel(c.mortalityAnnual, 1 - Math.exp(-0.21975254021688229))).toBeLessThan(1e-13);
+    expect(rel(c.recruitmentAnnual, 1 - Math.exp(-0.13864841604573933))).toBeLessThan(1e-13);
+  });
+  it('diameter increment (32 − 30) / 1 / t = 0.40005476451260 cm/yr', () => {
+    expect(rel(c.dbhIncrementCmYr, 0.4000547645125958)).toBeLessThan(1e-13);
+  });
+  it('AGB per ha and year: growth (700/0.8 − 600/1) kg = 275 kg → 0.275/t; recruitment 40/0.8 = 50 kg → 0.05/t; died 200 kg → 0.2/t; removed 2000 kg → 2/t; net (0.275 + 0.05 − 2.2)/t = −1.875/t', () => {
+    expect(rel(c.agbGrowthMgHaYr, 0.05500753012048193)).toBeLessThan(1e-13);
+    expect(rel(c.agbRecruitmentMgHaYr, 0.010001369112814896)).toBeLessThan(1e-13);
+    expect(rel(c.agbDiedMgHaYr, 0.04000547645125958)).toBeLessThan(1e-13);
+    expect(rel(c.agbRemovedMgHaYr, 0.4000547645125958)).toBeLessThan(1e-13);
+    expect(rel(c.agbNetChangeMgHaYr, -0.3750513417305586)).toBeLessThan(1e-13);
+    // The same as the change of the stock: ((700 + 40)/0.8 − (600 + 200 + 2000)/1) kg = 925 − 2800 = −1875 kg.
+    expect(rel(c.agbNetChangeMgHaYr, -1.875 / t)).toBeLessThan(1e-13);
+  });
+  it('carbon net change 0.47 × (−1.875/t) = −0.17627413061336 Mg C/ha/yr (IPCC 2006 Vol. 4 Table 4.3 fraction)', () => {
+    expect(rel(c.carbonNetChangeMgHaYr, -0.17627413061336253)).toBeLessThan(1e-13);
+  });
+  it('basal area per ha and year, g = π D²/40000: growth (g(32)/0.8 − g(30))/t, recruitment g(11)/0.8/t, loss (g(20) + g(50))/t', () => {
+    expect(rel(c.baGrowthM2HaYr, 0.005969843268825237)).toBeLessThan(1e-12);
+    expect(rel(c.baRecruitmentM2HaYr, 0.0023761547221310977)).toBeLessThan(1e-12);
+    expect(rel(c.baLossM2HaYr, 0.04555933020945575)).toBeLessThan(1e-12);
   });
 });
 
