@@ -1,4 +1,4 @@
-import { figure, estimate, estimateInterval, standardError } from './figures';
+import { estimate, estimateInterval, standardError } from './figures';
 import { html, type Markup } from './html';
 import type { CarbonUncertaintySection } from '../carbon-uncertainty';
 
@@ -15,6 +15,12 @@ const SOURCE_NAMES = {
   rootShoot: 'root-to-shoot ratio (shared)',
 } as const;
 
+// Totals in Mt C, rounded like the means: the total's SE is the mean's SE times the forest area (total / mean).
+const totalSe = (total: number, mean: number | null, se: number | null): number | null => (mean ? (Math.abs(total / mean) * (se ?? NaN)) / 1e6 : null);
+const megatonnes = (total: number | null, mean: number | null, se: number | null): string => (total === null ? '–' : estimate(total / 1e6, totalSe(total, mean, se)));
+const megatonneInterval = (low: number | null, high: number | null, total: number | null, mean: number | null, se: number | null): string =>
+  low === null || high === null || total === null ? '–' : estimateInterval(low / 1e6, high / 1e6, totalSe(total, mean, se));
+
 const pct = (x: number): string => (x < 0.0005 ? '< 0.1 %' : `${(100 * x).toFixed(1)} %`);
 
 /** The section, or null for a summary made before it existed or with the setting off. */
@@ -26,11 +32,11 @@ export function carbonUncertaintySection(section: CarbonUncertaintySection | nul
   const sources = Object.keys(SOURCE_NAMES) as (keyof typeof SOURCE_NAMES)[];
   const used = sources.filter((k) => section.rows.some((r) => r.shares[k] > 0));
   return html`${head}
-<p class="muted">Above-ground carbon of live trees (Mg C/ha; totals in Mg C). Beside the sampling interval, the whole interval adds the error of the biomass and height models and of wood density, by a Monte Carlo of ${section.draws} draws (IPCC 2006 Guidelines, Vol. 1, Ch. 3, approach 2; seed ${section.seed}, so the same data give the same interval).</p>
-<table id="carbon-whole"><thead><tr><th>Stratum</th><th class="num">Plots</th><th class="num">Mean</th><th class="num">95 % CI, sampling only</th><th class="num">95 % CI, whole</th><th class="num">Total</th><th class="num">Total, sampling only</th><th class="num">Total, whole</th></tr></thead><tbody>${section.rows.map(
+<p class="muted">Above-ground carbon of live trees (Mg C/ha; totals in Mt C = 10⁶ Mg C). Beside the sampling interval, the whole interval adds the error of the biomass and height models and of wood density, by a Monte Carlo of ${section.draws} draws (IPCC 2006 Guidelines, Vol. 1, Ch. 3, approach 2; seed ${section.seed}, so the same data give the same interval).</p>
+<table id="carbon-whole"><thead><tr><th>Stratum</th><th class="num">Plots</th><th class="num">Mean</th><th class="num">95 % CI, sampling only</th><th class="num">95 % CI, whole</th><th class="num">Total, Mt C</th><th class="num">Total, sampling only</th><th class="num">Total, whole</th></tr></thead><tbody>${section.rows.map(
     (r) => html`<tr class="${r.forest_type === 'all' ? 'whole' : ''}"><td>${name(r.forest_type)}</td><td class="num">${r.n_plots}</td><td class="num">${estimate(r.mean, r.sampling_se)}</td>
 <td class="num">${estimateInterval(r.sampling_ci_low, r.sampling_ci_high, r.sampling_se)}</td><td class="num">${estimateInterval(r.whole_ci_low, r.whole_ci_high, r.whole_se)} <span class="muted">(SE ${standardError(r.whole_se)})</span></td>
-<td class="num">${r.total === null ? '–' : figure(r.total)}</td><td class="num">${r.total_sampling_ci_low === null ? '–' : `${figure(r.total_sampling_ci_low)} – ${figure(r.total_sampling_ci_high)}`}</td><td class="num">${r.total_whole_ci_low === null ? '–' : `${figure(r.total_whole_ci_low)} – ${figure(r.total_whole_ci_high)}`}</td></tr>`,
+<td class="num">${megatonnes(r.total, r.mean, r.sampling_se)}</td><td class="num">${megatonneInterval(r.total_sampling_ci_low, r.total_sampling_ci_high, r.total, r.mean, r.sampling_se)}</td><td class="num">${megatonneInterval(r.total_whole_ci_low, r.total_whole_ci_high, r.total, r.mean, r.whole_se)}</td></tr>`,
   )}</tbody></table>
 <table id="carbon-shares"><thead><tr><th>Stratum</th>${used.map((k) => html`<th class="num">${SOURCE_NAMES[k]}</th>`)}</tr></thead><tbody>${section.rows.map(
     (r) => html`<tr class="${r.forest_type === 'all' ? 'whole' : ''}"><td>${name(r.forest_type)}</td>${used.map((k) => html`<td class="num">${pct(r.shares[k])}</td>`)}</tr>`,

@@ -49,7 +49,7 @@ export function cautions(carbonFraction: number): Markup {
   <strong>Read this first.</strong>
   <ul>
     <li>These are estimates from a sample of plots, not a census. Every figure is shown with its standard error, 95 % confidence interval and sampling error: read the interval, not only the mean.</li>
-    <li>Biomass and carbon follow the method stated on this page (Chave et al. 2014, or Chave et al. 2005 where heights are missing; carbon = ${carbonFraction} × biomass, IPCC 2006). The intervals cover sampling error only, not the error of the biomass models. These figures do not replace the national greenhouse-gas reporting method.</li>
+    <li>Biomass and carbon follow the method stated on this page (Chave et al. 2014, or Chave et al. 2005 where heights are missing; carbon = ${carbonFraction} × biomass, IPCC 2006). The intervals cover sampling error only, not the error of the biomass models, except the whole interval of the above-ground carbon stock (section “Carbon stock: the whole uncertainty”), which adds the model errors it names. These figures do not replace the national greenhouse-gas reporting method.</li>
     <li>Figures are rounded to the precision their standard error supports: the SE to two significant digits, the estimate and its interval to the same decimal place (common practice, as advised in the GUM, JCGM 100:2008). The downloads keep full precision.</li>
     <li>This page is no logging plan: decisions on harvesting rest with local regulations and licensed foresters.</li>
   </ul>
