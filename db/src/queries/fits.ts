@@ -2,12 +2,10 @@ import type { Queryable } from '../connection';
 import type { curveFits, fitCharts } from '../schema/fits';
 import type { plots } from '../schema/plots';
 import type { regions } from '../schema/regions';
-import { numericColumns, PLOT_METRIC_DB_COLUMNS, type MetricColumns, type PlotMetricDbColumn } from './metrics';
+import { METRIC_NAMES, METRIC_SELECT, numericColumns, type MetricColumns, type PlotMetricDbColumn } from './metrics';
 
 // Diversity–disturbance fits: the points they are fitted on, and the stored rows (curve_fits).
 
-const METRIC_NAMES = PLOT_METRIC_DB_COLUMNS.map(([c]) => c);
-const METRIC_SELECT = METRIC_NAMES.map((c) => `m.${c}`).join(', ');
 
 export interface LatestPlotMetrics extends Pick<typeof plots.$inferSelect, 'plotKey'> {
   region: (typeof regions.$inferSelect)['name'];

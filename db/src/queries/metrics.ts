@@ -19,9 +19,10 @@ type Region = typeof regions.$inferSelect;
 export const PLOT_METRIC_DB_COLUMNS: readonly (readonly [PlotMetricColumn, PlotMetricSpec['sqlType']])[] = PLOT_METRICS.map((m) => [m.column, m.sqlType] as const);
 
 export type PlotMetricDbColumn = PlotMetricColumn;
-const METRIC_NAMES = PLOT_METRIC_DB_COLUMNS.map(([c]) => c);
-// Built once from the constant above (never from input): the column lists of the reads and the upsert.
-const METRIC_SELECT = METRIC_NAMES.map((c) => `m.${c}`).join(', ');
+/** The metric column names, in export order. */
+export const METRIC_NAMES = PLOT_METRIC_DB_COLUMNS.map(([c]) => c);
+// Built once from the constant above (never from input): the column list of every read of plot_metrics `m`.
+export const METRIC_SELECT = METRIC_NAMES.map((c) => `m.${c}`).join(', ');
 
 /** The metric columns of a row as read (float8 and int4 arrive as numbers on both engines; null when not computed). */
 export type MetricColumns = Record<PlotMetricDbColumn, number | null>;

@@ -2,7 +2,7 @@ import type { Queryable } from '../connection';
 import type { plotMetrics } from '../schema/metrics';
 import type { plots, plotVisits, stems } from '../schema/plots';
 import { PLOT_CHANGE_DB_COLUMNS, type PlotChangeDbColumn } from './change';
-import { numericColumns, PLOT_METRIC_DB_COLUMNS, type MetricColumns } from './metrics';
+import { METRIC_NAMES, METRIC_SELECT, numericColumns, type MetricColumns } from './metrics';
 import { int8, int8Row, type Wire } from './rows';
 
 type Plot = typeof plots.$inferSelect;
@@ -14,8 +14,6 @@ type Metrics = typeof plotMetrics.$inferSelect;
 // opens another region's plot), its visits with their metrics and diagnostics, the stems of one visit,
 // and its change between visits.
 
-const METRIC_NAMES = PLOT_METRIC_DB_COLUMNS.map(([c]) => c);
-const METRIC_SELECT = METRIC_NAMES.map((c) => `m.${c}`).join(', ');
 const CHANGE_NAMES = PLOT_CHANGE_DB_COLUMNS.map(([c]) => c);
 
 export type RegionPlot = Pick<Plot, 'id' | 'plotKey' | 'forestType' | 'latitude' | 'longitude' | 'elevationM'>;

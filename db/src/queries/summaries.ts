@@ -6,7 +6,7 @@ import type { regionSummaries, strata } from '../schema/reports';
 import type { batches } from '../schema/batches';
 import type { recomputeRuns } from '../schema/work';
 import type { PlotChangeDbColumn } from './change';
-import { numericColumns, PLOT_METRIC_DB_COLUMNS, type MetricColumns } from './metrics';
+import { METRIC_NAMES, METRIC_SELECT, numericColumns, type MetricColumns } from './metrics';
 
 type Plot = typeof plots.$inferSelect;
 type Region = typeof regions.$inferSelect;
@@ -17,9 +17,6 @@ type Run = typeof recomputeRuns.$inferSelect;
 // of each plot with its metrics and species, forest areas), the snapshots themselves (versioned, never updated),
 // and the few service figures the report service shows at /metrics.
 
-const METRIC_NAMES = PLOT_METRIC_DB_COLUMNS.map(([c]) => c);
-// Built once from the constant (never from input).
-const METRIC_SELECT = METRIC_NAMES.map((c) => `m.${c}`).join(', ');
 
 // The latest visit that has metrics, per plot of one region $1 (a visit not computed yet is skipped); also read by carbon-moments.ts.
 export const LATEST_VISITS = `
