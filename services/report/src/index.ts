@@ -10,5 +10,5 @@ export type { NationalPayload } from './national-snapshot';
 export type { SnapshotPayload } from './snapshot-payload';
 export { service } from './service';
 export { summariseRegion, type PlotMetrics } from './summary/region-summary';
-export { readNationalSnapshot } from './national-snapshot';
+export { assembleNationalSnapshot, readNationalSnapshot } from './national-snapshot';
 export { CARBON_VARIABLE, type CarbonUncertaintyRow, type CarbonUncertaintySection } from './carbon-uncertainty';

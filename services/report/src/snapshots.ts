@@ -21,9 +21,10 @@ import { plotPagePath } from './plot-map';
 import { buildChangeChartSpec, buildFitChartSpec, buildGuildChartSpec, buildMeansChartSpec, chartSpecKey, regionChartPoints, renderVegaLiteSvg, type TopLevelSpec } from '@stemwise/core/charts';
 import { regionCarbonUncertainty, withWholeInterval } from './carbon-uncertainty';
 import { RegionSummaryInputError, summariseRegion, summaryVariables, type PlotMetrics } from './summary/region-summary';
-import { changeCoverage } from './summary/change-coverage';
+import { coverageOf, type PlotPair } from './summary/change-coverage';
 import { SNAPSHOT_FORMAT, type FitChart, type SnapshotFitRow, type SnapshotMethod, type SnapshotPayload } from './snapshot-payload';
-import { biomassMethodShares } from './summary/biomass-method';
+import { sharesOf } from './summary/biomass-method';
+import { regionAggregates, type RegionAggregates } from './summary/region-aggregates';
 
 type Deps = Pick<ServiceDeps, 'db' | 'config'> & { log?: Logger };
 
@@ -103,8 +104,22 @@ async function optionalChart(deps: Deps, what: string, spec: () => TopLevelSpec 
   }
 }
 
-/** Assembles a region's snapshot payload from the database (no write). */
-export async function assembleRegionSnapshot(deps: Deps, region: string, charts: StoredChartCache = new Map(), plotsCache?: RegionPlotsCache): Promise<SnapshotPayload> {
+/** A region's plots as the summaries take them: one value per variable (metrics, change, stand table), with the species names and the pair of visits. */
+export function regionPlotInputs(plots: readonly RegionPlotRow[]): Array<PlotMetrics & PlotPair> {
+  // Species counts use the accepted names the metrics stage stored per visit (synonyms and spelling
+  // variants count as their species), like richness; a visit computed before they were stored has none.
+  return plots.map((p) => ({
+    plotId: p.plotKey,
+    forestType: p.forestType,
+    values: { ...p.metrics, ...p.change, ...standTableValues(p.standTable) },
+    ...(p.speciesStems ? { speciesNames: Object.keys(p.speciesStems) } : {}),
+    surveyDate: p.surveyDate,
+    pair: p.pair,
+  }));
+}
+
+/** Assembles a region's snapshot payload from the database (no write), with the aggregates the national summary takes of its plots. */
+export async function assembleRegionSnapshot(deps: Deps, region: string, charts: StoredChartCache = new Map(), plotsCache?: RegionPlotsCache): Promise<{ payload: SnapshotPayload; aggregates: RegionAggregates }> {
   const { db, config } = deps;
   const [plots, areas, species, drawnBefore, sizes] = await Promise.all([
     regionPlots(db, region, plotsCache),
@@ -113,14 +128,7 @@ export async function assembleRegionSnapshot(deps: Deps, region: string, charts:
     listLatestChartSvgs(db, region),
     listRegionPlotSizes(db, region),
   ]);
-  // Species counts use the accepted names the metrics stage stored per visit (synonyms and spelling
-  // variants count as their species), like richness; a visit computed before they were stored has none.
-  const inputPlots: PlotMetrics[] = plots.map((p) => ({
-    plotId: p.plotKey,
-    forestType: p.forestType,
-    values: { ...p.metrics, ...p.change, ...standTableValues(p.standTable) },
-    ...(p.speciesStems ? { speciesNames: Object.keys(p.speciesStems) } : {}),
-  }));
+  const inputPlots = regionPlotInputs(plots);
   const estimated = summariseRegion({ region, plots: inputPlots, forestAreas: areas, variables: summaryVariables(inputPlots), options: { samplingErrorT: samplingErrorMultiplier(config), caution: cautionSettings(config) } });
   const carbon = await regionCarbonUncertainty(db, config, region, areas);
   const summary = { ...estimated, rows: withWholeInterval(estimated.rows, carbon) };
@@ -140,20 +148,21 @@ export async function assembleRegionSnapshot(deps: Deps, region: string, charts:
   const guilds = await optionalChart(deps, 'guilds', () => buildGuildChartSpec(summary.guild_composition), drawn);
   const change = await optionalChart(deps, 'change', () => buildChangeChartSpec(summary.rows), drawn);
 
-  const dates = plots.map((p) => p.surveyDate).sort();
-  return {
+  const aggregates = regionAggregates(region, inputPlots);
+  const payload: SnapshotPayload = {
     format: SNAPSHOT_FORMAT,
     region,
-    data: { plots: plots.length, first_survey: dates[0] ?? null, last_survey: dates.at(-1) ?? null, species_reference_version: species.versionId },
+    data: { plots: plots.length, first_survey: aggregates.first_survey, last_survey: aggregates.last_survey, species_reference_version: species.versionId },
     method: methodOf(config),
     summary,
     fits,
-    biomass_method: biomassMethodShares(inputPlots),
+    biomass_method: sharesOf(aggregates.biomass, aggregates.forest_types.map((t) => t.forest_type)),
     plot_sizes: sizes.map((z) => ({ forest_type: z.forestType, area_ha: z.areaHa, n_plots: z.plots })),
     carbon_uncertainty: carbon,
-    change: changeCoverage(plots),
+    change: coverageOf(aggregates.change),
     charts: { means: means.svg, guilds: guilds.svg, change: change.svg, fits: fitCharts, drawn_from: { means: means.key, guilds: guilds.key, change: change.key } },
   };
+  return { payload, aggregates };
 }
 
 /** The ETag of a payload: SHA-256 of its JSON text (the payload holds no clock, so equal content gives an equal tag). */
@@ -186,8 +195,9 @@ export async function refreshStaleSummaries(deps: Deps & { runId?: string; plots
       continue;
     }
     let payload: SnapshotPayload;
+    let aggregates: RegionAggregates;
     try {
-      payload = await assembleRegionSnapshot(deps, region, charts, deps.plots);
+      ({ payload, aggregates } = await assembleRegionSnapshot(deps, region, charts, deps.plots));
     } catch (err) {
       if (isInfrastructureError(err)) throw err;
       // This region's summary cannot be built from its data: the latest snapshot stays, the reason is
@@ -203,7 +213,7 @@ export async function refreshStaleSummaries(deps: Deps & { runId?: string; plots
     }
     const etag = payloadEtag(payload);
     const stored = await db.transaction(async (tx) => {
-      const r = await insertSummarySnapshot(tx, region, etag, payload);
+      const r = await insertSummarySnapshot(tx, region, etag, payload, aggregates);
       if (r.created) await recordSummaryPlotKeys(tx, region, r.version);
       await clearStale(tx, 'summary', [mark]);
       await clearProblems(tx, 'summary', [region]);

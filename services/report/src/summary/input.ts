@@ -52,13 +52,22 @@ export class RegionSummaryInputError extends Error {
 
 const isName = (s: unknown): s is string => typeof s === 'string' && s.trim() !== '';
 
+/** Throws RegionSummaryInputError unless `variables` is a non-empty list of distinct names. */
+export function assertVariables(variables: readonly string[]): void {
+  if (variables.length === 0) throw new RegionSummaryInputError('BAD_VARIABLES', 'at least one variable is needed');
+  if (new Set(variables).size !== variables.length) throw new RegionSummaryInputError('BAD_VARIABLES', 'a variable is listed twice');
+  for (const v of variables) if (!isName(v)) throw new RegionSummaryInputError('BAD_VARIABLES', `variable ${JSON.stringify(v)} is not a name`);
+}
+
+/** The error for variables that no plot of a region with plots has a key for. */
+export const unknownVariables = (unknown: readonly string[]): RegionSummaryInputError =>
+  new RegionSummaryInputError('BAD_VARIABLES', `no plot has a value key for ${unknown.join(', ')} (misspelt?)`);
+
 /** Throws RegionSummaryInputError on the first fault, naming the plot, variable or area concerned. */
 export function validateInput(input: RegionSummaryInput, variables: readonly string[], checked: readonly string[]): void {
   if (!isName(input.region)) throw new RegionSummaryInputError('BAD_REGION', 'region must be a non-empty string');
   if (!Array.isArray(input.plots)) throw new RegionSummaryInputError('BAD_PLOT', 'plots must be an array');
-  if (variables.length === 0) throw new RegionSummaryInputError('BAD_VARIABLES', 'at least one variable is needed');
-  if (new Set(variables).size !== variables.length) throw new RegionSummaryInputError('BAD_VARIABLES', 'a variable is listed twice');
-  for (const v of variables) if (!isName(v)) throw new RegionSummaryInputError('BAD_VARIABLES', `variable ${JSON.stringify(v)} is not a name`);
+  assertVariables(variables);
 
   const seen = new Set<string>();
   const present = new Set<string>();
@@ -83,16 +92,32 @@ export function validateInput(input: RegionSummaryInput, variables: readonly str
   }
   if (input.plots.length > 0) {
     const unknown = variables.filter((v) => !present.has(v));
-    if (unknown.length > 0) throw new RegionSummaryInputError('BAD_VARIABLES', `no plot has a value key for ${unknown.join(', ')} (misspelt?)`);
+    if (unknown.length > 0) throw unknownVariables(unknown);
   }
 
-  for (const [type, area] of Object.entries(input.forestAreas ?? {})) {
-    if (typeof area !== 'number' || !Number.isFinite(area) || area < 0) {
-      throw new RegionSummaryInputError('BAD_AREA', `forest area of '${type}' is ${String(area)}; expected a finite number ≥ 0 (ha)`);
-    }
-  }
+  assertForestAreas(input.forestAreas);
   const plotArea = input.options?.plotAreaHa;
   if (plotArea !== undefined && (!(plotArea > 0) || !Number.isFinite(plotArea))) {
     throw new RegionSummaryInputError('BAD_OPTION', `plotAreaHa must be a finite positive number, got ${String(plotArea)}`);
   }
+}
+
+/** Throws RegionSummaryInputError unless every forest area is a finite number ≥ 0. */
+export function assertForestAreas(forestAreas: Readonly<Record<string, number>> | undefined): void {
+  for (const [type, area] of Object.entries(forestAreas ?? {})) {
+    if (typeof area !== 'number' || !Number.isFinite(area) || area < 0) {
+      throw new RegionSummaryInputError('BAD_AREA', `forest area of '${type}' is ${String(area)}; expected a finite number ≥ 0 (ha)`);
+    }
+  }
+}
+
+/** Plots grouped by forest type: the types sorted, each with its plots in their order (the strata of a region). */
+export function byForestType<P extends { readonly forestType: string }>(plots: readonly P[]): { types: string[]; byType: Map<string, P[]> } {
+  const byType = new Map<string, P[]>();
+  for (const p of plots) {
+    const list = byType.get(p.forestType);
+    if (list === undefined) byType.set(p.forestType, [p]);
+    else list.push(p);
+  }
+  return { types: [...byType.keys()].sort(), byType };
 }

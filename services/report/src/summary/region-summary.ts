@@ -1,8 +1,8 @@
 import { REGION_CHANGE_COLUMNS } from '@stemwise/db';
-import { assertCautionSettings, standTableVariables, assertStratifiedOptions, cautionFlag, countLeftOut, DEFAULT_CAUTION, DEFAULT_REGION_VARIABLES, isPerHectare, leftOutSentence, leftOutText, stratifiedEstimate, WHOLE_REGION, type CautionSettings, type DisturbanceSummary, type EstimateDetail, type GuildRow, type PlotMetricColumn, type RegionRow, type RegionSummary, type StratifiedEstimate, type StratifiedOptions, type SummaryGuild, type SummaryNote, type TotalRow } from '@stemwise/core';
+import { assertCautionSettings, orderStandVariables, standTableVariables, assertStratifiedOptions, cautionFlag, countLeftOut, DEFAULT_CAUTION, DEFAULT_REGION_VARIABLES, isPerHectare, leftOutSentence, leftOutText, stratifiedEstimate, WHOLE_REGION, type CautionSettings, type DisturbanceSummary, type EstimateDetail, type GuildRow, type PlotMetricColumn, type RegionRow, type RegionSummary, type StratifiedEstimate, type StratifiedOptions, type SummaryGuild, type SummaryNote, type TotalRow } from '@stemwise/core';
 import { DEFAULT_DISTURBANCE_CLASSES, assertDisturbanceClasses, disturbanceClassIndex } from './disturbance-classes';
 import { resolveForestAreas } from './forest-areas';
-import { validateInput, type PlotMetrics, type RegionSummaryInput } from './input';
+import { byForestType, validateInput, type PlotMetrics, type RegionSummaryInput } from './input';
 import { note } from './notes';
 import { countSpecies } from './species-counts';
 
@@ -18,7 +18,12 @@ export const CHANGE_VARIABLES: readonly string[] = REGION_CHANGE_COLUMNS;
 /** The default variables, those of change when any plot has a change value (a plot measured twice), and the stand-table classes of the plots (docs/methods.md#stand-tables). */
 export function summaryVariables(plots: ReadonlyArray<{ readonly values: Readonly<Record<string, number | null | undefined>> }>): readonly string[] {
   const change = plots.some((p) => CHANGE_VARIABLES.some((v) => p.values[v] !== undefined && p.values[v] !== null));
-  return [...DEFAULT_REGION_VARIABLES, ...(change ? CHANGE_VARIABLES : []), ...standTableVariables(plots)];
+  return variableList(change, standTableVariables(plots));
+}
+
+/** summaryVariables from what it depends on: whether some plot has a change value, and the stand-table variables some plot has a key for. */
+export function variableList(change: boolean, standVariables: Iterable<string>): readonly string[] {
+  return [...DEFAULT_REGION_VARIABLES, ...(change ? CHANGE_VARIABLES : []), ...orderStandVariables(standVariables)];
 }
 
 export const GUILD_VARIABLES: Readonly<Record<SummaryGuild, PlotMetricColumn>> = {
@@ -43,13 +48,7 @@ export function summariseRegion(input: RegionSummaryInput): RegionSummary {
   const caution = opts.caution ?? DEFAULT_CAUTION;
   assertCautionSettings(caution);
 
-  const byType = new Map<string, PlotMetrics[]>();
-  for (const p of input.plots) {
-    const list = byType.get(p.forestType);
-    if (list === undefined) byType.set(p.forestType, [p]);
-    else list.push(p);
-  }
-  const types = [...byType.keys()].sort();
+  const { types, byType } = byForestType(input.plots);
   const resolved = resolveForestAreas(types, input.forestAreas ?? {});
   const fpc = opts.plotAreaHa !== undefined && resolved.weighting === 'area';
   const estimatorOptions: StratifiedOptions = {
