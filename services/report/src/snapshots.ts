@@ -25,6 +25,7 @@ import { coverageOf, type PlotPair } from './summary/change-coverage';
 import { SNAPSHOT_FORMAT, type FitChart, type SnapshotFitRow, type SnapshotMethod, type SnapshotPayload } from './snapshot-payload';
 import { sharesOf } from './summary/biomass-method';
 import { regionAggregates, type RegionAggregates } from './summary/region-aggregates';
+import { PlotStrata } from './summary/input';
 
 type Deps = Pick<ServiceDeps, 'db' | 'config'> & { log?: Logger };
 
@@ -104,6 +105,15 @@ async function optionalChart(deps: Deps, what: string, spec: () => TopLevelSpec 
   }
 }
 
+// One object of a plot's values, key by key into an object without prototype: a spread of the ~80 keys
+// builds each object through a long chain of hidden classes (slow to build and to read), and a key a plot
+// lacks is then looked up without walking Object.prototype.
+function plotValues(...parts: ReadonlyArray<Readonly<Record<string, number | null>>>): Record<string, number | null> {
+  const values = Object.create(null) as Record<string, number | null>;
+  for (const part of parts) for (const k of Object.keys(part)) values[k] = part[k];
+  return values;
+}
+
 /** A region's plots as the summaries take them: one value per variable (metrics, change, stand table), with the species names and the pair of visits. */
 export function regionPlotInputs(plots: readonly RegionPlotRow[]): Array<PlotMetrics & PlotPair> {
   // Species counts use the accepted names the metrics stage stored per visit (synonyms and spelling
@@ -111,7 +121,7 @@ export function regionPlotInputs(plots: readonly RegionPlotRow[]): Array<PlotMet
   return plots.map((p) => ({
     plotId: p.plotKey,
     forestType: p.forestType,
-    values: { ...p.metrics, ...p.change, ...standTableValues(p.standTable) },
+    values: plotValues(p.metrics, p.change, standTableValues(p.standTable)),
     ...(p.speciesStems ? { speciesNames: Object.keys(p.speciesStems) } : {}),
     surveyDate: p.surveyDate,
     pair: p.pair,
@@ -129,7 +139,8 @@ export async function assembleRegionSnapshot(deps: Deps, region: string, charts:
     listRegionPlotSizes(db, region),
   ]);
   const inputPlots = regionPlotInputs(plots);
-  const estimated = summariseRegion({ region, plots: inputPlots, forestAreas: areas, variables: summaryVariables(inputPlots), options: { samplingErrorT: samplingErrorMultiplier(config), caution: cautionSettings(config) } });
+  const strata = new PlotStrata(inputPlots); // each value read once, for the summary and the aggregates
+  const estimated = summariseRegion({ region, plots: inputPlots, forestAreas: areas, variables: summaryVariables(inputPlots), options: { samplingErrorT: samplingErrorMultiplier(config), caution: cautionSettings(config) } }, strata);
   const carbon = await regionCarbonUncertainty(db, config, region, areas);
   const summary = { ...estimated, rows: withWholeInterval(estimated.rows, carbon) };
 
@@ -148,7 +159,7 @@ export async function assembleRegionSnapshot(deps: Deps, region: string, charts:
   const guilds = await optionalChart(deps, 'guilds', () => buildGuildChartSpec(summary.guild_composition), drawn);
   const change = await optionalChart(deps, 'change', () => buildChangeChartSpec(summary.rows), drawn);
 
-  const aggregates = regionAggregates(region, inputPlots);
+  const aggregates = regionAggregates(region, inputPlots, strata);
   const payload: SnapshotPayload = {
     format: SNAPSHOT_FORMAT,
     region,

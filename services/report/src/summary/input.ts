@@ -121,3 +121,47 @@ export function byForestType<P extends { readonly forestType: string }>(plots: r
   }
   return { types: [...byType.keys()].sort(), byType };
 }
+
+/**
+ * A region's plots as strata by forest type, with each variable's values read from the plots once and
+ * kept as columns (one array per forest type, in plot order, null where a plot has no value) for the
+ * estimates, the aggregates and the notes that need them.
+ */
+export class PlotStrata {
+  readonly types: readonly string[];
+  readonly byType: ReadonlyMap<string, readonly PlotMetrics[]>;
+  private readonly columns = new Map<string, { readonly values: ReadonlyArray<readonly (number | null)[]>; readonly keyed: boolean }>();
+
+  constructor(readonly plots: readonly PlotMetrics[]) {
+    const { types, byType } = byForestType(plots);
+    this.types = types;
+    this.byType = byType;
+  }
+
+  private column(variable: string): { readonly values: ReadonlyArray<readonly (number | null)[]>; readonly keyed: boolean } {
+    let c = this.columns.get(variable);
+    if (c === undefined) {
+      let keyed = false;
+      const values = this.types.map((t) =>
+        (this.byType.get(t) as readonly PlotMetrics[]).map((p) => {
+          const x = p.values[variable];
+          if (x === undefined) return null;
+          keyed = true;
+          return x;
+        }),
+      );
+      this.columns.set(variable, (c = { values, keyed }));
+    }
+    return c;
+  }
+
+  /** The values of `variable` per forest type (in `types` order), each in plot order; null where absent. */
+  values(variable: string): ReadonlyArray<readonly (number | null)[]> {
+    return this.column(variable).values;
+  }
+
+  /** Whether some plot has a key for `variable` (a null value counts). */
+  keyed(variable: string): boolean {
+    return this.column(variable).keyed;
+  }
+}

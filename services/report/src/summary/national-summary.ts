@@ -1,6 +1,6 @@
 import { assertCautionSettings, assertStratifiedOptions, DEFAULT_CAUTION, DEFAULT_REGION_VARIABLES, isPerHectare, stratifiedEstimate, type StratifiedEstimate, type StratifiedOptions, type StratumSummary } from '@stemwise/core';
 import { resolveForestAreas } from './forest-areas';
-import { assertForestAreas, assertVariables, RegionSummaryInputError, unknownVariables, validateInput, type PlotMetrics, type RegionSummaryOptions } from './input';
+import { assertForestAreas, assertVariables, PlotStrata, RegionSummaryInputError, unknownVariables, validateInput, type PlotMetrics, type RegionSummaryOptions } from './input';
 import { strataMoments, type StrataMoments } from './region-aggregates';
 import { fmtHa, note } from './notes';
 import { estimateDetail, regionRow } from './region-summary';
@@ -67,7 +67,7 @@ export function summariseNation(input: NationalSummaryInput): NationalSummary {
   const variables = input.variables ?? DEFAULT_REGION_VARIABLES;
   assertRegionNames(input.regions);
   for (const r of input.regions) validateInput({ region: r.region, plots: r.plots, forestAreas: r.forestAreas }, variables, variables);
-  return combineNation({ ...input, variables, regions: input.regions.map((r) => ({ region: r.region, forestAreas: r.forestAreas, strata: strataMoments(r.plots, variables) })) });
+  return combineNation({ ...input, variables, regions: input.regions.map((r) => ({ region: r.region, forestAreas: r.forestAreas, strata: strataMoments(new PlotStrata(r.plots), variables) })) });
 }
 
 // National rows: ȳ_st = Σ W_h ȳ_h, v = Σ W_h² s_h²/n_h over h = region × forest type, Satterthwaite df (Cochran 1977 ch. 5, eq. 5.16), each stratum by its n_h, ȳ_h, s_h²

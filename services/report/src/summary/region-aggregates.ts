@@ -1,7 +1,7 @@
 import { stratumMoments, type StratumMoments } from '@stemwise/core';
 import { biomassParts, type BiomassParts } from './biomass-method';
 import { changeParts, type ChangeParts, type PlotPair } from './change-coverage';
-import { byForestType, validateInput, type PlotMetrics } from './input';
+import { PlotStrata, RegionSummaryInputError, type PlotMetrics } from './input';
 import { CHANGE_VARIABLES, summaryVariables } from './region-summary';
 
 // What the national summary needs of one region, kept with each region summary version
@@ -30,33 +30,39 @@ export interface RegionAggregates extends StrataMoments {
   readonly biomass: BiomassParts;
 }
 
-/** The moments of each of `variables` (those some plot has a key for) per forest type of `plots`. */
-export function strataMoments(plots: readonly PlotMetrics[], variables: readonly string[]): StrataMoments {
-  const { types, byType } = byForestType(plots);
+/** The moments of each of `variables` (those some plot has a key for) per forest type of the plots. */
+export function strataMoments(strata: PlotStrata, variables: readonly string[]): StrataMoments {
   const moments: Record<string, StratumMoments[]> = {};
-  for (const v of variables) {
-    if (!plots.some((p) => p.values[v] !== undefined)) continue;
-    moments[v] = types.map((t) => stratumMoments((byType.get(t) as PlotMetrics[]).map((p) => p.values[v] ?? null), t));
-  }
-  return { forest_types: types.map((t) => ({ forest_type: t, n_plots: (byType.get(t) as PlotMetrics[]).length })), moments };
+  for (const v of variables) if (strata.keyed(v)) moments[v] = strata.values(v).map((values, h) => stratumMoments(values, strata.types[h]));
+  return { forest_types: strata.types.map((t) => ({ forest_type: t, n_plots: (strata.byType.get(t) as readonly PlotMetrics[]).length })), moments };
 }
 
 /**
  * The aggregates of a region's plots (one visit each, the latest): moments of its summary variables and
  * of every change variable (a region without any change still counts its plots as strata without values).
- * Throws RegionSummaryInputError as the region summary does on bad values.
+ * Pass the strata its summary used to read each value once. Throws RegionSummaryInputError, as the region
+ * summary does, on a value that is not a finite number or null.
  */
-export function regionAggregates(region: string, plots: ReadonlyArray<PlotMetrics & PlotPair>): RegionAggregates {
-  const candidates = [...new Set([...summaryVariables(plots), ...CHANGE_VARIABLES])];
-  const keyed = candidates.filter((v) => plots.some((p) => p.values[v] !== undefined));
-  if (plots.length > 0) validateInput({ region, plots }, keyed, keyed);
+export function regionAggregates(region: string, plots: ReadonlyArray<PlotMetrics & PlotPair>, strata = new PlotStrata(plots)): RegionAggregates {
+  if (strata.plots !== plots) throw new Error('regionAggregates: the strata given are not of these plots');
+  const variables = [...new Set([...summaryVariables(plots), ...CHANGE_VARIABLES])];
+  for (const v of variables) {
+    strata.values(v).forEach((values, h) =>
+      values.forEach((x, i) => {
+        if (x !== null && (typeof x !== 'number' || !Number.isFinite(x))) {
+          const p = (strata.byType.get(strata.types[h]) as readonly PlotMetrics[])[i];
+          throw new RegionSummaryInputError('BAD_VALUE', `plot '${p.plotId}' ${v} is ${String(x)}; expected a finite number or null`);
+        }
+      }),
+    );
+  }
   let first: string | null = null;
   let last: string | null = null;
   for (const p of plots) {
     if (first === null || p.surveyDate < first) first = p.surveyDate;
     if (last === null || p.surveyDate > last) last = p.surveyDate;
   }
-  return { format: AGGREGATES_FORMAT, ...strataMoments(plots, keyed), first_survey: first, last_survey: last, change: changeParts(plots), biomass: biomassParts(plots) };
+  return { format: AGGREGATES_FORMAT, ...strataMoments(strata, variables), first_survey: first, last_survey: last, change: changeParts(plots), biomass: biomassParts(plots) };
 }
 
 /** The stored aggregates when they are of this format, else null (made before they were kept, or by another format). */
