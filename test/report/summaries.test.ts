@@ -211,6 +211,13 @@ describe('report.summaries', () => {
     // Versions made before the aggregates were kept have none: the plots are read, with the same result.
     await s.db.query(`update region_summaries set aggregates = null`);
     expect(JSON.stringify(await assembleNationalSnapshot(deps, sources))).toBe(fromAggregates);
+    // Summarised again with the same content, a region keeps its version and gets its aggregates back.
+    await markStale(s.db, 'summary', ['Northvale']);
+    await runSummaries();
+    const [northvale] = await s.db.query<{ version: number; kept: boolean }>(
+      `select s.version, s.aggregates is not null kept from region_summaries s join regions r on r.id = s.region_id where r.name = 'Northvale' order by s.version desc limit 1`,
+    );
+    expect(northvale).toEqual({ version: sources.Northvale, kept: true });
   });
 
   it('unmarks a region that no longer exists instead of failing', async () => {
