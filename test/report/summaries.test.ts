@@ -206,6 +206,7 @@ describe('report.summaries', () => {
     const used = kept.filter((k) => sources[k.name] === k.version);
     expect(used.map((k) => k.name).sort()).toEqual(['Northvale', 'Southmere']); // Ostmark has no summary: its plots are read
     expect(used.every((k) => k.kept)).toBe(true);
+    expect(kept.filter((k) => sources[k.name] !== k.version).map((k) => [k.name, k.version, k.kept])).toEqual([['Northvale', 1, false]]); // superseded: cleared
     const fromAggregates = JSON.stringify(await assembleNationalSnapshot(deps, sources));
     expect(JSON.parse(fromAggregates)).toStrictEqual(national!.payload);
     // Versions made before the aggregates were kept have none: the plots are read, with the same result.

@@ -109,7 +109,9 @@ export type SnapshotHead = Omit<SummarySnapshot, 'payload'>;
  * content did not change). Returns the version now latest and whether it was created. Two writers at
  * once: the unique (region, version) constraint makes one of them fail and retry. The aggregates (what
  * the national summary needs of the plots) are stored with a new version, and replace those of the
- * latest when the content did not change: they always describe the plots last summarised.
+ * latest when the content did not change: they always describe the plots last summarised. Only the
+ * latest version keeps them (the national summary is assembled from the latest versions): a new version
+ * clears those of the versions before it.
  */
 export async function insertSummarySnapshot(db: Queryable, region: string, etag: string, payload: unknown, aggregates: unknown = null): Promise<{ version: number; created: boolean }> {
   const rows = await db.query<Pick<Summary, 'version'> & { created: boolean }>(
@@ -123,6 +125,10 @@ export async function insertSummarySnapshot(db: Queryable, region: string, etag:
           upd as (
             update region_summaries s set aggregates = $4::jsonb from last
              where s.id = last.id and last.etag = $2 and $4::jsonb is not null
+            returning s.version),
+          superseded as (
+            update region_summaries s set aggregates = null from reg
+             where s.region_id = reg.id and s.aggregates is not null and exists (select 1 from ins)
             returning s.version)
      select version, true created from ins
      union all
