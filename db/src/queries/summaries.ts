@@ -139,28 +139,6 @@ export async function insertSummarySnapshot(db: Queryable, region: string, etag:
   return rows[0];
 }
 
-/**
- * The charts (SVG) of a region's latest snapshot with the key of the specification each was drawn from
- * (payload.charts.fits[].drawn_from, and payload.charts.drawn_from.<name> for each chart payload.charts.<name>:
- * means, guilds, change …): the report reuses a
- * chart whose key is unchanged instead of drawing it again.
- */
-export async function listLatestChartSvgs(db: Queryable, region: string): Promise<Array<{ key: string; svg: string }>> {
-  return db.query<{ key: string; svg: string }>(
-    `select k.key, k.svg
-       from (select s.payload->'charts' c from region_summaries s join regions r on r.id = s.region_id
-              where r.name = $1 order by s.version desc limit 1) latest,
-            lateral (
-              select f->>'drawn_from' key, f->>'svg' svg
-                from jsonb_array_elements(case when jsonb_typeof(latest.c->'fits') = 'array' then latest.c->'fits' else '[]'::jsonb end) f
-              union all
-              select d.value #>> '{}', latest.c->>d.key
-                from jsonb_each(case when jsonb_typeof(latest.c->'drawn_from') = 'object' then latest.c->'drawn_from' else '{}'::jsonb end) d) k
-      where k.key is not null and k.svg is not null`,
-    [region],
-  );
-}
-
 /** A region's snapshot: the latest, or the given version; null when there is none. */
 export async function getSummarySnapshot(db: Queryable, region: string, version?: number): Promise<SummarySnapshot | null> {
   const rows = await db.query<SummarySnapshot>(

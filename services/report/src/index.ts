@@ -1,6 +1,7 @@
 export { createProcessors } from './processors';
 export { buildServer, startReportServer, type ReportServerOptions } from './server';
 export { writeRegionPages } from './static-pages';
+export { drawnSnapshot, forestTypeFitChartSvg } from './chart-svgs';
 export { exportRegions, listRegionExportRows, type ExportRegionsOptions } from './export-regions';
 export { assembleRegionSnapshot, refreshStaleSummaries } from './snapshots';
 export { newToken, hashToken, TOKEN_ROLES, TokenVerifier, type Principal } from './access';

@@ -8,7 +8,7 @@ import {
   type Queryable,
 } from '@stemwise/db';
 import { cautionSettings, type NationalSummary, type ServiceDeps } from '@stemwise/core';
-import { renderChangeChartSvg, renderMeansChartSvg } from '@stemwise/core/charts';
+import { buildChangeChartSpec, buildMeansChartSpec, type TopLevelSpec } from '@stemwise/core/charts';
 import type { Logger } from '@stemwise/platform';
 import { nationalCarbonUncertainty, withWholeInterval, type CarbonUncertaintySection } from './carbon-uncertainty';
 import { combineNation, type NationalRegionStrata } from './summary/national-summary';
@@ -16,7 +16,7 @@ import { CHANGE_VARIABLES, variableList } from './summary/region-summary';
 import { coverageOf, joinChangeParts, type ChangeCoverage } from './summary/change-coverage';
 import { joinBiomassParts, sharesOf, type BiomassMethodRow } from './summary/biomass-method';
 import { asRegionAggregates, regionAggregates, type RegionAggregates } from './summary/region-aggregates';
-import type { SnapshotData, SnapshotMethod } from './snapshot-payload';
+import type { ChartSource, SnapshotData, SnapshotMethod } from './snapshot-payload';
 import { payloadEtag, regionPlotInputs, regionPlots, samplingErrorMultiplier, type RegionPlotsCache } from './snapshots';
 
 type Deps = Pick<ServiceDeps, 'db' | 'config'> & { log?: Logger; /** The region plots the stage has read already. */ plots?: RegionPlotsCache };
@@ -41,7 +41,8 @@ export interface NationalPayload {
   readonly change?: ChangeCoverage | null;
   /** Share of the AGB from each height source and wood-density level, over every plot (absent in older snapshots). */
   readonly biomass_method?: readonly BiomassMethodRow[];
-  readonly charts: { readonly means: string | null; readonly change?: string | null };
+  /** The charts' specifications, drawn when the page is served (SVG in older snapshots). */
+  readonly charts: { readonly means: ChartSource | null; readonly change?: ChartSource | null };
 }
 
 export interface NationalSnapshot {
@@ -86,17 +87,17 @@ export async function assembleNationalSnapshot(deps: Deps, sources: Readonly<Rec
   const summary = { ...estimated, rows: withWholeInterval(estimated.rows, carbon) };
   const firsts = all.map((a) => a.first_survey).filter((d): d is string => d !== null);
   const lasts = all.map((a) => a.last_survey).filter((d): d is string => d !== null);
-  let means: string | null = null;
-  let change: string | null = null;
+  let means: TopLevelSpec | null = null;
+  let change: TopLevelSpec | null = null;
   try {
-    means = await renderMeansChartSvg(summary.rows, { label: 'whole country', subtitle: 'dark: all regions together (stratified by region × forest type); light: each forest type nationally' });
+    means = buildMeansChartSpec(summary.rows, { label: 'whole country', subtitle: 'dark: all regions together (stratified by region × forest type); light: each forest type nationally' });
   } catch (err) {
-    deps.log?.error({ err }, 'national means chart could not be rendered');
+    deps.log?.error({ err }, 'national means chart could not be specified');
   }
   try {
-    change = await renderChangeChartSvg(summary.rows, { label: 'whole country' });
+    change = buildChangeChartSpec(summary.rows, { label: 'whole country' });
   } catch (err) {
-    deps.log?.error({ err }, 'national change chart could not be rendered');
+    deps.log?.error({ err }, 'national change chart could not be specified');
   }
   return {
     format: NATIONAL_FORMAT,
