@@ -241,8 +241,9 @@ export function computePlotMetrics(
     const s = stems[i];
     checkStem(i, s);
     // Every stored stem counts towards its name (any status or size), as the ingest warnings count it.
-    const named = s.species === null ? null : index.resolve(s.species);
-    if (named !== null && (named.level === 'genus' || named.level === 'unresolved')) {
+    // Resolved once per stem (resolve(null) is the unidentified nothing) and used for everything below.
+    const named = index.resolve(s.species);
+    if (named.level === 'genus' || named.level === 'unresolved') {
       const key = (s.species as string).trim();
       const u = unresolved.get(key);
       if (u === undefined) unresolved.set(key, { level: named.level, stems: 1 });
@@ -257,19 +258,19 @@ export function computePlotMetrics(
     }
     if (s.status === 'dead') {
       if (s.dbhCm >= (s.inSubplot ? visit.subplotDbhMinCm : visit.dbhMinCm)) {
-        dead.push({ at: i, w: s.inSubplot ? (subplotWeight as number) : mainWeight, hit: table.lookup(index.resolve(s.species)) });
+        dead.push({ at: i, w: s.inSubplot ? (subplotWeight as number) : mainWeight, hit: table.lookup(named) });
       }
       continue;
     }
     if (s.dbhCm < (s.inSubplot ? visit.subplotDbhMinCm : visit.dbhMinCm)) {
       belowMin += 1;
-      if (options.stemAgb) below.push({ at: i, hit: table.lookup(index.resolve(s.species)) });
+      if (options.stemAgb) below.push({ at: i, hit: table.lookup(named) });
       continue;
     }
     if (options.stemAgb) includedAt.push(i);
     const w = s.inSubplot ? (subplotWeight as number) : mainWeight;
     const g = basalAreaM2(s.dbhCm);
-    const r = index.resolve(s.species);
+    const r = named;
     dbh.push(s.dbhCm);
     weight.push(w);
     baStem.push(g);
