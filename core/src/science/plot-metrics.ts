@@ -140,7 +140,7 @@ export interface PlotMetricsResult {
   diagnostics: PlotDiagnostics;
   /** With `stemAgb`: AGB in kg of each input stem, in input order; null for stems that are not live. */
   stemAgbKg?: (number | null)[];
-  /** With `carbonMoments`: the plot's above-ground biomass sums by height source (Mg/ha). */
+  /** With `carbonMoments`: the plot's above-ground biomass sums by height source (Mg/ha), its root-to-shoot ratio and its standing dead wood's sums. */
   carbonMoments?: CarbonMoments;
   /** With `stemAgb`: standing dead wood in kg of each dead stem at or above its minimum, in input order; null for the others. */
   stemDeadKg?: (number | null)[];
@@ -340,11 +340,16 @@ export function computePlotMetrics(
   const deadShare = options.standingDeadShare ?? DEFAULT_STANDING_DEAD_SHARE;
   const stemDeadKg: (number | null)[] | undefined = options.stemAgb ? new Array<number | null>(stems.length).fill(null) : undefined;
   let deadKgHa = 0;
+  const deadMoments = moments ? new CarbonMomentsBuilder() : null;
   for (let j = 0; j < dead.length; j += 1) {
     const s = stems[dead[j].at];
     const kg = standingDeadBiomass(agbOf(wd.values[nLive + below.length + j], s.dbhCm, s.heightM), deadShare);
     if (stemDeadKg) stemDeadKg[dead[j].at] = kg;
     deadKgHa += dead[j].w * kg;
+    if (deadMoments) {
+      const source = s.heightM !== null ? 'measured' : heightModel !== null ? 'modelled' : 'noHeight';
+      deadMoments.addTree(source, [{ weight: dead[j].w, coef: 1, agbMg: kg / 1000, dbhCm: s.dbhCm, modelled: source === 'modelled' }]);
+    }
   }
   const standingDeadMgHa = deadKgHa / 1000;
   const carbonMgHa = carbonFromBiomass(agbMgHa, carbonFraction);
@@ -456,6 +461,9 @@ export function computePlotMetrics(
     unresolvedNames,
   };
   const result: PlotMetricsResult = stemAgbKg ? { metrics, diagnostics, stemAgbKg, stemDeadKg } : { metrics, diagnostics };
-  if (moments) result.carbonMoments = moments.build();
+  // The tree pool's uncertainty also needs the plot's ratio (its row's error is shared) and the dead stems' sums.
+  if (moments && deadMoments) {
+    result.carbonMoments = { ...moments.build(), rootShoot: ratio ?? { ratio: 0, sd: 0, row: relation }, deadWood: deadMoments.build() };
+  }
   return result;
 }
