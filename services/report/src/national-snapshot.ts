@@ -35,6 +35,9 @@ export interface NationalPayload {
   readonly sources: Readonly<Record<string, number | null>>;
   /** Whole uncertainty of the above-ground carbon stock (docs/methods.md#carbon-uncertainty); null when off, absent in older snapshots. */
   readonly carbon_uncertainty?: CarbonUncertaintySection | null;
+  /** The same for the tree pool (tree_carbon_mg_ha) and the net carbon change (carbon_net_change_mg_ha_yr); absent in older snapshots. */
+  readonly tree_carbon_uncertainty?: CarbonUncertaintySection | null;
+  readonly carbon_change_uncertainty?: CarbonUncertaintySection | null;
   /** The pairs of visits behind the national estimates of change (null: no plot measured twice); absent in older snapshots. */
   readonly change?: ChangeCoverage | null;
   /** Share of the AGB from each height source and wood-density level, over every plot (absent in older snapshots). */
@@ -71,8 +74,10 @@ export async function assembleNationalSnapshot(deps: Deps, sources: Readonly<Rec
     regions.push({ region, forestAreas, plots: plots.map((p) => ({ plotId: p.plotKey, forestType: p.forestType, values: { ...p.metrics, ...p.change, ...standTableValues(p.standTable) } })) });
   }
   const estimated = summariseNation({ regions, variables: summaryVariables(regions.flatMap((r) => r.plots)), options: { samplingErrorT: samplingErrorMultiplier(config), caution: cautionSettings(config) } });
-  const carbon = await nationalCarbonUncertainty(db, config, regions);
-  const summary = { ...estimated, rows: withWholeInterval(estimated.rows, carbon) };
+  const carbon = await nationalCarbonUncertainty(db, config, regions, 'stock');
+  const treeCarbon = await nationalCarbonUncertainty(db, config, regions, 'trees');
+  const carbonChange = await nationalCarbonUncertainty(db, config, regions, 'change');
+  const summary = { ...estimated, rows: withWholeInterval(estimated.rows, carbon, treeCarbon, carbonChange) };
   dates.sort();
   let means: string | null = null;
   let change: string | null = null;
@@ -94,6 +99,8 @@ export async function assembleNationalSnapshot(deps: Deps, sources: Readonly<Rec
     sources,
     biomass_method: biomassMethodShares(regions.flatMap((r) => r.plots)),
     carbon_uncertainty: carbon,
+    tree_carbon_uncertainty: treeCarbon,
+    carbon_change_uncertainty: carbonChange,
     change: changeCoverage(pairs),
     charts: { means, change },
   };

@@ -122,8 +122,10 @@ export async function assembleRegionSnapshot(deps: Deps, region: string, charts:
     ...(p.speciesStems ? { speciesNames: Object.keys(p.speciesStems) } : {}),
   }));
   const estimated = summariseRegion({ region, plots: inputPlots, forestAreas: areas, variables: summaryVariables(inputPlots), options: { samplingErrorT: samplingErrorMultiplier(config), caution: cautionSettings(config) } });
-  const carbon = await regionCarbonUncertainty(db, config, region, areas);
-  const summary = { ...estimated, rows: withWholeInterval(estimated.rows, carbon) };
+  const carbon = await regionCarbonUncertainty(db, config, region, areas, 'stock');
+  const treeCarbon = await regionCarbonUncertainty(db, config, region, areas, 'trees');
+  const carbonChange = await regionCarbonUncertainty(db, config, region, areas, 'change');
+  const summary = { ...estimated, rows: withWholeInterval(estimated.rows, carbon, treeCarbon, carbonChange) };
 
   const fits: SnapshotFitRow[] = [];
   for (const scope of [{ kind: 'forest_type' }, { kind: 'region', region }] as const) {
@@ -151,6 +153,8 @@ export async function assembleRegionSnapshot(deps: Deps, region: string, charts:
     biomass_method: biomassMethodShares(inputPlots),
     plot_sizes: sizes.map((z) => ({ forest_type: z.forestType, area_ha: z.areaHa, n_plots: z.plots })),
     carbon_uncertainty: carbon,
+    tree_carbon_uncertainty: treeCarbon,
+    carbon_change_uncertainty: carbonChange,
     change: changeCoverage(plots),
     charts: { means: means.svg, guilds: guilds.svg, change: change.svg, fits: fitCharts, drawn_from: { means: means.key, guilds: guilds.key, change: change.key } },
   };
