@@ -240,30 +240,6 @@ export function normalSampler(rng: Rng): () => number {
   };
 }
 
-// Gamma(shape k, scale 1) by Marsaglia & Tsang 2000 (ACM TOMS 26:363–372), k < 1 via G(k+1)·U^(1/k)
-export function gammaDraw(rng: Rng, normal: () => number, shape: number): number {
-  if (!(shape > 0) || !Number.isFinite(shape)) throw new RangeError(`gammaDraw: shape must be > 0 (got ${shape})`);
-  if (shape < 1) {
-    let u = rng.next();
-    while (u === 0) u = rng.next();
-    return gammaDraw(rng, normal, shape + 1) * Math.pow(u, 1 / shape);
-  }
-  const d = shape - 1 / 3;
-  const c = 1 / Math.sqrt(9 * d);
-  for (;;) {
-    let x: number;
-    let v: number;
-    do {
-      x = normal();
-      v = 1 + c * x;
-    } while (v <= 0);
-    v = v * v * v;
-    const u = rng.next();
-    if (u < 1 - 0.0331 * x * x * x * x) return d * v;
-    if (u > 0 && Math.log(u) < 0.5 * x * x + d * (1 - v + Math.log(v))) return d * v;
-  }
-}
-
 // Lower Cholesky factor L (LLᵀ = Σ) of a 3 × 3 covariance, row-major; semidefinite pivots become 0 (Golub & Van Loan, Matrix Computations, Cholesky algorithm)
 export function cholesky3(cov: readonly number[], fn: string): number[] {
   if (cov.length !== 9 || cov.some((x) => !Number.isFinite(x))) throw new RangeError(`${fn}: a covariance must be 9 finite numbers`);
