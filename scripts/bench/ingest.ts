@@ -40,7 +40,7 @@ async function benchOne(adminUrl: string, stems: number, gzip: boolean): Promise
     await migrateDatabase(db);
     await syncForestTypes(db, config.forestTypes);
     t0 = performance.now();
-    const files = fs.readdirSync(path.join(work, 'batch')).map((name) => ({ kind: name.split('.')[0] as 'plots', name, source: path.join(work, 'batch', name) }));
+    const files = fs.readdirSync(path.join(work, 'batch'), { withFileTypes: true }).filter((e) => e.isFile()).map((e) => e.name).map((name) => ({ kind: name.split('.')[0] as 'plots', name, source: path.join(work, 'batch', name) }));
     const { batchId } = await submitBatch({ config, db, log, queue: new InProcessQueue(log) }, files, {}, 'bench');
     const submitSeconds = (performance.now() - t0) / 1000;
     await db.close();
