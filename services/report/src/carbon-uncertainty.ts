@@ -278,11 +278,6 @@ export async function nationalCarbonUncertainty(
   return carbonUncertaintySection(db, config, kind, plots, without, (scope, t) => areas.get(scope)?.[t] ?? null);
 }
 
-/** The three sections of a summary, by kind (each null when the setting turns them off). */
-export type CarbonSections = Readonly<Record<CarbonSectionKind, CarbonUncertaintySection | null>>;
-
-export const CARBON_SECTION_KINDS = Object.keys(CARBON_SECTIONS) as CarbonSectionKind[];
-
 /** The summary rows of each section's variable with its whole interval added (the other rows as they are). */
 export function withWholeInterval<R extends RegionRow>(rows: readonly R[], ...sections: readonly (CarbonUncertaintySection | null | undefined)[]): R[] {
   const byKey = new Map<string, CarbonUncertaintyRow>();
