@@ -22,10 +22,9 @@
 // agrees with the sampling interval to within 1/draws in probability.
 
 import { percentileInterval } from './bootstrap';
-import { logGamma } from './log-gamma';
 import { createRng, type Rng } from './random';
 import { stratifiedEstimate, type StratifiedOptions } from './stratified';
-import { studentTQuantile } from './student-t';
+import { studentTDensity, studentTQuantile } from './student-t';
 
 /** Exponent of ρD²H in Chave et al. 2014 eq. 4 (AGB ∝ H^0.976 and ρ^0.976). */
 export const CHAVE_2014_EXPONENT = 0.976;
@@ -265,13 +264,6 @@ export function heightShiftEffect(lnD: ArrayLike<number>, delta: ArrayLike<numbe
   const first = a * lnD[0] + b * lnD[1] + c * lnD[2];
   const second = a * a * lnD[0] + 2 * a * b * lnD[1] + (b * b + 2 * a * c) * lnD[2] + 2 * b * c * lnD[3] + c * c * lnD[4];
   return beta * first + 0.5 * beta * beta * second;
-}
-
-// f(t; ν) = Γ((ν+1)/2) / (√(νπ) Γ(ν/2)) · (1 + t²/ν)^(−(ν+1)/2), the density of Student's t (Student 1908, Biometrika 6:1–25)
-export function studentTDensity(t: number, df: number): number {
-  if (!(df > 0) || !Number.isFinite(df)) throw new RangeError(`studentTDensity: degrees of freedom must be positive and finite, got ${df}`);
-  const logC = logGamma((df + 1) / 2) - logGamma(df / 2) - 0.5 * Math.log(df * Math.PI);
-  return Math.exp(logC - ((df + 1) / 2) * Math.log1p((t * t) / df));
 }
 
 /** Knots of the interpolants of the t quantile: 128 intervals of p on [0.05, 0.5], 64 of ln p on [ln 1e-4, ln 0.05]. */
