@@ -128,12 +128,15 @@ export async function runDemo(o: DemoOptions): Promise<DemoResult> {
 
     const chartsDir = path.join(o.outDir, 'charts');
     fs.mkdirSync(chartsDir, { recursive: true });
-    const fitRows = await db.query<{ forest_type: string; n: number; verdict: string; peak_x: number | null; peak_ci_low: number | null; peak_ci_high: number | null; r2: number | null; chart: string | null }>(
-      `select forest_type, n, verdict, peak_x, peak_ci_low, peak_ci_high, r2, details->>'chart_svg' as chart
+    const fitRows = await db.query<{ forest_type: string; n: number; verdict: string; peak_x: number | null; peak_ci_low: number | null; peak_ci_high: number | null; r2: number | null }>(
+      `select forest_type, n, verdict, peak_x, peak_ci_low, peak_ci_high, r2
          from curve_fits where scope_kind = 'forest_type' and model = 'quadratic' and metric = $1 and axis = $2 order by forest_type`,
       [config.fitMetric, config.fitAxis],
     );
-    for (const f of fitRows) if (f.chart) fs.writeFileSync(path.join(chartsDir, `fit-${f.forest_type}.svg`), f.chart);
+    for (const f of fitRows) {
+      const svg = await report.forestTypeFitChartSvg(deps, f.forest_type);
+      if (svg) fs.writeFileSync(path.join(chartsDir, `fit-${f.forest_type}.svg`), svg);
+    }
     const [{ regions }] = await db.query<{ regions: number }>(`select count(*)::int as regions from regions`);
     const national = await report.listRegionExportRows(db, NATIONAL);
     const change = national

@@ -5,13 +5,18 @@
 // nightly run after it. Prints each command's wall time, the stage times of its run, and what it
 // recomputed: plot visits, height models replaced, forest types fitted, regions and national summaries
 // given a new version. The commands run compiled (dist/stemwise.mjs, built first), jobs in-process,
-// against a scratch database of the PostgreSQL of DATABASE_URL (or the local server).
+// against a scratch database of the PostgreSQL of DATABASE_URL (or the local server). Last, the page of
+// the region served in this process (the report draws a page's charts when first served, then keeps
+// them): once for another region (the process's first page), then twice for the batch's region, cold
+// and kept.
 //
 //   npm run bench -- --only increment [--plots 8000] [--batch 50] [--region Sallowfen]
 import { spawnSync } from 'node:child_process';
 import path from 'node:path';
 import { parseArgs } from 'node:util';
-import { loadConfig } from '@stemwise/platform';
+import { createLogger, InProcessQueue, loadConfig, type Config } from '@stemwise/platform';
+import { buildServer } from '@stemwise/report';
+import { createToken } from '../../test/report/tokens';
 import { getRecomputeRun, migrateDatabase, openDatabase, syncForestTypes, type Db } from '@stemwise/db';
 import { stageTimeLines, type StageTime } from '@stemwise/core';
 import { bundle, BUNDLE, ROOT } from '../build';
@@ -64,6 +69,28 @@ async function report(db: Db, label: string, s: number, since: Date, before: Map
   process.stdout.write(lines.join('\n') + '\n');
 }
 
+/** Serves region pages in this process (inject, no socket) and prints each one's time. */
+async function pageServe(config: Config, db: Db, region: string, other: string): Promise<void> {
+  const log = createLogger('warn');
+  const app = await buildServer({ config, db, log, queue: new InProcessQueue(log) }, { summaryCheckMs: 0 });
+  try {
+    const headers = { authorization: `Bearer ${(await createToken(db, 'admin', [], 'bench')).token}` };
+    const serve = async (r: string, what: string) => {
+      const t0 = performance.now();
+      const res = await app.inject({ url: `/regions/${encodeURIComponent(r)}`, headers });
+      const ms = performance.now() - t0;
+      if (res.statusCode !== 200) throw new Error(`GET /regions/${r}: ${res.statusCode}`);
+      process.stdout.write(`  ${what.padEnd(46)} ${ms.toFixed(0).padStart(5)} ms  ${(res.body.length / 1024).toFixed(0)} kB\n`);
+    };
+    process.stdout.write(`region page served (charts drawn on first serve, then kept):\n`);
+    await serve(other, `${other}, the process's first page`);
+    await serve(region, `${region}, its charts not drawn yet`);
+    await serve(region, `${region} again, its charts kept`);
+  } finally {
+    await app.close();
+  }
+}
+
 await withScratch(adminUrl, 'increment', async ({ work, dbUrl }) => {
   await bundle(path.join(ROOT, 'cli', 'src', 'main.ts'), BUNDLE, { split: true });
   const config = { ...loadConfig(), databaseUrl: dbUrl };
@@ -89,6 +116,7 @@ await withScratch(adminUrl, 'increment', async ({ work, dbUrl }) => {
     since = new Date();
     const nightly = stemwise(['recompute', '--now'], env);
     await report(db, `recompute --now after it (the nightly run's work)`, nightly.s, since, before);
+    await pageServe(config, db, values.region, REGIONS.find((r) => r !== values.region)!);
   } finally {
     await db.close();
   }

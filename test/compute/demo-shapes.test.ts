@@ -1,6 +1,7 @@
 import fs from 'node:fs';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { DEMO_DATA_DIR } from '@stemwise/demo-inventory';
+import { forestTypeFitChartSvg } from '@stemwise/report';
 import { loadDemoInventory } from './demo-loader';
 import { fitsText, recomputeInProcess } from './support';
 import { useServices, type TestServices } from '../support/services';
@@ -37,9 +38,11 @@ describe('planted shapes of the demo inventory', () => {
     for (const t of ['wet', 'moist', 'dry']) expect(quad(t).n).toBe(truth.counts.plots_by_forest_type[t]);
   });
 
-  it('stores a chart for each forest type', async () => {
-    const charts = await s.db.query<{ forest_type: string; svg: string }>(`select forest_type, details->>'chart_svg' svg from curve_fits where scope = 'all' and model = 'quadratic'`);
-    expect(charts).toHaveLength(3);
-    for (const c of charts) expect(c.svg).toMatch(/^<svg[\s\S]*<\/svg>\s*$/);
+  it('stores what the chart of each forest type shows, and the chart draws from it', async () => {
+    for (const t of ['wet', 'moist', 'dry']) {
+      const svg = await forestTypeFitChartSvg(s, t);
+      expect(svg, t).toMatch(/^<svg[\s\S]*<\/svg>\s*$/);
+      expect(svg, t).toContain(`n = ${truth.counts.plots_by_forest_type[t]}`);
+    }
   });
 });

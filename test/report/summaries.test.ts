@@ -3,7 +3,7 @@ import tQuantile from '@stdlib/stats-base-dists-t-quantile';
 import { getNationalSnapshot, getSummarySnapshot, listNationalVersions, listStale, listSummaryVersions, markStale } from '@stemwise/db';
 import type { RegionRow, ServiceDeps } from '@stemwise/core';
 import { InProcessQueue } from '@stemwise/platform';
-import { createProcessors, type NationalPayload, type SnapshotPayload } from '@stemwise/report';
+import { assembleNationalSnapshot, createProcessors, type NationalPayload, type SnapshotPayload } from '@stemwise/report';
 import { testLogger, useServices, type TestServices } from '../support/services';
 import { jobContext, seedPlots, seedRun } from './fixture';
 import { seedScenario } from './seed-scenario';
@@ -138,9 +138,11 @@ describe('report.summaries', () => {
     const wet = payload.charts.fits.find((c) => c.forest_type === 'wet')!;
     expect(wet.points).toBe(5); // 3 Northvale + 2 Ostmark plots of type wet
     expect(wet.highlighted).toBe(3);
-    expect(wet.svg ?? wet.missing).toBeTruthy();
-    expect(payload.charts.means).toMatch(/^<svg/);
-    expect(payload.charts.guilds).toMatch(/^<svg/);
+    expect(wet.spec ?? wet.missing).toBeTruthy();
+    // the charts' specifications, drawn when the page is served (no SVG in the snapshot)
+    expect(payload.charts.means).toMatchObject({ title: { text: 'Means with 95 % confidence intervals' } });
+    expect(payload.charts.guilds).toMatchObject({ $schema: expect.stringContaining('vega-lite') });
+    expect(JSON.stringify(payload.charts)).not.toContain('<svg');
     expect(payload.method.carbon_fraction).toBe(0.47);
   });
 
@@ -194,6 +196,31 @@ describe('report.summaries', () => {
     expect(national?.version).toBe(2);
     expect((national!.payload as NationalPayload).sources.Northvale).toBe(2);
     expect(row(national!.payload as NationalPayload, 'all', 'basal_area_m2_ha').mean).toBeCloseTo(226 / 12, 12);
+  });
+
+  it('assembles the national summary from the aggregates kept with each region version, as from the plots to the last bit', async () => {
+    await firstRun();
+    const national = await getNationalSnapshot(s.db);
+    const sources = (national!.payload as NationalPayload).sources;
+    const kept = await s.db.query<{ name: string; version: number; kept: boolean }>(
+      `select r.name, s.version, s.aggregates is not null kept from region_summaries s join regions r on r.id = s.region_id`,
+    );
+    const used = kept.filter((k) => sources[k.name] === k.version);
+    expect(used.map((k) => k.name).sort()).toEqual(['Northvale', 'Southmere']); // Ostmark has no summary: its plots are read
+    expect(used.every((k) => k.kept)).toBe(true);
+    expect(kept.filter((k) => sources[k.name] !== k.version).map((k) => [k.name, k.version, k.kept])).toEqual([['Northvale', 1, false]]); // superseded: cleared
+    const fromAggregates = JSON.stringify(await assembleNationalSnapshot(deps, sources));
+    expect(JSON.parse(fromAggregates)).toStrictEqual(national!.payload);
+    // Versions made before the aggregates were kept have none: the plots are read, with the same result.
+    await s.db.query(`update region_summaries set aggregates = null`);
+    expect(JSON.stringify(await assembleNationalSnapshot(deps, sources))).toBe(fromAggregates);
+    // Summarised again with the same content, a region keeps its version and gets its aggregates back.
+    await markStale(s.db, 'summary', ['Northvale']);
+    await runSummaries();
+    const [northvale] = await s.db.query<{ version: number; kept: boolean }>(
+      `select s.version, s.aggregates is not null kept from region_summaries s join regions r on r.id = s.region_id where r.name = 'Northvale' order by s.version desc limit 1`,
+    );
+    expect(northvale).toEqual({ version: sources.Northvale, kept: true });
   });
 
   it('unmarks a region that no longer exists instead of failing', async () => {

@@ -85,6 +85,13 @@ export function standTableValues(stored: unknown): Record<string, number | null>
 export function standTableVariables(plots: ReadonlyArray<{ readonly values: Readonly<Record<string, unknown>> }>): string[] {
   const found = new Set<string>();
   for (const p of plots) for (const k of Object.keys(p.values)) if (isStandVariable(k)) found.add(k);
+  return orderStandVariables(found);
+}
+
+/** The stand-table variables among `names`, once each, by class (smallest first), then figure. */
+export function orderStandVariables(names: Iterable<string>): string[] {
+  const found = new Set<string>();
+  for (const k of names) if (isStandVariable(k)) found.add(k);
   const order = (v: string): [number, number] => {
     const s = parseStandVariable(v) as StandVariable;
     return [s.lowerCm, STAND_FIGURES.findIndex((f) => f.key === s.figure)];

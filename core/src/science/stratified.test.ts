@@ -6,7 +6,9 @@ import {
   stratifiedEstimate,
   stratifiedMean,
   stratifiedVariance,
+  stratumMoments,
   type StratumInput,
+  type StratumValues,
 } from './stratified';
 import { tMultiplier } from './student-t';
 
@@ -14,7 +16,7 @@ const rel = (a: number | null, b: number): number => Math.abs((a as number) - b)
 
 // Constructed example of docs/methods.md#stratified-estimator (computed): sizes are
 // numbers of sampling units, so fpcUnitSize = 1 gives f_h = n_h / N_h.
-const CONSTRUCTED: readonly StratumInput[] = [
+const CONSTRUCTED: readonly StratumValues[] = [
   { name: 's1', size: 400, values: [152, 170, 188, 141, 163, 177, 159, 166, 181, 149] },
   { name: 's2', size: 250, values: [98, 120, 87, 110, 105, 93, 116, 101] },
   { name: 's3', size: 350, values: [230, 251, 214, 262, 245, 228, 239, 256, 221, 248, 236, 242] },
@@ -75,7 +77,7 @@ describe('stratifiedEstimate on the constructed example of docs/methods.md (comp
 //   a_h = 0.75, 0.25; n_e = 1² / (0.75²/2 + 0.25²/1) = 1 / 0.34375 = 32/11
 //   totals over 400 ha: 2400 ± t·400; sampling error % = 100·t·1/6
 //   plot-count weights 3/5, 2/5: ȳ = 36/5 = 7.2 (the plain mean), v = 0.36·4/3 + 0.16·8/2 = 1.12
-const HAND: readonly StratumInput[] = [
+const HAND: readonly StratumValues[] = [
   { name: 'A', size: 300, values: [2, 4, 6] },
   { name: 'B', size: 100, values: [10, 14] },
 ];
@@ -193,6 +195,48 @@ describe('stratifiedEstimate edge cases', () => {
     expect(() => stratifiedEstimate([{ name: 'A', values: [1, Number.NaN] }])).toThrow(/not a finite number or null/);
     expect(() => stratifiedEstimate(HAND, { fpcUnitSize: 200 })).toThrow(/room for only 1.5 units/);
     expect(() => stratifiedEstimate(HAND, { confidence: 95 })).toThrow(/confidence/);
+  });
+});
+
+describe('strata given by their moments (n_h, ȳ_h, s_h²) instead of their values', () => {
+  // The same strata as values and as stratumMoments of those values: every figure equal to the last bit,
+  // with nulls, a single-value stratum, a stratum without values, area and plot-count weights and the fpc.
+  const withNulls: StratumValues[] = [
+    { name: 'a', size: 120, values: [3.1, null, 4.7, 2.2, null, 5.9] },
+    { name: 'b', size: 80, values: [10.3, 11.9, null, 9.4] },
+    { name: 'c', size: 40, values: [null, null] },
+  ];
+  const single: StratumValues[] = [...withNulls.slice(0, 2), { name: 'd', size: 15, values: [null, 7.7] }];
+  const asMoments = (strata: readonly StratumValues[]): StratumInput[] => strata.map(({ name, size, values }) => ({ name, size, ...stratumMoments(values, name) }));
+
+  it.each([
+    ['area weights', withNulls, {}],
+    ['plot-count weights', withNulls.map(({ name, values }) => ({ name, values })), {}],
+    ['a single-value stratum', single, {}],
+    ['the fpc', withNulls, { fpcUnitSize: 0.5 }],
+    ['the constructed example', CONSTRUCTED, { fpcUnitSize: 1 }],
+  ] as const)('gives the same estimate with %s', (_, strata, options) => {
+    expect(stratifiedEstimate(asMoments(strata), options)).toStrictEqual(stratifiedEstimate(strata, options));
+  });
+
+  it('stratumMoments: n of the values present, their mean, their sample variance (null below 1 and 2 values)', () => {
+    expect(stratumMoments([2, null, 4, 6])).toEqual({ n: 3, mean: 4, variance: 4 });
+    expect(stratumMoments([null, 5])).toEqual({ n: 1, mean: 5, variance: null });
+    expect(stratumMoments([null])).toEqual({ n: 0, mean: null, variance: null });
+  });
+
+  it('rejects moments stratumMoments could not give', () => {
+    for (const bad of [
+      { n: 1.5, mean: 1, variance: null },
+      { n: -1, mean: null, variance: null },
+      { n: 0, mean: 1, variance: null },
+      { n: 2, mean: null, variance: 1 },
+      { n: 1, mean: 1, variance: 0 },
+      { n: 3, mean: 1, variance: -0.5 },
+      { n: 3, mean: Number.NaN, variance: 1 },
+    ]) {
+      expect(() => stratifiedEstimate([{ name: 'x', ...bad }]), JSON.stringify(bad)).toThrow(EstimatorInputError);
+    }
   });
 });
 

@@ -26,13 +26,29 @@ import { tMultiplier } from './student-t';
 export type Weighting = 'area' | 'plot_count';
 export type SamplingErrorT = 't' | 1.96 | 2;
 
-export interface StratumInput {
+/** A stratum given by its plots' values. */
+export interface StratumValues {
   readonly name: string;
   /** One value per plot; null = no value for that plot, left out (n_h counts values present). */
   readonly values: readonly (number | null)[];
   /** Stratum size N_h (forest area in ha here); null/absent when unknown. */
   readonly size?: number | null;
 }
+
+/** The sufficient statistics of a stratum's values (stratumMoments): n_h, ȳ_h (null when n_h = 0), s_h² (null when n_h < 2). */
+export interface StratumMoments {
+  readonly n: number;
+  readonly mean: number | null;
+  readonly variance: number | null;
+}
+
+/** A stratum given by the moments of its values instead of the values: the same estimate, to the last bit, as from the values they came from. */
+export interface StratumSummary extends StratumMoments {
+  readonly name: string;
+  readonly size?: number | null;
+}
+
+export type StratumInput = StratumValues | StratumSummary;
 
 export interface StratifiedOptions {
   /** Confidence level of the intervals. Default 0.95. */
@@ -219,18 +235,30 @@ function resolveOptions(strata: readonly StratumInput[], options: StratifiedOpti
   return { confidence, samplingErrorT, df, weighting, fpcUnitSize: weighting === 'area' && unit !== undefined ? unit : null };
 }
 
-function presentValues(stratum: StratumInput): number[] {
-  const out: number[] = [];
-  for (let i = 0; i < stratum.values.length; i++) {
-    const v = stratum.values[i];
+// n_h = number of values present, ȳ_h = Σ y / n_h, s_h² = Σ (y − ȳ_h)² / (n_h − 1) over them, nulls left out (Cochran 1977 ch. 2 and 5)
+export function stratumMoments(values: readonly (number | null)[], name = 'stratum'): StratumMoments {
+  const x: number[] = [];
+  for (let i = 0; i < values.length; i++) {
+    const v = values[i];
     if (v === null) continue;
     if (typeof v !== 'number' || !Number.isFinite(v)) {
-      throw new EstimatorInputError('stratifiedEstimate', 'NON_FINITE_VALUE', `stratum '${stratum.name}' value ${i} is ${String(v)}, not a finite number or null`);
+      throw new EstimatorInputError('stratifiedEstimate', 'NON_FINITE_VALUE', `stratum '${name}' value ${i} is ${String(v)}, not a finite number or null`);
     }
-    out.push(v);
+    x.push(v);
   }
-  return out;
+  return { n: x.length, mean: x.length > 0 ? sampleMean(x) : null, variance: x.length > 1 ? sampleVariance(x) : null };
 }
+
+// Moments given directly must be what stratumMoments gives: an integer n ≥ 0, a finite mean iff n ≥ 1, a finite variance ≥ 0 iff n ≥ 2.
+function givenMoments(s: StratumSummary): StratumMoments {
+  const bad = (what: string) => new EstimatorInputError('stratifiedEstimate', 'BAD_STRATUM', `stratum '${s.name}' ${what}`);
+  if (!Number.isInteger(s.n) || s.n < 0) throw bad(`has n = ${String(s.n)}; n must be an integer ≥ 0`);
+  if (s.n === 0 ? s.mean !== null : typeof s.mean !== 'number' || !Number.isFinite(s.mean)) throw bad(`has n = ${s.n} and mean ${String(s.mean)}`);
+  if (s.n < 2 ? s.variance !== null : typeof s.variance !== 'number' || !Number.isFinite(s.variance) || s.variance < 0) throw bad(`has n = ${s.n} and variance ${String(s.variance)}`);
+  return { n: s.n, mean: s.mean, variance: s.variance };
+}
+
+const momentsOf = (s: StratumInput): StratumMoments => ('values' in s ? stratumMoments(s.values, s.name) : givenMoments(s));
 
 function interval(centre: number, halfWidth: number): [number, number] {
   return [centre - halfWidth, centre + halfWidth];
@@ -249,31 +277,29 @@ export function stratifiedEstimate(strata: readonly StratumInput[], options: Str
     }
   }
   const opt = resolveOptions(strata, options);
-  const samples = strata.map(presentValues);
+  // Each stratum enters by its moments only: n_h, ȳ_h and s_h², from its values or as given.
+  const moments = strata.map(momentsOf);
   const sizeOf = (h: number): number | null => strata[h].size ?? null;
 
   const used: number[] = [];
-  samples.forEach((x, h) => {
-    if (x.length > 0) used.push(h);
+  moments.forEach((m, h) => {
+    if (m.n > 0) used.push(h);
   });
-  const usedWeightBasis = used.map((h) => (opt.weighting === 'area' ? (sizeOf(h) as number) : samples[h].length));
+  const usedWeightBasis = used.map((h) => (opt.weighting === 'area' ? (sizeOf(h) as number) : moments[h].n));
   const basisTotal = usedWeightBasis.reduce((a, b) => a + b, 0);
   const weights = new Map<number, number>(used.map((h, i) => [h, usedWeightBasis[i] / basisTotal]));
 
   const fraction = (h: number): number => {
     if (opt.fpcUnitSize === null) return 0;
     const units = (sizeOf(h) as number) / opt.fpcUnitSize;
-    const f = samples[h].length / units;
-    if (f > 1) throw new EstimatorInputError(fn, 'BAD_STRATUM', `stratum '${strata[h].name}' has ${samples[h].length} plots but room for only ${units} units`);
+    const f = moments[h].n / units;
+    if (f > 1) throw new EstimatorInputError(fn, 'BAD_STRATUM', `stratum '${strata[h].name}' has ${moments[h].n} plots but room for only ${units} units`);
     return f;
   };
 
   const stratumResults: StratumEstimate[] = strata.map((s, h) => {
-    const x = samples[h];
-    const n = x.length;
+    const { n, mean, variance } = moments[h];
     const size = sizeOf(h);
-    const mean = n > 0 ? sampleMean(x) : null;
-    const variance = n > 1 ? sampleVariance(x) : null;
     const se = variance === null ? null : Math.sqrt(((1 - fraction(h)) * variance) / n);
     const df = n > 1 ? n - 1 : null;
     const t = df === null ? null : tMultiplier(opt.confidence, df);
@@ -301,17 +327,17 @@ export function stratifiedEstimate(strata: readonly StratumInput[], options: Str
     };
   });
 
-  const singleValueStrata = used.filter((h) => samples[h].length === 1).map((h) => strata[h].name);
+  const singleValueStrata = used.filter((h) => moments[h].n === 1).map((h) => strata[h].name);
   const base = {
     weighting: opt.weighting,
     fpcApplied: opt.fpcUnitSize !== null,
     confidence: opt.confidence,
     strataUsed: used.map((h) => strata[h].name),
-    strataWithoutValues: strata.filter((_, h) => samples[h].length === 0).map((s) => s.name),
+    strataWithoutValues: strata.filter((_, h) => moments[h].n === 0).map((s) => s.name),
     singleValueStrata,
     strata: stratumResults,
   };
-  const n = used.reduce((a, h) => a + samples[h].length, 0);
+  const n = used.reduce((a, h) => a + moments[h].n, 0);
   const size = opt.weighting === 'area' && used.length > 0 ? used.reduce((a, h) => a + (sizeOf(h) as number), 0) : null;
   const none = { variance: null, se: null, df: null, dfMethod: null, tMultiplier: null, samplingErrorMultiplier: null, ciLow: null, ciHigh: null, samplingErrorPct: null, totalSe: null, totalCiLow: null, totalCiHigh: null } as const;
   if (used.length === 0) return { ...base, ...none, n: 0, mean: null, size: null, total: null };
@@ -322,7 +348,7 @@ export function stratifiedEstimate(strata: readonly StratumInput[], options: Str
   if (singleValueStrata.length > 0) return { ...base, ...none, n, mean, size, total };
 
   const s2 = used.map((h) => stratumResults[h].variance as number);
-  const ns = used.map((h) => samples[h].length);
+  const ns = used.map((h) => moments[h].n);
   const f = used.map(fraction);
   const variance = stratifiedVariance(w, s2, ns, f);
   const se = Math.sqrt(variance);

@@ -88,6 +88,15 @@ describe('tMultiplier', () => {
     expect(t).toBeGreaterThan(tMultiplier(0.95, 23));
   });
 
+  it('gives the quantile itself when asked again (remembered), at each confidence apart', () => {
+    for (const [c, df] of [[0.95, 7], [0.9, 7], [0.95, 7.25], [0.99, 7]] as const) {
+      const first = tMultiplier(c, df);
+      expect(first).toBe(studentTQuantile((1 + c) / 2, df));
+      expect(tMultiplier(c, df)).toBe(first);
+    }
+    expect(tMultiplier(0.9, 7)).toBeLessThan(tMultiplier(0.95, 7));
+  });
+
   it('rejects a confidence outside (0, 1) and a df that is not positive and finite', () => {
     expect(() => tMultiplier(1, 10)).toThrow(/^tMultiplier: confidence/);
     expect(() => tMultiplier(0.95, 0)).toThrow(/^tMultiplier: degrees of freedom/);

@@ -30,11 +30,28 @@ export function studentTQuantile(p: number, df: number): number {
   return tQuantile(p, df);
 }
 
+// The multipliers computed so far by confidence and df: a summary asks for the same few (n_h − 1 of its
+// strata) hundreds of times, and each costs an iterative inversion. Bounded; the values are those computed.
+const multipliers = new Map<number, Map<number, number>>();
+let remembered = 0;
+
 // t = F⁻¹_ν((1 + c)/2), two-sided Student t multiplier at confidence c and ν degrees of freedom (Student 1908, Biometrika 6:1–25)
 export function tMultiplier(confidence: number, df: number): number {
   if (!(confidence > 0 && confidence < 1)) throw new RangeError(`tMultiplier: confidence must lie strictly between 0 and 1, got ${String(confidence)}`);
   checkDf('tMultiplier', df);
-  return tQuantile((1 + confidence) / 2, df);
+  let byDf = multipliers.get(confidence);
+  const known = byDf?.get(df);
+  if (known !== undefined) return known;
+  const t = tQuantile((1 + confidence) / 2, df);
+  if (remembered >= 10_000) {
+    multipliers.clear();
+    remembered = 0;
+    byDf = undefined;
+  }
+  if (byDf === undefined) multipliers.set(confidence, (byDf = new Map()));
+  byDf.set(df, t);
+  remembered++;
+  return t;
 }
 
 // f(t; ν) = Γ((ν+1)/2) / (√(νπ) Γ(ν/2)) · (1 + t²/ν)^(−(ν+1)/2), the density of Student's t (Student 1908, Biometrika 6:1–25)

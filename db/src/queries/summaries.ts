@@ -107,46 +107,36 @@ export type SnapshotHead = Omit<SummarySnapshot, 'payload'>;
 /**
  * Stores a region's summary as its next version, unless the latest version has the same etag (the
  * content did not change). Returns the version now latest and whether it was created. Two writers at
- * once: the unique (region, version) constraint makes one of them fail and retry.
+ * once: the unique (region, version) constraint makes one of them fail and retry. The aggregates (what
+ * the national summary needs of the plots) are stored with a new version, and replace those of the
+ * latest when the content did not change: they always describe the plots last summarised. Only the
+ * latest version keeps them (the national summary is assembled from the latest versions): a new version
+ * clears those of the versions before it.
  */
-export async function insertSummarySnapshot(db: Queryable, region: string, etag: string, payload: unknown): Promise<{ version: number; created: boolean }> {
+export async function insertSummarySnapshot(db: Queryable, region: string, etag: string, payload: unknown, aggregates: unknown = null): Promise<{ version: number; created: boolean }> {
   const rows = await db.query<Pick<Summary, 'version'> & { created: boolean }>(
     `with reg as (select id from regions where name = $1),
-          last as (select s.version, s.etag from region_summaries s join reg on reg.id = s.region_id order by s.version desc limit 1),
+          last as (select s.id, s.version, s.etag from region_summaries s join reg on reg.id = s.region_id order by s.version desc limit 1),
           ins as (
-            insert into region_summaries (region_id, version, etag, payload)
-            select reg.id, coalesce((select version from last), 0) + 1, $2, $3::jsonb from reg
+            insert into region_summaries (region_id, version, etag, payload, aggregates)
+            select reg.id, coalesce((select version from last), 0) + 1, $2, $3::jsonb, $4::jsonb from reg
              where not exists (select 1 from last where last.etag = $2)
-            returning version)
+            returning version),
+          upd as (
+            update region_summaries s set aggregates = $4::jsonb from last
+             where s.id = last.id and last.etag = $2 and $4::jsonb is not null
+            returning s.version),
+          superseded as (
+            update region_summaries s set aggregates = null from reg
+             where s.region_id = reg.id and s.aggregates is not null and exists (select 1 from ins)
+            returning s.version)
      select version, true created from ins
      union all
      select version, false from last where etag = $2`,
-    [region, etag, JSON.stringify(payload)],
+    [region, etag, JSON.stringify(payload), aggregates === null ? null : JSON.stringify(aggregates)],
   );
   if (!rows.length) throw new Error(`insertSummarySnapshot: no region named ${region}`);
   return rows[0];
-}
-
-/**
- * The charts (SVG) of a region's latest snapshot with the key of the specification each was drawn from
- * (payload.charts.fits[].drawn_from, and payload.charts.drawn_from.<name> for each chart payload.charts.<name>:
- * means, guilds, change …): the report reuses a
- * chart whose key is unchanged instead of drawing it again.
- */
-export async function listLatestChartSvgs(db: Queryable, region: string): Promise<Array<{ key: string; svg: string }>> {
-  return db.query<{ key: string; svg: string }>(
-    `select k.key, k.svg
-       from (select s.payload->'charts' c from region_summaries s join regions r on r.id = s.region_id
-              where r.name = $1 order by s.version desc limit 1) latest,
-            lateral (
-              select f->>'drawn_from' key, f->>'svg' svg
-                from jsonb_array_elements(case when jsonb_typeof(latest.c->'fits') = 'array' then latest.c->'fits' else '[]'::jsonb end) f
-              union all
-              select d.value #>> '{}', latest.c->>d.key
-                from jsonb_each(case when jsonb_typeof(latest.c->'drawn_from') = 'object' then latest.c->'drawn_from' else '{}'::jsonb end) d) k
-      where k.key is not null and k.svg is not null`,
-    [region],
-  );
 }
 
 /** A region's snapshot: the latest, or the given version; null when there is none. */
@@ -189,6 +179,18 @@ export async function listLatestSummaryVersions(db: Queryable): Promise<Map<stri
     `select r.name, (select max(s.version) from region_summaries s where s.region_id = r.id) version from regions r`,
   );
   return new Map(rows.map((r) => [r.name, r.version]));
+}
+
+/** The aggregates kept with the given version of each region (null where that version has none); regions or versions not found are left out. */
+export async function listSummaryAggregates(db: Queryable, versions: ReadonlyMap<string, number>): Promise<Map<string, unknown>> {
+  const rows = await db.query<{ region: Region['name']; aggregates: Summary['aggregates'] }>(
+    `select r.name region, s.aggregates
+       from unnest($1::text[], $2::int[]) q(name, version)
+       join regions r on r.name = q.name
+       join region_summaries s on s.region_id = r.id and s.version = q.version`,
+    [[...versions.keys()], [...versions.values()]],
+  );
+  return new Map(rows.map((r) => [r.region, r.aggregates]));
 }
 
 /** Latest snapshot of every region that has one (for `export regions`), by region name. */

@@ -31,6 +31,8 @@ export const regionSummaries = pgTable(
     createdAt: timestamp('created_at', { withTimezone: true }).notNull().defaultNow(),
     /** Keys of the plots the version summarised (byte order), for "what changed" against the version before; null in versions made before it was kept. */
     plotKeys: text('plot_keys').array(),
+    /** What the national summary needs of the version's plots without reading them (services/report region-aggregates.ts); kept on the latest version only, null on earlier ones and on versions made before it was kept. */
+    aggregates: jsonb('aggregates'),
   },
   (t) => [unique('region_summaries_version_uq').on(t.regionId, t.version)],
 );

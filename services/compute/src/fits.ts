@@ -21,7 +21,6 @@ import {
   type PlotMetricDbColumn,
 } from '@stemwise/db';
 import { isInfrastructureError, PermanentError, type Logger } from '@stemwise/platform';
-import { renderFitChartSvg } from '@stemwise/core/charts';
 import {
   FITTABLE_COLUMNS,
   fitChartData,
@@ -102,17 +101,6 @@ export function fitPoints(forestType: string, points: ReadonlyArray<CurvePoint &
   return { forestType, points: points.map(({ x, y }) => ({ x, y })), all, regions, failedRegions };
 }
 
-async function chartFor(fits: ForestTypeFits, chart: StoredFitChart, settings: FitSettings, log?: Logger): Promise<Record<string, unknown>> {
-  try {
-    const svg = await renderFitChartSvg({ forestType: fits.forestType, metric: settings.metric, axis: settings.axis, points: fits.points, chart });
-    return { chart_svg: svg };
-  } catch (err) {
-    // The numbers stand without their picture: keep them, say why the chart is missing.
-    log?.error({ err, forestType: fits.forestType }, 'fit chart could not be rendered');
-    return { chart_error: (err as Error).message };
-  }
-}
-
 export interface StoredFits {
   forestType: string;
   n: number;
@@ -124,9 +112,9 @@ export interface StoredFits {
 
 /**
  * Fits the given forest types with the configured metric and axis and stores them: rows for the whole
- * forest type (scope kind `forest_type`, with the chart SVG in details.chart_svg) and per region with
- * enough plots, and what the region pages' charts show (fit_charts: the points with their region, the
- * curve, the turning point), so the report draws them without fitting again; clears the types' `fits` marks and, when a type's verdict changed, marks the summaries of its regions stale — per
+ * forest type (scope kind `forest_type`) and per region with enough plots, and what the charts show
+ * (fit_charts: the points with their region, the curve, the turning point), so the report draws them
+ * when a page is served without fitting again (no chart is drawn here); clears the types' `fits` marks and, when a type's verdict changed, marks the summaries of its regions stale — per
  * forest type, in one transaction. A forest type or region whose fit throws is recorded in
  * compute_problems (with `runId`), logged, and its mark cleared so no run retries it until its data
  * change; the other forest types are fitted all the same. Read and write errors still fail the job.
@@ -147,10 +135,9 @@ export async function storeFits(deps: Pick<ServiceDeps, 'db' | 'config'> & { log
       const points = pointsOf(plots, settings.axis, settings.metric);
       fits = fitPoints(forestType, points, settings, { regions: true });
       chart = { ...fitChartData(fits.all), points: fitChartPoints(points) };
-      const svg = await chartFor(fits, chart, settings, deps.log);
       const leftOut = (region?: string) => leftOutOf(region === undefined ? plots : plots.filter((p) => p.region === region), settings.axis, settings.metric);
       const all = leftOut();
-      for (const row of fitRows(fits.all, labels, fitLeftOut(all))) rows.push(toStoredRow({ kind: 'forest_type' }, row, { ...fitDetails(fits.all), ...svg, left_out: all }));
+      for (const row of fitRows(fits.all, labels, fitLeftOut(all))) rows.push(toStoredRow({ kind: 'forest_type' }, row, { ...fitDetails(fits.all), left_out: all }));
       for (const r of fits.regions) {
         const mine = leftOut(r.region);
         for (const row of fitRows(r.result, labels, fitLeftOut(mine))) rows.push(toStoredRow({ kind: 'region', region: r.region }, row, { ...fitDetails(r.result), left_out: mine }));

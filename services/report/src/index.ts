@@ -1,6 +1,7 @@
 export { createProcessors } from './processors';
 export { buildServer, startReportServer, type ReportServerOptions } from './server';
 export { writeRegionPages } from './static-pages';
+export { drawnSnapshot, forestTypeFitChartSvg } from './chart-svgs';
 export { exportRegions, listRegionExportRows, type ExportRegionsOptions } from './export-regions';
 export { assembleRegionSnapshot, refreshStaleSummaries } from './snapshots';
 export { newToken, hashToken, TOKEN_ROLES, TokenVerifier, type Principal } from './access';
@@ -10,5 +11,5 @@ export type { NationalPayload } from './national-snapshot';
 export type { SnapshotPayload } from './snapshot-payload';
 export { service } from './service';
 export { summariseRegion, type PlotMetrics } from './summary/region-summary';
-export { readNationalSnapshot } from './national-snapshot';
+export { assembleNationalSnapshot, readNationalSnapshot } from './national-snapshot';
 export { CARBON_VARIABLE, type CarbonUncertaintyRow, type CarbonUncertaintySection } from './carbon-uncertainty';

@@ -4,18 +4,20 @@ import {
   listLatestSummaryVersions,
   listRegionForestAreas,
   listRegionNames,
+  listSummaryAggregates,
   type Queryable,
 } from '@stemwise/db';
-import { cautionSettings, standTableValues, type NationalSummary, type ServiceDeps } from '@stemwise/core';
-import { renderChangeChartSvg, renderMeansChartSvg } from '@stemwise/core/charts';
+import { cautionSettings, type NationalSummary, type ServiceDeps } from '@stemwise/core';
+import { buildChangeChartSpec, buildMeansChartSpec, type TopLevelSpec } from '@stemwise/core/charts';
 import type { Logger } from '@stemwise/platform';
 import { nationalCarbonUncertainty, withWholeInterval, type CarbonUncertaintySection } from './carbon-uncertainty';
-import { summariseNation, type NationalRegionInput } from './summary/national-summary';
-import { summaryVariables } from './summary/region-summary';
-import { changeCoverage, type ChangeCoverage, type PlotPair } from './summary/change-coverage';
-import { biomassMethodShares, type BiomassMethodRow } from './summary/biomass-method';
-import type { SnapshotData, SnapshotMethod } from './snapshot-payload';
-import { payloadEtag, regionPlots, samplingErrorMultiplier, type RegionPlotsCache } from './snapshots';
+import { combineNation, type NationalRegionStrata } from './summary/national-summary';
+import { CHANGE_VARIABLES, variableList } from './summary/region-summary';
+import { coverageOf, joinChangeParts, type ChangeCoverage } from './summary/change-coverage';
+import { joinBiomassParts, sharesOf, type BiomassMethodRow } from './summary/biomass-method';
+import { asRegionAggregates, regionAggregates, type RegionAggregates } from './summary/region-aggregates';
+import type { ChartSource, SnapshotData, SnapshotMethod } from './snapshot-payload';
+import { payloadEtag, regionPlotInputs, regionPlots, samplingErrorMultiplier, type RegionPlotsCache } from './snapshots';
 
 type Deps = Pick<ServiceDeps, 'db' | 'config'> & { log?: Logger; /** The region plots the stage has read already. */ plots?: RegionPlotsCache };
 
@@ -42,7 +44,8 @@ export interface NationalPayload {
   readonly change?: ChangeCoverage | null;
   /** Share of the AGB from each height source and wood-density level, over every plot (absent in older snapshots). */
   readonly biomass_method?: readonly BiomassMethodRow[];
-  readonly charts: { readonly means: string | null; readonly change?: string | null };
+  /** The charts' specifications, drawn when the page is served (SVG in older snapshots). */
+  readonly charts: { readonly means: ChartSource | null; readonly change?: ChartSource | null };
 }
 
 export interface NationalSnapshot {
@@ -61,47 +64,57 @@ export async function readNationalSnapshot(db: Queryable, version?: number): Pro
   return row && { version: row.version, etag: row.etag, createdAt: row.createdAt, payload: row.payload as NationalPayload };
 }
 
-/** Assembles the national payload from the database (no write). */
+// A region's aggregates: those kept with its summary version in `sources`, else (a version made before
+// they were kept, or a region without a summary yet) computed from its plots as the summary would.
+async function aggregatesOf(deps: Deps, region: string, stored: ReadonlyMap<string, unknown>): Promise<RegionAggregates> {
+  return asRegionAggregates(stored.get(region)) ?? regionAggregates(region, regionPlotInputs(await regionPlots(deps.db, region, deps.plots)));
+}
+
+/** Assembles the national payload from the database (no write): from the aggregates of the region summary versions in `sources`, not from the plots. */
 export async function assembleNationalSnapshot(deps: Deps, sources: Readonly<Record<string, number | null>>): Promise<NationalPayload> {
   const { db, config } = deps;
-  const regions: NationalRegionInput[] = [];
-  const dates: string[] = [];
-  const pairs: PlotPair[] = [];
-  for (const region of await listRegionNames(db)) {
-    const [plots, forestAreas] = await Promise.all([regionPlots(db, region, deps.plots), listRegionForestAreas(db, region)]);
-    for (const p of plots) dates.push(p.surveyDate);
-    pairs.push(...plots);
-    regions.push({ region, forestAreas, plots: plots.map((p) => ({ plotId: p.plotKey, forestType: p.forestType, values: { ...p.metrics, ...p.change, ...standTableValues(p.standTable) } })) });
+  const versions = new Map(Object.entries(sources).filter((e): e is [string, number] => e[1] !== null));
+  const [names, stored] = await Promise.all([listRegionNames(db), listSummaryAggregates(db, versions)]);
+  const regions: Array<NationalRegionStrata & { readonly aggregates: RegionAggregates }> = [];
+  for (const region of names) {
+    const [aggregates, forestAreas] = await Promise.all([aggregatesOf(deps, region, stored), listRegionForestAreas(db, region)]);
+    regions.push({ region, forestAreas, strata: aggregates, aggregates });
   }
-  const estimated = summariseNation({ regions, variables: summaryVariables(regions.flatMap((r) => r.plots)), options: { samplingErrorT: samplingErrorMultiplier(config), caution: cautionSettings(config) } });
+  const all = regions.map((r) => r.aggregates);
+  const variables = variableList(
+    all.some((a) => CHANGE_VARIABLES.some((v) => a.moments[v]?.some((m) => m.n > 0))),
+    all.flatMap((a) => Object.keys(a.moments)),
+  );
+  const estimated = combineNation({ regions, variables, options: { samplingErrorT: samplingErrorMultiplier(config), caution: cautionSettings(config) } });
   const carbon = await nationalCarbonUncertainty(db, config, regions, 'stock');
   const treeCarbon = await nationalCarbonUncertainty(db, config, regions, 'trees');
   const carbonChange = await nationalCarbonUncertainty(db, config, regions, 'change');
   const summary = { ...estimated, rows: withWholeInterval(estimated.rows, carbon, treeCarbon, carbonChange) };
-  dates.sort();
-  let means: string | null = null;
-  let change: string | null = null;
+  const firsts = all.map((a) => a.first_survey).filter((d): d is string => d !== null);
+  const lasts = all.map((a) => a.last_survey).filter((d): d is string => d !== null);
+  let means: TopLevelSpec | null = null;
+  let change: TopLevelSpec | null = null;
   try {
-    means = await renderMeansChartSvg(summary.rows, { label: 'whole country', subtitle: 'dark: all regions together (stratified by region × forest type); light: each forest type nationally' });
+    means = buildMeansChartSpec(summary.rows, { label: 'whole country', subtitle: 'dark: all regions together (stratified by region × forest type); light: each forest type nationally' });
   } catch (err) {
-    deps.log?.error({ err }, 'national means chart could not be rendered');
+    deps.log?.error({ err }, 'national means chart could not be specified');
   }
   try {
-    change = await renderChangeChartSvg(summary.rows, { label: 'whole country' });
+    change = buildChangeChartSpec(summary.rows, { label: 'whole country' });
   } catch (err) {
-    deps.log?.error({ err }, 'national change chart could not be rendered');
+    deps.log?.error({ err }, 'national change chart could not be specified');
   }
   return {
     format: NATIONAL_FORMAT,
-    data: { plots: summary.n_plots, regions: summary.regions.length, first_survey: dates[0] ?? null, last_survey: dates.at(-1) ?? null },
+    data: { plots: summary.n_plots, regions: summary.regions.length, first_survey: firsts.length ? firsts.reduce((a, b) => (b < a ? b : a)) : null, last_survey: lasts.length ? lasts.reduce((a, b) => (b > a ? b : a)) : null },
     method: { estimator: NATIONAL_ESTIMATOR },
     summary,
     sources,
-    biomass_method: biomassMethodShares(regions.flatMap((r) => r.plots)),
+    biomass_method: sharesOf(joinBiomassParts(all.map((a) => a.biomass)), all.flatMap((a) => a.forest_types.map((t) => t.forest_type))),
     carbon_uncertainty: carbon,
     tree_carbon_uncertainty: treeCarbon,
     carbon_change_uncertainty: carbonChange,
-    change: changeCoverage(pairs),
+    change: coverageOf(joinChangeParts(all.map((a) => a.change))),
     charts: { means, change },
   };
 }

@@ -1,11 +1,12 @@
 import crypto from 'node:crypto';
 import { listRegionLatestPlots, PLOT_METRICS, type Queryable, type RegionPlotRow } from '@stemwise/db';
 import { renderPlotMapSvg, type MapPlot } from '@stemwise/core/charts';
+import { drawnSvgs } from './chart-svgs';
 
 // The plot maps of the pages: the latest computed visit of each plot at its coordinates, coloured by a
 // variable the reader picks among the `export plots` columns. Drawn when a page is asked for; the SVG
-// of equal inputs is kept (a few dozen, least recently used dropped), so a page seen again costs one
-// query, not a drawing.
+// of equal inputs is kept with the pages' charts (chart-svgs.ts, least recently used dropped), so a page
+// seen again costs one query, not a drawing.
 
 /** Address of a plot's page on the server. */
 export const plotPagePath = (region: string, plotKey: string): string => `/regions/${encodeURIComponent(region)}/plots/${encodeURIComponent(plotKey)}`;
@@ -27,9 +28,6 @@ export async function readRegionPlots(db: Queryable, regions: readonly string[])
   return out;
 }
 
-const CACHE_SIZE = 48;
-const drawn = new Map<string, Promise<string | null>>();
-
 /**
  * The SVG map of these plots coloured by `variable`; `href` gives each plot's page (null: no links).
  * Inputs that draw the same picture share one drawing.
@@ -40,14 +38,5 @@ export function plotMapSvg(groups: readonly RegionPlots[], variable: string, tit
     g.plots.map((p) => ({ plot: p.plotKey, longitude: p.longitude, latitude: p.latitude, value: p.metrics[column] ?? null, href: href ? href(g.region, p.plotKey) : null, region: g.region })),
   );
   const key = crypto.createHash('sha256').update(JSON.stringify([variable, title, plots])).digest('base64url');
-  let svg = drawn.get(key);
-  if (svg) {
-    drawn.delete(key);
-  } else {
-    svg = renderPlotMapSvg({ plots, variable, title });
-    svg.catch(() => drawn.delete(key));
-  }
-  drawn.set(key, svg);
-  while (drawn.size > CACHE_SIZE) drawn.delete(drawn.keys().next().value as string);
-  return svg;
+  return drawnSvgs.get(`map:${key}`, () => renderPlotMapSvg({ plots, variable, title }));
 }

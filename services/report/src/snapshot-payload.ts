@@ -1,10 +1,12 @@
 import type { RegionSummary, TestOutcome } from '@stemwise/core';
+import type { TopLevelSpec } from '@stemwise/core/charts';
 import type { CarbonUncertaintySection } from './carbon-uncertainty';
 import type { ChangeCoverage } from './summary/change-coverage';
 import type { BiomassMethodRow } from './summary/biomass-method';
 
 // What one region_summaries.payload holds (format 1). The API serves it without `charts`; the page
-// draws the charts from it. Plain JSON; null where a value cannot be computed.
+// draws the charts from their specifications when it is served (chart-svgs.ts). Plain JSON; null where a
+// value cannot be computed.
 
 export const SNAPSHOT_FORMAT = 1;
 
@@ -56,6 +58,12 @@ export interface PlotSize {
   readonly n_plots: number;
 }
 
+/**
+ * A chart as a snapshot keeps it: the vega-lite specification the page draws it from; snapshots made
+ * before charts were drawn when served kept the SVG itself (a string).
+ */
+export type ChartSource = TopLevelSpec | string;
+
 export interface FitChart {
   readonly forest_type: string;
   readonly metric: string;
@@ -63,11 +71,29 @@ export interface FitChart {
   /** Plots of the forest type drawn, and how many of them are this region's (highlighted). */
   readonly points: number;
   readonly highlighted: number;
-  readonly svg: string | null;
-  /** Why there is no chart (too few plots, no stored fit, rendering failed). */
+  /** What the page draws (null: no chart, see `missing`); absent in snapshots that kept the SVG instead. */
+  readonly spec?: TopLevelSpec | null;
+  /** The chart as drawn: on a page, and in snapshots made before charts were drawn when served. */
+  readonly svg?: string | null;
+  /** Why there is no chart (too few plots, no stored fit, drawing failed). */
   readonly missing: string | null;
-  /** Key of the specification the SVG was drawn from (chartSpecKey): a later snapshot with the same key reuses the SVG. */
-  readonly drawn_from: string | null;
+}
+
+/** The charts of a snapshot as stored: their specifications (or, in older snapshots, their SVG). */
+export interface SnapshotCharts {
+  readonly means: ChartSource | null;
+  readonly guilds: ChartSource | null;
+  /** Gains, losses and net change per forest type (null without change estimates); absent in older snapshots. */
+  readonly change?: ChartSource | null;
+  readonly fits: readonly FitChart[];
+}
+
+/** The charts of a snapshot as a page shows them: drawn (chart-svgs.ts); null where there is none or it could not be drawn. */
+export interface DrawnCharts extends SnapshotCharts {
+  readonly means: string | null;
+  readonly guilds: string | null;
+  readonly change?: string | null;
+  readonly fits: ReadonlyArray<Omit<FitChart, 'spec' | 'svg'> & { readonly svg: string | null }>;
 }
 
 export interface SnapshotMethod {
@@ -86,7 +112,7 @@ export interface SnapshotData {
   readonly species_reference_version: number | null;
 }
 
-export interface SnapshotPayload {
+export interface SnapshotPayload<C extends SnapshotCharts = SnapshotCharts> {
   readonly format: typeof SNAPSHOT_FORMAT;
   readonly region: string;
   readonly data: SnapshotData;
@@ -105,22 +131,14 @@ export interface SnapshotPayload {
   readonly biomass_method?: readonly BiomassMethodRow[];
   /** Plots per forest type and plot area in ha (absent in older snapshots). */
   readonly plot_sizes?: readonly PlotSize[];
-  readonly charts: {
-    readonly means: string | null;
-    readonly guilds: string | null;
-    /** Gains, losses and net change per forest type (null without change estimates); absent in older snapshots. */
-    readonly change?: string | null;
-    readonly fits: readonly FitChart[];
-    /** Keys of the specifications the means, guild and change charts were drawn from (see FitChart.drawn_from). */
-    readonly drawn_from: { readonly means: string | null; readonly guilds: string | null; readonly change?: string | null };
-  };
+  readonly charts: C;
 }
 
 /** A stored snapshot as the API and the page use it. */
-export interface Snapshot {
+export interface Snapshot<C extends SnapshotCharts = SnapshotCharts> {
   readonly region: string;
   readonly version: number;
   readonly etag: string;
   readonly createdAt: Date;
-  readonly payload: SnapshotPayload;
+  readonly payload: SnapshotPayload<C>;
 }

@@ -7,7 +7,6 @@ import {
   listRegionPlotSizes,
   recordSummaryPlotKeys,
   listCurveFits,
-  listLatestChartSvgs,
   listRegionForestAreas,
   listRegionLatestPlots,
   type RegionPlotRow,
@@ -18,12 +17,14 @@ import {
 import { asStoredFitChart, cautionSettings, currentSpecies, IPCC_2006_CARBON_FRACTION, standTableValues, toFitRow, variableLabel, type SamplingErrorT, type ServiceDeps, type StoredFitChart } from '@stemwise/core';
 import { isInfrastructureError, PermanentError, type Config, type Logger } from '@stemwise/platform';
 import { plotPagePath } from './plot-map';
-import { buildChangeChartSpec, buildFitChartSpec, buildGuildChartSpec, buildMeansChartSpec, chartSpecKey, regionChartPoints, renderVegaLiteSvg, type TopLevelSpec } from '@stemwise/core/charts';
+import { buildChangeChartSpec, buildFitChartSpec, buildGuildChartSpec, buildMeansChartSpec, regionChartPoints, type TopLevelSpec } from '@stemwise/core/charts';
 import { regionCarbonUncertainty, withWholeInterval } from './carbon-uncertainty';
 import { RegionSummaryInputError, summariseRegion, summaryVariables, type PlotMetrics } from './summary/region-summary';
-import { changeCoverage } from './summary/change-coverage';
+import { coverageOf, type PlotPair } from './summary/change-coverage';
 import { SNAPSHOT_FORMAT, type FitChart, type SnapshotFitRow, type SnapshotMethod, type SnapshotPayload } from './snapshot-payload';
-import { biomassMethodShares } from './summary/biomass-method';
+import { sharesOf } from './summary/biomass-method';
+import { regionAggregates, type RegionAggregates } from './summary/region-aggregates';
+import { PlotStrata } from './summary/input';
 
 type Deps = Pick<ServiceDeps, 'db' | 'config'> & { log?: Logger };
 
@@ -65,63 +66,69 @@ async function storedChart(deps: Deps, forestType: string, charts: StoredChartCa
   return chart;
 }
 
-/** The SVG of the region's latest snapshot by the key of the specification each was drawn from. */
-type DrawnCharts = ReadonlyMap<string, string>;
-
-// A chart's SVG with the key of its specification: the SVG of the latest snapshot when the key is
-// unchanged (the same picture), else drawn now.
-async function draw(spec: TopLevelSpec, drawn: DrawnCharts): Promise<{ svg: string; key: string }> {
-  const key = chartSpecKey(spec);
-  return { svg: drawn.get(key) ?? (await renderVegaLiteSvg(spec)), key };
-}
-
-// The region's chart of a forest type, from what the fits job stored (never fitted here).
-async function fitChart(deps: Deps, region: string, forestType: string, charts: StoredChartCache, drawn: DrawnCharts): Promise<FitChart> {
+// The region's chart of a forest type, from what the fits job stored (never fitted here): its
+// specification, drawn when the page is served (chart-svgs.ts).
+async function fitChart(deps: Deps, region: string, forestType: string, charts: StoredChartCache): Promise<FitChart> {
   const { fitMetric: metric, fitAxis: axis } = deps.config;
   const stored = await storedChart(deps, forestType, charts);
   const points = stored?.points;
   const at = points ? points.regions.indexOf(region) : -1;
   const base = { forest_type: forestType, metric, axis, points: points?.x.length ?? 0, highlighted: points ? points.region.filter((r) => r === at).length : 0 };
-  if (!stored) return { ...base, svg: null, missing: `no stored fit of ${metric} against ${axis} for ${forestType}: the fits stage has not stored its chart`, drawn_from: null };
-  if (!stored.points.x.length) return { ...base, svg: null, missing: `no plot of ${forestType} has both ${metric} and ${axis}`, drawn_from: null };
+  if (!stored) return { ...base, spec: null, missing: `no stored fit of ${metric} against ${axis} for ${forestType}: the fits stage has not stored its chart` };
+  if (!stored.points.x.length) return { ...base, spec: null, missing: `no plot of ${forestType} has both ${metric} and ${axis}` };
   try {
-    const { svg, key } = await draw(buildFitChartSpec({ forestType, metric, axis, points: regionChartPoints(stored.points, region, (plot) => plotPagePath(region, plot)), chart: stored, highlightLabel: `plots of ${region}` }), drawn);
-    return { ...base, svg, missing: null, drawn_from: key };
+    const spec = buildFitChartSpec({ forestType, metric, axis, points: regionChartPoints(stored.points, region, (plot) => plotPagePath(region, plot)), chart: stored, highlightLabel: `plots of ${region}` });
+    return { ...base, spec, missing: null };
   } catch (err) {
-    deps.log?.error({ err, region, forestType }, 'fit chart could not be rendered');
-    return { ...base, svg: null, missing: `the chart could not be drawn (${(err as Error).message})`, drawn_from: null };
+    deps.log?.error({ err, region, forestType }, 'fit chart could not be specified');
+    return { ...base, spec: null, missing: `the chart could not be drawn (${(err as Error).message})` };
   }
 }
 
-async function optionalChart(deps: Deps, what: string, spec: () => TopLevelSpec | null, drawn: DrawnCharts): Promise<{ svg: string | null; key: string | null }> {
+function optionalChart(deps: Deps, what: string, spec: () => TopLevelSpec | null): TopLevelSpec | null {
   try {
-    const s = spec();
-    return s ? await draw(s, drawn) : { svg: null, key: null };
+    return spec();
   } catch (err) {
-    deps.log?.error({ err, chart: what }, 'chart could not be rendered');
-    return { svg: null, key: null };
+    deps.log?.error({ err, chart: what }, 'chart could not be specified');
+    return null;
   }
 }
 
-/** Assembles a region's snapshot payload from the database (no write). */
-export async function assembleRegionSnapshot(deps: Deps, region: string, charts: StoredChartCache = new Map(), plotsCache?: RegionPlotsCache): Promise<SnapshotPayload> {
+// One object of a plot's values, key by key into an object without prototype: a spread of the ~80 keys
+// builds each object through a long chain of hidden classes (slow to build and to read), and a key a plot
+// lacks is then looked up without walking Object.prototype.
+function plotValues(...parts: ReadonlyArray<Readonly<Record<string, number | null>>>): Record<string, number | null> {
+  const values = Object.create(null) as Record<string, number | null>;
+  for (const part of parts) for (const k of Object.keys(part)) values[k] = part[k];
+  return values;
+}
+
+/** A region's plots as the summaries take them: one value per variable (metrics, change, stand table), with the species names and the pair of visits. */
+export function regionPlotInputs(plots: readonly RegionPlotRow[]): Array<PlotMetrics & PlotPair> {
+  // Species counts use the accepted names the metrics stage stored per visit (synonyms and spelling
+  // variants count as their species), like richness; a visit computed before they were stored has none.
+  return plots.map((p) => ({
+    plotId: p.plotKey,
+    forestType: p.forestType,
+    values: plotValues(p.metrics, p.change, standTableValues(p.standTable)),
+    ...(p.speciesStems ? { speciesNames: Object.keys(p.speciesStems) } : {}),
+    surveyDate: p.surveyDate,
+    pair: p.pair,
+  }));
+}
+
+/** Assembles a region's snapshot payload from the database (no write), with the aggregates the national summary takes of its plots. */
+export async function assembleRegionSnapshot(deps: Deps, region: string, charts: StoredChartCache = new Map(), plotsCache?: RegionPlotsCache): Promise<{ payload: SnapshotPayload; aggregates: RegionAggregates }> {
   const { db, config } = deps;
-  const [plots, areas, species, drawnBefore, sizes] = await Promise.all([
+  const [plots, areas, species, sizes] = await Promise.all([
     regionPlots(db, region, plotsCache),
     listRegionForestAreas(db, region),
     currentSpecies(db),
-    listLatestChartSvgs(db, region),
     listRegionPlotSizes(db, region),
   ]);
-  // Species counts use the accepted names the metrics stage stored per visit (synonyms and spelling
-  // variants count as their species), like richness; a visit computed before they were stored has none.
-  const inputPlots: PlotMetrics[] = plots.map((p) => ({
-    plotId: p.plotKey,
-    forestType: p.forestType,
-    values: { ...p.metrics, ...p.change, ...standTableValues(p.standTable) },
-    ...(p.speciesStems ? { speciesNames: Object.keys(p.speciesStems) } : {}),
-  }));
-  const estimated = summariseRegion({ region, plots: inputPlots, forestAreas: areas, variables: summaryVariables(inputPlots), options: { samplingErrorT: samplingErrorMultiplier(config), caution: cautionSettings(config) } });
+  const inputPlots = regionPlotInputs(plots);
+  const strata = new PlotStrata(inputPlots); // each value read once, for the summary and the aggregates
+  const estimated = summariseRegion({ region, plots: inputPlots, forestAreas: areas, variables: summaryVariables(inputPlots), options: { samplingErrorT: samplingErrorMultiplier(config), caution: cautionSettings(config) } }, strata);
   const carbon = await regionCarbonUncertainty(db, config, region, areas, 'stock');
   const treeCarbon = await regionCarbonUncertainty(db, config, region, areas, 'trees');
   const carbonChange = await regionCarbonUncertainty(db, config, region, areas, 'change');
@@ -135,29 +142,29 @@ export async function assembleRegionSnapshot(deps: Deps, region: string, charts:
     for (const r of rows) fits.push({ scope: r.scope, ...(toFitRow(r) as Omit<SnapshotFitRow, 'scope'>) });
   }
   const fitCharts: FitChart[] = [];
-  const drawn = new Map(drawnBefore.map((c) => [c.key, c.svg]));
-  for (const t of summary.forest_types) fitCharts.push(await fitChart(deps, region, t, charts, drawn));
+  for (const t of summary.forest_types) fitCharts.push(await fitChart(deps, region, t, charts));
 
-  const means = await optionalChart(deps, 'means', () => buildMeansChartSpec(summary.rows), drawn);
-  const guilds = await optionalChart(deps, 'guilds', () => buildGuildChartSpec(summary.guild_composition), drawn);
-  const change = await optionalChart(deps, 'change', () => buildChangeChartSpec(summary.rows), drawn);
+  const means = optionalChart(deps, 'means', () => buildMeansChartSpec(summary.rows));
+  const guilds = optionalChart(deps, 'guilds', () => buildGuildChartSpec(summary.guild_composition));
+  const change = optionalChart(deps, 'change', () => buildChangeChartSpec(summary.rows));
 
-  const dates = plots.map((p) => p.surveyDate).sort();
-  return {
+  const aggregates = regionAggregates(region, inputPlots, strata);
+  const payload: SnapshotPayload = {
     format: SNAPSHOT_FORMAT,
     region,
-    data: { plots: plots.length, first_survey: dates[0] ?? null, last_survey: dates.at(-1) ?? null, species_reference_version: species.versionId },
+    data: { plots: plots.length, first_survey: aggregates.first_survey, last_survey: aggregates.last_survey, species_reference_version: species.versionId },
     method: methodOf(config),
     summary,
     fits,
-    biomass_method: biomassMethodShares(inputPlots),
+    biomass_method: sharesOf(aggregates.biomass, aggregates.forest_types.map((t) => t.forest_type)),
     plot_sizes: sizes.map((z) => ({ forest_type: z.forestType, area_ha: z.areaHa, n_plots: z.plots })),
     carbon_uncertainty: carbon,
     tree_carbon_uncertainty: treeCarbon,
     carbon_change_uncertainty: carbonChange,
-    change: changeCoverage(plots),
-    charts: { means: means.svg, guilds: guilds.svg, change: change.svg, fits: fitCharts, drawn_from: { means: means.key, guilds: guilds.key, change: change.key } },
+    change: coverageOf(aggregates.change),
+    charts: { means, guilds, change, fits: fitCharts },
   };
+  return { payload, aggregates };
 }
 
 /** The ETag of a payload: SHA-256 of its JSON text (the payload holds no clock, so equal content gives an equal tag). */
@@ -190,8 +197,9 @@ export async function refreshStaleSummaries(deps: Deps & { runId?: string; plots
       continue;
     }
     let payload: SnapshotPayload;
+    let aggregates: RegionAggregates;
     try {
-      payload = await assembleRegionSnapshot(deps, region, charts, deps.plots);
+      ({ payload, aggregates } = await assembleRegionSnapshot(deps, region, charts, deps.plots));
     } catch (err) {
       if (isInfrastructureError(err)) throw err;
       // This region's summary cannot be built from its data: the latest snapshot stays, the reason is
@@ -207,7 +215,7 @@ export async function refreshStaleSummaries(deps: Deps & { runId?: string; plots
     }
     const etag = payloadEtag(payload);
     const stored = await db.transaction(async (tx) => {
-      const r = await insertSummarySnapshot(tx, region, etag, payload);
+      const r = await insertSummarySnapshot(tx, region, etag, payload, aggregates);
       if (r.created) await recordSummaryPlotKeys(tx, region, r.version);
       await clearStale(tx, 'summary', [mark]);
       await clearProblems(tx, 'summary', [region]);

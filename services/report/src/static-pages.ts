@@ -13,7 +13,8 @@ import { DEFAULT_PLOT_SORT, plotTable, plotTableVariables } from './page/plot-ta
 import { DEFAULT_MAP_VARIABLE, plotMapSvg, readRegionPlots, type RegionPlots } from './plot-map';
 import { readSummaryChanges } from './what-changed';
 import { nationalJson, summaryCsv, summaryJson } from './representations';
-import type { Snapshot, SnapshotPayload } from './snapshot-payload';
+import type { DrawnCharts, Snapshot, SnapshotPayload } from './snapshot-payload';
+import { drawnNationalSnapshot, drawnSnapshot } from './chart-svgs';
 
 /** A file-name-safe, unique-enough name for a region (names may hold any character). */
 export function regionSlug(region: string): string {
@@ -29,7 +30,7 @@ export function regionSlug(region: string): string {
 }
 
 // The fit charts' points link to plot pages on the server; the files have none, so the links go.
-function withoutPlotLinks(payload: SnapshotPayload): SnapshotPayload {
+function withoutPlotLinks(payload: SnapshotPayload<DrawnCharts>): SnapshotPayload<DrawnCharts> {
   const unlink = (svg: string | null) => svg && svg.replace(/<a\b[^>]*>|<\/a>/g, '');
   return { ...payload, charts: { ...payload.charts, fits: payload.charts.fits.map((c) => ({ ...c, svg: unlink(c.svg) })) } };
 }
@@ -63,7 +64,9 @@ export async function writeRegionPages(deps: Pick<ServiceDeps, 'db'>, outDir: st
     mapSection({ svg: await plotMapSvg(allPlots, DEFAULT_MAP_VARIABLE, what, null), variable: DEFAULT_MAP_VARIABLE, choices: null, what, linked: false });
   const slugs = new Map<string, string>();
   for (const row of await listLatestSnapshots(db)) {
-    const snapshot: Snapshot = { region: row.region, version: row.version, etag: row.etag, createdAt: row.createdAt, payload: withoutPlotLinks(row.payload as SnapshotPayload) };
+    // The charts are drawn now, from the specifications the snapshot keeps.
+    const drawn = await drawnSnapshot({ region: row.region, version: row.version, etag: row.etag, createdAt: row.createdAt, payload: row.payload as SnapshotPayload });
+    const snapshot: Snapshot<DrawnCharts> = { ...drawn, payload: withoutPlotLinks(drawn.payload) };
     let slug = regionSlug(row.region);
     if ([...slugs.values()].includes(slug)) slug = `${slug}-${crypto.createHash('sha256').update(row.region).digest('hex').slice(0, 6)}`;
     slugs.set(row.region, slug);
@@ -111,7 +114,7 @@ export async function writeRegionPages(deps: Pick<ServiceDeps, 'db'>, outDir: st
     write(path.join(outDir, 'national-summary.json'), nationalJson(national));
     nationalPage = path.join(outDir, 'national.html');
     const links = { index: 'index.html', summaryJson: 'national-summary.json', summaryCsv: 'national-summary.csv', versionPage: null, signOut: null };
-    write(nationalPage, renderNationalPage({ snapshot: national, carbonFraction: IPCC_2006_CARBON_FRACTION, versions: await listNationalVersions(db), links, map: await staticMap('Plots of all regions') }));
+    write(nationalPage, renderNationalPage({ snapshot: await drawnNationalSnapshot(national), carbonFraction: IPCC_2006_CARBON_FRACTION, versions: await listNationalVersions(db), links, map: await staticMap('Plots of all regions') }));
   }
   const index = path.join(outDir, 'index.html');
   write(index, renderIndexPage(entries, { carbonFraction: IPCC_2006_CARBON_FRACTION, signOut: null, national: national && { snapshot: national, href: 'national.html' }, map: await staticMap('Plots of the regions listed') }));

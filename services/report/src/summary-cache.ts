@@ -14,7 +14,7 @@ export interface CachedSnapshot {
 /**
  * Snapshots in memory, keyed by (region, version): a version never changes once stored, so an entry
  * never goes stale; only "which version is the latest" does, and that is read with one cheap query at
- * most every `checkMs` (default 1 s) for all regions at once. Entries (a snapshot with its chart SVGs,
+ * most every `checkMs` (default 1 s) for all regions at once. Entries (a snapshot with its chart specifications,
  * its JSON and CSV) are evicted least-recently used beyond `maxEntries`.
  */
 export class SummaryCache {

@@ -1,5 +1,5 @@
 import { leftOutSentence, variableLabel } from '@stemwise/core';
-import type { Snapshot, SnapshotFitRow } from '../snapshot-payload';
+import type { DrawnCharts, Snapshot, SnapshotFitRow } from '../snapshot-payload';
 import { figure, interval } from './figures';
 import { html, safeSvg, type Markup } from './html';
 
@@ -52,7 +52,7 @@ function leftOutList(fits: readonly SnapshotFitRow[]): Markup | null {
   return html`<div id="fits-left-out"><p>Plots left out of the fits because the value is undefined for them:</p><ul>${lines}</ul></div>`;
 }
 
-export function fitsSection(s: Snapshot): Markup {
+export function fitsSection(s: Snapshot<DrawnCharts>): Markup {
   const { charts, fits } = s.payload;
   const figures = charts.fits.map((c) => {
     const svg = safeSvg(c.svg);

@@ -1,4 +1,4 @@
-import type { NationalSnapshot } from '../national-snapshot';
+import type { DrawnNationalSnapshot } from '../chart-svgs';
 import { figure, isoMinute } from './figures';
 import { html, safeSvg, type Markup } from './html';
 import { biomassMethodSection } from './biomass-method-section';
@@ -10,7 +10,8 @@ import { carbonUncertaintySection } from './carbon-uncertainty-section';
 import { reportingThresholdNote, standTableSection } from './stand-table-section';
 
 export interface NationalPageInput {
-  snapshot: NationalSnapshot;
+  /** The national snapshot with its charts drawn (chart-svgs.ts drawnNationalSnapshot). */
+  snapshot: DrawnNationalSnapshot;
   carbonFraction: number;
   links: {
     index: string;

@@ -1,5 +1,5 @@
 import { problemLine, type ProblemView } from '@stemwise/db';
-import type { Snapshot } from '../snapshot-payload';
+import type { DrawnCharts, Snapshot } from '../snapshot-payload';
 import { CAUTION_WORDS, HEADLINE_VARIABLES, isStandVariable, shownValue, totalUnit, variableLabel, type CautionSettings, type DisturbanceRow, type RegionRow, type TotalRow } from '@stemwise/core';
 import { estimate, estimateInterval, figure, isoMinute, samplingError, sharePercent, standardError } from './figures';
 import { html, safeSvg, type Markup } from './html';
@@ -26,7 +26,8 @@ export interface RegionPageLinks {
 }
 
 export interface RegionPageInput {
-  snapshot: Snapshot;
+  /** The snapshot with its charts drawn (chart-svgs.ts drawnSnapshot). */
+  snapshot: Snapshot<DrawnCharts>;
   links: RegionPageLinks;
   /** Every version of the region's summary, newest first. */
   versions: ReadonlyArray<{ version: number; createdAt: Date }>;

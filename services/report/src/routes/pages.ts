@@ -18,6 +18,7 @@ import { mapOf, MapQuery, plotPageRoutes, regionPlotSections, RegionPageQuery } 
 import { readRegionPlots } from '../plot-map';
 import { MAP_PARAM } from '../page/map-section';
 import { readSummaryChanges } from '../what-changed';
+import { drawnNationalSnapshot, drawnSnapshot } from '../chart-svgs';
 
 const COOKIE_MAX_AGE_S = 30 * 24 * 3600;
 
@@ -103,7 +104,7 @@ export function pageRoutes(app: FastifyInstance, ctx: RouteContext): void {
       const map = await mapOf(await readRegionPlots(ctx.deps.db, regions), request.query[MAP_PARAM], 'Plots of all regions', { version: request.query.version?.toString() });
       const body = renderNationalPage({
         map,
-        snapshot,
+        snapshot: await drawnNationalSnapshot(snapshot, request.log),
         carbonFraction: IPCC_2006_CARBON_FRACTION,
         versions: await listNationalVersions(ctx.deps.db),
         links: {
@@ -135,7 +136,7 @@ export function pageRoutes(app: FastifyInstance, ctx: RouteContext): void {
       const changes = await readSummaryChanges(ctx.deps.db, region, v);
       const body = renderRegionPage({
         plots: await regionPlotSections(ctx, region, request.query),
-        snapshot: entry.snapshot,
+        snapshot: await drawnSnapshot(entry.snapshot, request.log),
         versions,
         problems,
         changes,

@@ -27,25 +27,64 @@ export type BiomassMethodRow = { readonly forest_type: string; readonly n_plots:
 
 const PARTS = Object.keys(BIOMASS_METHOD_COLUMNS) as BiomassMethodPart[];
 
-// Σ share_p · AGB_p / Σ AGB_p over the plots with AGB > 0 and every share known.
-function pooled(forestType: string, plots: readonly PlotMetrics[]): BiomassMethodRow {
-  let total = 0;
-  let n = 0;
-  const sums = Object.fromEntries(PARTS.map((k) => [k, 0])) as Record<BiomassMethodPart, number>;
+/**
+ * The plots that count in the shares (AGB > 0 and every share known), in plot order, column by column:
+ * forest type, AGB per hectare and each share. The parts of several regions joined in region order give
+ * the shares of all their plots to the last bit (the sums run in the same order).
+ */
+export interface BiomassParts {
+  readonly forest_type: readonly string[];
+  readonly agb_mg_ha: readonly number[];
+  readonly shares: Readonly<Record<BiomassMethodPart, readonly number[]>>;
+}
+
+/** The parts of the shares of `plots` (in their order). */
+export function biomassParts(plots: readonly PlotMetrics[]): BiomassParts {
+  const forest_type: string[] = [];
+  const agb_mg_ha: number[] = [];
+  const shares = Object.fromEntries(PARTS.map((k) => [k, [] as number[]])) as Record<BiomassMethodPart, number[]>;
   for (const p of plots) {
     const agb = p.values.agb_mg_ha;
     if (typeof agb !== 'number' || !(agb > 0)) continue;
     if (PARTS.some((k) => typeof p.values[BIOMASS_METHOD_COLUMNS[k]] !== 'number')) continue;
+    forest_type.push(p.forestType);
+    agb_mg_ha.push(agb);
+    for (const k of PARTS) shares[k].push(p.values[BIOMASS_METHOD_COLUMNS[k]] as number);
+  }
+  return { forest_type, agb_mg_ha, shares };
+}
+
+/** The parts of several sets of plots together, in the order given. */
+export function joinBiomassParts(parts: readonly BiomassParts[]): BiomassParts {
+  return {
+    forest_type: parts.flatMap((p) => p.forest_type),
+    agb_mg_ha: parts.flatMap((p) => p.agb_mg_ha),
+    shares: Object.fromEntries(PARTS.map((k) => [k, parts.flatMap((p) => p.shares[k])])) as Record<BiomassMethodPart, number[]>,
+  };
+}
+
+// Σ share_p · AGB_p / Σ AGB_p over the plots of the parts (those with AGB > 0 and every share known), of one forest type or (null) all.
+function pooled(label: string, forestType: string | null, parts: BiomassParts): BiomassMethodRow {
+  let total = 0;
+  let n = 0;
+  const sums = Object.fromEntries(PARTS.map((k) => [k, 0])) as Record<BiomassMethodPart, number>;
+  for (let i = 0; i < parts.agb_mg_ha.length; i++) {
+    if (forestType !== null && parts.forest_type[i] !== forestType) continue;
+    const agb = parts.agb_mg_ha[i];
     n++;
     total += agb;
-    for (const k of PARTS) sums[k] += (p.values[BIOMASS_METHOD_COLUMNS[k]] as number) * agb;
+    for (const k of PARTS) sums[k] += parts.shares[k][i] * agb;
   }
   const shares = Object.fromEntries(PARTS.map((k) => [k, total > 0 ? sums[k] / total : null])) as Record<BiomassMethodPart, number | null>;
-  return { forest_type: forestType, n_plots: n, agb_mg_ha_sum: total, ...shares };
+  return { forest_type: label, n_plots: n, agb_mg_ha_sum: total, ...shares };
+}
+
+/** The biomass method shares of every forest type of `forestTypes` and of all plots together (`all`, first), from the parts. */
+export function sharesOf(parts: BiomassParts, forestTypes: readonly string[]): BiomassMethodRow[] {
+  return [pooled(WHOLE_REGION, null, parts), ...[...new Set(forestTypes)].sort().map((t) => pooled(t, t, parts))];
 }
 
 /** The biomass method shares of every forest type and of all plots together (`all`, first); plots without AGB or shares are left out. */
 export function biomassMethodShares(plots: readonly PlotMetrics[]): BiomassMethodRow[] {
-  const types = [...new Set(plots.map((p) => p.forestType))].sort();
-  return [pooled(WHOLE_REGION, plots), ...types.map((t) => pooled(t, plots.filter((p) => p.forestType === t)))];
+  return sharesOf(biomassParts(plots), plots.map((p) => p.forestType));
 }

@@ -52,13 +52,22 @@ export class RegionSummaryInputError extends Error {
 
 const isName = (s: unknown): s is string => typeof s === 'string' && s.trim() !== '';
 
+/** Throws RegionSummaryInputError unless `variables` is a non-empty list of distinct names. */
+export function assertVariables(variables: readonly string[]): void {
+  if (variables.length === 0) throw new RegionSummaryInputError('BAD_VARIABLES', 'at least one variable is needed');
+  if (new Set(variables).size !== variables.length) throw new RegionSummaryInputError('BAD_VARIABLES', 'a variable is listed twice');
+  for (const v of variables) if (!isName(v)) throw new RegionSummaryInputError('BAD_VARIABLES', `variable ${JSON.stringify(v)} is not a name`);
+}
+
+/** The error for variables that no plot of a region with plots has a key for. */
+export const unknownVariables = (unknown: readonly string[]): RegionSummaryInputError =>
+  new RegionSummaryInputError('BAD_VARIABLES', `no plot has a value key for ${unknown.join(', ')} (misspelt?)`);
+
 /** Throws RegionSummaryInputError on the first fault, naming the plot, variable or area concerned. */
 export function validateInput(input: RegionSummaryInput, variables: readonly string[], checked: readonly string[]): void {
   if (!isName(input.region)) throw new RegionSummaryInputError('BAD_REGION', 'region must be a non-empty string');
   if (!Array.isArray(input.plots)) throw new RegionSummaryInputError('BAD_PLOT', 'plots must be an array');
-  if (variables.length === 0) throw new RegionSummaryInputError('BAD_VARIABLES', 'at least one variable is needed');
-  if (new Set(variables).size !== variables.length) throw new RegionSummaryInputError('BAD_VARIABLES', 'a variable is listed twice');
-  for (const v of variables) if (!isName(v)) throw new RegionSummaryInputError('BAD_VARIABLES', `variable ${JSON.stringify(v)} is not a name`);
+  assertVariables(variables);
 
   const seen = new Set<string>();
   const present = new Set<string>();
@@ -83,16 +92,76 @@ export function validateInput(input: RegionSummaryInput, variables: readonly str
   }
   if (input.plots.length > 0) {
     const unknown = variables.filter((v) => !present.has(v));
-    if (unknown.length > 0) throw new RegionSummaryInputError('BAD_VARIABLES', `no plot has a value key for ${unknown.join(', ')} (misspelt?)`);
+    if (unknown.length > 0) throw unknownVariables(unknown);
   }
 
-  for (const [type, area] of Object.entries(input.forestAreas ?? {})) {
+  assertForestAreas(input.forestAreas);
+  const plotArea = input.options?.plotAreaHa;
+  if (plotArea !== undefined && (!(plotArea > 0) || !Number.isFinite(plotArea))) {
+    throw new RegionSummaryInputError('BAD_OPTION', `plotAreaHa must be a finite positive number, got ${String(plotArea)}`);
+  }
+}
+
+/** Throws RegionSummaryInputError unless every forest area is a finite number ≥ 0. */
+export function assertForestAreas(forestAreas: Readonly<Record<string, number>> | undefined): void {
+  for (const [type, area] of Object.entries(forestAreas ?? {})) {
     if (typeof area !== 'number' || !Number.isFinite(area) || area < 0) {
       throw new RegionSummaryInputError('BAD_AREA', `forest area of '${type}' is ${String(area)}; expected a finite number ≥ 0 (ha)`);
     }
   }
-  const plotArea = input.options?.plotAreaHa;
-  if (plotArea !== undefined && (!(plotArea > 0) || !Number.isFinite(plotArea))) {
-    throw new RegionSummaryInputError('BAD_OPTION', `plotAreaHa must be a finite positive number, got ${String(plotArea)}`);
+}
+
+/** Plots grouped by forest type: the types sorted, each with its plots in their order (the strata of a region). */
+export function byForestType<P extends { readonly forestType: string }>(plots: readonly P[]): { types: string[]; byType: Map<string, P[]> } {
+  const byType = new Map<string, P[]>();
+  for (const p of plots) {
+    const list = byType.get(p.forestType);
+    if (list === undefined) byType.set(p.forestType, [p]);
+    else list.push(p);
+  }
+  return { types: [...byType.keys()].sort(), byType };
+}
+
+/**
+ * A region's plots as strata by forest type, with each variable's values read from the plots once and
+ * kept as columns (one array per forest type, in plot order, null where a plot has no value) for the
+ * estimates, the aggregates and the notes that need them.
+ */
+export class PlotStrata {
+  readonly types: readonly string[];
+  readonly byType: ReadonlyMap<string, readonly PlotMetrics[]>;
+  private readonly columns = new Map<string, { readonly values: ReadonlyArray<readonly (number | null)[]>; readonly keyed: boolean }>();
+
+  constructor(readonly plots: readonly PlotMetrics[]) {
+    const { types, byType } = byForestType(plots);
+    this.types = types;
+    this.byType = byType;
+  }
+
+  private column(variable: string): { readonly values: ReadonlyArray<readonly (number | null)[]>; readonly keyed: boolean } {
+    let c = this.columns.get(variable);
+    if (c === undefined) {
+      let keyed = false;
+      const values = this.types.map((t) =>
+        (this.byType.get(t) as readonly PlotMetrics[]).map((p) => {
+          const x = p.values[variable];
+          if (x === undefined) return null;
+          keyed = true;
+          return x;
+        }),
+      );
+      this.columns.set(variable, (c = { values, keyed }));
+    }
+    return c;
+  }
+
+  /** The values of `variable` per forest type (in `types` order), each in plot order; null where absent. */
+  values(variable: string): ReadonlyArray<readonly (number | null)[]> {
+    return this.column(variable).values;
+  }
+
+  /** Whether some plot has a key for `variable` (a null value counts). */
+  keyed(variable: string): boolean {
+    return this.column(variable).keyed;
   }
 }

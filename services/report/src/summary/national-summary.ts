@@ -1,6 +1,7 @@
-import { assertCautionSettings, assertStratifiedOptions, DEFAULT_CAUTION, DEFAULT_REGION_VARIABLES, isPerHectare, stratifiedEstimate, type StratifiedEstimate, type StratifiedOptions, type StratumInput } from '@stemwise/core';
+import { assertCautionSettings, assertStratifiedOptions, DEFAULT_CAUTION, DEFAULT_REGION_VARIABLES, isPerHectare, stratifiedEstimate, type StratifiedEstimate, type StratifiedOptions, type StratumSummary } from '@stemwise/core';
 import { resolveForestAreas } from './forest-areas';
-import { RegionSummaryInputError, validateInput, type PlotMetrics, type RegionSummaryOptions } from './input';
+import { assertForestAreas, assertVariables, PlotStrata, RegionSummaryInputError, unknownVariables, validateInput, type PlotMetrics, type RegionSummaryOptions } from './input';
+import { strataMoments, type StrataMoments } from './region-aggregates';
 import { fmtHa, note } from './notes';
 import { estimateDetail, regionRow } from './region-summary';
 import { NATIONAL, WHOLE_REGION, type EstimateDetail, type NationalStratum, type NationalSummary, type RegionRow, type SummaryNote, type TotalRow } from '@stemwise/core';
@@ -26,26 +27,64 @@ export interface NationalSummaryInput {
   readonly options?: Pick<RegionSummaryOptions, 'confidence' | 'samplingErrorT' | 'df' | 'caution'>;
 }
 
+/** A region given by its strata (forest types) and the moments of their values, as its summary keeps them (region-aggregates.ts). */
+export interface NationalRegionStrata {
+  readonly region: string;
+  readonly strata: StrataMoments;
+  /** Forest area in ha per forest type of this region; may be empty or partial. */
+  readonly forestAreas?: Readonly<Record<string, number>>;
+}
+
+export interface NationalStrataInput extends Omit<NationalSummaryInput, 'regions'> {
+  readonly regions: readonly NationalRegionStrata[];
+}
+
 interface Stratum {
   readonly name: string;
   readonly region: string;
   readonly forestType: string;
-  readonly plots: readonly PlotMetrics[];
+  readonly nPlots: number;
+  /** Per variable, this stratum's moments. */
+  readonly moments: StrataMoments['moments'];
+  /** Index of this stratum in its region's moments. */
+  readonly h: number;
   readonly area: number | null;
 }
 
 const stratumName = (region: string, forestType: string): string => `${region} / ${forestType}`;
 
-// National rows: ȳ_st = Σ W_h ȳ_h, v = Σ W_h² s_h²/n_h over h = region × forest type, Satterthwaite df (Cochran 1977 ch. 5, eq. 5.16)
-export function summariseNation(input: NationalSummaryInput): NationalSummary {
-  const variables = input.variables ?? DEFAULT_REGION_VARIABLES;
+function assertRegionNames(regions: ReadonlyArray<{ readonly region: string }>): void {
   const seen = new Set<string>();
-  for (const r of input.regions) {
+  for (const r of regions) {
     if (r.region === NATIONAL) throw new RegionSummaryInputError('BAD_REGION', `a region may not be named '${NATIONAL}': that name stands for the national rows`);
     if (seen.has(r.region)) throw new RegionSummaryInputError('BAD_REGION', `region '${r.region}' is given twice`);
     seen.add(r.region);
-    validateInput({ region: r.region, plots: r.plots, forestAreas: r.forestAreas }, variables, variables);
   }
+}
+
+/** The national summary from every region's plots: each region's strata moments (strataMoments), then combineNation. */
+export function summariseNation(input: NationalSummaryInput): NationalSummary {
+  const variables = input.variables ?? DEFAULT_REGION_VARIABLES;
+  assertRegionNames(input.regions);
+  for (const r of input.regions) validateInput({ region: r.region, plots: r.plots, forestAreas: r.forestAreas }, variables, variables);
+  return combineNation({ ...input, variables, regions: input.regions.map((r) => ({ region: r.region, forestAreas: r.forestAreas, strata: strataMoments(new PlotStrata(r.plots), variables) })) });
+}
+
+// National rows: ȳ_st = Σ W_h ȳ_h, v = Σ W_h² s_h²/n_h over h = region × forest type, Satterthwaite df (Cochran 1977 ch. 5, eq. 5.16), each stratum by its n_h, ȳ_h, s_h²
+export function combineNation(input: NationalStrataInput): NationalSummary {
+  const variables = input.variables ?? DEFAULT_REGION_VARIABLES;
+  assertRegionNames(input.regions);
+  if (input.regions.length > 0) assertVariables(variables);
+  for (const r of input.regions) {
+    const { forest_types: types, moments } = r.strata;
+    if (types.length === 0) continue;
+    const unknown = variables.filter((v) => !Object.hasOwn(moments, v));
+    if (unknown.length > 0) throw unknownVariables(unknown);
+    for (const v of variables) {
+      if (moments[v].length !== types.length) throw new RegionSummaryInputError('BAD_VARIABLES', `region '${r.region}' has moments of ${v} for ${moments[v].length} forest types, not ${types.length}`);
+    }
+  }
+  for (const r of input.regions) assertForestAreas(r.forestAreas);
   const opts = input.options ?? {};
   const estimatorBase: StratifiedOptions = { confidence: opts.confidence, samplingErrorT: opts.samplingErrorT, df: opts.df };
   assertStratifiedOptions(estimatorBase);
@@ -56,11 +95,9 @@ export function summariseNation(input: NationalSummaryInput): NationalSummary {
   const strata: Stratum[] = [];
   const areaNotes: SummaryNote[] = [];
   let allAreas = true;
-  const regions = input.regions.filter((r) => r.plots.length > 0).sort((a, b) => (a.region < b.region ? -1 : a.region > b.region ? 1 : 0));
+  const regions = input.regions.filter((r) => r.strata.forest_types.length > 0).sort((a, b) => (a.region < b.region ? -1 : a.region > b.region ? 1 : 0));
   for (const r of regions) {
-    const byType = new Map<string, PlotMetrics[]>();
-    for (const p of r.plots) byType.set(p.forestType, [...(byType.get(p.forestType) ?? []), p]);
-    const types = [...byType.keys()].sort();
+    const types = r.strata.forest_types.map((t) => t.forest_type);
     const resolved = resolveForestAreas(types, r.forestAreas ?? {});
     if (resolved.weighting !== 'area') allAreas = false;
     for (const n of resolved.notes) {
@@ -68,7 +105,7 @@ export function summariseNation(input: NationalSummaryInput): NationalSummary {
       if (n.code === 'unsampled_area') areaNotes.push(note('unsampled_area', `'${stratumName(r.region, t)}' (${fmtHa((r.forestAreas ?? {})[t])}) has no plot; national estimates and totals do not cover it.`, t));
       if (n.code === 'area_zero_with_plots') areaNotes.push(note('area_zero_with_plots', `'${stratumName(r.region, t)}' has plots but a forest area of 0 ha; its area is treated as unknown.`, t));
     }
-    for (const t of types) strata.push({ name: stratumName(r.region, t), region: r.region, forestType: t, plots: byType.get(t) as PlotMetrics[], area: resolved.areas[t] });
+    r.strata.forest_types.forEach((t, h) => strata.push({ name: stratumName(r.region, t.forest_type), region: r.region, forestType: t.forest_type, nPlots: t.n_plots, moments: r.strata.moments, h, area: resolved.areas[t.forest_type] }));
   }
   const weighting = allAreas && strata.length > 0 ? 'area' : 'plot_count';
   const options: StratifiedOptions = { ...estimatorBase, weighting };
@@ -76,7 +113,7 @@ export function summariseNation(input: NationalSummaryInput): NationalSummary {
 
   const estimate = (subset: readonly Stratum[], variable: string): StratifiedEstimate =>
     stratifiedEstimate(
-      subset.map((s): StratumInput => ({ name: s.name, size: s.area, values: s.plots.map((p) => p.values[variable] ?? null) })),
+      subset.map((s): StratumSummary => ({ name: s.name, size: s.area, ...s.moments[variable][s.h] })),
       options,
     );
 
@@ -105,11 +142,11 @@ export function summariseNation(input: NationalSummaryInput): NationalSummary {
       : weighting === 'area'
         ? note('weights_area', `Strata (region × forest type) are weighted by forest area (W_h = A_h / A, ${fmtHa(strata.reduce((a, s) => a + (s.area as number), 0))} in all).`)
         : note('areas_incomplete', `No forest area for ${missingAreas.join(', ')}: every national figure is weighted by plot counts (W_h = n_h / n), which assumes plots were placed in proportion to area; no national totals.`);
-  const stratumRows: NationalStratum[] = strata.map((s) => ({ region: s.region, forest_type: s.forestType, n_plots: s.plots.length, forest_area_ha: s.area }));
+  const stratumRows: NationalStratum[] = strata.map((s) => ({ region: s.region, forest_type: s.forestType, n_plots: s.nPlots, forest_area_ha: s.area }));
   const df = opts.df ?? 'satterthwaite';
   const seT = opts.samplingErrorT ?? 't';
   return {
-    n_plots: strata.reduce((a, s) => a + s.plots.length, 0),
+    n_plots: strata.reduce((a, s) => a + s.nPlots, 0),
     regions: regions.map((r) => r.region),
     forest_types: forestTypes,
     strata: stratumRows,

@@ -1,8 +1,8 @@
 import { REGION_CHANGE_COLUMNS } from '@stemwise/db';
-import { assertCautionSettings, standTableVariables, assertStratifiedOptions, cautionFlag, countLeftOut, DEFAULT_CAUTION, DEFAULT_REGION_VARIABLES, isPerHectare, leftOutSentence, leftOutText, stratifiedEstimate, WHOLE_REGION, type CautionSettings, type DisturbanceSummary, type EstimateDetail, type GuildRow, type PlotMetricColumn, type RegionRow, type RegionSummary, type StratifiedEstimate, type StratifiedOptions, type SummaryGuild, type SummaryNote, type TotalRow } from '@stemwise/core';
+import { assertCautionSettings, orderStandVariables, standTableVariables, assertStratifiedOptions, cautionFlag, countLeftOut, DEFAULT_CAUTION, DEFAULT_REGION_VARIABLES, isPerHectare, leftOutSentence, leftOutText, stratifiedEstimate, WHOLE_REGION, type CautionSettings, type DisturbanceSummary, type EstimateDetail, type GuildRow, type PlotMetricColumn, type RegionRow, type RegionSummary, type StratifiedEstimate, type StratifiedOptions, type SummaryGuild, type SummaryNote, type TotalRow } from '@stemwise/core';
 import { DEFAULT_DISTURBANCE_CLASSES, assertDisturbanceClasses, disturbanceClassIndex } from './disturbance-classes';
 import { resolveForestAreas } from './forest-areas';
-import { validateInput, type PlotMetrics, type RegionSummaryInput } from './input';
+import { PlotStrata, validateInput, type PlotMetrics, type RegionSummaryInput } from './input';
 import { note } from './notes';
 import { countSpecies } from './species-counts';
 
@@ -18,7 +18,12 @@ export const CHANGE_VARIABLES: readonly string[] = REGION_CHANGE_COLUMNS;
 /** The default variables, those of change when any plot has a change value (a plot measured twice), and the stand-table classes of the plots (docs/methods.md#stand-tables). */
 export function summaryVariables(plots: ReadonlyArray<{ readonly values: Readonly<Record<string, number | null | undefined>> }>): readonly string[] {
   const change = plots.some((p) => CHANGE_VARIABLES.some((v) => p.values[v] !== undefined && p.values[v] !== null));
-  return [...DEFAULT_REGION_VARIABLES, ...(change ? CHANGE_VARIABLES : []), ...standTableVariables(plots)];
+  return variableList(change, standTableVariables(plots));
+}
+
+/** summaryVariables from what it depends on: whether some plot has a change value, and the stand-table variables some plot has a key for. */
+export function variableList(change: boolean, standVariables: Iterable<string>): readonly string[] {
+  return [...DEFAULT_REGION_VARIABLES, ...(change ? CHANGE_VARIABLES : []), ...orderStandVariables(standVariables)];
 }
 
 export const GUILD_VARIABLES: Readonly<Record<SummaryGuild, PlotMetricColumn>> = {
@@ -33,7 +38,8 @@ const DISTURBANCE_VARIABLE: PlotMetricColumn = 'disturbance_index';
 type Estimator = (valueOf: (p: PlotMetrics) => number | null) => StratifiedEstimate;
 
 // Region summary: per variable ȳ_st, SE, t-interval, sampling error and totals over forest types as strata (Cochran 1977 ch. 5)
-export function summariseRegion(input: RegionSummaryInput): RegionSummary {
+export function summariseRegion(input: RegionSummaryInput, strata: PlotStrata = new PlotStrata(input.plots)): RegionSummary {
+  if (strata.plots !== input.plots) throw new Error('summariseRegion: the strata given are not of these plots');
   const variables = input.variables ?? DEFAULT_REGION_VARIABLES;
   const guildVariables = Object.values(GUILD_VARIABLES);
   validateInput(input, variables, [...new Set([...variables, ...guildVariables, DISTURBANCE_VARIABLE])]);
@@ -43,13 +49,7 @@ export function summariseRegion(input: RegionSummaryInput): RegionSummary {
   const caution = opts.caution ?? DEFAULT_CAUTION;
   assertCautionSettings(caution);
 
-  const byType = new Map<string, PlotMetrics[]>();
-  for (const p of input.plots) {
-    const list = byType.get(p.forestType);
-    if (list === undefined) byType.set(p.forestType, [p]);
-    else list.push(p);
-  }
-  const types = [...byType.keys()].sort();
+  const { types, byType } = strata;
   const resolved = resolveForestAreas(types, input.forestAreas ?? {});
   const fpc = opts.plotAreaHa !== undefined && resolved.weighting === 'area';
   const estimatorOptions: StratifiedOptions = {
@@ -64,13 +64,15 @@ export function summariseRegion(input: RegionSummaryInput): RegionSummary {
       types.map((t) => ({ name: t, size: resolved.areas[t], values: (byType.get(t) as PlotMetrics[]).map(valueOf) })),
       estimatorOptions,
     );
-  const valueOf = (variable: string) => (p: PlotMetrics): number | null => p.values[variable] ?? null;
 
   const estimates = new Map<string, StratifiedEstimate>();
   const estimateOf = (variable: string): StratifiedEstimate => {
     let e = estimates.get(variable);
     if (e === undefined) {
-      e = estimate(valueOf(variable));
+      e = stratifiedEstimate(
+        strata.values(variable).map((values, h) => ({ name: types[h], size: resolved.areas[types[h]], values })),
+        estimatorOptions,
+      );
       estimates.set(variable, e);
     }
     return e;
@@ -117,7 +119,7 @@ export function summariseRegion(input: RegionSummaryInput): RegionSummary {
     ...resolved.notes,
     ...methodNotes(opts.plotAreaHa, fpc, opts.confidence ?? 0.95, opts.samplingErrorT ?? 't', opts.df ?? 'satterthwaite'),
     ...coverageNotes(types, [...estimates.entries()].filter(([v]) => variables.includes(v))),
-    ...leftOutNotes(input.plots, variables),
+    ...leftOutNotes(strata, variables),
     ...(species !== null && species[0].n_plots_with_names < input.plots.length
       ? [note('species_names_partial', `Species counts use the ${species[0].n_plots_with_names} of ${input.plots.length} plots that came with names.`)]
       : []),
@@ -145,13 +147,16 @@ export function summariseRegion(input: RegionSummaryInput): RegionSummary {
 }
 
 // Plots without a value of a variable are left out of its estimates: say how many, and why.
-function leftOutNotes(plots: readonly PlotMetrics[], variables: readonly string[]): SummaryNote[] {
+function leftOutNotes(strata: PlotStrata, variables: readonly string[]): SummaryNote[] {
   const out: SummaryNote[] = [];
   for (const variable of variables) {
-    const counts = countLeftOut(plots.map((p) => p.values), [variable]);
+    // The plots whose value is not a number (read from the columns); countLeftOut gives their reasons.
+    const without = strata.values(variable).flatMap((values, h) => (strata.byType.get(strata.types[h]) as readonly PlotMetrics[]).filter((_, i) => values[i] === null));
+    if (without.length === 0) continue;
+    const counts = countLeftOut(without.map((p) => p.values), [variable]);
     const n = Object.values(counts).reduce((a, b) => a + b, 0);
     if (n === 0) continue;
-    out.push(note('plots_left_out', `${variable}: ${n} of ${plots.length} plots left out of the estimates, having no value: ${leftOutSentence(leftOutText(counts))}.`, null, variable));
+    out.push(note('plots_left_out', `${variable}: ${n} of ${strata.plots.length} plots left out of the estimates, having no value: ${leftOutSentence(leftOutText(counts))}.`, null, variable));
   }
   return out;
 }

@@ -1,0 +1,1 @@
+ALTER TABLE "region_summaries" ADD COLUMN "aggregates" jsonb;
