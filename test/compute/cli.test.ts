@@ -6,7 +6,7 @@ import { promisify } from 'node:util';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { runMain } from '../support/cli';
 import type { ServiceDeps } from '@stemwise/core';
-import { BullQueue } from '@stemwise/platform';
+import { BullQueue } from '@stemwise/platform/bullmq';
 import { createProcessors } from '@stemwise/compute';
 import { fixtureSpecies, generateInventory, loadInventory, loadSpecies } from './fixtures';
 import { standInSummaries } from './support';

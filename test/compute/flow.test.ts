@@ -1,6 +1,7 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { ServiceDeps } from '@stemwise/core';
-import { BullQueue, type ProcessorMap } from '@stemwise/platform';
+import { BullQueue } from '@stemwise/platform/bullmq';
+import type { ProcessorMap } from '@stemwise/platform';
 import { createProcessors } from '@stemwise/compute';
 import { expectedUnresolved, fixtureSpecies, generateInventory, loadInventory, loadSpecies } from './fixtures';
 import { standInSummaries } from './support';

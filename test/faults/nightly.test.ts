@@ -1,6 +1,6 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { loadInventory } from '../compute/fixtures';
-import type { BullQueue } from '@stemwise/platform';
+import type { BullQueue } from '@stemwise/platform/bullmq';
 import { envFor, useServices, type TestServices } from '../support/services';
 import { FAULT_ENV, faultInventory, latestRun, openBull, recomputeHere, seedInventory, visitCount } from './pipeline';
 import { freePort, startWorker, stopAll, until, type StemwiseProcess } from './processes';

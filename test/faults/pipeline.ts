@@ -1,6 +1,7 @@
 import type { Db } from '@stemwise/db';
 import { createMaintenanceProcessors, planRecompute, type ServiceDeps } from '@stemwise/core';
-import { BullQueue, InProcessQueue, type Config, type JobQueue, type ProcessorMap } from '@stemwise/platform';
+import { BullQueue } from '@stemwise/platform/bullmq';
+import { InProcessQueue, type Config, type JobQueue, type ProcessorMap } from '@stemwise/platform';
 import { createProcessors as computeProcessors } from '@stemwise/compute';
 import { createProcessors as reportProcessors } from '@stemwise/report';
 import { fixtureSpecies, generateInventory, loadInventory, loadSpecies, type FixturePlot } from '../compute/fixtures';

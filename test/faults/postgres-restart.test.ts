@@ -1,6 +1,7 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { migrateDatabase, openDatabase, syncForestTypes, type Db } from '@stemwise/db';
-import { loadConfig, type BullQueue } from '@stemwise/platform';
+import type { BullQueue } from '@stemwise/platform/bullmq';
+import { loadConfig } from '@stemwise/platform';
 import { resultsDigest, type ResultsDigest } from './checksum';
 import { FAULT_ENV, faultInventory, latestRun, openBull, seedInventory, undisturbedDigest, visitCount } from './pipeline';
 import { startPrivatePostgres, type PrivatePostgres } from './private-postgres';

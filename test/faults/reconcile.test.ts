@@ -2,7 +2,8 @@ import crypto from 'node:crypto';
 import { Redis } from 'ioredis';
 import { afterAll, beforeAll, beforeEach, describe, expect, it } from 'vitest';
 import { NIGHTLY_SCHEDULE, reconcile, reconcileJobId, type ServiceDeps } from '@stemwise/core';
-import { BullQueue, PermanentError } from '@stemwise/platform';
+import { BullQueue } from '@stemwise/platform/bullmq';
+import { PermanentError } from '@stemwise/platform';
 import { testLogger, useServices, type TestServices } from '../support/services';
 import { until } from './processes';
 

@@ -1,6 +1,6 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { reconcile, type ServiceDeps } from '@stemwise/core';
-import type { BullQueue } from '@stemwise/platform';
+import type { BullQueue } from '@stemwise/platform/bullmq';
 import { envFor, testLogger, useServices, type TestServices } from '../support/services';
 import { resultsDigest, type ResultsDigest } from './checksum';
 import { FAULT_ENV, faultInventory, latestRun, openBull, seedInventory, undisturbedDigest, visitCount } from './pipeline';

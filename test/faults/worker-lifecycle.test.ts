@@ -6,7 +6,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { getBatch } from '@stemwise/db';
 import { generateInventory } from '@stemwise/demo-inventory';
 import { filesInDir, submitBatch } from '@stemwise/core';
-import type { BullQueue } from '@stemwise/platform';
+import type { BullQueue } from '@stemwise/platform/bullmq';
 import { loadInventory } from '../compute/fixtures';
 import { createToken } from '../report/tokens';
 import { envFor, testLogger, useServices, type TestServices } from '../support/services';

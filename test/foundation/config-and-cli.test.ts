@@ -4,7 +4,8 @@ import os from 'node:os';
 import path from 'node:path';
 import { promisify } from 'node:util';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { BullQueue, ConfigError, ServiceUnavailableError, SETTINGS, createLogger, loadConfig, oneLine } from '@stemwise/platform';
+import { BullQueue } from '@stemwise/platform/bullmq';
+import { ConfigError, ServiceUnavailableError, SETTINGS, createLogger, loadConfig, oneLine } from '@stemwise/platform';
 import { envFor, useServices, type TestServices } from '../support/services';
 
 const run = promisify(execFile);

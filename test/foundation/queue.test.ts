@@ -1,5 +1,6 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { BullQueue, InProcessQueue, type JobQueue, type ProcessorMap } from '@stemwise/platform';
+import { BullQueue } from '@stemwise/platform/bullmq';
+import { InProcessQueue, type JobQueue, type ProcessorMap } from '@stemwise/platform';
 import { testLogger, useServices, type TestServices } from '../support/services';
 
 // The same processors behind both backends: a flow's children run before their parent, a duplicate

@@ -1,5 +1,6 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { BullQueue, type ProcessorMap } from '@stemwise/platform';
+import { BullQueue } from '@stemwise/platform/bullmq';
+import { type ProcessorMap } from '@stemwise/platform';
 import { getBatch } from '@stemwise/db';
 import { batchReport, submitBatch } from '@stemwise/core';
 import { createProcessors, processBatch } from '@stemwise/ingest';

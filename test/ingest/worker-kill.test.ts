@@ -2,7 +2,7 @@ import { spawn, type ChildProcess } from 'node:child_process';
 import fs from 'node:fs';
 import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { BullQueue } from '@stemwise/platform';
+import { BullQueue } from '@stemwise/platform/bullmq';
 import { getBatch } from '@stemwise/db';
 import { generateInventory } from '@stemwise/demo-inventory';
 import { submitBatch } from '@stemwise/core';
