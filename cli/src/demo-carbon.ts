@@ -1,7 +1,9 @@
 import type { CarbonUncertaintySection } from '@stemwise/report';
 
-// The demo's closing lines on carbon: the national above-ground carbon stock with its sampling-only and
-// whole 95 % intervals and the share of each source of uncertainty (docs/methods.md#carbon-uncertainty).
+// The demo's closing lines on carbon: the national above-ground carbon stock, the carbon in trees (live
+// above- and below-ground and standing dead wood) and the net carbon change between visits, each with its
+// sampling-only and whole 95 % intervals and the share of each source of uncertainty
+// (docs/methods.md#carbon-uncertainty).
 
 const SOURCE_WORDS: Record<string, string> = {
   sampling: 'sampling',
@@ -9,18 +11,25 @@ const SOURCE_WORDS: Record<string, string> = {
   heightResidual: 'height model (per tree)',
   woodDensity: 'wood density (per tree)',
   heightParameters: 'height model parameters',
-  rootShoot: 'root-to-shoot ratio',
+  rootShoot: 'root-to-shoot ratio (by row)',
 };
 
-const tonnes = (x: number | null): string => (x === null ? '—' : `${(x / 1e6).toFixed(3)} Mt C`);
+const HEADINGS: Record<CarbonUncertaintySection['pool'], { title: string; unit: string; totalUnit: string }> = {
+  'above-ground': { title: 'National above-ground carbon stock (live trees', unit: 'Mg C/ha', totalUnit: 'Mt C' },
+  trees: { title: "National carbon in trees (live above- and below-ground, each plot's own root-to-shoot ratio, and standing dead wood", unit: 'Mg C/ha', totalUnit: 'Mt C' },
+  'above-ground change': { title: 'National net above-ground carbon change between visits (live trees', unit: 'Mg C/ha/yr', totalUnit: 'Mt C/yr' },
+};
+
 const perHa = (x: number): string => x.toFixed(2);
 
-/** Lines for the national carbon stock (none when the summary has no uncertainty section). */
+/** Lines for one national carbon section (none when the summary has no such section). */
 export function demoCarbonLines(section: CarbonUncertaintySection | null | undefined): string[] {
   if (!section) return [];
-  if (section.missing !== null) return ['', `Carbon stock, whole uncertainty: not available (${section.missing})`];
+  const h = HEADINGS[section.pool];
+  if (section.missing !== null) return ['', `${h.title}), whole uncertainty: not available (${section.missing})`];
   const r = section.rows.find((x) => x.forest_type === 'all');
   if (!r) return [];
+  const tonnes = (x: number | null): string => (x === null ? '—' : `${(x / 1e6).toFixed(3)} ${h.totalUnit}`);
   const shares = Object.entries(r.shares)
     .filter(([, v]) => v > 0)
     .sort((a, b) => b[1] - a[1])
@@ -28,8 +37,8 @@ export function demoCarbonLines(section: CarbonUncertaintySection | null | undef
     .join(', ');
   return [
     '',
-    `National above-ground carbon stock (live trees; ${r.n_plots} plots; Monte Carlo of ${section.draws} draws, seed ${section.seed}):`,
-    `  per hectare ${perHa(r.mean)} Mg C/ha; 95 % interval sampling only ${perHa(r.sampling_ci_low)}–${perHa(r.sampling_ci_high)}, whole ${perHa(r.whole_ci_low)}–${perHa(r.whole_ci_high)}`,
+    `${h.title}; ${r.n_plots} plots; Monte Carlo of ${section.draws} draws, seed ${section.seed}):`,
+    `  per hectare ${perHa(r.mean)} ${h.unit}; 95 % interval sampling only ${perHa(r.sampling_ci_low)}–${perHa(r.sampling_ci_high)}, whole ${perHa(r.whole_ci_low)}–${perHa(r.whole_ci_high)}`,
     `  total ${tonnes(r.total)}; sampling only ${tonnes(r.total_sampling_ci_low)}–${tonnes(r.total_sampling_ci_high)}, whole ${tonnes(r.total_whole_ci_low)}–${tonnes(r.total_whole_ci_high)}`,
     `  shares of the uncertainty: ${shares}`,
     `  not covered: ${section.not_covered.join('; ')}`,

@@ -59,8 +59,10 @@ export interface DemoResult {
   outDir: string;
   index: string;
   seconds: number;
-  /** The national carbon stock's whole uncertainty (printed by demoCarbonLines). */
+  /** The national carbon sections' whole uncertainty (printed by demoCarbonLines): above-ground stock, carbon in trees, net change. */
   carbon: CarbonUncertaintySection | null;
+  treeCarbon: CarbonUncertaintySection | null;
+  carbonChange: CarbonUncertaintySection | null;
 }
 
 /**
@@ -89,6 +91,10 @@ export async function runDemo(o: DemoOptions): Promise<DemoResult> {
     const deps: ServiceDeps = { config, db, log: o.log, queue };
     const { processors, ...work } = await allProcessors(deps);
     await queue.work(processors, work);
+    const nationalCarbon = async (): Promise<Pick<DemoResult, 'carbon' | 'treeCarbon' | 'carbonChange'>> => {
+      const p = (await report.readNationalSnapshot(db))?.payload;
+      return { carbon: p?.carbon_uncertainty ?? null, treeCarbon: p?.tree_carbon_uncertainty ?? null, carbonChange: p?.carbon_change_uncertainty ?? null };
+    };
 
     let batch = { state: '', plots_loaded: 0, stems_loaded: 0, n_errors: 0 };
     let batchId = '';
@@ -148,7 +154,7 @@ export async function runDemo(o: DemoOptions): Promise<DemoResult> {
       outDir: o.outDir,
       index: pages.index,
       seconds: (Date.now() - started) / 1000,
-      carbon: (await report.readNationalSnapshot(db))?.payload.carbon_uncertainty ?? null,
+      ...(await nationalCarbon()),
     };
   } finally {
     await queue.close();

@@ -128,6 +128,26 @@ describe('change between visits (compute)', () => {
     }
   });
 
+  it("keeps every pair's sums of the carbon change's uncertainty: their value is the net AGB change, and the metrics' sums carry the tree pool's ratio row and dead wood", async () => {
+    const rows = await s.db.query<{ agb: number; m: { value: number; sq: number[]; sqPlot: number[]; lnD: number[] } | null }>(`select agb_net_change_mg_ha_yr agb, carbon_moments m from plot_change`);
+    expect(rows.length).toBeGreaterThan(0);
+    for (const r of rows) {
+      expect(r.m).not.toBeNull();
+      expect(r.m?.value).toBeCloseTo(r.agb, 10);
+      expect(r.m?.sq.every((x) => x >= 0)).toBe(true);
+      expect((r.m?.sq ?? []).reduce((a, b) => a + b, 0)).toBeGreaterThan(0);
+    }
+    const stocks = await s.db.query<{ ratio: number | null; tree: number; carbon: number; dead: number; m: { value: number; rootShoot: { ratio: number; row: string }; deadWood: { value: number } } }>(
+      `select root_shoot_ratio ratio, tree_carbon_mg_ha tree, carbon_mg_ha carbon, standing_dead_mg_ha dead, diagnostics->'carbonMoments' m from plot_metrics`,
+    );
+    for (const r of stocks) {
+      expect(r.m.rootShoot.ratio).toBe(r.ratio ?? 0);
+      expect(r.m.rootShoot.row).toMatch(/^(tropical_[a-z_]+:\d|mokany_2006)$/);
+      expect(r.m.deadWood.value).toBeCloseTo(r.dead, 10);
+      expect(0.47 * ((1 + r.m.rootShoot.ratio) * r.m.value + r.m.deadWood.value)).toBeCloseTo(r.tree, 10);
+    }
+  });
+
   it('holds the carbon pools of every pair to their rules: BGB change = R × AGB net where both visits share R, tree carbon = 0.47 × the three pools', async () => {
     const rows = await s.db.query<{ r1: number | null; r2: number | null; agb: number; bgb: number | null; dead: number | null; tree: number | null }>(
       `select m1.root_shoot_ratio r1, m2.root_shoot_ratio r2, c.agb_net_change_mg_ha_yr agb, c.bgb_net_change_mg_ha_yr bgb,

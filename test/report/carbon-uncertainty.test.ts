@@ -7,6 +7,7 @@ import type { RegionRow, ServiceDeps } from '@stemwise/core';
 import { InProcessQueue } from '@stemwise/platform';
 import { createProcessors, listRegionExportRows, writeRegionPages, type NationalPayload, type SnapshotPayload } from '@stemwise/report';
 import { testLogger, useServices, type TestServices } from '../support/services';
+import { budget, seedChangePairs } from './change-fixture';
 import { jobContext, seedRun } from './fixture';
 import { seedScenario } from './seed-scenario';
 
@@ -28,13 +29,18 @@ const region = async (name: string): Promise<{ version: number; payload: Snapsho
   if (!snap) throw new Error(`no snapshot of ${name}`);
   return { version: snap.version, payload: snap.payload as SnapshotPayload };
 };
-const carbonRow = (rows: readonly RegionRow[], forestType: string): RegionRow => rows.find((r) => r.variable === 'carbon_mg_ha' && r.forest_type === forestType) as RegionRow;
+const carbonRow = (rows: readonly RegionRow[], forestType: string, variable = 'carbon_mg_ha'): RegionRow => rows.find((r) => r.variable === variable && r.forest_type === forestType) as RegionRow;
 
 describe('carbon uncertainty in the summaries', () => {
   beforeAll(async () => {
     s = await useServices({ STEMWISE_CARBON_DRAWS: '2000' });
     deps = { config: s.config, db: s.db, log: testLogger(), queue: new InProcessQueue(testLogger()) };
     await seedScenario(s.db);
+    // Northvale's five plots measured twice, four years apart: net AGB change −1.5 … +2.5 Mg/ha/yr
+    await seedChangePairs(
+      s.db,
+      ['NV-W1', 'NV-W2', 'NV-W3', 'NV-D1', 'NV-D2'].map((plotKey, i) => ({ plotKey, dateFrom: '2021-06-01', years: 4, values: budget(2 + 0.5 * i, 0.5, 3 - i, 1) })),
+    );
     await markStale(s.db, 'summary', ['Northvale', 'Southmere']);
   });
   afterAll(async () => {
@@ -48,6 +54,9 @@ describe('carbon uncertainty in the summaries', () => {
     expect(payload.carbon_uncertainty?.rows).toEqual([]);
     expect(payload.carbon_uncertainty?.missing).toMatch(/5 plot\(s\) were computed before .*recompute --all/);
     expect(carbonRow(payload.summary.rows, 'all').whole_ci_low).toBeNull();
+    expect(payload.tree_carbon_uncertainty?.missing).toMatch(/5 plot\(s\) were computed before the sums of the tree pool/);
+    expect(payload.carbon_change_uncertainty?.missing).toMatch(/5 plot\(s\) have a change between visits computed before/);
+    expect((await region('Southmere')).payload.carbon_change_uncertainty?.missing).toBe('no plot measured twice');
   });
 
   it('with sums: the section, the whole interval on the carbon rows, the summary’s own sampling interval', async () => {
@@ -58,6 +67,24 @@ describe('carbon uncertainty in the summaries', () => {
          'value', m.carbon_mg_ha / 0.47, 'sq', jsonb_build_array(m.carbon_mg_ha / 0.47 * 0.8, 0, 0),
          'sqPlot', jsonb_build_array(m.carbon_mg_ha / 0.47 * 8, 0, 0), 'lnD', jsonb_build_array(0, 0, 0, 0, 0)))
         where m.carbon_mg_ha is not null`,
+    );
+    // The tree pool: each plot's own ratio (0.24, or 0.2 on the dry plots: two rows), 2 Mg/ha of standing
+    // dead wood; tree_carbon_mg_ha = 0.47·((1 + R)·AGB + 2), as the metrics stage computes it.
+    await s.db.query(
+      `update plot_metrics m set
+         tree_carbon_mg_ha = m.carbon_mg_ha * (1 + r.ratio) + 0.47 * 2,
+         diagnostics = jsonb_set(m.diagnostics, '{carbonMoments}', m.diagnostics->'carbonMoments' || jsonb_build_object(
+           'rootShoot', jsonb_build_object('ratio', r.ratio, 'sd', r.sd, 'row', r.row),
+           'deadWood', jsonb_build_object('value', 2, 'sq', jsonb_build_array(0, 0, 0.4), 'sqPlot', jsonb_build_array(0, 0, 4), 'lnD', jsonb_build_array(0, 0, 0, 0, 0))))
+        from plot_visits v join plots p on p.id = v.plot_id,
+             lateral (select case when p.forest_type = 'dry' then 0.2 else 0.24 end ratio, case when p.forest_type = 'dry' then 0.046 else 0.032 end sd,
+                             case when p.forest_type = 'dry' then 'tropical_moist_deciduous:0' else 'tropical_moist_deciduous:1' end "row") r
+       where v.id = m.visit_id and m.carbon_mg_ha is not null`,
+    );
+    // The change: sums of a pair whose trees were measured (no height model), Σu²/w a tenth of |Σu|
+    await s.db.query(
+      `update plot_change set carbon_moments = jsonb_build_object('value', agb_net_change_mg_ha_yr,
+         'sq', jsonb_build_array(abs(agb_net_change_mg_ha_yr) * 0.1, 0, 0), 'sqPlot', jsonb_build_array(abs(agb_net_change_mg_ha_yr), 0, 0), 'lnD', jsonb_build_array(0, 0, 0, 0, 0))`,
     );
     await markStale(s.db, 'summary', ['Northvale', 'Southmere']);
     await runSummaries();
@@ -76,6 +103,24 @@ describe('carbon uncertainty in the summaries', () => {
     expect(whole.whole_ci_low).toBeLessThan(row.mean as number);
     expect(whole.whole_ci_high).toBeGreaterThan(row.mean as number);
     expect(Object.values(whole.shares).reduce((a, b) => a + b, 0)).toBeCloseTo(1, 12);
+    // The tree pool and the change: their own rows, the summary's sampling intervals, wider whole ones
+    for (const [sec, variable] of [[payload.tree_carbon_uncertainty!, 'tree_carbon_mg_ha'], [payload.carbon_change_uncertainty!, 'carbon_net_change_mg_ha_yr']] as const) {
+      expect(sec.missing).toBeNull();
+      expect(sec.variable).toBe(variable);
+      const summaryRow = carbonRow(payload.summary.rows, 'all', variable);
+      const w = sec.rows[0];
+      expect(w.forest_type).toBe('all');
+      expect(w.mean).toBeCloseTo(summaryRow.mean as number, 9);
+      expect(w.sampling_ci_low).toBeCloseTo(summaryRow.ci_low as number, 9);
+      expect(w.sampling_ci_high).toBeCloseTo(summaryRow.ci_high as number, 9);
+      expect(summaryRow.whole_ci_low).toBe(w.whole_ci_low);
+      // never inside the sampling interval (here the model errors are small beside five plots' spread)
+      expect(w.whole_ci_low).toBeLessThanOrEqual(w.sampling_ci_low);
+      expect(w.whole_ci_high).toBeGreaterThanOrEqual(w.sampling_ci_high);
+      expect(w.whole_se).toBeGreaterThan(w.sampling_se);
+    }
+    expect(payload.tree_carbon_uncertainty!.rows[0].shares.rootShoot).toBeGreaterThan(0);
+    expect(payload.carbon_change_uncertainty!.rows[0].shares.rootShoot).toBe(0);
     // Southmere has no forest areas: per-tree errors over its measured trees only, no totals
     const south = (await region('Southmere')).payload.carbon_uncertainty!;
     expect(south.tree_error_scope).toBe('plots');
@@ -88,6 +133,8 @@ describe('carbon uncertainty in the summaries', () => {
     expect(carbonRow(exported, 'all').whole_se).toBe(whole.whole_se);
     expect(carbonRow(exported, 'all').whole_se).toBeGreaterThan(0);
     expect(exported.find((r) => r.variable === 'basal_area_m2_ha')?.whole_se).toBeNull();
+    expect(carbonRow(exported, 'all', 'tree_carbon_mg_ha').whole_se).toBe(payload.tree_carbon_uncertainty!.rows[0].whole_se);
+    expect(carbonRow(exported, 'all', 'carbon_net_change_mg_ha_yr').whole_se).toBe(payload.carbon_change_uncertainty!.rows[0].whole_se);
 
     // Seeded: the same data again give the same content, so no new version
     await markStale(s.db, 'summary', ['Northvale']);
@@ -102,6 +149,8 @@ describe('carbon uncertainty in the summaries', () => {
     expect(page).toMatch(/95 % CI, sampling only[^]*95 % CI, whole/);
     expect(page).toContain('field measurement error');
     expect(page).toContain('forest-area map');
+    expect(page).toMatch(/id="carbon-uncertainty"[^]*id="tree-carbon-uncertainty"[^]*id="carbon-change-uncertainty"/);
+    expect(page).toContain('root-to-shoot ratio (shared by row)');
     const national = fs.readFileSync(written.national as string, 'utf8');
     expect(national).toContain('id="carbon-shares"');
   });

@@ -91,6 +91,8 @@ embedded database of its own, and writes a report folder: pages, exports and cha
         `Diversity (Fisher's alpha) against the disturbance index, invented demo inventory:`,
         demoTable(result),
         ...demoCarbonLines(result.carbon),
+        ...demoCarbonLines(result.treeCarbon),
+        ...demoCarbonLines(result.carbonChange),
         '',
         'Change between visits, per forest type: planted (expected value under the planted process, from an',
         'independent simulation; truth.json) against recovered (national estimate over re-measured plots):',

@@ -8,17 +8,23 @@
 //    variance on a stratum mean is known analytically from two sums per plot (Σ w·v², Σ w²·v² by height
 //    source, v the tree's value); the Monte Carlo draws that aggregate once per stratum and iteration,
 //    never per tree;
-//  - shared by all trees (the height model's parameters of a forest type, the root-to-shoot ratio of a
-//    forest type): drawn once per iteration and forest type. A height-parameter draw changes every
-//    modelled tree's biomass nonlinearly; its effect on a plot is taken to second order from five sums
-//    per plot, Σ w·v·(ln D)^k, k = 0..4 (accuracy tested against the tree-by-tree effect).
-// The sampling error enters as a stratified draw whose marginal is the t distribution of the sampling
-// interval (Satterthwaite df), so the sampling-only part of the whole interval agrees with it.
+//  - shared by many trees: the height model's parameters of a forest type, drawn once per iteration and
+//    forest type (a draw changes every modelled tree's biomass nonlinearly; its effect on a plot is taken
+//    to second order from five sums per plot, Σ w·v·(ln D)^k, k = 0..4, accuracy tested against the
+//    tree-by-tree effect); and, for the tree pool, the root-to-shoot ratio, drawn once per iteration and
+//    row of its relation (a table row or the equation): every plot that read the same row shares its error.
+// Two pools: 'aboveGround' (live trees above ground; also the change of it between visits) and 'trees'
+// (CF·((1 + R_p)·AGB_p + dead wood_p), the figure of tree_carbon_mg_ha): each plot carries its own ratio
+// R_p, so the sampling part is the stratified estimate of the plot's own tree carbon, and its per-tree
+// and height-parameter sums are scaled by (1 + R_p) before the standing dead wood's sums are added.
+// The sampling error enters as one draw of SE·T, T Student's t at the sampling interval's df
+// (Satterthwaite), by Latin hypercube sampling, so that the sampling-only part of the whole interval
+// agrees with the sampling interval to within 1/draws in probability.
 
 import { percentileInterval } from './bootstrap';
 import { createRng, type Rng } from './random';
-import type { RootShootRatio } from './root-shoot';
 import { stratifiedEstimate, type StratifiedOptions } from './stratified';
+import { studentTDensity, studentTQuantile } from './student-t';
 
 /** Exponent of ρD²H in Chave et al. 2014 eq. 4 (AGB ∝ H^0.976 and ρ^0.976). */
 export const CHAVE_2014_EXPONENT = 0.976;
@@ -50,7 +56,7 @@ const SOURCE_INDEX: Readonly<Record<HeightSource, number>> = { measured: 0, mode
  * The few sums of one plot (or pair of visits) that the Monte Carlo needs, per hectare. `value` is the
  * plot's figure (Mg/ha, or Mg/ha/yr for change); v is a tree's own value (Mg, or Mg/yr).
  */
-export interface CarbonMoments {
+export interface CarbonSums {
   /** Σ w·v over trees, the plot's figure. */
   readonly value: number;
   /** Σ w·v² by height source (measured, modelled, noHeight): the per-hectare density of squared tree values. */
@@ -60,6 +66,25 @@ export interface CarbonMoments {
   /** Σ w·v·(ln D)^k, k = 0..4, over modelled-height terms. */
   readonly lnD: readonly [number, number, number, number, number];
 }
+
+/** A plot's root-to-shoot ratio R_p, its SD and the row of the relation it came from (root-shoot.ts). */
+export interface PlotRootShoot {
+  readonly ratio: number;
+  readonly sd: number;
+  /** Plots of the same row share the row's error (one draw per row and iteration). */
+  readonly row: string;
+}
+
+/** The sums of a plot's live above-ground biomass, and what the tree pool adds to them. */
+export interface CarbonMoments extends CarbonSums {
+  /** The plot's root-to-shoot ratio (the 'trees' pool needs it; absent in sums kept before it was). */
+  readonly rootShoot?: PlotRootShoot;
+  /** The same sums over the plot's standing dead stems (their biomass × the share a dead stem keeps). */
+  readonly deadWood?: CarbonSums;
+}
+
+/** The figure whose uncertainty is propagated: live above-ground biomass (or its change), or the tree pool. */
+export type CarbonPool = 'aboveGround' | 'trees';
 
 /** One visit's part of a tree's value: its weight (stems/ha it stands for), sign or 1/years, biomass in Mg and dbh. */
 export interface MomentTerm {
@@ -103,7 +128,7 @@ export class CarbonMomentsBuilder {
     this.sqPlot[s] += u * u;
   }
 
-  build(): CarbonMoments {
+  build(): CarbonSums {
     return { value: this.value, sq: [...this.sq], sqPlot: [...this.sqPlot], lnD: [...this.lnD] };
   }
 }
@@ -117,7 +142,7 @@ export interface HeightModelError {
 
 export interface CarbonStratum {
   readonly name: string;
-  /** Key of the shared models (height model, root-to-shoot ratio) this stratum's trees use. */
+  /** Key of the height model this stratum's trees use. */
   readonly forestType: string;
   /** Forest area in ha; null when unknown. */
   readonly size: number | null;
@@ -147,8 +172,11 @@ export interface CarbonUncertaintySettings {
   readonly treeErrorScope?: 'forest' | 'plots';
   /** Height models by forest type; a type without one has no modelled heights. */
   readonly heightModels?: ReadonlyMap<string, HeightModelError>;
-  /** Root-to-shoot ratio R and its SD by forest type (root-shoot.ts): given, the figure is above- plus below-ground; else above-ground only. */
-  readonly rootShoot?: ReadonlyMap<string, RootShootRatio>;
+  /**
+   * 'aboveGround' (default): CF × the plots' values. 'trees': CF × ((1 + R_p) × value + standing dead
+   * wood), every plot carrying `rootShoot` and `deadWood`.
+   */
+  readonly pool?: CarbonPool;
   /** Options of the stratified estimator (df, weighting, fpc) — those of the sampling interval beside it. */
   readonly stratified?: Omit<StratifiedOptions, 'confidence'>;
 }
@@ -163,7 +191,7 @@ export interface CarbonInterval {
 
 export interface CarbonUncertainty {
   readonly n: number;
-  /** Per-hectare estimate (Mg C/ha, or Mg C/ha/yr): carbon fraction × (1 + R) × stratified mean. */
+  /** Per-hectare estimate (Mg C/ha, or Mg C/ha/yr): the stratified mean of the plots' carbon figures. */
   readonly mean: number;
   /** Total over the forest area (Mg C, or Mg C/yr); null unless every stratum's area is known. */
   readonly total: number | null;
@@ -171,7 +199,11 @@ export interface CarbonUncertainty {
   /** The stratified estimator's t interval and SE (sampling error only). */
   readonly samplingSe: number;
   readonly sampling: CarbonInterval;
-  /** Percentile interval of the Monte Carlo draws (every source) and their SD. */
+  /**
+   * Percentile interval of the Monte Carlo draws (every source) and their SD. Never inside the sampling
+   * interval: a bound the draws put inside it (Monte Carlo noise, where the model errors are negligible
+   * beside the sampling error) is the sampling interval's.
+   */
   readonly wholeSe: number;
   readonly whole: CarbonInterval;
   /** Mean of the draws (differs from `mean` by Monte Carlo error and the second-order height-parameter term). */
@@ -207,30 +239,6 @@ export function normalSampler(rng: Rng): () => number {
   };
 }
 
-// Gamma(shape k, scale 1) by Marsaglia & Tsang 2000 (ACM TOMS 26:363–372), k < 1 via G(k+1)·U^(1/k)
-export function gammaDraw(rng: Rng, normal: () => number, shape: number): number {
-  if (!(shape > 0) || !Number.isFinite(shape)) throw new RangeError(`gammaDraw: shape must be > 0 (got ${shape})`);
-  if (shape < 1) {
-    let u = rng.next();
-    while (u === 0) u = rng.next();
-    return gammaDraw(rng, normal, shape + 1) * Math.pow(u, 1 / shape);
-  }
-  const d = shape - 1 / 3;
-  const c = 1 / Math.sqrt(9 * d);
-  for (;;) {
-    let x: number;
-    let v: number;
-    do {
-      x = normal();
-      v = 1 + c * x;
-    } while (v <= 0);
-    v = v * v * v;
-    const u = rng.next();
-    if (u < 1 - 0.0331 * x * x * x * x) return d * v;
-    if (u > 0 && Math.log(u) < 0.5 * x * x + d * (1 - v + Math.log(v))) return d * v;
-  }
-}
-
 // Lower Cholesky factor L (LLᵀ = Σ) of a 3 × 3 covariance, row-major; semidefinite pivots become 0 (Golub & Van Loan, Matrix Computations, Cholesky algorithm)
 export function cholesky3(cov: readonly number[], fn: string): number[] {
   if (cov.length !== 9 || cov.some((x) => !Number.isFinite(x))) throw new RangeError(`${fn}: a covariance must be 9 finite numbers`);
@@ -258,19 +266,74 @@ export function heightShiftEffect(lnD: ArrayLike<number>, delta: ArrayLike<numbe
   return beta * first + 0.5 * beta * beta * second;
 }
 
+/** Knots of the interpolants of the t quantile: 128 intervals of p on [0.05, 0.5], 64 of ln p on [ln 1e-4, ln 0.05]. */
+const LHS_CENTRE = { from: 0.05, knots: 128 } as const;
+const LHS_TAIL = { from: 1e-4, knots: 64 } as const;
+
+// Cubic Hermite interpolant of y(x) on equally spaced knots x₀ + k·h with values y_k and slopes y'_k (Burden & Faires, Numerical Analysis, §3.4)
+function hermite(x0: number, h: number, y: Float64Array, dy: Float64Array): (x: number) => number {
+  const last = y.length - 2;
+  return (x: number): number => {
+    const at = (x - x0) / h;
+    const k = Math.max(0, Math.min(last, Math.floor(at)));
+    const s = at - k;
+    const s2 = s * s;
+    const s3 = s2 * s;
+    return (2 * s3 - 3 * s2 + 1) * y[k] + (s3 - 2 * s2 + s) * h * dy[k] + (-2 * s3 + 3 * s2) * y[k + 1] + (s3 - s2) * h * dy[k + 1];
+  };
+}
+
+// Latin hypercube sample of Student's t (McKay, Beckman & Conover 1979, Technometrics 21:239–245): t_i = F⁻¹((π(i) + U_i)/n; ν), π a random permutation
+// F⁻¹(p) = −F⁻¹(1 − p); for p in [0.05, 0.5] cubic Hermite in p (slopes 1/f), in [1e-4, 0.05] in ln p (slopes p/f), exact below (error < 1e-6, tested)
+export function latinHypercubeT(rng: Rng, n: number, df: number): Float64Array {
+  if (!Number.isInteger(n) || n < 1) throw new RangeError(`latinHypercubeT: n must be a positive integer (got ${n})`);
+  if (!(df > 0) || !Number.isFinite(df)) throw new RangeError(`latinHypercubeT: degrees of freedom must be positive and finite, got ${df}`);
+  const grid = (knots: number, at: (k: number) => number, slope: (p: number, q: number) => number): [Float64Array, Float64Array] => {
+    const q = new Float64Array(knots + 1);
+    const dq = new Float64Array(knots + 1);
+    for (let k = 0; k <= knots; k += 1) {
+      const p = at(k);
+      q[k] = studentTQuantile(p, df);
+      dq[k] = slope(p, q[k]);
+    }
+    return [q, dq];
+  };
+  const hc = (0.5 - LHS_CENTRE.from) / LHS_CENTRE.knots;
+  const centre = hermite(LHS_CENTRE.from, hc, ...grid(LHS_CENTRE.knots, (k) => LHS_CENTRE.from + k * hc, (_p, q) => 1 / studentTDensity(q, df)));
+  const l0 = Math.log(LHS_TAIL.from);
+  const ht = (Math.log(LHS_CENTRE.from) - l0) / LHS_TAIL.knots;
+  const tail = hermite(l0, ht, ...grid(LHS_TAIL.knots, (k) => Math.exp(l0 + k * ht), (p, q) => p / studentTDensity(q, df)));
+  const lower = (p: number): number => (p >= LHS_CENTRE.from ? centre(p) : p >= LHS_TAIL.from ? tail(Math.log(p)) : studentTQuantile(p, df));
+  const quantile = (p: number): number => (p <= 0.5 ? lower(p) : -lower(1 - p));
+  const out = new Float64Array(n);
+  for (let i = 0; i < n; i += 1) {
+    let u = rng.next();
+    while (u === 0) u = rng.next();
+    out[i] = quantile((i + u) / n);
+  }
+  // Fisher–Yates shuffle (Knuth, TAOCP vol. 2, Algorithm P): the strata in random order
+  for (let i = n - 1; i > 0; i -= 1) {
+    const j = rng.int(i + 1);
+    const x = out[i];
+    out[i] = out[j];
+    out[j] = x;
+  }
+  return out;
+}
+
 interface StratumPlan {
   readonly weight: number;
-  readonly mean: number;
-  readonly se: number;
   readonly forestType: string;
-  /** SD of the stratum mean from each per-tree source: allometry, height residual, wood density. */
+  /** SD of the stratum mean (biomass) from each per-tree source: allometry, height residual, wood density. */
   readonly treeSd: readonly [number, number, number];
   readonly lnD: readonly number[];
+  /** Per root-to-shoot row: the stratum mean of sd_p · value_p (biomass), and the draw below which R_p would turn negative. */
+  readonly rootShoot: ReadonlyMap<string, { readonly effect: number; readonly zMin: number }>;
 }
 
 // Var of a stratum mean from per-tree errors: Σ_s (e^{σ_s²} − 1) · (mean Σ w v² / A_h  or  Σ_plots Σ w² v² / n_h²), split by source in proportion to e^{σ²} − 1
 function treeErrorSds(
-  plots: readonly CarbonMoments[],
+  plots: readonly CarbonSums[],
   area: number | null,
   scope: 'forest' | 'plots',
   logVars: readonly (readonly [number, number, number])[],
@@ -289,7 +352,32 @@ function treeErrorSds(
   return [Math.sqrt(out[0]), Math.sqrt(out[1]), Math.sqrt(out[2])];
 }
 
-// Monte Carlo (IPCC 2006 Vol. 1 Ch. 3, approach 2) of CF·(1+R)·Σ W_h ȳ_h with sampling, per-tree and shared model errors — docs/methods.md#carbon-uncertainty
+const isSums = (x: unknown): x is CarbonSums => {
+  if (typeof x !== 'object' || x === null) return false;
+  const m = x as Record<string, unknown>;
+  const arr = (v: unknown, n: number): boolean => Array.isArray(v) && v.length === n && v.every((e) => typeof e === 'number' && Number.isFinite(e));
+  return typeof m.value === 'number' && Number.isFinite(m.value) && arr(m.sq, 3) && arr(m.sqPlot, 3) && arr(m.lnD, 5);
+};
+
+/** Whether a stored value holds the sums of a plot, and for the 'trees' pool also its ratio and dead-wood sums. */
+export function hasCarbonSums(x: unknown, pool: CarbonPool = 'aboveGround'): x is CarbonMoments {
+  if (!isSums(x)) return false;
+  if (pool === 'aboveGround') return true;
+  const r = (x as CarbonMoments).rootShoot as unknown as Record<string, unknown> | undefined;
+  const okRatio = typeof r === 'object' && r !== null && typeof r.row === 'string' && typeof r.ratio === 'number' && typeof r.sd === 'number' && r.ratio >= 0 && r.sd >= 0 && Number.isFinite(r.ratio) && Number.isFinite(r.sd);
+  return okRatio && isSums((x as CarbonMoments).deadWood);
+}
+
+// The tree pool's sums of a plot, in biomass: (1 + R_p)·v + dead, (1 + R_p)²·Σwv² + dead's, (1 + R_p)·Σwv(ln D)^k + dead's (distinct trees: squares add)
+function poolSums(p: CarbonMoments, pool: CarbonPool): CarbonSums {
+  if (pool === 'aboveGround') return p;
+  const g = 1 + (p.rootShoot as PlotRootShoot).ratio;
+  const d = p.deadWood as CarbonSums;
+  const add = <T extends readonly number[]>(a: T, b: T, f: number): T => a.map((x, i) => f * x + b[i]) as unknown as T;
+  return { value: g * p.value + d.value, sq: add(p.sq, d.sq, g * g), sqPlot: add(p.sqPlot, d.sqPlot, g * g), lnD: add(p.lnD, d.lnD, g) };
+}
+
+// Monte Carlo (IPCC 2006 Vol. 1 Ch. 3, approach 2) of Σ W_h ȳ_h, y = CF·value (or CF·((1+R_p)·value + dead)), with sampling, per-tree and shared model errors — docs/methods.md#carbon-uncertainty
 export function carbonUncertainty(strata: readonly CarbonStratum[], settings: CarbonUncertaintySettings = {}): CarbonUncertainty | null {
   const draws = settings.draws ?? DEFAULT_CARBON_DRAWS;
   const seed = settings.seed ?? 1;
@@ -298,126 +386,120 @@ export function carbonUncertainty(strata: readonly CarbonStratum[], settings: Ca
   const rseA = settings.allometryRse ?? CHAVE_2014_EQ4_RSE;
   const rseA0 = settings.allometryRseNoHeight ?? rseA;
   const wdSd = settings.woodDensityTreeSd ?? DEFAULT_WOOD_DENSITY_TREE_SD;
+  const pool = settings.pool ?? 'aboveGround';
   if (!Number.isInteger(draws) || draws < 100) fail(`draws must be an integer >= 100 (got ${draws})`);
   if (!Number.isFinite(seed)) fail(`seed must be a finite number (got ${seed})`);
   if (!(confidence > 0 && confidence < 1)) fail(`confidence must be in (0, 1) (got ${confidence})`);
   if (!(cf > 0 && cf <= 1)) fail(`carbon fraction must be in (0, 1] (got ${cf})`);
+  if (pool !== 'aboveGround' && pool !== 'trees') fail(`pool must be 'aboveGround' or 'trees' (got ${String(pool)})`);
   for (const [name, v] of [['allometryRse', rseA], ['allometryRseNoHeight', rseA0], ['woodDensityTreeSd', wdSd]] as const) {
     if (!(v >= 0) || !Number.isFinite(v)) fail(`${name} must be finite and >= 0 (got ${v})`);
   }
-  for (const [t, r] of settings.rootShoot ?? []) {
-    if (!(r.ratio >= 0) || !(r.sd >= 0) || !Number.isFinite(r.ratio) || !Number.isFinite(r.sd)) fail(`root-to-shoot ratio of '${t}' must have ratio and sd >= 0`);
+  if (pool === 'trees') {
+    for (const s of strata) {
+      if (s.plots.some((p) => !hasCarbonSums(p, 'trees'))) fail(`the 'trees' pool needs every plot's root-to-shoot ratio (ratio and sd >= 0, row) and dead-wood sums (stratum ${s.name})`);
+    }
   }
   const used = strata.filter((s) => s.plots.length > 0);
   if (used.length === 0) return null;
   const scope = settings.treeErrorScope ?? (used.every((s) => s.size !== null && s.size > 0) ? 'forest' : 'plots');
   if (scope === 'forest' && used.some((s) => !(s.size !== null && s.size > 0))) fail("treeErrorScope 'forest' needs every stratum's forest area");
 
-  // Per-tree log variances by height source: (allometry, height residual, wood density).
-  const rootShoot = settings.rootShoot ?? new Map<string, RootShootRatio>();
   const heightModels = settings.heightModels ?? new Map<string, HeightModelError>();
-  // The sampling interval is the stratified estimator's on the carbon figures themselves, CF·(1 + R̄)·value.
-  const factorOf = (forestType: string): number => cf * (1 + (rootShoot.get(forestType)?.ratio ?? 0));
+  const sums = used.map((s) => s.plots.map((p) => poolSums(p, pool)));
+  // The sampling interval is the stratified estimator's on the plots' carbon figures themselves.
   const est = stratifiedEstimate(
-    used.map((s) => ({ name: s.name, size: s.size, values: s.plots.map((p) => factorOf(s.forestType) * p.value) })),
+    used.map((s, h) => ({ name: s.name, size: s.size, values: sums[h].map((p) => cf * p.value) })),
     { ...settings.stratified, confidence },
   );
   if (est.mean === null || est.se === null || est.df === null || est.ciLow === null || est.ciHigh === null) return null;
   const plans: StratumPlan[] = used.map((s, h) => {
     const hm = heightModels.get(s.forestType);
     const bw = CHAVE_2014_EXPONENT * wdSd;
+    // Per-tree log variances by height source: (allometry, height residual, wood density).
     const logVars: [number, number, number][] = [
       [rseA * rseA, 0, bw * bw],
       [rseA * rseA, hm ? (CHAVE_2014_EXPONENT * hm.rse) ** 2 : 0, bw * bw],
       [rseA0 * rseA0, 0, wdSd * wdSd], // the no-height models are linear in ρ
     ];
-    const st = est.strata[h];
-    const f = factorOf(s.forestType);
+    const rootShoot = new Map<string, { effect: number; zMin: number }>();
+    if (pool === 'trees') {
+      for (const p of s.plots) {
+        const r = p.rootShoot as PlotRootShoot;
+        if (!(r.sd > 0)) continue;
+        const at = rootShoot.get(r.row) ?? { effect: 0, zMin: -Infinity };
+        // R_p + sd_p·z >= 0 (a negative ratio has no meaning): z >= −R_p/sd_p, the same for every plot of a row (R/sd fixed per row)
+        rootShoot.set(r.row, { effect: at.effect + (r.sd * p.value) / s.plots.length, zMin: Math.max(at.zMin, -r.ratio / r.sd) });
+      }
+    }
     return {
-      weight: st.weight as number,
-      mean: (st.mean as number) / f,
-      se: (st.se ?? 0) / f,
+      weight: est.strata[h].weight as number,
       forestType: s.forestType,
-      treeSd: treeErrorSds(s.plots, s.size, scope, logVars),
-      lnD: [0, 1, 2, 3, 4].map((k) => s.plots.reduce((acc, p) => acc + p.lnD[k], 0) / s.plots.length),
+      treeSd: treeErrorSds(sums[h], s.size, scope, logVars),
+      lnD: [0, 1, 2, 3, 4].map((k) => sums[h].reduce((acc, p) => acc + p.lnD[k], 0) / sums[h].length),
+      rootShoot,
     };
   });
 
-  // Forest types in a fixed (sorted) order, so the stream of draws does not depend on the input order.
+  // Height models by forest type, root-to-shoot rows by name, each in a fixed (sorted) order, so the
+  // stream of draws does not depend on the input order. Everything a draw needs is linear in the strata
+  // that share a draw, so the strata are summed first and a draw costs a few normals per forest type and row.
   const types = [...new Set(plans.map((p) => p.forestType))].sort();
   const typeIndex = new Map(types.map((t, i) => [t, i]));
   const chol = types.map((t) => {
     const cov = heightModels.get(t)?.covariance ?? null;
     return cov === null ? null : cholesky3(cov, 'carbonUncertainty');
   });
-  const rMean = types.map((t) => rootShoot.get(t)?.ratio ?? 0);
-  const rSd = types.map((t) => rootShoot.get(t)?.sd ?? 0);
-
-  // Everything a draw needs is linear in the strata of one forest type (they share R and δ), so the
-  // strata are summed per forest type first and a draw costs a few normals per forest type:
-  // sampling Σ W_h SE_h z_h is one normal of SD sqrt(Σ W_h² SE_h²), the per-tree errors likewise, and the
-  // height-parameter effect of Σ W_h·(sums of ln D) is the sum of the strata's effects.
-  const T = types.length;
-  const mean = new Float64Array(T);
-  const samplingSd = new Float64Array(T);
-  const treeVarBySource = [new Float64Array(T), new Float64Array(T), new Float64Array(T)];
+  const rows = [...new Set(plans.flatMap((p) => [...p.rootShoot.keys()]))].sort();
+  const rowEffect = new Float64Array(rows.length);
+  const rowZMin = new Float64Array(rows.length).fill(-Infinity);
   const lnDSum = types.map(() => new Float64Array(5));
+  // Variance of the per-tree part by source, in carbon: Σ_h (CF W_h sd_{h,k})².
+  const sourceVar = [0, 0, 0];
   for (const p of plans) {
     const t = typeIndex.get(p.forestType) as number;
-    mean[t] += p.weight * p.mean;
-    samplingSd[t] += (p.weight * p.se) ** 2;
-    for (let k = 0; k < 3; k += 1) treeVarBySource[k][t] += (p.weight * p.treeSd[k]) ** 2;
+    for (let k = 0; k < 3; k += 1) sourceVar[k] += (cf * p.weight * p.treeSd[k]) ** 2;
     for (let k = 0; k < 5; k += 1) lnDSum[t][k] += p.weight * p.lnD[k];
+    rows.forEach((row, j) => {
+      const r = p.rootShoot.get(row);
+      if (r === undefined) return;
+      rowEffect[j] += cf * p.weight * r.effect;
+      rowZMin[j] = Math.max(rowZMin[j], r.zMin);
+    });
   }
-  for (let t = 0; t < T; t += 1) samplingSd[t] = Math.sqrt(samplingSd[t]);
-  const treeVar = Float64Array.from(types, (_, t) => treeVarBySource[0][t] + treeVarBySource[1][t] + treeVarBySource[2][t]);
+  const treeSd = Math.sqrt(sourceVar[0] + sourceVar[1] + sourceVar[2]);
 
   const rng = createRng(seed);
+  const sampling = latinHypercubeT(rng, draws, est.df);
+  for (let i = 0; i < draws; i += 1) sampling[i] *= est.se;
   const normal = normalSampler(rng);
-  const df = est.df;
   const totalDraws = new Float64Array(draws);
-  // Parts of each draw (the others at their centre): sampling, per-tree errors together, height parameters, R.
-  const parts = [new Float64Array(draws), new Float64Array(draws), new Float64Array(draws), new Float64Array(draws)];
+  // Parts of each draw besides sampling: per-tree errors together, height parameters, root-to-shoot ratios.
+  const parts = [new Float64Array(draws), new Float64Array(draws), new Float64Array(draws)];
   const delta = new Float64Array(3);
   for (let i = 0; i < draws; i += 1) {
-    // One scale for every stratum's sampling draw: the stratified sum is then t with df degrees of freedom.
-    const tScale = Math.sqrt(df / (2 * gammaDraw(rng, normal, df / 2)));
-    let total = 0;
-    let cSampling = 0;
-    let cTree = 0;
-    let cHeight = 0;
-    let cRoot = 0;
-    for (let t = 0; t < T; t += 1) {
-      const base = cf * (1 + rMean[t]);
-      let factor = base;
-      if (rSd[t] > 0) {
-        const r = rMean[t] + rSd[t] * normal();
-        factor = cf * (1 + (r > 0 ? r : 0)); // a ratio below 0 has no meaning: truncated at 0
-      }
-      let heightParameters = 0;
+    let height = 0;
+    for (let t = 0; t < types.length; t += 1) {
       const l = chol[t];
-      if (l !== null) {
-        const z0 = normal();
-        const z1 = normal();
-        const z2 = normal();
-        delta[0] = l[0] * z0;
-        delta[1] = l[3] * z0 + l[4] * z1;
-        delta[2] = l[6] * z0 + l[7] * z1 + l[8] * z2;
-        heightParameters = heightShiftEffect(lnDSum[t], delta);
-      }
-      const sampling = samplingSd[t] * normal() * tScale;
-      const tree = treeVar[t] > 0 ? Math.sqrt(treeVar[t]) * normal() : 0;
-      total += factor * (mean[t] + sampling + tree + heightParameters);
-      cSampling += base * sampling;
-      cTree += base * tree;
-      cHeight += base * heightParameters;
-      cRoot += (factor - base) * mean[t];
+      if (l === null) continue;
+      const z0 = normal();
+      const z1 = normal();
+      const z2 = normal();
+      delta[0] = l[0] * z0;
+      delta[1] = l[3] * z0 + l[4] * z1;
+      delta[2] = l[6] * z0 + l[7] * z1 + l[8] * z2;
+      height += cf * heightShiftEffect(lnDSum[t], delta);
     }
-    totalDraws[i] = total;
-    parts[0][i] = cSampling;
-    parts[1][i] = cTree;
-    parts[2][i] = cHeight;
-    parts[3][i] = cRoot;
+    let root = 0;
+    for (let j = 0; j < rows.length; j += 1) {
+      const z = normal();
+      root += rowEffect[j] * (z > rowZMin[j] ? z : rowZMin[j]); // a ratio below 0 has no meaning: truncated at 0
+    }
+    const tree = treeSd > 0 ? treeSd * normal() : 0;
+    totalDraws[i] = est.mean + sampling[i] + tree + height + root;
+    parts[0][i] = tree;
+    parts[1][i] = height;
+    parts[2][i] = root;
   }
 
   const variance = (x: Float64Array): number => {
@@ -428,10 +510,9 @@ export function carbonUncertainty(strata: readonly CarbonStratum[], settings: Ca
     for (const v of x) s += (v - m) * (v - m);
     return s / (x.length - 1);
   };
-  // The per-tree part is one normal per forest type; its variance is split among its three sources by
-  // their known variances Σ_t (CF (1 + R̄_t))² Σ_h W_h² sd_{h,k}².
-  const [vSampling, vTree, vHeight, vRoot] = parts.map(variance);
-  const sourceVar = [0, 1, 2].map((k) => types.reduce((acc, _, t) => acc + (cf * (1 + rMean[t])) ** 2 * treeVarBySource[k][t], 0));
+  // The per-tree part is one normal; its variance is split among its three sources by their known variances.
+  const vSampling = variance(sampling);
+  const [vTree, vHeight, vRoot] = parts.map(variance);
   const sourceVarSum = sourceVar[0] + sourceVar[1] + sourceVar[2];
   const split = (k: number): number => (sourceVarSum > 0 ? (vTree * sourceVar[k]) / sourceVarSum : 0);
   const vars: Record<CarbonErrorSource, number> = { sampling: vSampling, allometry: split(0), heightResidual: split(1), woodDensity: split(2), heightParameters: vHeight, rootShoot: vRoot };
@@ -451,7 +532,8 @@ export function carbonUncertainty(strata: readonly CarbonStratum[], settings: Ca
     samplingSe: est.se,
     sampling: { low: est.ciLow, high: est.ciHigh },
     wholeSe: Math.sqrt(variance(totalDraws)),
-    whole: { low: interval.low, high: interval.high },
+    // Never inside the sampling interval (see CarbonUncertainty.whole).
+    whole: { low: Math.min(interval.low, est.ciLow), high: Math.max(interval.high, est.ciHigh) },
     drawsMean,
     shares,
     draws,

@@ -294,3 +294,32 @@ describe('plotChange: gains minus losses is the net change on random plots (prop
     );
   });
 });
+
+describe("the sums of the carbon change's uncertainty (computed by hand; docs/methods.md#carbon-uncertainty)", () => {
+  // 0.1 ha (w = 10 stems/ha), 2016-03-01 → 2020-03-01 = 4 years (1461 days). A survivor 100 → 160 kg (measured height at
+  // both visits), a tree that died at 50 kg (modelled height), a recruit of 20 kg (no height model).
+  // u = Σ w·coef·v (Mg/ha/yr): survivor 10·(0.160 − 0.100)/4 = 0.15; died −10·0.050/4 = −0.125; recruit 10·0.020/4 = 0.05.
+  const visit = (date: string, trees: ChangeTree[]): ChangeVisit => ({ surveyDate: date, areaHa: 0.1, dbhMinCm: 10, trees });
+  const src = (t: ChangeTree, heightSource: 'measured' | 'modelled' | 'noHeight'): ChangeTree => ({ ...t, heightSource });
+  const first = visit('2016-03-01', [src(live('a', 30, 100), 'measured'), src(live('b', 20, 50), 'modelled')]);
+  const second = visit('2020-03-01', [src(live('a', 34, 160), 'measured'), dead('b', 20), src(live('c', 12, 20), 'noHeight')]);
+
+  it('value Σu = the net AGB change (0.075 Mg/ha/yr); Σu²/w by source; Σu² per plot; Σ w·c·v·(ln D)^k over modelled terms', () => {
+    const c = plotChange(first, second, 0.47, { carbonMoments: true });
+    const m = c.carbonMoments as NonNullable<typeof c.carbonMoments>;
+    expect(m.value).toBeCloseTo(0.075, 14);
+    expect(m.value).toBeCloseTo(c.agbNetChangeMgHaYr, 14);
+    expect(0.47 * m.value).toBeCloseTo(c.carbonNetChangeMgHaYr, 14);
+    expect(m.sq[0]).toBeCloseTo(0.0225 / 10, 14);
+    expect(m.sq[1]).toBeCloseTo(0.015625 / 10, 14);
+    expect(m.sq[2]).toBeCloseTo(0.0025 / 10, 14);
+    expect(m.sqPlot[0]).toBeCloseTo(0.0225, 14);
+    expect(m.lnD[0]).toBeCloseTo(-0.125, 14);
+    expect(m.lnD[1]).toBeCloseTo(-0.125 * Math.log(20), 14);
+  });
+  it('null when a counted tree has no height source; absent without the option', () => {
+    const unknown = visit('2020-03-01', [src(live('a', 34, 160), 'measured'), dead('b', 20), live('c', 12, 20)]);
+    expect(plotChange(first, unknown, 0.47, { carbonMoments: true }).carbonMoments).toBeNull();
+    expect('carbonMoments' in plotChange(first, second)).toBe(false);
+  });
+});

@@ -17,6 +17,7 @@
 // Rates are null where a count makes them undefined, never 0 or infinity.
 
 import { carbonFromBiomass, IPCC_2006_CARBON_FRACTION } from './allometry';
+import { CarbonMomentsBuilder, type CarbonSums, type HeightSource, type MomentTerm } from './carbon-uncertainty';
 import { basalAreaM2 } from './structure';
 
 /** Days per year of the rates' time base (Julian year). */
@@ -32,6 +33,8 @@ export interface ChangeTree {
   readonly agbKg: number | null;
   /** Standing dead wood biomass of the stem in kg when dead (docs/methods.md#standing-dead-wood); absent: unknown. */
   readonly deadKg?: number | null;
+  /** Where a live stem's height came from (for the carbon uncertainty's sums); absent: unknown. */
+  readonly heightSource?: HeightSource | null;
 }
 
 export interface ChangeVisit {
@@ -77,6 +80,16 @@ export interface PlotChange {
   standingDeadNetChangeMgHaYr: number | null;
   /** Carbon fraction × (AGB + BGB + standing dead wood net change); null where one of them is. */
   treeCarbonNetChangeMgHaYr: number | null;
+  /**
+   * With the `carbonMoments` option: the sums of the above-ground net change's whole uncertainty
+   * (Mg/ha/yr; docs/methods.md#carbon-uncertainty), every live stem's height source known; null otherwise.
+   */
+  carbonMoments?: CarbonSums | null;
+}
+
+export interface PlotChangeOptions {
+  /** Also build the sums of the carbon change's uncertainty (`carbonMoments`). */
+  readonly carbonMoments?: boolean;
 }
 
 function fail(fn: string, message: string): never {
@@ -149,8 +162,23 @@ function carbonOfChange(changeMgHaYr: number, carbonFraction: number): number {
 }
 
 // ΔX/ha/yr = [Σ_surv (x₂/A₂ − x₁/A₁) + Σ_recr x₂/A₂ − Σ_lost x₁/A₁] / t, net = growth + recruitment − losses — docs/methods.md#change-between-visits
-export function plotChange(first: ChangeVisit, second: ChangeVisit, carbonFraction: number = IPCC_2006_CARBON_FRACTION): PlotChange {
+export function plotChange(first: ChangeVisit, second: ChangeVisit, carbonFraction: number = IPCC_2006_CARBON_FRACTION, options: PlotChangeOptions = {}): PlotChange {
   const fn = 'plotChange';
+  // Sums of the uncertainty: a survivor has two terms (−1/t at the first visit, +1/t at the second: its
+  // model errors taken as the same at both), a tree lost or recruited one. Null once a source is unknown.
+  let moments = options.carbonMoments ? new CarbonMomentsBuilder() : null;
+  const term = (t: ChangeTree, area: number, coef: number): MomentTerm | null =>
+    t.heightSource === undefined || t.heightSource === null ? null : { weight: 1 / area, coef, agbMg: (t.agbKg as number) / 1000, dbhCm: t.dbhCm, modelled: t.heightSource === 'modelled' };
+  const addTree = (terms: (MomentTerm | null)[], sources: (HeightSource | null | undefined)[]): void => {
+    if (moments === null) return;
+    if (terms.some((x) => x === null)) {
+      moments = null;
+      return;
+    }
+    // a tree whose height was modelled at either visit counts as modelled (its height error is then in its value)
+    const source: HeightSource = sources.includes('modelled') ? 'modelled' : sources.includes('measured') ? 'measured' : 'noHeight';
+    moments.addTree(source, terms as MomentTerm[]);
+  };
   const at1 = checkVisit(fn, 'first', first);
   const at2 = checkVisit(fn, 'second', second);
   const years = yearsBetween(first.surveyDate, second.surveyDate);
@@ -188,15 +216,18 @@ export function plotChange(first: ChangeVisit, second: ChangeVisit, carbonFracti
       baGrowth += basalAreaM2(t2.dbhCm) / a2 - g1;
       agbGrowth += (t2.agbKg as number) / a2 - b1;
       stock2 += (t2.agbKg as number) / a2;
+      addTree([term(t1, a1, -1 / years), term(t2, a2, 1 / years)], [t1.heightSource, t2.heightSource]);
     } else if (t2 !== undefined && t2.status === 'stump' && t2.stumpCause === 'logged') {
       nRemoved += 1;
       baLoss += g1;
       agbRemoved += b1;
+      addTree([term(t1, a1, -1 / years)], [t1.heightSource]);
     } else {
       nDied += 1;
       if (t2 === undefined) nAbsent += 1;
       baLoss += g1;
       agbDied += b1;
+      addTree([term(t1, a1, -1 / years)], [t1.heightSource]);
     }
   }
   for (const t2 of second.trees) {
@@ -208,6 +239,7 @@ export function plotChange(first: ChangeVisit, second: ChangeVisit, carbonFracti
     baRecruitment += basalAreaM2(t2.dbhCm) / a2;
     agbRecruitment += (t2.agbKg as number) / a2;
     stock2 += (t2.agbKg as number) / a2;
+    addTree([term(t2, a2, 1 / years)], [t2.heightSource]);
   }
   const deadStock = (v: ChangeVisit): number | null => {
     let kgHa = 0;
@@ -268,6 +300,7 @@ export function plotChange(first: ChangeVisit, second: ChangeVisit, carbonFracti
     bgbNetChangeMgHaYr,
     standingDeadNetChangeMgHaYr,
     treeCarbonNetChangeMgHaYr: treeNet === null ? null : carbonOfChange(treeNet, carbonFraction),
+    ...(options.carbonMoments ? { carbonMoments: moments === null ? null : (moments as CarbonMomentsBuilder).build() } : {}),
   };
 }
 

@@ -108,6 +108,20 @@ describe('computePlotMetrics on a small plot (every expected value computed by h
     expect(rel(m.treeCarbonMgHa, 0.47 * (1.2 * m.agbMgHa + dead))).toBeLessThan(1e-13);
   });
 
+  it("the carbon uncertainty's sums: the plot's AGB, its ratio and row (sd (0.25 − 0.09)/√12), the dead stem's sums (w = 2, no height)", () => {
+    const sums = computePlotMetrics(VISIT, STEMS, index, { carbonMoments: true }).carbonMoments;
+    expect(rel(sums?.value as number, m.agbMgHa)).toBeLessThan(1e-13);
+    expect(sums?.rootShoot?.row).toBe('tropical_moist_deciduous:0');
+    expect(sums?.rootShoot?.ratio).toBe(0.2);
+    expect(rel(sums?.rootShoot?.sd as number, 0.16 / Math.sqrt(12))).toBeLessThan(1e-12);
+    const deadMg = (0.7 * agbChave2005(0.4, 25, 'moist')) / 1000;
+    expect(rel(sums?.deadWood?.value as number, 2 * deadMg)).toBeLessThan(1e-13);
+    expect(rel(sums?.deadWood?.sq[2] as number, 2 * deadMg * deadMg)).toBeLessThan(1e-12);
+    expect(sums?.deadWood?.sq.slice(0, 2)).toEqual([0, 0]);
+    // the tree pool of the plot: CF·((1 + R)·AGB + dead) is its tree carbon
+    expect(rel(0.47 * ((1 + 0.2) * (sums?.value as number) + (sums?.deadWood?.value as number)), m.treeCarbonMgHa)).toBeLessThan(1e-13);
+  });
+
   it('diversity on main-plot identified stems: counts 2 (incl. the synonym), 1, 1; N = 4', () => {
     expect(m.nIdentified).toBe(4);
     expect(m.richness).toBe(3);

@@ -37,7 +37,7 @@ import {
   shannon,
   simpson,
 } from './diversity';
-import { CarbonMomentsBuilder, type CarbonMoments } from './carbon-uncertainty';
+import { CarbonMomentsBuilder, type CarbonMoments, type HeightSource } from './carbon-uncertainty';
 import { standingDeadBiomass, DEFAULT_STANDING_DEAD_SHARE } from './dead-wood';
 import { type HeightDiameterModel, predictHeight } from './height-diameter';
 import { DEFAULT_ROOT_SHOOT_BY_CLIMATE, type RootShootRelation, rootShootRatio } from './root-shoot';
@@ -140,10 +140,12 @@ export interface PlotMetricsResult {
   diagnostics: PlotDiagnostics;
   /** With `stemAgb`: AGB in kg of each input stem, in input order; null for stems that are not live. */
   stemAgbKg?: (number | null)[];
-  /** With `carbonMoments`: the plot's above-ground biomass sums by height source (Mg/ha). */
+  /** With `carbonMoments`: the plot's above-ground biomass sums by height source (Mg/ha), its root-to-shoot ratio and its standing dead wood's sums. */
   carbonMoments?: CarbonMoments;
   /** With `stemAgb`: standing dead wood in kg of each dead stem at or above its minimum, in input order; null for the others. */
   stemDeadKg?: (number | null)[];
+  /** With `stemAgb`: where each live stem's height came from (the biomass model used), in input order; null for stems that are not live. */
+  stemHeightSource?: (HeightSource | null)[];
 }
 
 const tables = new WeakMap<SpeciesIndex, WoodDensityTable>();
@@ -301,6 +303,8 @@ export function computePlotMetrics(
         ? agbChave2014(rho, d, predictHeight(heightModel, d))
         : agbChave2005(rho, d, visit.climate);
   const stemAgbKg: (number | null)[] | undefined = options.stemAgb ? new Array<number | null>(stems.length).fill(null) : undefined;
+  const stemHeightSource: (HeightSource | null)[] | undefined = options.stemAgb ? new Array<HeightSource | null>(stems.length).fill(null) : undefined;
+  const sourceOf = (measured: number | null): HeightSource => (measured !== null ? 'measured' : heightModel !== null ? 'modelled' : 'noHeight');
   const wdBa: Record<WoodDensityLevel, number> = { species: 0, genus: 0, family: 0, plot: 0, default: 0 };
   const heightCount = [0, 0, 0];
   const heightAgb = [0, 0, 0];
@@ -320,8 +324,9 @@ export function computePlotMetrics(
     const agb = agbOf(rho, d, measured);
     agbStem[i] = agb;
     if (stemAgbKg) stemAgbKg[includedAt[i]] = agb;
+    if (stemHeightSource) stemHeightSource[includedAt[i]] = sourceOf(measured);
     if (moments) {
-      const source = measured !== null ? 'measured' : heightModel !== null ? 'modelled' : 'noHeight';
+      const source = sourceOf(measured);
       moments.addTree(source, [{ weight: weight[i], coef: 1, agbMg: agb / 1000, dbhCm: d, modelled: source === 'modelled' }]);
     }
     agbKgHa += weight[i] * agb;
@@ -331,6 +336,7 @@ export function computePlotMetrics(
   for (let j = 0; j < below.length; j += 1) {
     const s = stems[below[j].at];
     (stemAgbKg as (number | null)[])[below[j].at] = agbOf(wd.values[nLive + j], s.dbhCm, s.heightM);
+    (stemHeightSource as (HeightSource | null)[])[below[j].at] = sourceOf(s.heightM);
   }
   const agbMgHa = agbKgHa / 1000;
 
@@ -341,11 +347,16 @@ export function computePlotMetrics(
   const deadShare = options.standingDeadShare ?? DEFAULT_STANDING_DEAD_SHARE;
   const stemDeadKg: (number | null)[] | undefined = options.stemAgb ? new Array<number | null>(stems.length).fill(null) : undefined;
   let deadKgHa = 0;
+  const deadMoments = moments ? new CarbonMomentsBuilder() : null;
   for (let j = 0; j < dead.length; j += 1) {
     const s = stems[dead[j].at];
     const kg = standingDeadBiomass(agbOf(wd.values[nLive + below.length + j], s.dbhCm, s.heightM), deadShare);
     if (stemDeadKg) stemDeadKg[dead[j].at] = kg;
     deadKgHa += dead[j].w * kg;
+    if (deadMoments) {
+      const source = sourceOf(s.heightM);
+      deadMoments.addTree(source, [{ weight: dead[j].w, coef: 1, agbMg: kg / 1000, dbhCm: s.dbhCm, modelled: source === 'modelled' }]);
+    }
   }
   const standingDeadMgHa = deadKgHa / 1000;
   const carbonMgHa = carbonFromBiomass(agbMgHa, carbonFraction);
@@ -456,7 +467,10 @@ export function computePlotMetrics(
     standTable: { thresholdCm: reportingDbhMinCm, classes: standTable },
     unresolvedNames,
   };
-  const result: PlotMetricsResult = stemAgbKg ? { metrics, diagnostics, stemAgbKg, stemDeadKg } : { metrics, diagnostics };
-  if (moments) result.carbonMoments = moments.build();
+  const result: PlotMetricsResult = stemAgbKg ? { metrics, diagnostics, stemAgbKg, stemDeadKg, stemHeightSource } : { metrics, diagnostics };
+  // The tree pool's uncertainty also needs the plot's ratio (its row's error is shared) and the dead stems' sums.
+  if (moments && deadMoments) {
+    result.carbonMoments = { ...moments.build(), rootShoot: ratio ?? { ratio: 0, sd: 0, row: relation }, deadWood: deadMoments.build() };
+  }
   return result;
 }

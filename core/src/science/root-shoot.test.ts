@@ -41,6 +41,12 @@ describe('rootShootRatio: IPCC 2006 Vol. 4 Table 4.4 (memory)', () => {
     expect(rootShootRatio('tropical_dry', 20)?.ratio).toBe(0.28);
     expect(rootShootRatio('tropical_dry', 0)?.ratio).toBe(0.56);
   });
+  it('names the row it read, whose error every plot of that row shares (the class, or the equation)', () => {
+    expect(rootShootRatio('tropical_moist_deciduous', 124.999)?.row).toBe('tropical_moist_deciduous:0');
+    expect(rootShootRatio('tropical_moist_deciduous', 125)?.row).toBe('tropical_moist_deciduous:1');
+    expect(rootShootRatio('tropical_rainforest', 400)?.row).toBe('tropical_rainforest:0');
+    expect(rootShootRatio('mokany_2006', 80)?.row).toBe('mokany_2006');
+  });
   it('every row lies inside its own range, and the classes of a zone tile [0, ∞)', () => {
     for (const zone of Object.values(IPCC_2006_TABLE_4_4)) {
       expect(zone.rows[0].agbFrom).toBe(0);

@@ -93,6 +93,12 @@ export interface RootShootRatio {
   readonly ratio: number;
   /** Standard deviation of R (rule above), for the uncertainty of the pool. */
   readonly sd: number;
+  /**
+   * Which row of the relation gave R ('tropical_dry:1' the second biomass class of the dry zone;
+   * 'mokany_2006' the equation): the error of a row is shared by every plot that uses it
+   * (docs/methods.md#carbon-uncertainty).
+   */
+  readonly row: string;
 }
 
 function fail(fn: string, message: string): never {
@@ -123,12 +129,13 @@ export function rootShootRatio(relation: RootShootRelation, agbMgHa: number): Ro
   if (relation === 'mokany_2006') {
     if (agbMgHa === 0) return null;
     const ratio = bgbMokany2006(agbMgHa) / agbMgHa;
-    return { ratio, sd: ROOT_SHOOT_RELATIVE_SD_WITHOUT_RANGE * ratio };
+    return { ratio, sd: ROOT_SHOOT_RELATIVE_SD_WITHOUT_RANGE * ratio, row: relation };
   }
   const zone: RootShootTableZone | undefined = IPCC_2006_TABLE_4_4[relation];
   if (zone === undefined) fail('rootShootRatio', `unknown relation ${String(relation)} (known: ${ROOT_SHOOT_RELATIONS.join(', ')})`);
-  const row = zone.rows.find((r) => agbMgHa >= r.agbFrom && agbMgHa < r.agbBelow) as RootShootTableRow;
-  return { ratio: row.ratio, sd: sdOfRange(row.range, row.ratio) };
+  const at = zone.rows.findIndex((r) => agbMgHa >= r.agbFrom && agbMgHa < r.agbBelow);
+  const row = zone.rows[at] as RootShootTableRow;
+  return { ratio: row.ratio, sd: sdOfRange(row.range, row.ratio), row: `${relation}:${at}` };
 }
 
 // BGB = R · AGB Mg/ha — R as defined in IPCC 2006 GL Vol. 4 Ch. 4 Table 4.4 (memory); 0 where AGB is 0

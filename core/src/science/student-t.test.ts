@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { studentTCdf, studentTQuantile, studentTTwoSidedP, tMultiplier } from './student-t';
+import { studentTCdf, studentTDensity, studentTQuantile, studentTTwoSidedP, tMultiplier } from './student-t';
 
 describe('studentTQuantile', () => {
   // Critical values of Student's t as printed (3 decimals) in the t table at the back of standard
@@ -101,5 +101,22 @@ describe('tMultiplier', () => {
     expect(() => tMultiplier(1, 10)).toThrow(/^tMultiplier: confidence/);
     expect(() => tMultiplier(0.95, 0)).toThrow(/^tMultiplier: degrees of freedom/);
     expect(() => tMultiplier(0.95, Number.NaN)).toThrow(/degrees of freedom/);
+  });
+});
+
+describe('studentTDensity', () => {
+  it('the density is the derivative of the cdf (central difference of the quantile, df 3 and 50)', () => {
+    for (const df of [3, 50]) {
+      for (const p of [0.02, 0.3, 0.5, 0.9]) {
+        const e = 1e-6;
+        const slope = (studentTQuantile(p + e, df) - studentTQuantile(p - e, df)) / (2 * e);
+        expect(Math.abs(slope * studentTDensity(studentTQuantile(p, df), df) - 1)).toBeLessThan(1e-5);
+      }
+    }
+    // f(0; 1) = 1/π (Cauchy)
+    expect(studentTDensity(0, 1)).toBeCloseTo(1 / Math.PI, 12);
+  });
+  it('refuses degrees of freedom that are not positive', () => {
+    expect(() => studentTDensity(0, 0)).toThrow(/studentTDensity: degrees of freedom/);
   });
 });

@@ -2,6 +2,7 @@
 // Check values: docs/methods.md#student-t.
 import tCdf from '@stdlib/stats-base-dists-t-cdf';
 import tQuantile from '@stdlib/stats-base-dists-t-quantile';
+import { logGamma } from './log-gamma';
 
 // Throws naming the function when the degrees of freedom are not positive and finite.
 function checkDf(fn: string, df: number): void {
@@ -51,4 +52,11 @@ export function tMultiplier(confidence: number, df: number): number {
   byDf.set(df, t);
   remembered++;
   return t;
+}
+
+// f(t; ν) = Γ((ν+1)/2) / (√(νπ) Γ(ν/2)) · (1 + t²/ν)^(−(ν+1)/2), the density of Student's t (Student 1908, Biometrika 6:1–25)
+export function studentTDensity(t: number, df: number): number {
+  checkDf('studentTDensity', df);
+  const logC = logGamma((df + 1) / 2) - logGamma(df / 2) - 0.5 * Math.log(df * Math.PI);
+  return Math.exp(logC - ((df + 1) / 2) * Math.log1p((t * t) / df));
 }

@@ -22,3 +22,18 @@ export async function listRegionCarbonMoments(db: Queryable, region: string): Pr
     [region],
   );
 }
+
+/** The plot's change ending at its latest visit (the pair the summaries' change rows use) with the sums of its carbon uncertainty (null: computed before they were kept). */
+export async function listRegionChangeCarbonMoments(db: Queryable, region: string): Promise<PlotCarbonMomentsRow[]> {
+  return db.query<PlotCarbonMomentsRow>(
+    `with latest as (${LATEST_VISITS})
+     select p.plot_key "plotKey", p.forest_type "forestType", v.area_ha "areaHa", c.carbon_moments moments
+       from latest l
+       join plots p on p.id = l.plot_id
+       join plot_visits v on v.id = l.visit_id
+       join plot_change c on c.visit_to_id = l.visit_id
+      where c.carbon_net_change_mg_ha_yr is not null
+      order by p.plot_key collate "C"`,
+    [region],
+  );
+}

@@ -110,10 +110,12 @@ export interface PlotChangeWrite {
   speciesVersionId: number | null;
   /** One value per PLOT_CHANGE_DB_COLUMNS entry, in that order. */
   values: ReadonlyArray<number | null>;
+  /** The sums of the carbon change's uncertainty (stored as jsonb; docs/methods.md#carbon-uncertainty); absent: none. */
+  carbonMoments?: unknown;
 }
 
-const INSERT_SQL = `insert into plot_change (plot_id, visit_from_id, visit_to_id, species_version_id, ${CHANGE_NAMES.join(', ')})
-  select * from unnest($1::bigint[], $2::bigint[], $3::bigint[], $4::int[], ${PLOT_CHANGE_DB_COLUMNS.map(([, t], i) => `$${i + 5}::${t}[]`).join(', ')})`;
+const INSERT_SQL = `insert into plot_change (plot_id, visit_from_id, visit_to_id, species_version_id, ${CHANGE_NAMES.join(', ')}, carbon_moments)
+  select * from unnest($1::bigint[], $2::bigint[], $3::bigint[], $4::int[], ${PLOT_CHANGE_DB_COLUMNS.map(([, t], i) => `$${i + 5}::${t}[]`).join(', ')}, $${PLOT_CHANGE_DB_COLUMNS.length + 5}::jsonb[])`;
 
 /** Replaces every stored pair of the given plots by `rows` (a plot absent from rows keeps no pair). */
 export async function replacePlotChanges(tx: Queryable, plotIds: readonly number[], rows: readonly PlotChangeWrite[]): Promise<void> {
@@ -121,6 +123,7 @@ export async function replacePlotChanges(tx: Queryable, plotIds: readonly number
   if (!rows.length) return;
   const params: unknown[] = [rows.map((r) => r.plotId), rows.map((r) => r.visitFromId), rows.map((r) => r.visitToId), rows.map((r) => r.speciesVersionId)];
   for (let c = 0; c < CHANGE_NAMES.length; c++) params.push(rows.map((r) => r.values[c]));
+  params.push(rows.map((r) => (r.carbonMoments === undefined || r.carbonMoments === null ? null : JSON.stringify(r.carbonMoments))));
   await tx.query(INSERT_SQL, params);
 }
 

@@ -1,4 +1,4 @@
-import { bigint, doublePrecision, index, integer, pgTable, primaryKey, timestamp } from 'drizzle-orm/pg-core';
+import { bigint, doublePrecision, index, integer, jsonb, pgTable, primaryKey, timestamp } from 'drizzle-orm/pg-core';
 import { plots, plotVisits } from './plots';
 import { speciesVersions } from './species';
 
@@ -48,6 +48,8 @@ export const plotChange = pgTable(
     bgbNetChangeMgHaYr: doublePrecision('bgb_net_change_mg_ha_yr'),
     standingDeadNetChangeMgHaYr: doublePrecision('standing_dead_net_change_mg_ha_yr'),
     treeCarbonNetChangeMgHaYr: doublePrecision('tree_carbon_net_change_mg_ha_yr'),
+    // The sums of the carbon change's whole uncertainty (core's CarbonSums; docs/methods.md#carbon-uncertainty); null in rows written before they were kept.
+    carbonMoments: jsonb('carbon_moments'),
     computedAt: timestamp('computed_at', { withTimezone: true }).notNull().defaultNow(),
   },
   (t) => [primaryKey({ name: 'plot_change_pk', columns: [t.visitFromId, t.visitToId] }), index('plot_change_plot_idx').on(t.plotId)],

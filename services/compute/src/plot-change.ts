@@ -1,5 +1,5 @@
 import { clearProblems, listVisitsForChange, loadStemsWithTreeIds, PLOT_CHANGE_DB_COLUMNS, recordProblems, replacePlotChanges, type ChangeStemRow, type ChangeVisitRow, type PlotChangeWrite, type Queryable } from '@stemwise/db';
-import { computePlotMetrics, type ConfiguredRootShoot, PLOT_CHANGE_COLUMNS, plotChange, rootShootRelationOf, type ChangeVisit, type HeightDiameterModel, type PlotChange, type SpeciesIndex } from '@stemwise/core';
+import { computePlotMetrics, type ConfiguredRootShoot, PLOT_CHANGE_COLUMNS, plotChange, rootShootRelationOf, type ChangeVisit, type HeightDiameterModel, type HeightSource, type PlotChange, type SpeciesIndex } from '@stemwise/core';
 import { isInfrastructureError, type Logger } from '@stemwise/platform';
 
 // The science's change columns and the stored ones must be the same columns in the same order.
@@ -23,7 +23,7 @@ export interface PlotChangeContext {
 
 /** One visit's trees with the biomass of each live (and dead) stem, from the same models and settings as its plot metrics. */
 function changeVisit(visit: ChangeVisitRow, stems: readonly ChangeStemRow[], ctx: PlotChangeContext): ChangeVisit {
-  const { metrics, stemAgbKg, stemDeadKg } = computePlotMetrics(visit, stems, ctx.index, {
+  const { metrics, stemAgbKg, stemDeadKg, stemHeightSource } = computePlotMetrics(visit, stems, ctx.index, {
     heightModel: ctx.models.get(visit.forestType) ?? null,
     defaultWoodDensity: ctx.defaultWoodDensity,
     rootShoot: rootShootRelationOf(visit.forestType, visit.climate, ctx.rootShoot),
@@ -32,12 +32,13 @@ function changeVisit(visit: ChangeVisitRow, stems: readonly ChangeStemRow[], ctx
   });
   const agb = stemAgbKg as (number | null)[];
   const dead = stemDeadKg as (number | null)[];
+  const source = stemHeightSource as (HeightSource | null)[];
   return {
     surveyDate: visit.surveyDate,
     areaHa: visit.areaHa,
     dbhMinCm: visit.dbhMinCm,
     rootShootRatio: metrics.rootShootRatio,
-    trees: stems.map((s, i) => ({ treeId: s.treeId, dbhCm: s.dbhCm, status: s.status, stumpCause: s.stumpCause, inSubplot: s.inSubplot, agbKg: agb[i], deadKg: dead[i] })),
+    trees: stems.map((s, i) => ({ treeId: s.treeId, dbhCm: s.dbhCm, status: s.status, stumpCause: s.stumpCause, inSubplot: s.inSubplot, agbKg: agb[i], deadKg: dead[i], heightSource: source[i] })),
   };
 }
 
@@ -65,8 +66,9 @@ export async function writePlotChanges(tx: Queryable, plotIds: readonly number[]
       const cv = list.map((v) => changeVisit(v, stemsOf.get(v.visitId) ?? [], ctx));
       const rows: PlotChangeWrite[] = [];
       for (let i = 1; i < cv.length; i++) {
-        const c = plotChange(cv[i - 1], cv[i]) as unknown as Record<string, number | null>;
-        rows.push({ plotId: plot.plotId, visitFromId: list[i - 1].visitId, visitToId: list[i].visitId, speciesVersionId: ctx.speciesVersionId, values: CHANGE_KEYS.map((k) => c[k]) });
+        const change = plotChange(cv[i - 1], cv[i], undefined, { carbonMoments: true });
+        const c = change as unknown as Record<string, number | null>;
+        rows.push({ plotId: plot.plotId, visitFromId: list[i - 1].visitId, visitToId: list[i].visitId, speciesVersionId: ctx.speciesVersionId, values: CHANGE_KEYS.map((k) => c[k]), carbonMoments: change.carbonMoments ?? null });
       }
       writes.push(...rows);
       done.push(plot.plotKey);

@@ -1,12 +1,14 @@
-import { listHeightModels, listRegionCarbonMoments, type Queryable } from '@stemwise/db';
+import { listHeightModels, listRegionCarbonMoments, listRegionChangeCarbonMoments, type Queryable } from '@stemwise/db';
 import {
   CARBON_ERROR_SOURCES,
   carbonUncertainty,
+  hasCarbonSums,
   heightModelFromRow,
   IPCC_2006_CARBON_FRACTION,
   WHOLE_REGION,
   type CarbonErrorSource,
   type CarbonMoments,
+  type CarbonPool,
   type CarbonStratum,
   type CarbonUncertainty,
   type HeightModelError,
@@ -15,19 +17,31 @@ import {
 import type { Config } from '@stemwise/platform';
 import { resolveForestAreas } from './summary/forest-areas';
 
-// The whole uncertainty of the above-ground carbon stock in the region and national summaries
-// (docs/methods.md#carbon-uncertainty): read the sums each plot's metrics stored, the forest types'
-// height models, and run the Monte Carlo of core's carbonUncertainty. Kept apart from the summaries'
-// own estimators: the summaries call these functions once each and store what they return.
+// The whole uncertainty of carbon in the region and national summaries (docs/methods.md#carbon-uncertainty):
+// three sections, each of one summary variable — the above-ground carbon stock (carbon_mg_ha), the tree
+// pool (tree_carbon_mg_ha: above- and below-ground live biomass and standing dead wood) and the net
+// above-ground carbon change between visits (carbon_net_change_mg_ha_yr). Each reads the sums the
+// metrics (or change) stage stored per plot, the forest types' height models, and runs the Monte Carlo of
+// core's carbonUncertainty. Kept apart from the summaries' own estimators: the summaries call these
+// functions once per section and store what they return.
 
-/** The variable whose rows get the whole interval. */
+/** The variable of the above-ground stock section (the first section, kept under its old name). */
 export const CARBON_VARIABLE = 'carbon_mg_ha';
+
+/** The sections: the summary variable each gives the whole interval to, and what its figure is. */
+export const CARBON_SECTIONS = {
+  stock: { variable: 'carbon_mg_ha', pool: 'above-ground', corePool: 'aboveGround' },
+  trees: { variable: 'tree_carbon_mg_ha', pool: 'trees', corePool: 'trees' },
+  change: { variable: 'carbon_net_change_mg_ha_yr', pool: 'above-ground change', corePool: 'aboveGround' },
+} as const satisfies Record<string, { variable: string; pool: string; corePool: CarbonPool }>;
+export type CarbonSectionKind = keyof typeof CARBON_SECTIONS;
+type SectionSpec = (typeof CARBON_SECTIONS)[CarbonSectionKind];
 
 /** One scope (the whole region or nation, or one forest type) of the section. */
 export interface CarbonUncertaintyRow {
   readonly forest_type: string;
   readonly n_plots: number;
-  /** Mg C/ha. */
+  /** Mg C/ha (change: Mg C/ha/yr). */
   readonly mean: number;
   readonly sampling_se: number;
   readonly sampling_ci_low: number;
@@ -36,7 +50,7 @@ export interface CarbonUncertaintyRow {
   readonly whole_ci_low: number;
   readonly whole_ci_high: number;
   readonly forest_area_ha: number | null;
-  /** Mg C over the forest area; null without every stratum's area. */
+  /** Mg C (change: Mg C/yr) over the forest area; null without every stratum's area. */
   readonly total: number | null;
   readonly total_sampling_ci_low: number | null;
   readonly total_sampling_ci_high: number | null;
@@ -47,8 +61,8 @@ export interface CarbonUncertaintyRow {
 }
 
 export interface CarbonUncertaintySection {
-  readonly variable: typeof CARBON_VARIABLE;
-  readonly pool: 'above-ground';
+  readonly variable: SectionSpec['variable'];
+  readonly pool: SectionSpec['pool'];
   readonly rows: readonly CarbonUncertaintyRow[];
   readonly draws: number;
   readonly seed: number;
@@ -68,20 +82,44 @@ export const CARBON_COVERS: readonly string[] = [
   "each tree's wood density around its reference value",
 ];
 
-export const CARBON_NOT_COVERED: readonly string[] = [
+const NOT_COVERED_COMMON: readonly string[] = [
   'field measurement error (diameters, heights, species names)',
   "the error of the forest-area map: forest areas are taken as exact",
   "the biomass model's own parameter uncertainty and any bias of a pantropical model at this site",
   'errors shared by the reference wood densities of a species',
   'the carbon fraction (0.47 taken as exact)',
-  'the other carbon pools: this interval is of above-ground live trees only (below-ground biomass and standing dead wood have sampling intervals only; lying dead wood, litter and soil are not estimated)',
 ];
 
-const isMoments = (m: unknown): m is CarbonMoments => {
-  if (typeof m !== 'object' || m === null) return false;
-  const x = m as Record<string, unknown>;
-  const arr = (v: unknown, n: number) => Array.isArray(v) && v.length === n && v.every((e) => typeof e === 'number');
-  return typeof x.value === 'number' && arr(x.sq, 3) && arr(x.sqPlot, 3) && arr(x.lnD, 5);
+export const CARBON_NOT_COVERED: readonly string[] = [
+  ...NOT_COVERED_COMMON,
+  'the other carbon pools: this interval is of above-ground live trees only (the tree-pool section adds below-ground biomass and standing dead wood; lying dead wood, litter and soil are not estimated)',
+];
+
+const COVERS: Readonly<Record<CarbonSectionKind, readonly string[]>> = {
+  stock: CARBON_COVERS,
+  trees: [
+    ...CARBON_COVERS,
+    "the root-to-shoot ratio: each plot's own ratio (its forest type's relation at its biomass), with the error of the table row or equation it came from shared by every plot that uses it",
+    'the same per-tree and height-model errors for the standing dead stems',
+  ],
+  change: [
+    ...CARBON_COVERS,
+    "for a tree measured at both visits, its model errors are taken as the same at both (the tree's error cancels in part in its growth)",
+  ],
+};
+
+const NOT_COVERED: Readonly<Record<CarbonSectionKind, readonly string[]>> = {
+  stock: CARBON_NOT_COVERED,
+  trees: [
+    ...NOT_COVERED_COMMON,
+    'the share of its biomass a standing dead stem keeps (taken as exact) and the error of the ratio beyond the range its table row gives',
+    'lying dead wood, litter and soil (not estimated)',
+  ],
+  change: [
+    ...NOT_COVERED_COMMON,
+    'changes of the models between the visits (the same models are applied to both visits)',
+    'below-ground biomass, dead wood, litter and soil: this interval is of the above-ground live-tree carbon change only',
+  ],
 };
 
 interface PlotSums {
@@ -90,13 +128,14 @@ interface PlotSums {
   readonly moments: CarbonMoments;
 }
 
-/** A region's plots with their sums, or the number that have none. */
-export async function readRegionCarbonSums(db: Queryable, region: string): Promise<{ plots: PlotSums[]; without: number }> {
-  const rows = await listRegionCarbonMoments(db, region);
+/** A region's plots (latest visit; for change, the pair ending at it) with the section's sums, or the number that have none. */
+export async function readRegionCarbonSums(db: Queryable, region: string, kind: CarbonSectionKind = 'stock'): Promise<{ plots: PlotSums[]; without: number }> {
+  const rows = kind === 'change' ? await listRegionChangeCarbonMoments(db, region) : await listRegionCarbonMoments(db, region);
+  const pool = CARBON_SECTIONS[kind].corePool;
   const plots: PlotSums[] = [];
   let without = 0;
   for (const r of rows) {
-    if (isMoments(r.moments)) plots.push({ scope: region, forestType: r.forestType, moments: r.moments });
+    if (hasCarbonSums(r.moments, pool)) plots.push({ scope: region, forestType: r.forestType, moments: r.moments });
     else without += 1;
   }
   return { plots, without };
@@ -113,18 +152,24 @@ async function heightModelErrors(db: Queryable, forestTypes: readonly string[]):
 
 type Settings = Pick<Config, 'carbonDraws' | 'seed' | 'carbonAllometryRse' | 'carbonWoodDensitySd'>;
 
-const unavailable = (config: Settings, missing: string): CarbonUncertaintySection => ({
-  variable: CARBON_VARIABLE,
-  pool: 'above-ground',
+const unavailable = (config: Settings, kind: CarbonSectionKind, missing: string): CarbonUncertaintySection => ({
+  variable: CARBON_SECTIONS[kind].variable,
+  pool: CARBON_SECTIONS[kind].pool,
   rows: [],
   draws: config.carbonDraws,
   seed: config.seed,
   confidence: 0.95,
   tree_error_scope: null,
   missing,
-  covers: CARBON_COVERS,
-  not_covered: CARBON_NOT_COVERED,
+  covers: COVERS[kind],
+  not_covered: NOT_COVERED[kind],
 });
+
+const RECOMPUTE: Readonly<Record<CarbonSectionKind, string>> = {
+  stock: 'were computed before the sums of the carbon uncertainty were kept',
+  trees: "were computed before the sums of the tree pool's uncertainty (root-to-shoot ratio and dead wood) were kept",
+  change: 'have a change between visits computed before the sums of its carbon uncertainty were kept',
+};
 
 function row(forestType: string, r: CarbonUncertainty): CarbonUncertaintyRow {
   const a = r.area;
@@ -155,15 +200,16 @@ function row(forestType: string, r: CarbonUncertainty): CarbonUncertaintyRow {
 export async function carbonUncertaintySection(
   db: Queryable,
   config: Settings,
+  kind: CarbonSectionKind,
   plots: readonly PlotSums[],
   without: number,
   areaOf: (scope: string, forestType: string) => number | null,
 ): Promise<CarbonUncertaintySection | null> {
   if (config.carbonDraws === 0) return null;
   if (without > 0) {
-    return unavailable(config, `${without} plot(s) were computed before the sums of the carbon uncertainty were kept: run a full recompute (stemwise recompute --all) to get the whole interval.`);
+    return unavailable(config, kind, `${without} plot(s) ${RECOMPUTE[kind]}: run a full recompute (stemwise recompute --all) to get the whole interval.`);
   }
-  if (plots.length === 0) return unavailable(config, 'no plots');
+  if (plots.length === 0) return unavailable(config, kind, kind === 'change' ? 'no plot measured twice' : 'no plots');
   const byStratum = new Map<string, { scope: string; forestType: string; moments: CarbonMoments[] }>();
   for (const p of plots) {
     const key = `${p.scope}\u0000${p.forestType}`;
@@ -185,24 +231,31 @@ export async function carbonUncertaintySection(
     allometryRse: config.carbonAllometryRse,
     woodDensityTreeSd: config.carbonWoodDensitySd,
     heightModels: await heightModelErrors(db, forestTypes),
+    pool: CARBON_SECTIONS[kind].corePool,
     stratified: { weighting: allAreas ? ('area' as const) : ('plot_count' as const) },
   };
   const whole = carbonUncertainty(usable, settings);
-  if (whole === null) return unavailable(config, 'a stratum has a single plot: no sampling variance, so no interval (as for the sampling interval)');
+  if (whole === null) return unavailable(config, kind, 'a stratum has a single plot: no sampling variance, so no interval (as for the sampling interval)');
   const rows = [row(WHOLE_REGION, whole)];
   for (const t of forestTypes) {
     const r = carbonUncertainty(usable.filter((s) => s.forestType === t), settings);
     if (r !== null) rows.push(row(t, r));
   }
-  return { ...unavailable(config, ''), rows, confidence: whole.confidence, tree_error_scope: whole.treeErrorScope, missing: null };
+  return { ...unavailable(config, kind, ''), rows, confidence: whole.confidence, tree_error_scope: whole.treeErrorScope, missing: null };
 }
 
 /** A region's section: its forest types as strata, with the areas the region summary uses. */
-export async function regionCarbonUncertainty(db: Queryable, config: Settings, region: string, forestAreas: Readonly<Record<string, number>>): Promise<CarbonUncertaintySection | null> {
+export async function regionCarbonUncertainty(
+  db: Queryable,
+  config: Settings,
+  region: string,
+  forestAreas: Readonly<Record<string, number>>,
+  kind: CarbonSectionKind = 'stock',
+): Promise<CarbonUncertaintySection | null> {
   if (config.carbonDraws === 0) return null;
-  const { plots, without } = await readRegionCarbonSums(db, region);
+  const { plots, without } = await readRegionCarbonSums(db, region, kind);
   const resolved = resolveForestAreas([...new Set(plots.map((p) => p.forestType))].sort(), forestAreas);
-  return carbonUncertaintySection(db, config, plots, without, (_scope, t) => resolved.areas[t] ?? null);
+  return carbonUncertaintySection(db, config, kind, plots, without, (_scope, t) => resolved.areas[t] ?? null);
 }
 
 /** The national section: region × forest type as strata. */
@@ -210,26 +263,28 @@ export async function nationalCarbonUncertainty(
   db: Queryable,
   config: Settings,
   regions: ReadonlyArray<{ readonly region: string; readonly forestAreas?: Readonly<Record<string, number>> }>,
+  kind: CarbonSectionKind = 'stock',
 ): Promise<CarbonUncertaintySection | null> {
   if (config.carbonDraws === 0) return null;
   const plots: PlotSums[] = [];
   let without = 0;
   const areas = new Map<string, Readonly<Record<string, number | null>>>();
   for (const r of regions) {
-    const sums = await readRegionCarbonSums(db, r.region);
+    const sums = await readRegionCarbonSums(db, r.region, kind);
     plots.push(...sums.plots);
     without += sums.without;
     areas.set(r.region, resolveForestAreas([...new Set(sums.plots.map((p) => p.forestType))].sort(), r.forestAreas ?? {}).areas);
   }
-  return carbonUncertaintySection(db, config, plots, without, (scope, t) => areas.get(scope)?.[t] ?? null);
+  return carbonUncertaintySection(db, config, kind, plots, without, (scope, t) => areas.get(scope)?.[t] ?? null);
 }
 
-/** The summary rows of carbon_mg_ha with the whole interval of the section added (the other rows as they are). */
-export function withWholeInterval<R extends RegionRow>(rows: readonly R[], section: CarbonUncertaintySection | null | undefined): R[] {
-  if (!section || section.rows.length === 0) return [...rows];
-  const byType = new Map(section.rows.map((r) => [r.forest_type, r]));
+/** The summary rows of each section's variable with its whole interval added (the other rows as they are). */
+export function withWholeInterval<R extends RegionRow>(rows: readonly R[], ...sections: readonly (CarbonUncertaintySection | null | undefined)[]): R[] {
+  const byKey = new Map<string, CarbonUncertaintyRow>();
+  for (const section of sections) for (const u of section?.rows ?? []) byKey.set(`${section?.variable}\u0000${u.forest_type}`, u);
+  if (byKey.size === 0) return [...rows];
   return rows.map((r) => {
-    const u = r.variable === CARBON_VARIABLE ? byType.get(r.forest_type) : undefined;
+    const u = byKey.get(`${r.variable}\u0000${r.forest_type}`);
     if (!u) return r;
     return { ...r, whole_se: u.whole_se, whole_ci_low: u.whole_ci_low, whole_ci_high: u.whole_ci_high, total_whole_ci_low: u.total_whole_ci_low, total_whole_ci_high: u.total_whole_ci_high };
   });

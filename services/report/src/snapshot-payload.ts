@@ -121,6 +121,10 @@ export interface SnapshotPayload<C extends SnapshotCharts = SnapshotCharts> {
   readonly fits: readonly SnapshotFitRow[];
   /** Whole uncertainty of the above-ground carbon stock (docs/methods.md#carbon-uncertainty); null when off, absent in older snapshots. */
   readonly carbon_uncertainty?: CarbonUncertaintySection | null;
+  /** The same for the tree pool (tree_carbon_mg_ha: above- and below-ground live biomass and standing dead wood); absent in older snapshots. */
+  readonly tree_carbon_uncertainty?: CarbonUncertaintySection | null;
+  /** The same for the net above-ground carbon change between visits (carbon_net_change_mg_ha_yr); absent in older snapshots. */
+  readonly carbon_change_uncertainty?: CarbonUncertaintySection | null;
   /** The pairs of visits behind the estimates of change (null: no plot measured twice); absent in snapshots made before it. */
   readonly change?: ChangeCoverage | null;
   /** Share of the AGB from each height source and wood-density level (absent in older snapshots). */

@@ -129,8 +129,10 @@ export async function assembleRegionSnapshot(deps: Deps, region: string, charts:
   const inputPlots = regionPlotInputs(plots);
   const strata = new PlotStrata(inputPlots); // each value read once, for the summary and the aggregates
   const estimated = summariseRegion({ region, plots: inputPlots, forestAreas: areas, variables: summaryVariables(inputPlots), options: { samplingErrorT: samplingErrorMultiplier(config), caution: cautionSettings(config) } }, strata);
-  const carbon = await regionCarbonUncertainty(db, config, region, areas);
-  const summary = { ...estimated, rows: withWholeInterval(estimated.rows, carbon) };
+  const carbon = await regionCarbonUncertainty(db, config, region, areas, 'stock');
+  const treeCarbon = await regionCarbonUncertainty(db, config, region, areas, 'trees');
+  const carbonChange = await regionCarbonUncertainty(db, config, region, areas, 'change');
+  const summary = { ...estimated, rows: withWholeInterval(estimated.rows, carbon, treeCarbon, carbonChange) };
 
   const fits: SnapshotFitRow[] = [];
   for (const scope of [{ kind: 'forest_type' }, { kind: 'region', region }] as const) {
@@ -157,6 +159,8 @@ export async function assembleRegionSnapshot(deps: Deps, region: string, charts:
     biomass_method: sharesOf(aggregates.biomass, aggregates.forest_types.map((t) => t.forest_type)),
     plot_sizes: sizes.map((z) => ({ forest_type: z.forestType, area_ha: z.areaHa, n_plots: z.plots })),
     carbon_uncertainty: carbon,
+    tree_carbon_uncertainty: treeCarbon,
+    carbon_change_uncertainty: carbonChange,
     change: coverageOf(aggregates.change),
     charts: { means, guilds, change, fits: fitCharts },
   };

@@ -58,6 +58,7 @@ export function renderNationalPage(input: NationalPageInput): string {
   <h2 id="carbon-pools">Carbon pools</h2>
   ${poolsSection(summary.rows, summary.totals, input.carbonFraction) ?? html`<p class="muted">This summary was made before the carbon pools were estimated; the next recompute adds them.</p>`}
   ${carbonUncertaintySection(s.payload.carbon_uncertainty, 'All regions together (stratified)')}
+  ${carbonUncertaintySection(s.payload.tree_carbon_uncertainty, 'All regions together (stratified)')}
   ${means ? html`<h2>Charts</h2><figure id="means-chart">${means}<figcaption>Means per hectare with their 95 % confidence intervals: all regions together (dark) and each forest type nationally.</figcaption></figure>` : null}
   ${input.map ? html`<h2 id="where">Where the plots are</h2>${input.map}` : null}
   <h2>Estimates by forest type, nationally</h2>
@@ -65,6 +66,7 @@ export function renderNationalPage(input: NationalPageInput): string {
   ${cautionLegend(summary.caution)}
   <h2 id="change-between-visits">Change between visits</h2>
   ${changeSection({ rows: summary.rows, coverage: s.payload.change, chartSvg: s.payload.charts.change, whole: WHOLE_COUNTRY, scope: 'country' })}
+  ${carbonUncertaintySection(s.payload.carbon_change_uncertainty, 'All regions together (stratified)')}
   <h2 id="stand-table-heading">Stand table by diameter class</h2>
   ${standTableSection(summary.rows, WHOLE_COUNTRY) ?? html`<p class="muted">No stand table in this version of the summary.</p>`}
   ${biomassMethodSection(s.payload.biomass_method)}

@@ -246,6 +246,7 @@ export function renderRegionPage(input: RegionPageInput): string {
   <h2 id="carbon-pools">Carbon pools</h2>
   ${poolsSection(summary.rows, summary.totals, method.carbon_fraction) ?? html`<p class="muted">This summary was made before the carbon pools were estimated; the next recompute adds them.</p>`}
   ${carbonUncertaintySection(s.payload.carbon_uncertainty, 'Whole region (stratified)')}
+  ${carbonUncertaintySection(s.payload.tree_carbon_uncertainty, 'Whole region (stratified)')}
   <h2>Charts</h2>
   ${means ? html`<figure id="means-chart">${means}<figcaption>Means per hectare with their 95 % confidence intervals: the whole region (dark) and each forest type. Wide intervals come from few plots.</figcaption></figure>` : null}
   ${guilds ? html`<figure id="guild-chart">${guilds}<figcaption>Guild composition: the mean share of live basal area per plot.</figcaption></figure>` : null}
@@ -258,6 +259,7 @@ export function renderRegionPage(input: RegionPageInput): string {
   ${cautionLegend(summary.caution)}
   <h2 id="change-between-visits">Change between visits</h2>
   ${changeSection({ rows: summary.rows, coverage: s.payload.change, chartSvg: charts.change, scope: 'region' })}
+  ${carbonUncertaintySection(s.payload.carbon_change_uncertainty, 'Whole region (stratified)')}
   <h2 id="stand-table-heading">Stand table by diameter class</h2>
   ${standTableSection(summary.rows, 'Whole region (stratified)') ?? html`<p class="muted">No stand table in this version of the summary.</p>`}
   ${biomassMethodSection(s.payload.biomass_method)}

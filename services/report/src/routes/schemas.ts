@@ -60,10 +60,10 @@ export const RegionRowSchema = z.object({
   forest_area_ha: num,
   total: num.describe('mean × forest area, for per-hectare variables with known areas'),
   caution_flag: z.enum(['none', 'few_plots', 'wide_error', 'few_plots_wide_error', 'no_error_estimate']).optional().describe('few plots or a wide sampling error (docs/exports.md); absent in summaries made before it existed'),
-  whole_se: num.optional().describe('carbon_mg_ha rows: SD of the Monte Carlo of every error source (docs/methods.md#carbon-uncertainty)'),
-  whole_ci_low: num.optional().describe('carbon_mg_ha rows: the whole interval (sampling and model errors)'),
+  whole_se: num.optional().describe('carbon_mg_ha, tree_carbon_mg_ha and carbon_net_change_mg_ha_yr rows: SD of the Monte Carlo of every error source (docs/methods.md#carbon-uncertainty)'),
+  whole_ci_low: num.optional().describe('carbon_mg_ha, tree_carbon_mg_ha and carbon_net_change_mg_ha_yr rows: the whole interval (sampling and model errors)'),
   whole_ci_high: num.optional(),
-  total_whole_ci_low: num.optional().describe('carbon_mg_ha rows: the whole interval of the total'),
+  total_whole_ci_low: num.optional().describe('the same rows: the whole interval of the total'),
   total_whole_ci_high: num.optional(),
 });
 
@@ -76,10 +76,10 @@ const SharesSchema = z.object({
   rootShoot: z.number(),
 });
 
-export const CarbonUncertaintySchema = z
+const carbonSectionSchema = (variable: string, pool: string) => z
   .object({
-    variable: z.literal('carbon_mg_ha'),
-    pool: z.literal('above-ground'),
+    variable: z.literal(variable),
+    pool: z.literal(pool),
     rows: z.array(
       z.object({
         forest_type: z.string(),
@@ -108,8 +108,17 @@ export const CarbonUncertaintySchema = z
     covers: z.array(z.string()),
     not_covered: z.array(z.string()),
   })
-  .nullable()
-  .describe('whole uncertainty of the above-ground carbon stock (docs/methods.md#carbon-uncertainty); null when STEMWISE_CARBON_DRAWS is 0 or the summary predates it');
+  .nullable();
+
+export const CarbonUncertaintySchema = carbonSectionSchema('carbon_mg_ha', 'above-ground').describe(
+  'whole uncertainty of the above-ground carbon stock (docs/methods.md#carbon-uncertainty); null when STEMWISE_CARBON_DRAWS is 0 or the summary predates it',
+);
+export const TreeCarbonUncertaintySchema = carbonSectionSchema('tree_carbon_mg_ha', 'trees')
+  .optional()
+  .describe('whole uncertainty of the tree pool, tree_carbon_mg_ha: live above- and below-ground biomass (each plot its own root-to-shoot ratio) and standing dead wood; null when off, absent in summaries made before it');
+export const CarbonChangeUncertaintySchema = carbonSectionSchema('carbon_net_change_mg_ha_yr', 'above-ground change')
+  .optional()
+  .describe('whole uncertainty of the net above-ground carbon change between visits, carbon_net_change_mg_ha_yr (Mg C/ha/yr); null when off, absent in summaries made before it');
 
 const CautionSchema = z.object({ min_plots: z.number().int(), max_sampling_error_pct: z.number() }).optional().describe('thresholds of caution_flag');
 
@@ -233,6 +242,7 @@ export const ChangeResponse = z.object({
   coverage: ChangeCoverageSchema.nullable().describe('null when no plot has been measured twice (or the summary predates the record)'),
   variables: z.array(z.object({ variable: z.string(), name: z.string(), unit: z.string().describe('unit of the values as served'), description: z.string() })),
   estimates: z.array(RegionRowSchema).describe('the `export regions` rows of the change variables: `all` first, then each forest type; empty without plots measured twice'),
+  carbon_uncertainty: carbonSectionSchema('carbon_net_change_mg_ha_yr', 'above-ground change').describe('whole uncertainty of net carbon change (docs/methods.md#carbon-uncertainty); null when off or in a summary made before it'),
   caution: z.string(),
 });
 
@@ -251,6 +261,8 @@ export const SummaryResponse = z.object({
   summary: RegionSummarySchema,
   fits: z.array(FitRowSchema),
   carbon_uncertainty: CarbonUncertaintySchema,
+  tree_carbon_uncertainty: TreeCarbonUncertaintySchema,
+  carbon_change_uncertainty: CarbonChangeUncertaintySchema,
   change: ChangeCoverageSchema.nullable().optional().describe('the pairs of visits behind the estimates of change (absent in summaries made before it was recorded)'),
 });
 

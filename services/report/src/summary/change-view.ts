@@ -1,4 +1,5 @@
 import { NATIONAL, variableLabel, type RegionRow } from '@stemwise/core';
+import type { CarbonUncertaintySection } from '../carbon-uncertainty';
 import type { ChangeCoverage } from './change-coverage';
 import { CHANGE_VARIABLES } from './region-summary';
 
@@ -16,7 +17,7 @@ export const NET_CARBON_MEANING =
 
 /** The caution shown with every estimate of change. */
 export const CHANGE_CAUTION =
-  'Estimates of change carry the error of the biomass models and large chance variation: over a few years a handful of large trees dying dominates a plot\'s net change. The intervals cover sampling error only. Read them with their intervals, as regional figures, and defer to national methods and local regulations for carbon reporting and logging decisions.';
+  'Estimates of change carry the error of the biomass models and large chance variation: over a few years a handful of large trees dying dominates a plot\'s net change. The ci_low–ci_high intervals cover sampling error only; for net carbon change the whole interval (whole_ci_low–whole_ci_high, and carbon_uncertainty) adds the error of the biomass and height models, and is still not all of it. Read them with their intervals, as regional figures, and defer to national methods and local regulations for carbon reporting and logging decisions.';
 
 export interface ChangeVariable {
   readonly variable: string;
@@ -37,6 +38,8 @@ export interface ChangeView {
   readonly variables: readonly ChangeVariable[];
   /** The `export regions` rows of the change variables: the whole region (`all`) first, then each forest type. */
   readonly estimates: readonly RegionRow[];
+  /** The whole uncertainty of net carbon change (docs/methods.md#carbon-uncertainty); null when off or in a summary made before it. */
+  readonly carbon_uncertainty: CarbonUncertaintySection | null;
   readonly caution: string;
 }
 
@@ -54,7 +57,14 @@ export function changeRows(rows: readonly RegionRow[]): RegionRow[] {
   return rows.filter((r) => change.has(r.variable));
 }
 
-export function changeView(s: { region?: string; version: number; createdAt: Date; rows: readonly RegionRow[]; coverage: ChangeCoverage | null | undefined }): ChangeView {
+export function changeView(s: {
+  region?: string;
+  version: number;
+  createdAt: Date;
+  rows: readonly RegionRow[];
+  coverage: ChangeCoverage | null | undefined;
+  carbonUncertainty?: CarbonUncertaintySection | null;
+}): ChangeView {
   return {
     region: s.region ?? NATIONAL,
     version: s.version,
@@ -64,6 +74,7 @@ export function changeView(s: { region?: string; version: number; createdAt: Dat
     coverage: s.coverage ?? null,
     variables: changeVariables(),
     estimates: changeRows(s.rows),
+    carbon_uncertainty: s.carbonUncertainty ?? null,
     caution: CHANGE_CAUTION,
   };
 }

@@ -1,0 +1,1 @@
+ALTER TABLE "plot_change" ADD COLUMN "carbon_moments" jsonb;
