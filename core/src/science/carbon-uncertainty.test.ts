@@ -369,6 +369,71 @@ describe("the tree pool: each plot's own root-to-shoot ratio and its dead wood",
   });
 });
 
+describe("the tree pool's change: each visit's ratio, a row's error shared by both visits that read it", () => {
+  const base = sampleStrata(31, 12);
+  const CHANGE: CarbonUncertaintySettings = { ...SHARED, pool: 'treesChange' };
+  // Pairs whose sums are the sample plots' (the Monte Carlo only reads the sums) and whose visits' live biomass per year is
+  // S₁/t = value, S₂/t = 1.1·value; rows by forest type, the same at both visits or (second visit) another row.
+  const pairs = (sameRow: boolean): CarbonStratum[] =>
+    base.map((s) => ({
+      ...s,
+      plots: s.plots.map((p) => ({
+        ...p,
+        rootShootParts: [
+          { ratio: 0.2, sd: 0.05, row: s.forestType, agb: -p.value },
+          { ratio: 0.2, sd: 0.05, row: sameRow ? s.forestType : `${s.forestType}+`, agb: 1.1 * p.value },
+        ],
+      })),
+    }));
+  const total = base.reduce((a, s) => a + (s.size as number), 0);
+  const rowMean = (s: CarbonStratum, f: number): number => (CF * ((s.size as number) / total) * s.plots.reduce((a, p) => a + 0.05 * f * p.value, 0)) / s.plots.length;
+  const rootVar = (r: NonNullable<ReturnType<typeof carbonUncertainty>>): number => r.shares.rootShoot * r.wholeSe ** 2;
+
+  it('a stock expressed as a pair of one visit (its tree-pool sums, one part) gives the same draws as the tree pool itself', () => {
+    const stock = withRatio(base, TYPE_RATIO).map((s) => ({ ...s, plots: s.plots.map((p) => ({ ...p, deadWood: plotOf([{ agbKg: 300, dbhCm: 30, source: 'modelled' }], 0.25) })) }));
+    const asPair = stock.map((s) => ({
+      ...s,
+      plots: s.plots.map((p) => {
+        const g = 1 + (p.rootShoot?.ratio as number);
+        const d = p.deadWood as CarbonMoments;
+        const add = (a: readonly number[], b: readonly number[], f: number) => a.map((x, i) => f * x + b[i]);
+        return {
+          value: g * p.value + d.value,
+          sq: add(p.sq, d.sq, g * g) as [number, number, number],
+          sqPlot: add(p.sqPlot, d.sqPlot, g * g) as [number, number, number],
+          lnD: add(p.lnD, d.lnD, g) as [number, number, number, number, number],
+          rootShootParts: [{ ...(p.rootShoot as NonNullable<CarbonMoments['rootShoot']>), agb: p.value }],
+        };
+      }),
+    }));
+    expect(carbonUncertainty(asPair, { ...CHANGE, draws: 1000, seed: 5 })).toEqual(carbonUncertainty(stock, { ...TREES, draws: 1000, seed: 5 }));
+  });
+
+  it("the ratio's part: one draw per row, so a row read at both visits gives (CF Σ W_h mean(sd·(S₂ − S₁)/t))², two rows the sum of their squares (5 %)", () => {
+    const settings = { ...CHANGE, draws: 40_000, seed: 12, allometryRse: 0, woodDensityTreeSd: 0 };
+    const same = carbonUncertainty(pairs(true), settings) as NonNullable<ReturnType<typeof carbonUncertainty>>;
+    const apart = carbonUncertainty(pairs(false), settings) as NonNullable<ReturnType<typeof carbonUncertainty>>;
+    const wantSame = base.reduce((a, s) => a + rowMean(s, 0.1) ** 2, 0);
+    const wantApart = base.reduce((a, s) => a + rowMean(s, -1) ** 2 + rowMean(s, 1.1) ** 2, 0);
+    expect(Math.abs(rootVar(same) / wantSame - 1)).toBeLessThan(0.05);
+    expect(Math.abs(rootVar(apart) / wantApart - 1)).toBeLessThan(0.05);
+    // the shared row cancels in the change: about (0.1)² / (1 + 1.21) of the separate rows' part
+    expect(rootVar(same)).toBeLessThan(0.01 * rootVar(apart));
+    // the sampling interval does not depend on the ratios' errors
+    expect(same.sampling).toEqual(apart.sampling);
+  });
+
+  it('the same inputs and seed give identical intervals; another seed gives others; incomplete sums are refused', () => {
+    const a = carbonUncertainty(pairs(false), { ...CHANGE, draws: 1000, seed: 3 });
+    expect(carbonUncertainty(pairs(false), { ...CHANGE, draws: 1000, seed: 3 })).toEqual(a);
+    expect(carbonUncertainty(pairs(false), { ...CHANGE, draws: 1000, seed: 4 })?.whole.low).not.toBe(a?.whole.low);
+    expect(() => carbonUncertainty(base, CHANGE)).toThrow(/carbonUncertainty: the 'treesChange' pool needs/);
+    expect(hasCarbonSums(pairs(true)[0].plots[0], 'treesChange')).toBe(true);
+    expect(hasCarbonSums(base[0].plots[0], 'treesChange')).toBe(false);
+    expect(hasCarbonSums({ ...base[0].plots[0], rootShootParts: [{ ratio: 0.2, sd: 0.05, row: 'x', agb: Number.NaN }] }, 'treesChange')).toBe(false);
+  });
+});
+
 describe('coverage by simulation: inventories with a known model error', () => {
   // A fixed forest of 2 strata × 800 plots of 0.1 ha (5 trees each, 30 % with a measured height). In each
   // simulated inventory the errors are drawn anew: 20 heights are measured around the true height–diameter

@@ -13,10 +13,13 @@
 //    to second order from five sums per plot, Σ w·v·(ln D)^k, k = 0..4, accuracy tested against the
 //    tree-by-tree effect); and, for the tree pool, the root-to-shoot ratio, drawn once per iteration and
 //    row of its relation (a table row or the equation): every plot that read the same row shares its error.
-// Two pools: 'aboveGround' (live trees above ground; also the change of it between visits) and 'trees'
+// Pools: 'aboveGround' (live trees above ground; also the change of it between visits) and 'trees'
 // (CF·((1 + R_p)·AGB_p + dead wood_p), the figure of tree_carbon_mg_ha): each plot carries its own ratio
 // R_p, so the sampling part is the stratified estimate of the plot's own tree carbon, and its per-tree
 // and height-parameter sums are scaled by (1 + R_p) before the standing dead wood's sums are added.
+// A third, 'treesChange' (the figure of tree_carbon_net_change_mg_ha_yr): the pair's sums are built whole
+// (change.ts: each visit's live stems with ∓(1 + R_v)/t, its standing dead stems with ∓1/t), and each
+// visit's live biomass S_v/t is the figure its ratio's row multiplies (the same row at both visits: one draw).
 // The sampling error enters as one draw of SE·T, T Student's t at the sampling interval's df
 // (Satterthwaite), by Latin hypercube sampling, so that the sampling-only part of the whole interval
 // agrees with the sampling interval to within 1/draws in probability.
@@ -75,16 +78,34 @@ export interface PlotRootShoot {
   readonly row: string;
 }
 
+/** A live above-ground biomass figure that a root-to-shoot row multiplies (Mg/ha; a change: −S₁/t or +S₂/t, Mg/ha/yr). */
+export interface RootShootPart extends PlotRootShoot {
+  readonly agb: number;
+}
+
 /** The sums of a plot's live above-ground biomass, and what the tree pool adds to them. */
 export interface CarbonMoments extends CarbonSums {
   /** The plot's root-to-shoot ratio (the 'trees' pool needs it; absent in sums kept before it was). */
   readonly rootShoot?: PlotRootShoot;
   /** The same sums over the plot's standing dead stems (their biomass × the share a dead stem keeps). */
   readonly deadWood?: CarbonSums;
+  /**
+   * The 'treesChange' pool: the sums are already of the tree pool's change ((1 + R_v)·AGB_v + dead_v, ∓1/t
+   * by visit), and these are the visits' live biomass figures their rows' ratios multiply (TreeChangeMoments).
+   */
+  readonly rootShootParts?: readonly RootShootPart[];
 }
 
-/** The figure whose uncertainty is propagated: live above-ground biomass (or its change), or the tree pool. */
-export type CarbonPool = 'aboveGround' | 'trees';
+/** The sums of the tree pool's net change of a pair of visits (change.ts), and the figures the visits' ratios multiply. */
+export interface TreeChangeMoments extends CarbonSums {
+  readonly rootShootParts: readonly RootShootPart[];
+}
+
+/**
+ * The figure whose uncertainty is propagated: live above-ground biomass (or its change), the tree pool
+ * (stock), or the tree pool's change between visits.
+ */
+export type CarbonPool = 'aboveGround' | 'trees' | 'treesChange';
 
 /** One visit's part of a tree's value: its weight (stems/ha it stands for), sign or 1/years, biomass in Mg and dbh. */
 export interface MomentTerm {
@@ -174,7 +195,8 @@ export interface CarbonUncertaintySettings {
   readonly heightModels?: ReadonlyMap<string, HeightModelError>;
   /**
    * 'aboveGround' (default): CF × the plots' values. 'trees': CF × ((1 + R_p) × value + standing dead
-   * wood), every plot carrying `rootShoot` and `deadWood`.
+   * wood), every plot carrying `rootShoot` and `deadWood`. 'treesChange': CF × the values (already of
+   * the tree pool's change), every pair carrying `rootShootParts`.
    */
   readonly pool?: CarbonPool;
   /** Options of the stratified estimator (df, weighting, fpc) — those of the sampling interval beside it. */
@@ -359,18 +381,35 @@ const isSums = (x: unknown): x is CarbonSums => {
   return typeof m.value === 'number' && Number.isFinite(m.value) && arr(m.sq, 3) && arr(m.sqPlot, 3) && arr(m.lnD, 5);
 };
 
-/** Whether a stored value holds the sums of a plot, and for the 'trees' pool also its ratio and dead-wood sums. */
+const isRootShoot = (x: unknown): x is PlotRootShoot => {
+  const r = x as Record<string, unknown> | null | undefined;
+  return typeof r === 'object' && r !== null && typeof r.row === 'string' && typeof r.ratio === 'number' && typeof r.sd === 'number' && r.ratio >= 0 && r.sd >= 0 && Number.isFinite(r.ratio) && Number.isFinite(r.sd);
+};
+
+/**
+ * Whether a stored value holds the sums of a plot, for the 'trees' pool also its ratio and dead-wood sums,
+ * for 'treesChange' the parts its rows' ratios multiply.
+ */
 export function hasCarbonSums(x: unknown, pool: CarbonPool = 'aboveGround'): x is CarbonMoments {
   if (!isSums(x)) return false;
   if (pool === 'aboveGround') return true;
-  const r = (x as CarbonMoments).rootShoot as unknown as Record<string, unknown> | undefined;
-  const okRatio = typeof r === 'object' && r !== null && typeof r.row === 'string' && typeof r.ratio === 'number' && typeof r.sd === 'number' && r.ratio >= 0 && r.sd >= 0 && Number.isFinite(r.ratio) && Number.isFinite(r.sd);
-  return okRatio && isSums((x as CarbonMoments).deadWood);
+  const m = x as CarbonMoments;
+  if (pool === 'treesChange') {
+    const parts = m.rootShootParts as unknown;
+    return Array.isArray(parts) && parts.every((r) => isRootShoot(r) && typeof (r as RootShootPart).agb === 'number' && Number.isFinite((r as RootShootPart).agb));
+  }
+  return isRootShoot(m.rootShoot) && isSums(m.deadWood);
+}
+
+// The figures a plot's root-to-shoot rows multiply: a stock's live biomass by its one ratio, a change's by each visit's
+function rootShootParts(p: CarbonMoments, pool: CarbonPool): readonly RootShootPart[] {
+  if (pool === 'trees') return [{ ...(p.rootShoot as PlotRootShoot), agb: p.value }];
+  return pool === 'treesChange' ? (p.rootShootParts as readonly RootShootPart[]) : [];
 }
 
 // The tree pool's sums of a plot, in biomass: (1 + R_p)·v + dead, (1 + R_p)²·Σwv² + dead's, (1 + R_p)·Σwv(ln D)^k + dead's (distinct trees: squares add)
 function poolSums(p: CarbonMoments, pool: CarbonPool): CarbonSums {
-  if (pool === 'aboveGround') return p;
+  if (pool !== 'trees') return p; // a tree-pool change's sums are built whole (change.ts)
   const g = 1 + (p.rootShoot as PlotRootShoot).ratio;
   const d = p.deadWood as CarbonSums;
   const add = <T extends readonly number[]>(a: T, b: T, f: number): T => a.map((x, i) => f * x + b[i]) as unknown as T;
@@ -391,13 +430,18 @@ export function carbonUncertainty(strata: readonly CarbonStratum[], settings: Ca
   if (!Number.isFinite(seed)) fail(`seed must be a finite number (got ${seed})`);
   if (!(confidence > 0 && confidence < 1)) fail(`confidence must be in (0, 1) (got ${confidence})`);
   if (!(cf > 0 && cf <= 1)) fail(`carbon fraction must be in (0, 1] (got ${cf})`);
-  if (pool !== 'aboveGround' && pool !== 'trees') fail(`pool must be 'aboveGround' or 'trees' (got ${String(pool)})`);
+  if (pool !== 'aboveGround' && pool !== 'trees' && pool !== 'treesChange') fail(`pool must be 'aboveGround', 'trees' or 'treesChange' (got ${String(pool)})`);
   for (const [name, v] of [['allometryRse', rseA], ['allometryRseNoHeight', rseA0], ['woodDensityTreeSd', wdSd]] as const) {
     if (!(v >= 0) || !Number.isFinite(v)) fail(`${name} must be finite and >= 0 (got ${v})`);
   }
   if (pool === 'trees') {
     for (const s of strata) {
       if (s.plots.some((p) => !hasCarbonSums(p, 'trees'))) fail(`the 'trees' pool needs every plot's root-to-shoot ratio (ratio and sd >= 0, row) and dead-wood sums (stratum ${s.name})`);
+    }
+  }
+  if (pool === 'treesChange') {
+    for (const s of strata) {
+      if (s.plots.some((p) => !hasCarbonSums(p, 'treesChange'))) fail(`the 'treesChange' pool needs every pair's root-to-shoot parts (ratio and sd >= 0, row, finite biomass) (stratum ${s.name})`);
     }
   }
   const used = strata.filter((s) => s.plots.length > 0);
@@ -423,13 +467,13 @@ export function carbonUncertainty(strata: readonly CarbonStratum[], settings: Ca
       [rseA0 * rseA0, 0, wdSd * wdSd], // the no-height models are linear in ρ
     ];
     const rootShoot = new Map<string, { effect: number; zMin: number }>();
-    if (pool === 'trees') {
-      for (const p of s.plots) {
-        const r = p.rootShoot as PlotRootShoot;
+    for (const p of s.plots) {
+      for (const r of rootShootParts(p, pool)) {
         if (!(r.sd > 0)) continue;
         const at = rootShoot.get(r.row) ?? { effect: 0, zMin: -Infinity };
-        // R_p + sd_p·z >= 0 (a negative ratio has no meaning): z >= −R_p/sd_p, the same for every plot of a row (R/sd fixed per row)
-        rootShoot.set(r.row, { effect: at.effect + (r.sd * p.value) / s.plots.length, zMin: Math.max(at.zMin, -r.ratio / r.sd) });
+        // R + sd·z >= 0 (a negative ratio has no meaning): z >= −R/sd, the same for every plot of a row (R/sd fixed per row);
+        // a change's two visits on one row share its z, so their parts add (sd₂·S₂ − sd₁·S₁)/t
+        rootShoot.set(r.row, { effect: at.effect + (r.sd * r.agb) / s.plots.length, zMin: Math.max(at.zMin, -r.ratio / r.sd) });
       }
     }
     return {

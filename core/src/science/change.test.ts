@@ -323,3 +323,69 @@ describe("the sums of the carbon change's uncertainty (computed by hand; docs/me
     expect('carbonMoments' in plotChange(first, second)).toBe(false);
   });
 });
+
+describe("the sums of the tree pool change's uncertainty (computed by hand; docs/methods.md#carbon-uncertainty)", () => {
+  // 0.1 ha (w = 10 stems/ha), 2016-03-01 → 2020-03-01 = 4 years. Root-to-shoot ratio R₁ = 0.2 (row z:0, SD 0.05) at the
+  // first visit, R₂ = 0.25 (row z:1, SD 0.08) at the second: the plot moved to another row. Trees:
+  //  a survivor, measured height, 100 → 160 kg:     u = −1.2·10·0.100/4 + 1.25·10·0.160/4 = −0.3 + 0.5 = 0.2
+  //  b live 50 kg (modelled) → dead, 30 kg of wood:  u = −1.2·10·0.050/4 + 10·0.030/4 = −0.15 + 0.075 = −0.075
+  //  c recruit, 20 kg, no height model:               u = 1.25·10·0.020/4 = 0.0625
+  //  d standing dead at both, measured, 40 → 36 kg:   u = −10·0.040/4 + 10·0.036/4 = −0.1 + 0.09 = −0.01
+  // Σu = 0.1775 = AGB net (1.8 − 1.5)/4 = 0.075 + BGB net (0.25·1.8 − 0.2·1.5)/4 = 0.0375 + dead wood (0.66 − 0.4)/4 = 0.065.
+  const src = (t: ChangeTree, heightSource: 'measured' | 'modelled' | 'noHeight'): ChangeTree => ({ ...t, heightSource });
+  const deadWood = (t: ChangeTree, deadKg: number, heightSource: 'measured' | 'modelled'): ChangeTree => ({ ...t, deadKg, heightSource });
+  const first: ChangeVisit = {
+    surveyDate: '2016-03-01',
+    areaHa: 0.1,
+    dbhMinCm: 10,
+    rootShootRatio: 0.2,
+    rootShootError: { sd: 0.05, row: 'z:0' },
+    trees: [src(live('a', 30, 100), 'measured'), src(live('b', 20, 50), 'modelled'), deadWood(dead('d', 25), 40, 'measured')],
+  };
+  const second: ChangeVisit = {
+    surveyDate: '2020-03-01',
+    areaHa: 0.1,
+    dbhMinCm: 10,
+    rootShootRatio: 0.25,
+    rootShootError: { sd: 0.08, row: 'z:1' },
+    trees: [src(live('a', 34, 160), 'measured'), deadWood(dead('b', 20), 30, 'modelled'), src(live('c', 12, 20), 'noHeight'), deadWood(dead('d', 25), 36, 'measured')],
+  };
+
+  it('value Σu = the AGB + BGB + dead wood net change (0.1775 Mg/ha/yr); a tree’s terms at both visits together', () => {
+    const c = plotChange(first, second, 0.47, { carbonMoments: true });
+    const m = c.treeCarbonMoments as NonNullable<typeof c.treeCarbonMoments>;
+    expect(c.agbNetChangeMgHaYr).toBeCloseTo(0.075, 14);
+    expect(c.bgbNetChangeMgHaYr).toBeCloseTo(0.0375, 14);
+    expect(c.standingDeadNetChangeMgHaYr).toBeCloseTo(0.065, 14);
+    expect(m.value).toBeCloseTo(0.1775, 14);
+    expect(0.47 * m.value).toBeCloseTo(c.treeCarbonNetChangeMgHaYr as number, 14);
+    // Σu²/w by source (measured: a and d; modelled: b, modelled at either visit; noHeight: c) and Σu²
+    expect(m.sq[0]).toBeCloseTo((0.2 ** 2 + 0.01 ** 2) / 10, 14);
+    expect(m.sq[1]).toBeCloseTo(0.075 ** 2 / 10, 14);
+    expect(m.sq[2]).toBeCloseTo(0.0625 ** 2 / 10, 14);
+    expect(m.sqPlot[0]).toBeCloseTo(0.2 ** 2 + 0.01 ** 2, 14);
+    expect(m.sqPlot[1]).toBeCloseTo(0.075 ** 2, 14);
+    // modelled terms: b's live −0.15 and dead +0.075, both at 20 cm
+    expect(m.lnD[0]).toBeCloseTo(-0.075, 14);
+    expect(m.lnD[2]).toBeCloseTo(-0.075 * Math.log(20) ** 2, 14);
+    // each visit's live biomass that its row multiplies: −S₁/t = −1.5/4, +S₂/t = 1.8/4
+    expect(m.rootShootParts).toHaveLength(2);
+    expect(m.rootShootParts[0]).toMatchObject({ row: 'z:0', ratio: 0.2, sd: 0.05 });
+    expect(m.rootShootParts[0].agb).toBeCloseTo(-0.375, 14);
+    expect(m.rootShootParts[1]).toMatchObject({ row: 'z:1', ratio: 0.25, sd: 0.08 });
+    expect(m.rootShootParts[1].agb).toBeCloseTo(0.45, 14);
+    // the above-ground sums are untouched by the tree pool's: a 0.06/4·10 = 0.15, b −0.125, c 0.05
+    expect((c.carbonMoments as NonNullable<typeof c.carbonMoments>).value).toBeCloseTo(0.075, 14);
+  });
+  it("null when a dead stem's height source or wood, or a visit's ratio error, is unknown; absent without the option", () => {
+    const noSource: ChangeVisit = { ...second, trees: second.trees.map((t) => (t.treeId === 'b' ? { ...t, heightSource: null } : t)) };
+    expect(plotChange(first, noSource, 0.47, { carbonMoments: true }).treeCarbonMoments).toBeNull();
+    const noWood: ChangeVisit = { ...second, trees: second.trees.map((t) => (t.treeId === 'd' ? { ...t, deadKg: null } : t)) };
+    const c = plotChange(first, noWood, 0.47, { carbonMoments: true });
+    expect(c.treeCarbonNetChangeMgHaYr).toBeNull();
+    expect(c.treeCarbonMoments).toBeNull();
+    const { rootShootError: _e, ...noError } = first;
+    expect(plotChange(noError, second, 0.47, { carbonMoments: true }).treeCarbonMoments).toBeNull();
+    expect('treeCarbonMoments' in plotChange(first, second)).toBe(false);
+  });
+});

@@ -17,7 +17,7 @@
 // Rates are null where a count makes them undefined, never 0 or infinity.
 
 import { carbonFromBiomass, IPCC_2006_CARBON_FRACTION } from './allometry';
-import { CarbonMomentsBuilder, type CarbonSums, type HeightSource, type MomentTerm } from './carbon-uncertainty';
+import { CarbonMomentsBuilder, type CarbonSums, type HeightSource, type MomentTerm, type PlotRootShoot, type TreeChangeMoments } from './carbon-uncertainty';
 import { basalAreaM2 } from './structure';
 
 /** Days per year of the rates' time base (Julian year). */
@@ -33,7 +33,7 @@ export interface ChangeTree {
   readonly agbKg: number | null;
   /** Standing dead wood biomass of the stem in kg when dead (docs/methods.md#standing-dead-wood); absent: unknown. */
   readonly deadKg?: number | null;
-  /** Where a live stem's height came from (for the carbon uncertainty's sums); absent: unknown. */
+  /** Where a live or standing dead stem's height came from (for the carbon uncertainty's sums); absent: unknown. */
   readonly heightSource?: HeightSource | null;
 }
 
@@ -45,6 +45,8 @@ export interface ChangeVisit {
   readonly trees: readonly ChangeTree[];
   /** Root-to-shoot ratio applied to the visit's plot figures (null: none applies, BGB 0); absent: no below-ground change. */
   readonly rootShootRatio?: number | null;
+  /** The SD of that ratio and the row of its relation (for the tree pool's uncertainty sums); absent: unknown. */
+  readonly rootShootError?: Omit<PlotRootShoot, 'ratio'>;
 }
 
 export interface PlotChange {
@@ -85,6 +87,13 @@ export interface PlotChange {
    * (Mg/ha/yr; docs/methods.md#carbon-uncertainty), every live stem's height source known; null otherwise.
    */
   carbonMoments?: CarbonSums | null;
+  /**
+   * With the `carbonMoments` option: the sums of the tree pool's net change (Mg/ha/yr before the carbon
+   * fraction; value = the AGB + BGB + standing dead wood net change) and the visits' live biomass that
+   * their root-to-shoot rows multiply; null where that change is null or a stem's height source or a
+   * visit's ratio error is unknown.
+   */
+  treeCarbonMoments?: TreeChangeMoments | null;
 }
 
 export interface PlotChangeOptions {
@@ -167,17 +176,29 @@ export function plotChange(first: ChangeVisit, second: ChangeVisit, carbonFracti
   // Sums of the uncertainty: a survivor has two terms (−1/t at the first visit, +1/t at the second: its
   // model errors taken as the same at both), a tree lost or recruited one. Null once a source is unknown.
   let moments = options.carbonMoments ? new CarbonMomentsBuilder() : null;
-  const term = (t: ChangeTree, area: number, coef: number): MomentTerm | null =>
-    t.heightSource === undefined || t.heightSource === null ? null : { weight: 1 / area, coef, agbMg: (t.agbKg as number) / 1000, dbhCm: t.dbhCm, modelled: t.heightSource === 'modelled' };
-  const addTree = (terms: (MomentTerm | null)[], sources: (HeightSource | null | undefined)[]): void => {
-    if (moments === null) return;
-    if (terms.some((x) => x === null)) {
-      moments = null;
-      return;
-    }
+  const term = (t: ChangeTree, area: number, coef: number, kg: number | null | undefined = t.agbKg): MomentTerm | null =>
+    t.heightSource === undefined || t.heightSource === null || kg === undefined || kg === null ? null : { weight: 1 / area, coef, agbMg: kg / 1000, dbhCm: t.dbhCm, modelled: t.heightSource === 'modelled' };
+  const addTree = (to: CarbonMomentsBuilder | null, terms: (MomentTerm | null)[], sources: (HeightSource | null | undefined)[]): boolean => {
+    if (to === null || terms.some((x) => x === null)) return false;
     // a tree whose height was modelled at either visit counts as modelled (its height error is then in its value)
     const source: HeightSource = sources.includes('modelled') ? 'modelled' : sources.includes('measured') ? 'measured' : 'noHeight';
-    moments.addTree(source, terms as MomentTerm[]);
+    to.addTree(source, terms as MomentTerm[]);
+    return true;
+  };
+  const addLive = (terms: (MomentTerm | null)[], sources: (HeightSource | null | undefined)[]): void => {
+    if (!addTree(moments, terms, sources)) moments = null;
+  };
+  // The tree pool's sums: each stem that counts at a visit, live ((1 + R_v)·AGB) or standing dead (its dead
+  // wood), with −1/t at the first visit and +1/t at the second; a tree's terms at both visits together (its
+  // model errors the same at both, as for a survivor above).
+  const poolTrees = new Map<string, { terms: (MomentTerm | null)[]; sources: (HeightSource | null | undefined)[] }>();
+  const addPool = (t: ChangeTree, term: MomentTerm | null): void => {
+    if (!options.carbonMoments) return;
+    const at = poolTrees.get(t.treeId);
+    if (at) {
+      at.terms.push(term);
+      at.sources.push(t.heightSource);
+    } else poolTrees.set(t.treeId, { terms: [term], sources: [t.heightSource] });
   };
   const at1 = checkVisit(fn, 'first', first);
   const at2 = checkVisit(fn, 'second', second);
@@ -185,6 +206,8 @@ export function plotChange(first: ChangeVisit, second: ChangeVisit, carbonFracti
   const threshold = Math.max(first.dbhMinCm, second.dbhMinCm);
   const a1 = first.areaHa;
   const a2 = second.areaHa;
+  const rf1 = 1 + (first.rootShootRatio ?? 0);
+  const rf2 = 1 + (second.rootShootRatio ?? 0);
 
   let nStart = 0;
   let nSurvivors = 0;
@@ -209,6 +232,7 @@ export function plotChange(first: ChangeVisit, second: ChangeVisit, carbonFracti
     const g1 = basalAreaM2(t1.dbhCm) / a1;
     const b1 = (t1.agbKg as number) / a1;
     stock1 += b1;
+    addPool(t1, term(t1, a1, -rf1 / years));
     const t2 = at2.get(t1.treeId);
     if (t2 !== undefined && t2.status === 'live') {
       nSurvivors += 1;
@@ -216,18 +240,19 @@ export function plotChange(first: ChangeVisit, second: ChangeVisit, carbonFracti
       baGrowth += basalAreaM2(t2.dbhCm) / a2 - g1;
       agbGrowth += (t2.agbKg as number) / a2 - b1;
       stock2 += (t2.agbKg as number) / a2;
-      addTree([term(t1, a1, -1 / years), term(t2, a2, 1 / years)], [t1.heightSource, t2.heightSource]);
+      addLive([term(t1, a1, -1 / years), term(t2, a2, 1 / years)], [t1.heightSource, t2.heightSource]);
+      addPool(t2, term(t2, a2, rf2 / years));
     } else if (t2 !== undefined && t2.status === 'stump' && t2.stumpCause === 'logged') {
       nRemoved += 1;
       baLoss += g1;
       agbRemoved += b1;
-      addTree([term(t1, a1, -1 / years)], [t1.heightSource]);
+      addLive([term(t1, a1, -1 / years)], [t1.heightSource]);
     } else {
       nDied += 1;
       if (t2 === undefined) nAbsent += 1;
       baLoss += g1;
       agbDied += b1;
-      addTree([term(t1, a1, -1 / years)], [t1.heightSource]);
+      addLive([term(t1, a1, -1 / years)], [t1.heightSource]);
     }
   }
   for (const t2 of second.trees) {
@@ -239,20 +264,22 @@ export function plotChange(first: ChangeVisit, second: ChangeVisit, carbonFracti
     baRecruitment += basalAreaM2(t2.dbhCm) / a2;
     agbRecruitment += (t2.agbKg as number) / a2;
     stock2 += (t2.agbKg as number) / a2;
-    addTree([term(t2, a2, 1 / years)], [t2.heightSource]);
+    addLive([term(t2, a2, 1 / years)], [t2.heightSource]);
+    addPool(t2, term(t2, a2, rf2 / years));
   }
-  const deadStock = (v: ChangeVisit): number | null => {
+  const deadStock = (v: ChangeVisit, coef: number): number | null => {
     let kgHa = 0;
     for (const t of v.trees) {
       if (t.status !== 'dead' || t.inSubplot || t.dbhCm < threshold) continue;
       if (t.deadKg === undefined || t.deadKg === null) return null;
       if (!(t.deadKg >= 0) || !Number.isFinite(t.deadKg)) fail(fn, `dead tree ${t.treeId} biomass must be finite and >= 0 (got ${t.deadKg})`);
       kgHa += t.deadKg / v.areaHa;
+      addPool(t, term(t, v.areaHa, coef, t.deadKg));
     }
     return kgHa;
   };
-  const dead1 = deadStock(first);
-  const dead2 = deadStock(second);
+  const dead1 = deadStock(first, -1 / years);
+  const dead2 = deadStock(second, 1 / years);
 
   const perYearMg = (kgHa: number): number => kgHa / 1000 / years;
   const agbGrowthMgHaYr = perYearMg(agbGrowth);
@@ -270,6 +297,24 @@ export function plotChange(first: ChangeVisit, second: ChangeVisit, carbonFracti
   const bgbNetChangeMgHaYr = r1 === undefined || r2 === undefined ? null : perYearMg((r2 ?? 0) * stock2 - (r1 ?? 0) * stock1);
   const standingDeadNetChangeMgHaYr = dead1 === null || dead2 === null ? null : perYearMg(dead2 - dead1);
   const treeNet = bgbNetChangeMgHaYr === null || standingDeadNetChangeMgHaYr === null ? null : agbNetChangeMgHaYr + bgbNetChangeMgHaYr + standingDeadNetChangeMgHaYr;
+  let treeMoments: TreeChangeMoments | null = null;
+  const e1 = first.rootShootError;
+  const e2 = second.rootShootError;
+  if (options.carbonMoments && treeNet !== null && e1 !== undefined && e2 !== undefined) {
+    const builder = new CarbonMomentsBuilder();
+    let known = true;
+    for (const t of poolTrees.values()) known = known && addTree(builder, t.terms, t.sources);
+    // each visit's BGB = R_v·S_v: its row's error multiplies S_v (Mg/ha), with the visit's sign and 1/t
+    if (known) {
+      treeMoments = {
+        ...builder.build(),
+        rootShootParts: [
+          { ratio: first.rootShootRatio ?? 0, sd: e1.sd, row: e1.row, agb: -stock1 / 1000 / years },
+          { ratio: second.rootShootRatio ?? 0, sd: e2.sd, row: e2.row, agb: stock2 / 1000 / years },
+        ],
+      };
+    }
+  }
   return {
     years,
     dbhThresholdCm: threshold,
@@ -300,7 +345,7 @@ export function plotChange(first: ChangeVisit, second: ChangeVisit, carbonFracti
     bgbNetChangeMgHaYr,
     standingDeadNetChangeMgHaYr,
     treeCarbonNetChangeMgHaYr: treeNet === null ? null : carbonOfChange(treeNet, carbonFraction),
-    ...(options.carbonMoments ? { carbonMoments: moments === null ? null : (moments as CarbonMomentsBuilder).build() } : {}),
+    ...(options.carbonMoments ? { carbonMoments: moments === null ? null : (moments as CarbonMomentsBuilder).build(), treeCarbonMoments: treeMoments } : {}),
   };
 }
 

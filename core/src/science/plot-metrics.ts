@@ -37,7 +37,7 @@ import {
   shannon,
   simpson,
 } from './diversity';
-import { CarbonMomentsBuilder, type CarbonMoments, type HeightSource } from './carbon-uncertainty';
+import { CarbonMomentsBuilder, type CarbonMoments, type HeightSource, type PlotRootShoot } from './carbon-uncertainty';
 import { standingDeadBiomass, DEFAULT_STANDING_DEAD_SHARE } from './dead-wood';
 import { type HeightDiameterModel, predictHeight } from './height-diameter';
 import { DEFAULT_ROOT_SHOOT_BY_CLIMATE, type RootShootRelation, rootShootRatio } from './root-shoot';
@@ -144,8 +144,10 @@ export interface PlotMetricsResult {
   carbonMoments?: CarbonMoments;
   /** With `stemAgb`: standing dead wood in kg of each dead stem at or above its minimum, in input order; null for the others. */
   stemDeadKg?: (number | null)[];
-  /** With `stemAgb`: where each live stem's height came from (the biomass model used), in input order; null for stems that are not live. */
+  /** With `stemAgb`: where each live or standing dead stem's height came from (the biomass model used), in input order; null for the others. */
   stemHeightSource?: (HeightSource | null)[];
+  /** With `stemAgb`: the plot's root-to-shoot ratio, its SD and row (ratio 0, SD 0 where none applies). */
+  rootShoot?: PlotRootShoot;
 }
 
 const tables = new WeakMap<SpeciesIndex, WoodDensityTable>();
@@ -352,6 +354,7 @@ export function computePlotMetrics(
     const s = stems[dead[j].at];
     const kg = standingDeadBiomass(agbOf(wd.values[nLive + below.length + j], s.dbhCm, s.heightM), deadShare);
     if (stemDeadKg) stemDeadKg[dead[j].at] = kg;
+    if (stemHeightSource) stemHeightSource[dead[j].at] = sourceOf(s.heightM);
     deadKgHa += dead[j].w * kg;
     if (deadMoments) {
       const source = sourceOf(s.heightM);
@@ -467,10 +470,11 @@ export function computePlotMetrics(
     standTable: { thresholdCm: reportingDbhMinCm, classes: standTable },
     unresolvedNames,
   };
-  const result: PlotMetricsResult = stemAgbKg ? { metrics, diagnostics, stemAgbKg, stemDeadKg, stemHeightSource } : { metrics, diagnostics };
+  const rootShoot: PlotRootShoot = ratio ?? { ratio: 0, sd: 0, row: relation };
+  const result: PlotMetricsResult = stemAgbKg ? { metrics, diagnostics, stemAgbKg, stemDeadKg, stemHeightSource, rootShoot } : { metrics, diagnostics };
   // The tree pool's uncertainty also needs the plot's ratio (its row's error is shared) and the dead stems' sums.
   if (moments && deadMoments) {
-    result.carbonMoments = { ...moments.build(), rootShoot: ratio ?? { ratio: 0, sd: 0, row: relation }, deadWood: deadMoments.build() };
+    result.carbonMoments = { ...moments.build(), rootShoot, deadWood: deadMoments.build() };
   }
   return result;
 }
