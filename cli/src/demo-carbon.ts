@@ -1,7 +1,7 @@
 import type { CarbonUncertaintySection } from '@stemwise/report';
 
 // The demo's closing lines on carbon: the national above-ground carbon stock, the carbon in trees (live
-// above- and below-ground and standing dead wood) and the net carbon change between visits, each with its
+// above- and below-ground and standing dead wood), and the net change between visits of both, each with its
 // sampling-only and whole 95 % intervals and the share of each source of uncertainty
 // (docs/methods.md#carbon-uncertainty).
 
@@ -18,6 +18,7 @@ const HEADINGS: Record<CarbonUncertaintySection['pool'], { title: string; unit: 
   'above-ground': { title: 'National above-ground carbon stock (live trees', unit: 'Mg C/ha', totalUnit: 'Mt C' },
   trees: { title: "National carbon in trees (live above- and below-ground, each plot's own root-to-shoot ratio, and standing dead wood", unit: 'Mg C/ha', totalUnit: 'Mt C' },
   'above-ground change': { title: 'National net above-ground carbon change between visits (live trees', unit: 'Mg C/ha/yr', totalUnit: 'Mt C/yr' },
+  'tree change': { title: "National net change of carbon in trees between visits (live above- and below-ground, each visit's own root-to-shoot ratio, and standing dead wood", unit: 'Mg C/ha/yr', totalUnit: 'Mt C/yr' },
 };
 
 const perHa = (x: number): string => x.toFixed(2);

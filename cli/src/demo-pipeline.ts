@@ -59,10 +59,11 @@ export interface DemoResult {
   outDir: string;
   index: string;
   seconds: number;
-  /** The national carbon sections' whole uncertainty (printed by demoCarbonLines): above-ground stock, carbon in trees, net change. */
+  /** The national carbon sections' whole uncertainty (printed by demoCarbonLines): above-ground stock, carbon in trees, net change of each. */
   carbon: CarbonUncertaintySection | null;
   treeCarbon: CarbonUncertaintySection | null;
   carbonChange: CarbonUncertaintySection | null;
+  treeCarbonChange: CarbonUncertaintySection | null;
 }
 
 /**
@@ -91,9 +92,9 @@ export async function runDemo(o: DemoOptions): Promise<DemoResult> {
     const deps: ServiceDeps = { config, db, log: o.log, queue };
     const { processors, ...work } = await allProcessors(deps);
     await queue.work(processors, work);
-    const nationalCarbon = async (): Promise<Pick<DemoResult, 'carbon' | 'treeCarbon' | 'carbonChange'>> => {
+    const nationalCarbon = async (): Promise<Pick<DemoResult, 'carbon' | 'treeCarbon' | 'carbonChange' | 'treeCarbonChange'>> => {
       const p = (await report.readNationalSnapshot(db))?.payload;
-      return { carbon: p?.carbon_uncertainty ?? null, treeCarbon: p?.tree_carbon_uncertainty ?? null, carbonChange: p?.carbon_change_uncertainty ?? null };
+      return { carbon: p?.carbon_uncertainty ?? null, treeCarbon: p?.tree_carbon_uncertainty ?? null, carbonChange: p?.carbon_change_uncertainty ?? null, treeCarbonChange: p?.tree_carbon_change_uncertainty ?? null };
     };
 
     let batch = { state: '', plots_loaded: 0, stems_loaded: 0, n_errors: 0 };

@@ -168,6 +168,24 @@ describe('change between visits (compute)', () => {
     expect(sameRatio).toBeGreaterThan(0);
   });
 
+  it("keeps every pair's sums of the tree pool change's uncertainty under `trees`: value × 0.47 = tree carbon change, one part per visit with that visit's ratio and row", async () => {
+    type Part = { ratio: number; sd: number; row: string; agb: number };
+    const rows = await s.db.query<{ tree: number; r1: number | null; r2: number | null; row1: string; row2: string; t: { value: number; rootShootParts: Part[] } | null }>(
+      `select c.tree_carbon_net_change_mg_ha_yr tree, m1.root_shoot_ratio r1, m2.root_shoot_ratio r2,
+              m1.diagnostics->'carbonMoments'->'rootShoot'->>'row' row1, m2.diagnostics->'carbonMoments'->'rootShoot'->>'row' row2, c.carbon_moments->'trees' t
+         from plot_change c join plot_metrics m1 on m1.visit_id = c.visit_from_id join plot_metrics m2 on m2.visit_id = c.visit_to_id`,
+    );
+    expect(rows.length).toBeGreaterThan(0);
+    for (const r of rows) {
+      expect(r.t).not.toBeNull();
+      const t = r.t as NonNullable<typeof r.t>;
+      expect(0.47 * t.value).toBeCloseTo(r.tree, 10);
+      expect(t.rootShootParts.map((p) => [p.ratio, p.row])).toEqual([[r.r1 ?? 0, r.row1], [r.r2 ?? 0, r.row2]]);
+      expect(t.rootShootParts[0].agb).toBeLessThanOrEqual(0);
+      expect(t.rootShootParts[1].agb).toBeGreaterThanOrEqual(0);
+    }
+  });
+
   it('a recompute of everything writes the same figures', async () => {
     const before = (await storedPairs(s)).map(({ computed_at: _, ...rest }) => rest);
     const { failures } = await recomputeInProcess(s.config, s.db, true);

@@ -56,6 +56,7 @@ describe('carbon uncertainty in the summaries', () => {
     expect(carbonRow(payload.summary.rows, 'all').whole_ci_low).toBeNull();
     expect(payload.tree_carbon_uncertainty?.missing).toMatch(/5 plot\(s\) were computed before the sums of the tree pool/);
     expect(payload.carbon_change_uncertainty?.missing).toMatch(/5 plot\(s\) have a change between visits computed before/);
+    expect(payload.tree_carbon_change_uncertainty?.missing).toMatch(/5 plot\(s\) have a change between visits computed before the sums of the tree pool change/);
     expect((await region('Southmere')).payload.carbon_change_uncertainty?.missing).toBe('no plot measured twice');
   });
 
@@ -86,6 +87,23 @@ describe('carbon uncertainty in the summaries', () => {
       `update plot_change set carbon_moments = jsonb_build_object('value', agb_net_change_mg_ha_yr,
          'sq', jsonb_build_array(abs(agb_net_change_mg_ha_yr) * 0.1, 0, 0), 'sqPlot', jsonb_build_array(abs(agb_net_change_mg_ha_yr), 0, 0), 'lnD', jsonb_build_array(0, 0, 0, 0, 0))`,
     );
+    // The tree pool's change: live AGB S₁/t = 10 and S₂/t = 10 + net Mg/ha/yr, each visit's ratio (wet plots: 0.24 at both
+    // visits, one row; dry plots: 0.24 then 0.2, another row at the second visit; SD 15 % of the ratio), dead wood +0.1;
+    // tree_carbon_net_change_mg_ha_yr = 0.47·((1 + R₂)·S₂/t − (1 + R₁)·S₁/t + 0.1), as the change stage computes it.
+    await s.db.query(
+      `with t as (
+         select c.visit_from_id, c.visit_to_id, x.*, (1 + x.r2) * (10 + c.agb_net_change_mg_ha_yr) - (1 + x.r1) * 10 + 0.1 "value", 10 + c.agb_net_change_mg_ha_yr s2
+           from plot_change c join plots p on p.id = c.plot_id,
+                lateral (select 0.24 r1, case when p.forest_type = 'dry' then 0.2 else 0.24 end r2, 'zone:1' row1,
+                                case when p.forest_type = 'dry' then 'zone:0' else 'zone:1' end row2) x)
+       update plot_change c set
+         tree_carbon_net_change_mg_ha_yr = 0.47 * t.value,
+         carbon_moments = c.carbon_moments || jsonb_build_object('trees', jsonb_build_object('value', t.value,
+           'sq', jsonb_build_array(abs(t.value) * 0.1, 0, 0), 'sqPlot', jsonb_build_array(abs(t.value), 0, 0), 'lnD', jsonb_build_array(0, 0, 0, 0, 0),
+           'rootShootParts', jsonb_build_array(jsonb_build_object('ratio', t.r1, 'sd', 0.15 * t.r1, 'row', t.row1, 'agb', -10),
+                                               jsonb_build_object('ratio', t.r2, 'sd', 0.15 * t.r2, 'row', t.row2, 'agb', t.s2))))
+         from t where t.visit_from_id = c.visit_from_id and t.visit_to_id = c.visit_to_id`,
+    );
     await markStale(s.db, 'summary', ['Northvale', 'Southmere']);
     await runSummaries();
     const { version, payload } = await region('Northvale');
@@ -104,7 +122,11 @@ describe('carbon uncertainty in the summaries', () => {
     expect(whole.whole_ci_high).toBeGreaterThan(row.mean as number);
     expect(Object.values(whole.shares).reduce((a, b) => a + b, 0)).toBeCloseTo(1, 12);
     // The tree pool and the change: their own rows, the summary's sampling intervals, wider whole ones
-    for (const [sec, variable] of [[payload.tree_carbon_uncertainty!, 'tree_carbon_mg_ha'], [payload.carbon_change_uncertainty!, 'carbon_net_change_mg_ha_yr']] as const) {
+    for (const [sec, variable] of [
+      [payload.tree_carbon_uncertainty!, 'tree_carbon_mg_ha'],
+      [payload.carbon_change_uncertainty!, 'carbon_net_change_mg_ha_yr'],
+      [payload.tree_carbon_change_uncertainty!, 'tree_carbon_net_change_mg_ha_yr'],
+    ] as const) {
       expect(sec.missing).toBeNull();
       expect(sec.variable).toBe(variable);
       const summaryRow = carbonRow(payload.summary.rows, 'all', variable);
@@ -121,6 +143,8 @@ describe('carbon uncertainty in the summaries', () => {
     }
     expect(payload.tree_carbon_uncertainty!.rows[0].shares.rootShoot).toBeGreaterThan(0);
     expect(payload.carbon_change_uncertainty!.rows[0].shares.rootShoot).toBe(0);
+    expect(payload.tree_carbon_change_uncertainty!.rows[0].shares.rootShoot).toBeGreaterThan(0);
+    expect(payload.tree_carbon_change_uncertainty!.rows.map((r) => r.forest_type)).toEqual(['all', 'dry', 'wet']);
     // Southmere has no forest areas: per-tree errors over its measured trees only, no totals
     const south = (await region('Southmere')).payload.carbon_uncertainty!;
     expect(south.tree_error_scope).toBe('plots');
@@ -135,6 +159,9 @@ describe('carbon uncertainty in the summaries', () => {
     expect(exported.find((r) => r.variable === 'basal_area_m2_ha')?.whole_se).toBeNull();
     expect(carbonRow(exported, 'all', 'tree_carbon_mg_ha').whole_se).toBe(payload.tree_carbon_uncertainty!.rows[0].whole_se);
     expect(carbonRow(exported, 'all', 'carbon_net_change_mg_ha_yr').whole_se).toBe(payload.carbon_change_uncertainty!.rows[0].whole_se);
+    expect(carbonRow(exported, 'all', 'tree_carbon_net_change_mg_ha_yr').whole_se).toBe(payload.tree_carbon_change_uncertainty!.rows[0].whole_se);
+    expect(carbonRow(exported, 'wet', 'tree_carbon_net_change_mg_ha_yr').whole_ci_low).toBe(payload.tree_carbon_change_uncertainty!.rows[2].whole_ci_low);
+    expect(carbonRow(national.summary.rows, 'all', 'tree_carbon_net_change_mg_ha_yr').whole_ci_high).toBe(national.tree_carbon_change_uncertainty?.rows[0].whole_ci_high);
 
     // Seeded: the same data again give the same content, so no new version
     await markStale(s.db, 'summary', ['Northvale']);
@@ -149,9 +176,10 @@ describe('carbon uncertainty in the summaries', () => {
     expect(page).toMatch(/95 % CI, sampling only[^]*95 % CI, whole/);
     expect(page).toContain('field measurement error');
     expect(page).toContain('forest-area map');
-    expect(page).toMatch(/id="carbon-uncertainty"[^]*id="tree-carbon-uncertainty"[^]*id="carbon-change-uncertainty"/);
+    expect(page).toMatch(/id="carbon-uncertainty"[^]*id="tree-carbon-uncertainty"[^]*id="carbon-change-uncertainty"[^]*id="tree-carbon-change-uncertainty"/);
     expect(page).toContain('root-to-shoot ratio (shared by row)');
     const national = fs.readFileSync(written.national as string, 'utf8');
     expect(national).toContain('id="carbon-shares"');
+    expect(national).toContain('id="tree-carbon-change-whole"');
   });
 });

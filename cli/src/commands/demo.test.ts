@@ -3,7 +3,7 @@ import type { DemoResult } from '../demo-pipeline';
 import { demoChangeTable } from './demo';
 
 const result = (change: DemoResult['change']): DemoResult => ({
-  batchId: 'b', state: 'computed', plots: 3, stems: 10, regions: 1, fits: [], change, carbon: null, treeCarbon: null, carbonChange: null, batches: 2, outDir: 'o', index: 'i', seconds: 1,
+  batchId: 'b', state: 'computed', plots: 3, stems: 10, regions: 1, fits: [], change, carbon: null, treeCarbon: null, carbonChange: null, treeCarbonChange: null, batches: 2, outDir: 'o', index: 'i', seconds: 1,
 });
 
 describe('demoChangeTable', () => {

@@ -93,6 +93,7 @@ embedded database of its own, and writes a report folder: pages, exports and cha
         ...demoCarbonLines(result.carbon),
         ...demoCarbonLines(result.treeCarbon),
         ...demoCarbonLines(result.carbonChange),
+        ...demoCarbonLines(result.treeCarbonChange),
         '',
         'Change between visits, per forest type: planted (expected value under the planted process, from an',
         'independent simulation; truth.json) against recovered (national estimate over re-measured plots):',

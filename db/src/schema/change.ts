@@ -48,7 +48,8 @@ export const plotChange = pgTable(
     bgbNetChangeMgHaYr: doublePrecision('bgb_net_change_mg_ha_yr'),
     standingDeadNetChangeMgHaYr: doublePrecision('standing_dead_net_change_mg_ha_yr'),
     treeCarbonNetChangeMgHaYr: doublePrecision('tree_carbon_net_change_mg_ha_yr'),
-    // The sums of the carbon change's whole uncertainty (core's CarbonSums; docs/methods.md#carbon-uncertainty); null in rows written before they were kept.
+    // The sums of the carbon change's whole uncertainty (core's CarbonSums; the tree pool change's, core's TreeChangeMoments, under
+    // the key `trees`; docs/methods.md#carbon-uncertainty); null in rows written before they were kept.
     carbonMoments: jsonb('carbon_moments'),
     computedAt: timestamp('computed_at', { withTimezone: true }).notNull().defaultNow(),
   },

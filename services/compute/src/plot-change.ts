@@ -23,7 +23,7 @@ export interface PlotChangeContext {
 
 /** One visit's trees with the biomass of each live (and dead) stem, from the same models and settings as its plot metrics. */
 function changeVisit(visit: ChangeVisitRow, stems: readonly ChangeStemRow[], ctx: PlotChangeContext): ChangeVisit {
-  const { metrics, stemAgbKg, stemDeadKg, stemHeightSource } = computePlotMetrics(visit, stems, ctx.index, {
+  const { metrics, stemAgbKg, stemDeadKg, stemHeightSource, rootShoot } = computePlotMetrics(visit, stems, ctx.index, {
     heightModel: ctx.models.get(visit.forestType) ?? null,
     defaultWoodDensity: ctx.defaultWoodDensity,
     rootShoot: rootShootRelationOf(visit.forestType, visit.climate, ctx.rootShoot),
@@ -38,8 +38,19 @@ function changeVisit(visit: ChangeVisitRow, stems: readonly ChangeStemRow[], ctx
     areaHa: visit.areaHa,
     dbhMinCm: visit.dbhMinCm,
     rootShootRatio: metrics.rootShootRatio,
+    ...(rootShoot ? { rootShootError: { sd: rootShoot.sd, row: rootShoot.row } } : {}),
     trees: stems.map((s, i) => ({ treeId: s.treeId, dbhCm: s.dbhCm, status: s.status, stumpCause: s.stumpCause, inSubplot: s.inSubplot, agbKg: agb[i], deadKg: dead[i], heightSource: source[i] })),
   };
+}
+
+/**
+ * The pair's carbon_moments JSON: the above-ground change's sums, with the tree pool change's under `trees`
+ * (docs/methods.md#carbon-uncertainty); null without the above-ground sums (the tree pool's need them too).
+ */
+function storedCarbonMoments(change: PlotChange): unknown {
+  const above = change.carbonMoments ?? null;
+  if (above === null) return null;
+  return change.treeCarbonMoments ? { ...above, trees: change.treeCarbonMoments } : above;
 }
 
 /**
@@ -68,7 +79,7 @@ export async function writePlotChanges(tx: Queryable, plotIds: readonly number[]
       for (let i = 1; i < cv.length; i++) {
         const change = plotChange(cv[i - 1], cv[i], undefined, { carbonMoments: true });
         const c = change as unknown as Record<string, number | null>;
-        rows.push({ plotId: plot.plotId, visitFromId: list[i - 1].visitId, visitToId: list[i].visitId, speciesVersionId: ctx.speciesVersionId, values: CHANGE_KEYS.map((k) => c[k]), carbonMoments: change.carbonMoments ?? null });
+        rows.push({ plotId: plot.plotId, visitFromId: list[i - 1].visitId, visitToId: list[i].visitId, speciesVersionId: ctx.speciesVersionId, values: CHANGE_KEYS.map((k) => c[k]), carbonMoments: storedCarbonMoments(change) });
       }
       writes.push(...rows);
       done.push(plot.plotKey);

@@ -18,9 +18,10 @@ import type { Config } from '@stemwise/platform';
 import { resolveForestAreas } from './summary/forest-areas';
 
 // The whole uncertainty of carbon in the region and national summaries (docs/methods.md#carbon-uncertainty):
-// three sections, each of one summary variable — the above-ground carbon stock (carbon_mg_ha), the tree
-// pool (tree_carbon_mg_ha: above- and below-ground live biomass and standing dead wood) and the net
-// above-ground carbon change between visits (carbon_net_change_mg_ha_yr). Each reads the sums the
+// four sections, each of one summary variable — the above-ground carbon stock (carbon_mg_ha), the tree
+// pool (tree_carbon_mg_ha: above- and below-ground live biomass and standing dead wood), the net
+// above-ground carbon change between visits (carbon_net_change_mg_ha_yr) and the tree pool's net change
+// (tree_carbon_net_change_mg_ha_yr). Each reads the sums the
 // metrics (or change) stage stored per plot, the forest types' height models, and runs the Monte Carlo of
 // core's carbonUncertainty. Kept apart from the summaries' own estimators: the summaries call these
 // functions once per section and store what they return.
@@ -33,6 +34,7 @@ export const CARBON_SECTIONS = {
   stock: { variable: 'carbon_mg_ha', pool: 'above-ground', corePool: 'aboveGround' },
   trees: { variable: 'tree_carbon_mg_ha', pool: 'trees', corePool: 'trees' },
   change: { variable: 'carbon_net_change_mg_ha_yr', pool: 'above-ground change', corePool: 'aboveGround' },
+  treeChange: { variable: 'tree_carbon_net_change_mg_ha_yr', pool: 'tree change', corePool: 'treesChange' },
 } as const satisfies Record<string, { variable: string; pool: string; corePool: CarbonPool }>;
 export type CarbonSectionKind = keyof typeof CARBON_SECTIONS;
 type SectionSpec = (typeof CARBON_SECTIONS)[CarbonSectionKind];
@@ -106,7 +108,15 @@ const COVERS: Readonly<Record<CarbonSectionKind, readonly string[]>> = {
     ...CARBON_COVERS,
     "for a tree measured at both visits, its model errors are taken as the same at both (the tree's error cancels in part in its growth)",
   ],
+  treeChange: [
+    ...CARBON_COVERS,
+    "for a tree measured at both visits, its model errors are taken as the same at both (the tree's error cancels in part in its growth)",
+    "the root-to-shoot ratio: each visit's own ratio, with the error of its table row or equation shared by every plot and visit that uses it (a plot whose two visits read the same row has the same error at both)",
+    'the same per-tree and height-model errors for the standing dead stems',
+  ],
 };
+
+const NOT_COVERED_CHANGE = 'changes of the models between the visits (the same models are applied to both visits)';
 
 const NOT_COVERED: Readonly<Record<CarbonSectionKind, readonly string[]>> = {
   stock: CARBON_NOT_COVERED,
@@ -117,8 +127,14 @@ const NOT_COVERED: Readonly<Record<CarbonSectionKind, readonly string[]>> = {
   ],
   change: [
     ...NOT_COVERED_COMMON,
-    'changes of the models between the visits (the same models are applied to both visits)',
+    NOT_COVERED_CHANGE,
     'below-ground biomass, dead wood, litter and soil: this interval is of the above-ground live-tree carbon change only',
+  ],
+  treeChange: [
+    ...NOT_COVERED_COMMON,
+    NOT_COVERED_CHANGE,
+    'the share of its biomass a standing dead stem keeps (taken as exact) and the error of the ratio beyond the range its table row gives',
+    'lying dead wood, litter and soil (not estimated)',
   ],
 };
 
@@ -130,7 +146,7 @@ interface PlotSums {
 
 /** A region's plots (latest visit; for change, the pair ending at it) with the section's sums, or the number that have none. */
 export async function readRegionCarbonSums(db: Queryable, region: string, kind: CarbonSectionKind = 'stock'): Promise<{ plots: PlotSums[]; without: number }> {
-  const rows = kind === 'change' ? await listRegionChangeCarbonMoments(db, region) : await listRegionCarbonMoments(db, region);
+  const rows = kind === 'change' || kind === 'treeChange' ? await listRegionChangeCarbonMoments(db, region, CARBON_SECTIONS[kind].variable) : await listRegionCarbonMoments(db, region);
   const pool = CARBON_SECTIONS[kind].corePool;
   const plots: PlotSums[] = [];
   let without = 0;
@@ -169,6 +185,7 @@ const RECOMPUTE: Readonly<Record<CarbonSectionKind, string>> = {
   stock: 'were computed before the sums of the carbon uncertainty were kept',
   trees: "were computed before the sums of the tree pool's uncertainty (root-to-shoot ratio and dead wood) were kept",
   change: 'have a change between visits computed before the sums of its carbon uncertainty were kept',
+  treeChange: "have a change between visits computed before the sums of the tree pool change's uncertainty were kept",
 };
 
 function row(forestType: string, r: CarbonUncertainty): CarbonUncertaintyRow {
@@ -209,7 +226,7 @@ export async function carbonUncertaintySection(
   if (without > 0) {
     return unavailable(config, kind, `${without} plot(s) ${RECOMPUTE[kind]}: run a full recompute (stemwise recompute --all) to get the whole interval.`);
   }
-  if (plots.length === 0) return unavailable(config, kind, kind === 'change' ? 'no plot measured twice' : 'no plots');
+  if (plots.length === 0) return unavailable(config, kind, kind === 'change' || kind === 'treeChange' ? 'no plot measured twice' : 'no plots');
   const byStratum = new Map<string, { scope: string; forestType: string; moments: CarbonMoments[] }>();
   for (const p of plots) {
     const key = `${p.scope}\u0000${p.forestType}`;

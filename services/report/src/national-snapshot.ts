@@ -37,9 +37,10 @@ export interface NationalPayload {
   readonly sources: Readonly<Record<string, number | null>>;
   /** Whole uncertainty of the above-ground carbon stock (docs/methods.md#carbon-uncertainty); null when off, absent in older snapshots. */
   readonly carbon_uncertainty?: CarbonUncertaintySection | null;
-  /** The same for the tree pool (tree_carbon_mg_ha) and the net carbon change (carbon_net_change_mg_ha_yr); absent in older snapshots. */
+  /** The same for the tree pool (tree_carbon_mg_ha), the net carbon change (carbon_net_change_mg_ha_yr) and the tree pool's (tree_carbon_net_change_mg_ha_yr); absent in older snapshots. */
   readonly tree_carbon_uncertainty?: CarbonUncertaintySection | null;
   readonly carbon_change_uncertainty?: CarbonUncertaintySection | null;
+  readonly tree_carbon_change_uncertainty?: CarbonUncertaintySection | null;
   /** The pairs of visits behind the national estimates of change (null: no plot measured twice); absent in older snapshots. */
   readonly change?: ChangeCoverage | null;
   /** Share of the AGB from each height source and wood-density level, over every plot (absent in older snapshots). */
@@ -89,7 +90,8 @@ export async function assembleNationalSnapshot(deps: Deps, sources: Readonly<Rec
   const carbon = await nationalCarbonUncertainty(db, config, regions, 'stock');
   const treeCarbon = await nationalCarbonUncertainty(db, config, regions, 'trees');
   const carbonChange = await nationalCarbonUncertainty(db, config, regions, 'change');
-  const summary = { ...estimated, rows: withWholeInterval(estimated.rows, carbon, treeCarbon, carbonChange) };
+  const treeCarbonChange = await nationalCarbonUncertainty(db, config, regions, 'treeChange');
+  const summary = { ...estimated, rows: withWholeInterval(estimated.rows, carbon, treeCarbon, carbonChange, treeCarbonChange) };
   const firsts = all.map((a) => a.first_survey).filter((d): d is string => d !== null);
   const lasts = all.map((a) => a.last_survey).filter((d): d is string => d !== null);
   let means: TopLevelSpec | null = null;
@@ -114,6 +116,7 @@ export async function assembleNationalSnapshot(deps: Deps, sources: Readonly<Rec
     carbon_uncertainty: carbon,
     tree_carbon_uncertainty: treeCarbon,
     carbon_change_uncertainty: carbonChange,
+    tree_carbon_change_uncertainty: treeCarbonChange,
     change: coverageOf(joinChangeParts(all.map((a) => a.change))),
     charts: { means, change },
   };

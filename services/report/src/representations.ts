@@ -19,6 +19,7 @@ export function summaryJson(s: Snapshot): string {
     carbon_uncertainty: rest.carbon_uncertainty ?? null,
     tree_carbon_uncertainty: rest.tree_carbon_uncertainty ?? null,
     carbon_change_uncertainty: rest.carbon_change_uncertainty ?? null,
+    tree_carbon_change_uncertainty: rest.tree_carbon_change_uncertainty ?? null,
     ...(rest.change === undefined ? {} : { change: rest.change }),
     biomass_method: rest.biomass_method ?? null,
     plot_sizes: rest.plot_sizes ?? null,
@@ -38,5 +39,6 @@ export function nationalJson(s: NationalSnapshot): string {
   const carbon_uncertainty = s.payload.carbon_uncertainty ?? null;
   const tree_carbon_uncertainty = s.payload.tree_carbon_uncertainty ?? null;
   const carbon_change_uncertainty = s.payload.carbon_change_uncertainty ?? null;
-  return JSON.stringify({ region: 'national', version: s.version, created_at: s.createdAt.toISOString(), etag: s.etag, data, method, summary, sources, ...(change === undefined ? {} : { change }), biomass_method: biomass_method ?? null, carbon_uncertainty, tree_carbon_uncertainty, carbon_change_uncertainty });
+  const tree_carbon_change_uncertainty = s.payload.tree_carbon_change_uncertainty ?? null;
+  return JSON.stringify({ region: 'national', version: s.version, created_at: s.createdAt.toISOString(), etag: s.etag, data, method, summary, sources, ...(change === undefined ? {} : { change }), biomass_method: biomass_method ?? null, carbon_uncertainty, tree_carbon_uncertainty, carbon_change_uncertainty, tree_carbon_change_uncertainty });
 }

@@ -125,6 +125,8 @@ export interface SnapshotPayload<C extends SnapshotCharts = SnapshotCharts> {
   readonly tree_carbon_uncertainty?: CarbonUncertaintySection | null;
   /** The same for the net above-ground carbon change between visits (carbon_net_change_mg_ha_yr); absent in older snapshots. */
   readonly carbon_change_uncertainty?: CarbonUncertaintySection | null;
+  /** The same for the tree pool's net carbon change (tree_carbon_net_change_mg_ha_yr); absent in older snapshots. */
+  readonly tree_carbon_change_uncertainty?: CarbonUncertaintySection | null;
   /** The pairs of visits behind the estimates of change (null: no plot measured twice); absent in snapshots made before it. */
   readonly change?: ChangeCoverage | null;
   /** Share of the AGB from each height source and wood-density level (absent in older snapshots). */

@@ -132,7 +132,8 @@ export async function assembleRegionSnapshot(deps: Deps, region: string, charts:
   const carbon = await regionCarbonUncertainty(db, config, region, areas, 'stock');
   const treeCarbon = await regionCarbonUncertainty(db, config, region, areas, 'trees');
   const carbonChange = await regionCarbonUncertainty(db, config, region, areas, 'change');
-  const summary = { ...estimated, rows: withWholeInterval(estimated.rows, carbon, treeCarbon, carbonChange) };
+  const treeCarbonChange = await regionCarbonUncertainty(db, config, region, areas, 'treeChange');
+  const summary = { ...estimated, rows: withWholeInterval(estimated.rows, carbon, treeCarbon, carbonChange, treeCarbonChange) };
 
   const fits: SnapshotFitRow[] = [];
   for (const scope of [{ kind: 'forest_type' }, { kind: 'region', region }] as const) {
@@ -161,6 +162,7 @@ export async function assembleRegionSnapshot(deps: Deps, region: string, charts:
     carbon_uncertainty: carbon,
     tree_carbon_uncertainty: treeCarbon,
     carbon_change_uncertainty: carbonChange,
+    tree_carbon_change_uncertainty: treeCarbonChange,
     change: coverageOf(aggregates.change),
     charts: { means, guilds, change, fits: fitCharts },
   };

@@ -4,7 +4,7 @@ import type { CarbonUncertaintySection } from '../carbon-uncertainty';
 
 // The sections "Carbon stock: the whole uncertainty" (above-ground live trees), "Carbon in trees: the whole
 // uncertainty" (the tree pool) and, on the change part of the page, "Net carbon change: the whole
-// uncertainty" of the region and national pages: the sampling-only and the whole interval side by side,
+// uncertainty" and "Net change of carbon in trees: the whole uncertainty" of the region and national pages: the sampling-only and the whole interval side by side,
 // the share of each source, and what the intervals do and do not cover (docs/methods.md#carbon-uncertainty).
 
 /** Per pool: heading, element ids, what the figure is, and its units. */
@@ -22,6 +22,14 @@ const POOLS = {
     title: 'Net carbon change: the whole uncertainty',
     id: 'carbon-change',
     what: 'Net change of the above-ground carbon of live trees between the two latest visits of each plot measured twice',
+    unit: 'Mg C/ha/yr',
+    totalUnit: 'Mt C/yr',
+    totalWords: 'totals in Mt C per year; negative: the forest lost carbon',
+  },
+  'tree change': {
+    title: 'Net change of carbon in trees: the whole uncertainty',
+    id: 'tree-carbon-change',
+    what: "Net change of the carbon in trees (live above- and below-ground biomass, each visit's own root-to-shoot ratio, and standing dead wood) between the two latest visits of each plot measured twice",
     unit: 'Mg C/ha/yr',
     totalUnit: 'Mt C/yr',
     totalWords: 'totals in Mt C per year; negative: the forest lost carbon',
@@ -55,7 +63,7 @@ export function carbonUncertaintySection(section: CarbonUncertaintySection | nul
   const sources = Object.keys(SOURCE_NAMES) as (keyof typeof SOURCE_NAMES)[];
   const used = sources.filter((k) => section.rows.some((r) => r.shares[k] > 0));
   return html`${head}
-<p class="muted">${pool.what} (${pool.unit}; ${pool.totalWords}). Beside the sampling interval, the whole interval adds the error of the biomass and height models and of wood density${section.pool === 'trees' ? ' and of the root-to-shoot ratios' : ''}, by a Monte Carlo of ${section.draws} draws (IPCC 2006 Guidelines, Vol. 1, Ch. 3, approach 2; seed ${section.seed}, so the same data give the same interval).</p>
+<p class="muted">${pool.what} (${pool.unit}; ${pool.totalWords}). Beside the sampling interval, the whole interval adds the error of the biomass and height models and of wood density${section.pool === 'trees' || section.pool === 'tree change' ? ' and of the root-to-shoot ratios' : ''}, by a Monte Carlo of ${section.draws} draws (IPCC 2006 Guidelines, Vol. 1, Ch. 3, approach 2; seed ${section.seed}, so the same data give the same interval).</p>
 <table id="${pool.id}-whole"><thead><tr><th>Stratum</th><th class="num">Plots</th><th class="num">Mean</th><th class="num">95 % CI, sampling only</th><th class="num">95 % CI, whole</th><th class="num">Total, ${pool.totalUnit}</th><th class="num">Total, sampling only</th><th class="num">Total, whole</th></tr></thead><tbody>${section.rows.map(
     (r) => html`<tr class="${r.forest_type === 'all' ? 'whole' : ''}"><td>${name(r.forest_type)}</td><td class="num">${r.n_plots}</td><td class="num">${estimate(r.mean, r.sampling_se)}</td>
 <td class="num">${estimateInterval(r.sampling_ci_low, r.sampling_ci_high, r.sampling_se)}</td><td class="num">${estimateInterval(r.whole_ci_low, r.whole_ci_high, r.whole_se)} <span class="muted">(SE ${standardError(r.whole_se)})</span></td>

@@ -67,6 +67,7 @@ export function renderNationalPage(input: NationalPageInput): string {
   <h2 id="change-between-visits">Change between visits</h2>
   ${changeSection({ rows: summary.rows, coverage: s.payload.change, chartSvg: s.payload.charts.change, whole: WHOLE_COUNTRY, scope: 'country' })}
   ${carbonUncertaintySection(s.payload.carbon_change_uncertainty, 'All regions together (stratified)')}
+  ${carbonUncertaintySection(s.payload.tree_carbon_change_uncertainty, 'All regions together (stratified)')}
   <h2 id="stand-table-heading">Stand table by diameter class</h2>
   ${standTableSection(summary.rows, WHOLE_COUNTRY) ?? html`<p class="muted">No stand table in this version of the summary.</p>`}
   ${biomassMethodSection(s.payload.biomass_method)}

@@ -260,6 +260,7 @@ export function renderRegionPage(input: RegionPageInput): string {
   <h2 id="change-between-visits">Change between visits</h2>
   ${changeSection({ rows: summary.rows, coverage: s.payload.change, chartSvg: charts.change, scope: 'region' })}
   ${carbonUncertaintySection(s.payload.carbon_change_uncertainty, 'Whole region (stratified)')}
+  ${carbonUncertaintySection(s.payload.tree_carbon_change_uncertainty, 'Whole region (stratified)')}
   <h2 id="stand-table-heading">Stand table by diameter class</h2>
   ${standTableSection(summary.rows, 'Whole region (stratified)') ?? html`<p class="muted">No stand table in this version of the summary.</p>`}
   ${biomassMethodSection(s.payload.biomass_method)}

@@ -34,7 +34,7 @@ export function changeRoutes(app: FastifyInstance, ctx: RouteContext): void {
       const entry = await ctx.cache.get(region, request.query.version);
       if (!entry) return denyJson(reply, 404, 'not_found', request.query.version ? `version ${request.query.version} of the summary of '${region}' does not exist` : `no summary of '${region}' yet: it is assembled by the next recompute`);
       const s = entry.snapshot;
-      return sendJson(reply, changeView({ region, version: s.version, createdAt: s.createdAt, rows: s.payload.summary.rows, coverage: s.payload.change, carbonUncertainty: s.payload.carbon_change_uncertainty }));
+      return sendJson(reply, changeView({ region, version: s.version, createdAt: s.createdAt, rows: s.payload.summary.rows, coverage: s.payload.change, carbonUncertainty: s.payload.carbon_change_uncertainty, treeCarbonUncertainty: s.payload.tree_carbon_change_uncertainty }));
     },
   );
 
@@ -48,7 +48,7 @@ export function changeRoutes(app: FastifyInstance, ctx: RouteContext): void {
       if (!checkNational(request, reply)) return reply;
       const s = await readNationalSnapshot(ctx.deps.db, request.query.version);
       if (!s) return denyJson(reply, 404, 'not_found', request.query.version ? `version ${request.query.version} of the national summary does not exist` : 'no national summary yet: it is assembled by the next recompute');
-      return sendJson(reply, changeView({ version: s.version, createdAt: s.createdAt, rows: s.payload.summary.rows, coverage: s.payload.change, carbonUncertainty: s.payload.carbon_change_uncertainty }));
+      return sendJson(reply, changeView({ version: s.version, createdAt: s.createdAt, rows: s.payload.summary.rows, coverage: s.payload.change, carbonUncertainty: s.payload.carbon_change_uncertainty, treeCarbonUncertainty: s.payload.tree_carbon_change_uncertainty }));
     },
   );
 }

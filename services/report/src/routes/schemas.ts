@@ -119,6 +119,9 @@ export const TreeCarbonUncertaintySchema = carbonSectionSchema('tree_carbon_mg_h
 export const CarbonChangeUncertaintySchema = carbonSectionSchema('carbon_net_change_mg_ha_yr', 'above-ground change')
   .optional()
   .describe('whole uncertainty of the net above-ground carbon change between visits, carbon_net_change_mg_ha_yr (Mg C/ha/yr); null when off, absent in summaries made before it');
+export const TreeCarbonChangeUncertaintySchema = carbonSectionSchema('tree_carbon_net_change_mg_ha_yr', 'tree change')
+  .optional()
+  .describe("whole uncertainty of the tree pool's net carbon change between visits, tree_carbon_net_change_mg_ha_yr (Mg C/ha/yr; each visit its own root-to-shoot ratio); null when off, absent in summaries made before it");
 
 const CautionSchema = z.object({ min_plots: z.number().int(), max_sampling_error_pct: z.number() }).optional().describe('thresholds of caution_flag');
 
@@ -243,6 +246,7 @@ export const ChangeResponse = z.object({
   variables: z.array(z.object({ variable: z.string(), name: z.string(), unit: z.string().describe('unit of the values as served'), description: z.string() })),
   estimates: z.array(RegionRowSchema).describe('the `export regions` rows of the change variables: `all` first, then each forest type; empty without plots measured twice'),
   carbon_uncertainty: carbonSectionSchema('carbon_net_change_mg_ha_yr', 'above-ground change').describe('whole uncertainty of net carbon change (docs/methods.md#carbon-uncertainty); null when off or in a summary made before it'),
+  tree_carbon_uncertainty: carbonSectionSchema('tree_carbon_net_change_mg_ha_yr', 'tree change').describe("whole uncertainty of the tree pool's net carbon change (docs/methods.md#carbon-uncertainty); null when off or in a summary made before it"),
   caution: z.string(),
 });
 
@@ -263,6 +267,7 @@ export const SummaryResponse = z.object({
   carbon_uncertainty: CarbonUncertaintySchema,
   tree_carbon_uncertainty: TreeCarbonUncertaintySchema,
   carbon_change_uncertainty: CarbonChangeUncertaintySchema,
+  tree_carbon_change_uncertainty: TreeCarbonChangeUncertaintySchema,
   change: ChangeCoverageSchema.nullable().optional().describe('the pairs of visits behind the estimates of change (absent in summaries made before it was recorded)'),
 });
 

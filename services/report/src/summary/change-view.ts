@@ -40,6 +40,8 @@ export interface ChangeView {
   readonly estimates: readonly RegionRow[];
   /** The whole uncertainty of net carbon change (docs/methods.md#carbon-uncertainty); null when off or in a summary made before it. */
   readonly carbon_uncertainty: CarbonUncertaintySection | null;
+  /** The same for the tree pool's net carbon change (tree_carbon_net_change_mg_ha_yr). */
+  readonly tree_carbon_uncertainty: CarbonUncertaintySection | null;
   readonly caution: string;
 }
 
@@ -64,6 +66,7 @@ export function changeView(s: {
   rows: readonly RegionRow[];
   coverage: ChangeCoverage | null | undefined;
   carbonUncertainty?: CarbonUncertaintySection | null;
+  treeCarbonUncertainty?: CarbonUncertaintySection | null;
 }): ChangeView {
   return {
     region: s.region ?? NATIONAL,
@@ -75,6 +78,7 @@ export function changeView(s: {
     variables: changeVariables(),
     estimates: changeRows(s.rows),
     carbon_uncertainty: s.carbonUncertainty ?? null,
+    tree_carbon_uncertainty: s.treeCarbonUncertainty ?? null,
     caution: CHANGE_CAUTION,
   };
 }
