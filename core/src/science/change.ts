@@ -305,9 +305,14 @@ export function plotChange(first: ChangeVisit, second: ChangeVisit, carbonFracti
     let known = true;
     for (const t of poolTrees.values()) known = known && addTree(builder, t.terms, t.sources);
     // each visit's BGB = R_v·S_v: its row's error multiplies S_v (Mg/ha), with the visit's sign and 1/t
+    const built = builder.build();
+    // Σu is the same figure summed tree by tree: kept as a check, the figure itself stored, so that the section's sampling values are the summary's to the last bit
+    const scale = 1 + (rf1 * stock1 + rf2 * stock2 + (dead1 as number) + (dead2 as number)) / 1000 / years;
+    if (known && Math.abs(built.value - treeNet) > 1e-9 * scale) fail(fn, `the tree pool's sums add to ${built.value}, not its net change ${treeNet} (a bug)`);
     if (known) {
       treeMoments = {
-        ...builder.build(),
+        ...built,
+        value: treeNet,
         rootShootParts: [
           { ratio: first.rootShootRatio ?? 0, sd: e1.sd, row: e1.row, agb: -stock1 / 1000 / years },
           { ratio: second.rootShootRatio ?? 0, sd: e2.sd, row: e2.row, agb: stock2 / 1000 / years },
