@@ -79,6 +79,18 @@ describe('stemwise demo on a generated inventory', () => {
     expect(rows).toHaveLength(9);
   });
 
+  it("gives the whole interval of the tree pool's net carbon change nationally, with each visit's root-to-shoot ratio among its sources", () => {
+    const section = result.treeCarbonChange;
+    expect(section?.missing).toBeNull();
+    expect(section?.variable).toBe('tree_carbon_net_change_mg_ha_yr');
+    expect(section?.rows.map((r) => r.forest_type).sort()).toEqual(['all', 'dry', 'moist', 'wet']);
+    for (const r of section?.rows ?? []) {
+      expect(r.whole_ci_low, r.forest_type).toBeLessThanOrEqual(r.sampling_ci_low);
+      expect(r.whole_ci_high, r.forest_type).toBeGreaterThanOrEqual(r.sampling_ci_high);
+      expect(r.shares.rootShoot, r.forest_type).toBeGreaterThan(0);
+    }
+  });
+
   it('writes the report folder: pages per region, exports and charts', () => {
     const index = fs.readFileSync(result.index, 'utf8');
     expect(index).toContain('<html');
