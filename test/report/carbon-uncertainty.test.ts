@@ -5,11 +5,12 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { getNationalSnapshot, getSummarySnapshot, markStale } from '@stemwise/db';
 import type { RegionRow, ServiceDeps } from '@stemwise/core';
 import { InProcessQueue } from '@stemwise/platform';
-import { createProcessors, listRegionExportRows, writeRegionPages, type NationalPayload, type SnapshotPayload } from '@stemwise/report';
+import { buildServer, ChangeResponse, createProcessors, listRegionExportRows, SummaryResponse, writeRegionPages, type NationalPayload, type SnapshotPayload } from '@stemwise/report';
 import { testLogger, useServices, type TestServices } from '../support/services';
 import { budget, seedChangePairs } from './change-fixture';
 import { jobContext, seedRun } from './fixture';
 import { seedScenario } from './seed-scenario';
+import { createToken } from './tokens';
 
 // The whole carbon uncertainty in the summaries job (docs/methods.md#carbon-uncertainty): plots whose
 // metrics kept no sums get a note instead of an interval; with sums, the region and national summaries
@@ -167,6 +168,26 @@ describe('carbon uncertainty in the summaries', () => {
     await markStale(s.db, 'summary', ['Northvale']);
     await runSummaries();
     expect((await region('Northvale')).version).toBe(version);
+  });
+
+  it("the API serves the tree pool change's section in the summary and beside the above-ground one in the change view", async () => {
+    const app = await buildServer(deps, { summaryCheckMs: 0 });
+    try {
+      const headers = { authorization: `Bearer ${(await createToken(s.db, 'admin')).token}` };
+      const { payload } = await region('Northvale');
+      const summary = (await app.inject({ url: '/v1/regions/Northvale/summary', headers })).json();
+      expect(SummaryResponse.safeParse(summary).success).toBe(true);
+      expect(summary.tree_carbon_change_uncertainty).toEqual(payload.tree_carbon_change_uncertainty);
+      const change = (await app.inject({ url: '/v1/regions/Northvale/change', headers })).json();
+      expect(ChangeResponse.safeParse(change).success).toBe(true);
+      expect(change.carbon_uncertainty.variable).toBe('carbon_net_change_mg_ha_yr');
+      expect(change.tree_carbon_uncertainty.variable).toBe('tree_carbon_net_change_mg_ha_yr');
+      expect(change.tree_carbon_uncertainty.rows[0].whole_se).toBe(payload.tree_carbon_change_uncertainty!.rows[0].whole_se);
+      const national = (await app.inject({ url: '/v1/national/change', headers })).json();
+      expect(national.tree_carbon_uncertainty.rows[0].forest_type).toBe('all');
+    } finally {
+      await app.close();
+    }
   });
 
   it('the region and national pages show both intervals and what they do not cover', async () => {

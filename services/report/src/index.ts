@@ -6,7 +6,7 @@ export { exportRegions, listRegionExportRows, type ExportRegionsOptions } from '
 export { assembleRegionSnapshot, refreshStaleSummaries } from './snapshots';
 export { newToken, hashToken, TOKEN_ROLES, TokenVerifier, type Principal } from './access';
 export { AuditWriter } from './audit';
-export { NationalResponse, SummaryResponse } from './routes/schemas';
+export { ChangeResponse, NationalResponse, SummaryResponse } from './routes/schemas';
 export type { NationalPayload } from './national-snapshot';
 export type { SnapshotPayload } from './snapshot-payload';
 export { service } from './service';
