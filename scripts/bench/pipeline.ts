@@ -69,6 +69,8 @@ await withScratch(adminUrl, 'pipeline', async ({ work, dbUrl }) => {
   const env = { DATABASE_URL: dbUrl, STEMWISE_DATA_DIR: path.join(work, 'data'), STEMWISE_LOG_LEVEL: 'warn' };
   const upload = stemwise(['upload', dir, '--wait'], env, work);
   const recompute = stemwise(['recompute', '--now', '--all'], env, work);
+  // The same with the heap cap docker-compose.yml gives the compute workers.
+  const capped = stemwise(['recompute', '--now', '--all'], { ...env, NODE_OPTIONS: `${process.env.NODE_OPTIONS ?? ''} --max-old-space-size=256`.trim() }, work);
   const stageLines = recompute.stdout.slice(recompute.stdout.indexOf('stage times')).trimEnd().split('\n').slice(1);
 
   const mb = (x: number | null) => (x === null ? 'n/a' : `${Math.round(x)} MB`);
@@ -81,6 +83,7 @@ await withScratch(adminUrl, 'pipeline', async ({ work, dbUrl }) => {
     row('`psql \\copy` of trees.csv into a plain text table', copy),
     row('`stemwise upload DIR --wait` (ingest, metrics, fits, summaries)', upload.s, mb(upload.peakMb)),
     row('`stemwise recompute --now --all` (the whole command)', recompute.s, mb(recompute.peakMb)),
+    row('the same, heap capped as for compute workers (`--max-old-space-size=256`)', capped.s, mb(capped.peakMb)),
   ];
   for (const l of stageLines) {
     const m = /^\s+(.+?)\s{2,}(\d+\.\d\d) s/.exec(l);
