@@ -192,13 +192,14 @@ export function plotChange(first: ChangeVisit, second: ChangeVisit, carbonFracti
   // wood), with −1/t at the first visit and +1/t at the second; a tree's terms at both visits together (its
   // model errors the same at both, as for a survivor above).
   const poolTrees = new Map<string, { terms: (MomentTerm | null)[]; sources: (HeightSource | null | undefined)[] }>();
-  const addPool = (t: ChangeTree, term: MomentTerm | null): void => {
+  const addPool = (t: ChangeTree, area: number, coef: number, kg: number | null | undefined = t.agbKg): void => {
     if (!options.carbonMoments) return;
+    const x = term(t, area, coef, kg);
     const at = poolTrees.get(t.treeId);
     if (at) {
-      at.terms.push(term);
+      at.terms.push(x);
       at.sources.push(t.heightSource);
-    } else poolTrees.set(t.treeId, { terms: [term], sources: [t.heightSource] });
+    } else poolTrees.set(t.treeId, { terms: [x], sources: [t.heightSource] });
   };
   const at1 = checkVisit(fn, 'first', first);
   const at2 = checkVisit(fn, 'second', second);
@@ -232,7 +233,7 @@ export function plotChange(first: ChangeVisit, second: ChangeVisit, carbonFracti
     const g1 = basalAreaM2(t1.dbhCm) / a1;
     const b1 = (t1.agbKg as number) / a1;
     stock1 += b1;
-    addPool(t1, term(t1, a1, -rf1 / years));
+    addPool(t1, a1, -rf1 / years);
     const t2 = at2.get(t1.treeId);
     if (t2 !== undefined && t2.status === 'live') {
       nSurvivors += 1;
@@ -241,7 +242,7 @@ export function plotChange(first: ChangeVisit, second: ChangeVisit, carbonFracti
       agbGrowth += (t2.agbKg as number) / a2 - b1;
       stock2 += (t2.agbKg as number) / a2;
       addLive([term(t1, a1, -1 / years), term(t2, a2, 1 / years)], [t1.heightSource, t2.heightSource]);
-      addPool(t2, term(t2, a2, rf2 / years));
+      addPool(t2, a2, rf2 / years);
     } else if (t2 !== undefined && t2.status === 'stump' && t2.stumpCause === 'logged') {
       nRemoved += 1;
       baLoss += g1;
@@ -265,7 +266,7 @@ export function plotChange(first: ChangeVisit, second: ChangeVisit, carbonFracti
     agbRecruitment += (t2.agbKg as number) / a2;
     stock2 += (t2.agbKg as number) / a2;
     addLive([term(t2, a2, 1 / years)], [t2.heightSource]);
-    addPool(t2, term(t2, a2, rf2 / years));
+    addPool(t2, a2, rf2 / years);
   }
   const deadStock = (v: ChangeVisit, coef: number): number | null => {
     let kgHa = 0;
@@ -274,7 +275,7 @@ export function plotChange(first: ChangeVisit, second: ChangeVisit, carbonFracti
       if (t.deadKg === undefined || t.deadKg === null) return null;
       if (!(t.deadKg >= 0) || !Number.isFinite(t.deadKg)) fail(fn, `dead tree ${t.treeId} biomass must be finite and >= 0 (got ${t.deadKg})`);
       kgHa += t.deadKg / v.areaHa;
-      addPool(t, term(t, v.areaHa, coef, t.deadKg));
+      addPool(t, v.areaHa, coef, t.deadKg);
     }
     return kgHa;
   };
