@@ -69,7 +69,9 @@ export async function bundle(entry: string, outfile: string, { split = false } =
     // `__stemwiseBuildUrl`: where the compiled file is, for code that starts a worker thread from a file beside it (metrics-pool.ts).
     banner: { js: "import { createRequire as __stemwiseCreateRequire } from 'node:module'; const require = __stemwiseCreateRequire(import.meta.url); const __stemwiseBuildUrl = import.meta.url;" },
   });
-  // Chunks of an earlier build that this one no longer writes.
+  // Chunks of an earlier split build that this one no longer writes. A single-file bundle (a bench's
+  // child process) writes no chunks and must leave those of the command's build alone.
+  if (!split) return;
   const written = new Set(Object.keys(result.metafile.outputs).map((f) => path.resolve(f)));
   for (const name of fs.readdirSync(outdir)) {
     const file = path.join(outdir, name);
