@@ -23,25 +23,29 @@ export async function listRegionCarbonMoments(db: Queryable, region: string): Pr
   );
 }
 
+/** A plot's change ending at its latest visit with the sums of both change sections, and which of their figures it has. */
+export interface PlotChangeCarbonMomentsRow extends PlotCarbonMomentsRow {
+  /** carbon_net_change_mg_ha_yr is not null (the above-ground change section takes the pair). */
+  hasChange: boolean;
+  /** tree_carbon_net_change_mg_ha_yr is not null (the tree pool change section takes the pair; its sums under `trees`). */
+  hasTreeChange: boolean;
+}
+
 /**
- * The plot's change ending at its latest visit (the pair the summaries' change rows use) with the sums of the
- * carbon uncertainty of one change variable: the above-ground change's, or (tree_carbon_net_change_mg_ha_yr)
- * the tree pool change's, stored under `trees` (null: computed before they were kept).
+ * The plot's change ending at its latest visit (the pair the summaries' change rows use) with its stored
+ * `carbon_moments`: the above-ground change's sums, with the tree pool change's under `trees` (null:
+ * computed before they were kept). One read for both change sections.
  */
-export async function listRegionChangeCarbonMoments(
-  db: Queryable,
-  region: string,
-  variable: 'carbon_net_change_mg_ha_yr' | 'tree_carbon_net_change_mg_ha_yr' = 'carbon_net_change_mg_ha_yr',
-): Promise<PlotCarbonMomentsRow[]> {
-  const moments = variable === 'tree_carbon_net_change_mg_ha_yr' ? "c.carbon_moments->'trees'" : 'c.carbon_moments';
-  return db.query<PlotCarbonMomentsRow>(
+export async function listRegionChangeCarbonMoments(db: Queryable, region: string): Promise<PlotChangeCarbonMomentsRow[]> {
+  return db.query<PlotChangeCarbonMomentsRow>(
     `with latest as (${LATEST_VISITS})
-     select p.plot_key "plotKey", p.forest_type "forestType", v.area_ha "areaHa", ${moments} moments
+     select p.plot_key "plotKey", p.forest_type "forestType", v.area_ha "areaHa", c.carbon_moments moments,
+            c.carbon_net_change_mg_ha_yr is not null "hasChange", c.tree_carbon_net_change_mg_ha_yr is not null "hasTreeChange"
        from latest l
        join plots p on p.id = l.plot_id
        join plot_visits v on v.id = l.visit_id
        join plot_change c on c.visit_to_id = l.visit_id
-      where c.${variable} is not null
+      where c.carbon_net_change_mg_ha_yr is not null or c.tree_carbon_net_change_mg_ha_yr is not null
       order by p.plot_key collate "C"`,
     [region],
   );

@@ -144,17 +144,30 @@ interface PlotSums {
   readonly moments: CarbonMoments;
 }
 
-/** A region's plots (latest visit; for change, the pair ending at it) with the section's sums, or the number that have none. */
-export async function readRegionCarbonSums(db: Queryable, region: string, kind: CarbonSectionKind = 'stock'): Promise<{ plots: PlotSums[]; without: number }> {
-  const rows = kind === 'change' || kind === 'treeChange' ? await listRegionChangeCarbonMoments(db, region, CARBON_SECTIONS[kind].variable) : await listRegionCarbonMoments(db, region);
-  const pool = CARBON_SECTIONS[kind].corePool;
-  const plots: PlotSums[] = [];
-  let without = 0;
-  for (const r of rows) {
-    if (hasCarbonSums(r.moments, pool)) plots.push({ scope: region, forestType: r.forestType, moments: r.moments });
-    else without += 1;
-  }
-  return { plots, without };
+type SectionSums = { plots: PlotSums[]; without: number };
+
+/**
+ * A region's plots (latest visit; for change, the pair ending at it) with each section's sums, or the
+ * number that have none: two reads (stock and change) for the four sections.
+ */
+export async function readRegionCarbonSums(db: Queryable, region: string): Promise<Record<CarbonSectionKind, SectionSums>> {
+  const [stock, change] = await Promise.all([listRegionCarbonMoments(db, region), listRegionChangeCarbonMoments(db, region)]);
+  const collect = (kind: CarbonSectionKind, rows: ReadonlyArray<{ forestType: string; moments: unknown }>): SectionSums => {
+    const pool = CARBON_SECTIONS[kind].corePool;
+    const out: SectionSums = { plots: [], without: 0 };
+    for (const r of rows) {
+      if (hasCarbonSums(r.moments, pool)) out.plots.push({ scope: region, forestType: r.forestType, moments: r.moments });
+      else out.without += 1;
+    }
+    return out;
+  };
+  const treesOf = (m: unknown): unknown => (typeof m === 'object' && m !== null ? (m as { trees?: unknown }).trees : undefined);
+  return {
+    stock: collect('stock', stock),
+    trees: collect('trees', stock),
+    change: collect('change', change.filter((r) => r.hasChange)),
+    treeChange: collect('treeChange', change.filter((r) => r.hasTreeChange).map((r) => ({ forestType: r.forestType, moments: treesOf(r.moments) }))),
+  };
 }
 
 async function heightModelErrors(db: Queryable, forestTypes: readonly string[]): Promise<Map<string, HeightModelError>> {
@@ -214,14 +227,14 @@ function row(forestType: string, r: CarbonUncertainty): CarbonUncertaintyRow {
  * The section of a set of strata (scope × forest type, each with its forest area): the whole estimate,
  * then each forest type alone (for a nation: its regions as strata). Null when the setting turns it off.
  */
-export async function carbonUncertaintySection(
-  db: Queryable,
+export function carbonUncertaintySection(
+  heightModels: ReadonlyMap<string, HeightModelError>,
   config: Settings,
   kind: CarbonSectionKind,
   plots: readonly PlotSums[],
   without: number,
   areaOf: (scope: string, forestType: string) => number | null,
-): Promise<CarbonUncertaintySection | null> {
+): CarbonUncertaintySection | null {
   if (config.carbonDraws === 0) return null;
   if (without > 0) {
     return unavailable(config, kind, `${without} plot(s) ${RECOMPUTE[kind]}: run a full recompute (stemwise recompute --all) to get the whole interval.`);
@@ -247,7 +260,7 @@ export async function carbonUncertaintySection(
     carbonFraction: IPCC_2006_CARBON_FRACTION,
     allometryRse: config.carbonAllometryRse,
     woodDensityTreeSd: config.carbonWoodDensitySd,
-    heightModels: await heightModelErrors(db, forestTypes),
+    heightModels,
     pool: CARBON_SECTIONS[kind].corePool,
     stratified: { weighting: allAreas ? ('area' as const) : ('plot_count' as const) },
   };
@@ -261,44 +274,68 @@ export async function carbonUncertaintySection(
   return { ...unavailable(config, kind, ''), rows, confidence: whole.confidence, tree_error_scope: whole.treeErrorScope, missing: null };
 }
 
-/** A region's section: its forest types as strata, with the areas the region summary uses. */
-export async function regionCarbonUncertainty(
-  db: Queryable,
-  config: Settings,
-  region: string,
-  forestAreas: Readonly<Record<string, number>>,
-  kind: CarbonSectionKind = 'stock',
-): Promise<CarbonUncertaintySection | null> {
-  if (config.carbonDraws === 0) return null;
-  const { plots, without } = await readRegionCarbonSums(db, region, kind);
-  const resolved = resolveForestAreas([...new Set(plots.map((p) => p.forestType))].sort(), forestAreas);
-  return carbonUncertaintySection(db, config, kind, plots, without, (_scope, t) => resolved.areas[t] ?? null);
+/** The four sections of a region or of the nation (null: the setting turns them off). */
+export interface CarbonSections {
+  readonly carbon: CarbonUncertaintySection | null;
+  readonly treeCarbon: CarbonUncertaintySection | null;
+  readonly carbonChange: CarbonUncertaintySection | null;
+  readonly treeCarbonChange: CarbonUncertaintySection | null;
 }
 
-/** The national section: region × forest type as strata. */
-export async function nationalCarbonUncertainty(
+const SECTION_KEYS = { stock: 'carbon', trees: 'treeCarbon', change: 'carbonChange', treeChange: 'treeCarbonChange' } as const satisfies Record<CarbonSectionKind, keyof CarbonSections>;
+const KINDS = Object.keys(SECTION_KEYS) as CarbonSectionKind[];
+const OFF: CarbonSections = { carbon: null, treeCarbon: null, carbonChange: null, treeCarbonChange: null };
+
+// Each section with the sums of its plots and the areas of its strata; the height models read once for all four.
+async function sections(
+  db: Queryable,
+  config: Settings,
+  sums: Record<CarbonSectionKind, SectionSums>,
+  areaOf: (kind: CarbonSectionKind) => (scope: string, forestType: string) => number | null,
+): Promise<CarbonSections> {
+  const forestTypes = [...new Set(KINDS.flatMap((k) => sums[k].plots.map((p) => p.forestType)))].sort();
+  const heightModels = await heightModelErrors(db, forestTypes);
+  const out: Record<keyof CarbonSections, CarbonUncertaintySection | null> = { ...OFF };
+  for (const kind of KINDS) out[SECTION_KEYS[kind]] = carbonUncertaintySection(heightModels, config, kind, sums[kind].plots, sums[kind].without, areaOf(kind));
+  return out;
+}
+
+const typesOf = (plots: readonly PlotSums[]): string[] => [...new Set(plots.map((p) => p.forestType))].sort();
+
+/** A region's four sections: its forest types as strata, with the areas the region summary uses. */
+export async function regionCarbonSections(db: Queryable, config: Settings, region: string, forestAreas: Readonly<Record<string, number>>): Promise<CarbonSections> {
+  if (config.carbonDraws === 0) return OFF;
+  const sums = await readRegionCarbonSums(db, region);
+  return sections(db, config, sums, (kind) => {
+    const areas = resolveForestAreas(typesOf(sums[kind].plots), forestAreas).areas;
+    return (_scope, t) => areas[t] ?? null;
+  });
+}
+
+/** The nation's four sections: region × forest type as strata. */
+export async function nationalCarbonSections(
   db: Queryable,
   config: Settings,
   regions: ReadonlyArray<{ readonly region: string; readonly forestAreas?: Readonly<Record<string, number>> }>,
-  kind: CarbonSectionKind = 'stock',
-): Promise<CarbonUncertaintySection | null> {
-  if (config.carbonDraws === 0) return null;
-  const plots: PlotSums[] = [];
-  let without = 0;
-  const areas = new Map<string, Readonly<Record<string, number | null>>>();
+): Promise<CarbonSections> {
+  if (config.carbonDraws === 0) return OFF;
+  const sums = Object.fromEntries(KINDS.map((k): [CarbonSectionKind, SectionSums] => [k, { plots: [], without: 0 }])) as Record<CarbonSectionKind, SectionSums>;
+  const areas = new Map<string, Readonly<Record<string, number | null>>>(); // by kind and region
   for (const r of regions) {
-    const sums = await readRegionCarbonSums(db, r.region, kind);
-    plots.push(...sums.plots);
-    without += sums.without;
-    areas.set(r.region, resolveForestAreas([...new Set(sums.plots.map((p) => p.forestType))].sort(), r.forestAreas ?? {}).areas);
+    const mine = await readRegionCarbonSums(db, r.region);
+    for (const kind of KINDS) {
+      sums[kind].plots.push(...mine[kind].plots);
+      sums[kind].without += mine[kind].without;
+      areas.set(`${kind}\u0000${r.region}`, resolveForestAreas(typesOf(mine[kind].plots), r.forestAreas ?? {}).areas);
+    }
   }
-  return carbonUncertaintySection(db, config, kind, plots, without, (scope, t) => areas.get(scope)?.[t] ?? null);
+  return sections(db, config, sums, (kind) => (scope, t) => areas.get(`${kind}\u0000${scope}`)?.[t] ?? null);
 }
 
 /** The summary rows of each section's variable with its whole interval added (the other rows as they are). */
-export function withWholeInterval<R extends RegionRow>(rows: readonly R[], ...sections: readonly (CarbonUncertaintySection | null | undefined)[]): R[] {
+export function withWholeInterval<R extends RegionRow>(rows: readonly R[], ...given: readonly (CarbonUncertaintySection | null | undefined)[]): R[] {
   const byKey = new Map<string, CarbonUncertaintyRow>();
-  for (const section of sections) for (const u of section?.rows ?? []) byKey.set(`${section?.variable}\u0000${u.forest_type}`, u);
+  for (const section of given) for (const u of section?.rows ?? []) byKey.set(`${section?.variable}\u0000${u.forest_type}`, u);
   if (byKey.size === 0) return [...rows];
   return rows.map((r) => {
     const u = byKey.get(`${r.variable}\u0000${r.forest_type}`);

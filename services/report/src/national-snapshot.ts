@@ -10,7 +10,7 @@ import {
 import { cautionSettings, type NationalSummary, type ServiceDeps } from '@stemwise/core';
 import { buildChangeChartSpec, buildMeansChartSpec, type TopLevelSpec } from '@stemwise/core/charts';
 import type { Logger } from '@stemwise/platform';
-import { nationalCarbonUncertainty, withWholeInterval, type CarbonUncertaintySection } from './carbon-uncertainty';
+import { nationalCarbonSections, withWholeInterval, type CarbonUncertaintySection } from './carbon-uncertainty';
 import { combineNation, type NationalRegionStrata } from './summary/national-summary';
 import { CHANGE_VARIABLES, variableList } from './summary/region-summary';
 import { coverageOf, joinChangeParts, type ChangeCoverage } from './summary/change-coverage';
@@ -87,10 +87,7 @@ export async function assembleNationalSnapshot(deps: Deps, sources: Readonly<Rec
     all.flatMap((a) => Object.keys(a.moments)),
   );
   const estimated = combineNation({ regions, variables, options: { samplingErrorT: samplingErrorMultiplier(config), caution: cautionSettings(config) } });
-  const carbon = await nationalCarbonUncertainty(db, config, regions, 'stock');
-  const treeCarbon = await nationalCarbonUncertainty(db, config, regions, 'trees');
-  const carbonChange = await nationalCarbonUncertainty(db, config, regions, 'change');
-  const treeCarbonChange = await nationalCarbonUncertainty(db, config, regions, 'treeChange');
+  const { carbon, treeCarbon, carbonChange, treeCarbonChange } = await nationalCarbonSections(db, config, regions);
   const summary = { ...estimated, rows: withWholeInterval(estimated.rows, carbon, treeCarbon, carbonChange, treeCarbonChange) };
   const firsts = all.map((a) => a.first_survey).filter((d): d is string => d !== null);
   const lasts = all.map((a) => a.last_survey).filter((d): d is string => d !== null);

@@ -18,7 +18,7 @@ import { asStoredFitChart, cautionSettings, currentSpecies, IPCC_2006_CARBON_FRA
 import { isInfrastructureError, PermanentError, type Config, type Logger } from '@stemwise/platform';
 import { plotPagePath } from './plot-map';
 import { buildChangeChartSpec, buildFitChartSpec, buildGuildChartSpec, buildMeansChartSpec, regionChartPoints, type TopLevelSpec } from '@stemwise/core/charts';
-import { regionCarbonUncertainty, withWholeInterval } from './carbon-uncertainty';
+import { regionCarbonSections, withWholeInterval } from './carbon-uncertainty';
 import { RegionSummaryInputError, summariseRegion, summaryVariables, type PlotMetrics } from './summary/region-summary';
 import { coverageOf, type PlotPair } from './summary/change-coverage';
 import { SNAPSHOT_FORMAT, type FitChart, type SnapshotFitRow, type SnapshotMethod, type SnapshotPayload } from './snapshot-payload';
@@ -129,10 +129,7 @@ export async function assembleRegionSnapshot(deps: Deps, region: string, charts:
   const inputPlots = regionPlotInputs(plots);
   const strata = new PlotStrata(inputPlots); // each value read once, for the summary and the aggregates
   const estimated = summariseRegion({ region, plots: inputPlots, forestAreas: areas, variables: summaryVariables(inputPlots), options: { samplingErrorT: samplingErrorMultiplier(config), caution: cautionSettings(config) } }, strata);
-  const carbon = await regionCarbonUncertainty(db, config, region, areas, 'stock');
-  const treeCarbon = await regionCarbonUncertainty(db, config, region, areas, 'trees');
-  const carbonChange = await regionCarbonUncertainty(db, config, region, areas, 'change');
-  const treeCarbonChange = await regionCarbonUncertainty(db, config, region, areas, 'treeChange');
+  const { carbon, treeCarbon, carbonChange, treeCarbonChange } = await regionCarbonSections(db, config, region, areas);
   const summary = { ...estimated, rows: withWholeInterval(estimated.rows, carbon, treeCarbon, carbonChange, treeCarbonChange) };
 
   const fits: SnapshotFitRow[] = [];
