@@ -334,22 +334,16 @@ describe("the sums of the tree pool change's uncertainty (computed by hand; docs
   // Σu = 0.1775 = AGB net (1.8 − 1.5)/4 = 0.075 + BGB net (0.25·1.8 − 0.2·1.5)/4 = 0.0375 + dead wood (0.66 − 0.4)/4 = 0.065.
   const src = (t: ChangeTree, heightSource: 'measured' | 'modelled' | 'noHeight'): ChangeTree => ({ ...t, heightSource });
   const deadWood = (t: ChangeTree, deadKg: number, heightSource: 'measured' | 'modelled'): ChangeTree => ({ ...t, deadKg, heightSource });
-  const first: ChangeVisit = {
-    surveyDate: '2016-03-01',
+  const visit = (surveyDate: string, rootShootRatio: number, sd: number, row: string, trees: ChangeTree[]): ChangeVisit => ({
+    surveyDate,
     areaHa: 0.1,
     dbhMinCm: 10,
-    rootShootRatio: 0.2,
-    rootShootError: { sd: 0.05, row: 'z:0' },
-    trees: [src(live('a', 30, 100), 'measured'), src(live('b', 20, 50), 'modelled'), deadWood(dead('d', 25), 40, 'measured')],
-  };
-  const second: ChangeVisit = {
-    surveyDate: '2020-03-01',
-    areaHa: 0.1,
-    dbhMinCm: 10,
-    rootShootRatio: 0.25,
-    rootShootError: { sd: 0.08, row: 'z:1' },
-    trees: [src(live('a', 34, 160), 'measured'), deadWood(dead('b', 20), 30, 'modelled'), src(live('c', 12, 20), 'noHeight'), deadWood(dead('d', 25), 36, 'measured')],
-  };
+    rootShootRatio,
+    rootShootError: { sd, row },
+    trees,
+  });
+  const first = visit('2016-03-01', 0.2, 0.05, 'z:0', [src(live('a', 30, 100), 'measured'), src(live('b', 20, 50), 'modelled'), deadWood(dead('d', 25), 40, 'measured')]);
+  const second = visit('2020-03-01', 0.25, 0.08, 'z:1', [src(live('a', 34, 160), 'measured'), deadWood(dead('b', 20), 30, 'modelled'), src(live('c', 12, 20), 'noHeight'), deadWood(dead('d', 25), 36, 'measured')]);
 
   it('value Σu = the AGB + BGB + dead wood net change (0.1775 Mg/ha/yr); a tree’s terms at both visits together', () => {
     const c = plotChange(first, second, 0.47, { carbonMoments: true });
