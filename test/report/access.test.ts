@@ -239,12 +239,19 @@ describe('access by role', () => {
     await app.inject({ url: '/v1/regions/Southmere/summary', headers: h });
     await app.inject({ url: '/v1/regions/Northvale/summary', headers: h });
     await app.inject({ url: '/v1/regions', headers: headers('revoked') }); // a refused use of its own to find below
-    await new Promise((r) => setTimeout(r, 200));
-    const entries = await listAuditEntries(s.db, { actor: tokens.readerS.id, action: 'token.use' });
-    const targets = entries.map((e) => `${e.target} ${(e.details.params as { region?: string })?.region} ${e.details.status}`);
-    expect(targets).toContain('GET /v1/regions/:region/summary Southmere 200');
-    expect(targets).toContain('GET /v1/regions/:region/summary Northvale 403');
-    const refused = await listAuditEntries(s.db, { actor: tokens.revoked.id, action: 'token.refused' });
+    // Entries are written by the server's audit writer every 50 ms (auditFlushMs above): wait for them
+    // (up to 10 s, as a loaded machine may delay a flush) rather than for a fixed time.
+    const expected = ['GET /v1/regions/:region/summary Southmere 200', 'GET /v1/regions/:region/summary Northvale 403'];
+    let targets: string[] = [];
+    let refused: unknown[] = [];
+    for (const deadline = Date.now() + 10_000; Date.now() < deadline; await new Promise((r) => setTimeout(r, 50))) {
+      const entries = await listAuditEntries(s.db, { actor: tokens.readerS.id, action: 'token.use' });
+      targets = entries.map((e) => `${e.target} ${(e.details.params as { region?: string })?.region} ${e.details.status}`);
+      refused = await listAuditEntries(s.db, { actor: tokens.revoked.id, action: 'token.refused' });
+      if (expected.every((t) => targets.includes(t)) && refused.length > 0) break;
+    }
+    expect(targets).toContain(expected[0]);
+    expect(targets).toContain(expected[1]);
     expect(refused.length).toBeGreaterThan(0);
   });
 
